@@ -1,0 +1,111 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+)
+
+// Exit statuses shared by every command.
+const (
+	exitOK      = 0
+	exitFailure = 1 // the command could not do its work (database, I/O)
+	exitUsage   = 2 // bad flags, arguments or input data
+)
+
+// env is what a command may touch of the outside world, so tests can run
+// commands in-process with their own streams and environment.
+type env struct {
+	stdin  io.Reader
+	stdout io.Writer
+	stderr io.Writer
+	getenv func(string) string
+}
+
+// command is one subcommand. Name may be two words ("user add").
+type command struct {
+	name    string
+	summary string
+	run     func(ctx context.Context, e *env, args []string) int
+}
+
+// commands is filled by register calls in each cmd_*.go file's init, so that
+// adding a command touches only its own file.
+var commands = map[string]command{}
+
+func register(c command) {
+	if _, dup := commands[c.name]; dup {
+		panic("duplicate command " + c.name)
+	}
+	commands[c.name] = c
+}
+
+func run(ctx context.Context, args []string, e *env) int {
+	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
+		usage(e.stderr)
+		if len(args) == 0 {
+			return exitUsage
+		}
+		return exitOK
+	}
+	if len(args) >= 2 {
+		if c, ok := commands[args[0]+" "+args[1]]; ok {
+			return c.run(ctx, e, args[2:])
+		}
+	}
+	if c, ok := commands[args[0]]; ok {
+		return c.run(ctx, e, args[1:])
+	}
+	fmt.Fprintf(e.stderr, "wardload: unknown command %q (try wardload --help)\n", strings.Join(args[:min(2, len(args))], " "))
+	return exitUsage
+}
+
+func usage(w io.Writer) {
+	fmt.Fprintln(w, "wardload estimates nurse staffing workload from census and timed care observations.")
+	fmt.Fprintln(w, "Its figures are estimates; they defer to local staffing law, agreements and clinical judgement.")
+	fmt.Fprintln(w, "\nUsage: wardload COMMAND [flags]   (every command has --help)\n\nCommands:")
+	names := make([]string, 0, len(commands))
+	for n := range commands {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		fmt.Fprintf(w, "  %-20s %s\n", n, commands[n].summary)
+	}
+}
+
+// newFlagSet returns a flag set that reports errors instead of exiting and
+// prints a usage line for the command on --help.
+func newFlagSet(e *env, name, argsUsage, summary string) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(e.stderr)
+	fs.Usage = func() {
+		fmt.Fprintf(e.stderr, "Usage: wardload %s [flags] %s\n\n%s\n\nFlags:\n", name, argsUsage, summary)
+		fs.PrintDefaults()
+	}
+	return fs
+}
+
+// parseFlags parses args; it returns (code, false) when the command should
+// stop: 0 after --help, 2 after a flag error.
+func parseFlags(fs *flag.FlagSet, args []string) (int, bool) {
+	if err := fs.Parse(args); err != nil {
+		if err == flag.ErrHelp {
+			return exitOK, false
+		}
+		return exitUsage, false
+	}
+	return 0, true
+}
+
+// envOr returns the WARDLOAD_* environment value for key, or def. Flags use
+// it as their default so that the environment is a fallback to the flag.
+func envOr(e *env, key, def string) string {
+	if v := e.getenv(key); v != "" {
+		return v
+	}
+	return def
+}

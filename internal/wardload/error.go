@@ -1,0 +1,84 @@
+// Package wardload holds the domain of the wardload service: the types a ward,
+// its acuity tiers, care observations and census are made of, the service
+// interfaces the stores implement, and the one error type every layer uses.
+//
+// It imports only the standard library so that every other package can
+// depend on it without dragging in a driver or a web framework.
+package wardload
+
+import (
+	"errors"
+	"fmt"
+)
+
+// Error codes. The server maps each to one HTTP status in a single table;
+// the command line maps them to exit codes. Keep the list short.
+const (
+	ECONFLICT     = "conflict"     // a unique value is already taken, or a concurrent change won
+	EINTERNAL     = "internal"     // anything unexpected; the message is never shown to users
+	EINVALID      = "invalid"      // the caller's input is wrong; Field names which input
+	ENOTFOUND     = "not_found"    // the thing asked for does not exist (or is not visible)
+	EUNAUTHORIZED = "unauthorized" // not signed in, or credentials are wrong
+	EFORBIDDEN    = "forbidden"    // signed in, but the role or ward does not allow it
+	ETOOMANY      = "too_many"     // throttled; try again later
+)
+
+// Error is the application error. Message is written for the person using
+// wardload and may be shown to them; Field, when set, names the input that
+// was wrong (a form field, a CSV column, a flag) so it can be highlighted.
+type Error struct {
+	Code    string
+	Field   string
+	Message string
+}
+
+func (e *Error) Error() string {
+	if e.Field != "" {
+		return fmt.Sprintf("wardload error: code=%s field=%s message=%s", e.Code, e.Field, e.Message)
+	}
+	return fmt.Sprintf("wardload error: code=%s message=%s", e.Code, e.Message)
+}
+
+// Errorf returns an *Error with the given code and a formatted message.
+func Errorf(code string, format string, args ...any) *Error {
+	return &Error{Code: code, Message: fmt.Sprintf(format, args...)}
+}
+
+// FieldErrorf returns an *Error that names the offending field.
+func FieldErrorf(code, field string, format string, args ...any) *Error {
+	return &Error{Code: code, Field: field, Message: fmt.Sprintf(format, args...)}
+}
+
+// ErrorCode returns the code of the first *Error in err's chain, EINTERNAL
+// for any other non-nil error, and "" for nil.
+func ErrorCode(err error) string {
+	var e *Error
+	if err == nil {
+		return ""
+	} else if errors.As(err, &e) {
+		return e.Code
+	}
+	return EINTERNAL
+}
+
+// ErrorMessage returns the user-facing message of the first *Error in err's
+// chain. Any other error yields "Internal error." so that driver or system
+// text never reaches a user.
+func ErrorMessage(err error) string {
+	var e *Error
+	if err == nil {
+		return ""
+	} else if errors.As(err, &e) {
+		return e.Message
+	}
+	return "Internal error."
+}
+
+// ErrorField returns the field named by the first *Error in err's chain, or "".
+func ErrorField(err error) string {
+	var e *Error
+	if errors.As(err, &e) {
+		return e.Field
+	}
+	return ""
+}

@@ -1,0 +1,112 @@
+package wardload
+
+import (
+	"context"
+	"math"
+	"time"
+)
+
+// Quartile conventions a ward can choose for its summaries and fences.
+const (
+	QuartilesHinges = "hinges" // Tukey's hinges, as R's fivenum
+	QuartilesHF6    = "hf6"    // Hyndman & Fan type 6, p(n+1)
+	QuartilesHF7    = "hf7"    // Hyndman & Fan type 7, R and numpy default
+	QuartilesHalves = "halves" // median of each half, median left out when n is odd
+)
+
+// ValidQuartiles reports whether name is a known quartile convention.
+func ValidQuartiles(name string) bool {
+	switch name {
+	case QuartilesHinges, QuartilesHF6, QuartilesHF7, QuartilesHalves:
+		return true
+	}
+	return false
+}
+
+// RatioFloor is a minimum nurse-to-patient ratio for one shift pattern:
+// at most PatientsPerNurse patients per nurse. When TierID is not 0 the
+// floor applies to that tier's patients only; the ward floor is then the
+// sum over tiers. ChargeNurseCounts says whether the nurse in charge counts
+// towards the floor (where they do not, one nurse is added).
+type RatioFloor struct {
+	ShiftID           int64
+	TierID            int64 // 0: all patients of the ward
+	PatientsPerNurse  float64
+	ChargeNurseCounts bool
+}
+
+// Settings are a ward's staffing settings. They are entered by a manager and
+// must be checked against local staffing law and agreements: wardload
+// applies them, it does not know them.
+type Settings struct {
+	WardID             int64
+	DirectCareFraction float64 // share of a nurse's shift available for direct care, (0, 1]
+	CoverLevel         float64 // the one-sided probability staffing should cover, (0, 1)
+	LookbackWeeks      int     // weeks of observations the model uses, 1..104
+	Quartiles          string  // a Quartiles* constant
+	Beds               int     // 0: not configured
+	Floors             []RatioFloor
+	UpdatedBy          int64
+	UpdatedAt          time.Time
+}
+
+// DefaultSettings returns the settings a new ward starts with. The values
+// are a starting point for the manager to change, not a recommendation.
+func DefaultSettings(wardID int64) *Settings {
+	return &Settings{
+		WardID:             wardID,
+		DirectCareFraction: 0.75,
+		CoverLevel:         0.9,
+		LookbackWeeks:      8,
+		Quartiles:          QuartilesHinges,
+	}
+}
+
+// Validate checks the settings' own fields.
+func (s *Settings) Validate() error {
+	if s.WardID == 0 {
+		return FieldErrorf(EINVALID, "ward", "Ward is required.")
+	}
+	if math.IsNaN(s.DirectCareFraction) || !(s.DirectCareFraction > 0 && s.DirectCareFraction <= 1) {
+		return FieldErrorf(EINVALID, "direct_care_fraction", "Direct-care fraction must be more than 0 and at most 1.")
+	}
+	if math.IsNaN(s.CoverLevel) || !(s.CoverLevel > 0 && s.CoverLevel < 1) {
+		return FieldErrorf(EINVALID, "cover_level", "Cover level must be between 0 and 1 (for example 0.9).")
+	}
+	if s.LookbackWeeks < 1 || s.LookbackWeeks > 104 {
+		return FieldErrorf(EINVALID, "lookback_weeks", "Lookback must be 1 to 104 weeks.")
+	}
+	if !ValidQuartiles(s.Quartiles) {
+		return FieldErrorf(EINVALID, "quartiles", "Unknown quartile convention %q.", s.Quartiles)
+	}
+	if s.Beds < 0 || s.Beds > 1000 {
+		return FieldErrorf(EINVALID, "beds", "Beds must be between 0 (not set) and 1000.")
+	}
+	type key struct{ shift, tier int64 }
+	seen := map[key]bool{}
+	for _, f := range s.Floors {
+		if f.ShiftID == 0 {
+			return FieldErrorf(EINVALID, "floors", "Each ratio floor needs a shift.")
+		}
+		if math.IsNaN(f.PatientsPerNurse) || !(f.PatientsPerNurse > 0 && f.PatientsPerNurse <= 50) {
+			return FieldErrorf(EINVALID, "floors", "Patients per nurse must be more than 0 and at most 50.")
+		}
+		k := key{f.ShiftID, f.TierID}
+		if seen[k] {
+			return FieldErrorf(EINVALID, "floors", "A shift has two ratio floors for the same tier.")
+		}
+		seen[k] = true
+	}
+	return nil
+}
+
+// SettingsService stores ward staffing settings.
+type SettingsService interface {
+	// FindSettings returns the ward's settings, or DefaultSettings if none
+	// were saved yet. Returns ENOTFOUND for an unknown ward.
+	FindSettings(ctx context.Context, wardID int64) (*Settings, error)
+	// SaveSettings replaces the ward's settings (floors included) and sets
+	// UpdatedAt. Returns EINVALID or ENOTFOUND (ward, or a floor's shift or
+	// tier not of this ward).
+	SaveSettings(ctx context.Context, s *Settings) error
+}

@@ -1,0 +1,94 @@
+package wardload
+
+import (
+	"context"
+	"regexp"
+	"time"
+)
+
+// Roles. A charge nurse enters and corrects census and sees projections of
+// their wards; a manager does everything on their wards; an admin does
+// everything everywhere.
+const (
+	RoleChargeNurse = "charge_nurse"
+	RoleManager     = "manager"
+	RoleAdmin       = "admin"
+)
+
+// ValidRole reports whether r is a known role.
+func ValidRole(r string) bool {
+	return r == RoleChargeNurse || r == RoleManager || r == RoleAdmin
+}
+
+var userNamePattern = regexp.MustCompile(`^[a-z0-9][a-z0-9._-]{1,39}$`)
+
+// User is a person who signs in to wardload. Staff accounts only; patients
+// never appear here.
+type User struct {
+	ID           int64
+	Name         string // sign-in name, lowercase, e.g. "a.murphy"
+	Role         string
+	PasswordHash string // argon2id/bcrypt encoded hash; never the password
+	Disabled     bool
+	WardIDs      []int64 // ward memberships, ascending
+	CreatedAt    time.Time
+}
+
+// Validate checks the user's own fields.
+func (u *User) Validate() error {
+	if !userNamePattern.MatchString(u.Name) {
+		return FieldErrorf(EINVALID, "name", "User name must be 2–40 lowercase letters, digits, '.', '-' or '_'.")
+	}
+	if !ValidRole(u.Role) {
+		return FieldErrorf(EINVALID, "role", "Role must be charge_nurse, manager or admin.")
+	}
+	if u.PasswordHash == "" {
+		return FieldErrorf(EINVALID, "password", "A password is required.")
+	}
+	return nil
+}
+
+// MemberOf reports whether the user may see ward id: admins see every ward.
+func (u *User) MemberOf(wardID int64) bool {
+	if u.Role == RoleAdmin {
+		return true
+	}
+	for _, id := range u.WardIDs {
+		if id == wardID {
+			return true
+		}
+	}
+	return false
+}
+
+// UserFilter selects users. Zero fields do not filter.
+type UserFilter struct {
+	ID     *int64
+	Name   *string
+	Role   *string
+	WardID *int64
+	Offset int
+	Limit  int
+}
+
+// UserUpdate holds the fields of a user that may change.
+type UserUpdate struct {
+	Role         *string
+	PasswordHash *string
+	Disabled     *bool
+	WardIDs      []int64 // nil leaves memberships unchanged; empty clears them
+}
+
+// UserService manages staff accounts.
+type UserService interface {
+	// CreateUser returns EINVALID, ENOTFOUND (a ward) or ECONFLICT (name taken).
+	CreateUser(ctx context.Context, u *User) error
+	// FindUserByID returns ENOTFOUND if there is no such user.
+	FindUserByID(ctx context.Context, id int64) (*User, error)
+	// FindUserByName returns ENOTFOUND if there is no such user.
+	FindUserByName(ctx context.Context, name string) (*User, error)
+	// FindUsers returns matches ordered by Name and the total count.
+	FindUsers(ctx context.Context, f UserFilter) ([]*User, int, error)
+	// UpdateUser returns ENOTFOUND or EINVALID.
+	UpdateUser(ctx context.Context, id int64, upd UserUpdate) (*User, error)
+}
