@@ -11,15 +11,14 @@ import (
 var sqliteFiles embed.FS
 
 // SQLite is the directory of SQLite migrations, rooted so that goose finds
-// the .sql files at ".".
-var SQLite fs.FS = mustSub(sqliteFiles, "sqlite")
-
-// mustSub panics only if the embed pattern above and the directory name
-// disagree, which is a build mistake, not a runtime condition.
-func mustSub(fsys fs.FS, dir string) fs.FS {
-	sub, err := fs.Sub(fsys, dir)
+// the .sql files at ".". (No helper function here: postgres.go shares this
+// package, and a shared helper name would collide.)
+var SQLite fs.FS = func() fs.FS {
+	sub, err := fs.Sub(sqliteFiles, "sqlite")
 	if err != nil {
+		// Only reachable if the embed pattern and the directory disagree,
+		// which is a build mistake.
 		panic(err)
 	}
 	return sub
-}
+}()
