@@ -1,0 +1,152 @@
+// Package csvfile reads the CSV files wardload's commands take: UTF-8 (an
+// optional byte order mark is dropped), comma-separated, with a header row.
+// Every problem with the file comes back as a *wardload.Error with code
+// EINVALID whose message names the file line (the header is line 1) and,
+// where there is one, the column, so that a person can find and fix it.
+package csvfile
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+	"unicode/utf8"
+
+	"wardload/internal/wardload"
+)
+
+// Limits that keep a malformed or hostile file from exhausting memory.
+// They are far above anything a ward records by hand.
+const (
+	MaxLineBytes = 1 << 20 // bytes on one physical line
+	MaxFields    = 1000    // columns in the header
+	MaxRecords   = 20_000_000
+)
+
+// TierColumn is the column that groups rows by acuity tier.
+const TierColumn = "tier"
+
+// Table is a CSV file read into memory. Records holds the data rows (not
+// the header); Lines[i] is the file line on which Records[i] starts, so
+// data row i+1 (1-based, the first line after the header is row 1) is on
+// file line Lines[i].
+type Table struct {
+	Header  []string
+	Records [][]string
+	Lines   []int
+}
+
+// Read reads a whole CSV file. It returns EINVALID when the file is empty,
+// has no data rows, is not UTF-8, has a duplicate or blank column name, a
+// row with a different number of fields than the header, a line longer
+// than MaxLineBytes, more than MaxFields columns or more than MaxRecords
+// rows. Leading and trailing spaces around header names are ignored.
+func Read(r io.Reader) (*Table, error) {
+	br := bufio.NewReader(&lineLimitReader{r: r})
+	if bom, err := br.Peek(3); err == nil && bytes.Equal(bom, []byte("\xef\xbb\xbf")) {
+		br.Discard(3)
+	}
+	cr := csv.NewReader(br)
+	cr.ReuseRecord = false
+	header, err := cr.Read()
+	if err == io.EOF {
+		return nil, wardload.Errorf(wardload.EINVALID, "The file is empty: it needs a header row and at least one data row.")
+	} else if err != nil {
+		return nil, readError(err)
+	}
+	if len(header) > MaxFields {
+		return nil, wardload.Errorf(wardload.EINVALID, "line 1: the header has %d columns; at most %d are allowed.", len(header), MaxFields)
+	}
+	seen := make(map[string]bool, len(header))
+	for i, h := range header {
+		if !utf8.ValidString(h) {
+			return nil, wardload.Errorf(wardload.EINVALID, "line 1, column %d: the header is not valid UTF-8 text.", i+1)
+		}
+		h = strings.TrimSpace(h)
+		if h == "" {
+			return nil, wardload.Errorf(wardload.EINVALID, "line 1, column %d: the column name is blank.", i+1)
+		}
+		if seen[h] {
+			return nil, wardload.FieldErrorf(wardload.EINVALID, h, "line 1: column %q appears twice.", h)
+		}
+		seen[h] = true
+		header[i] = h
+	}
+	t := &Table{Header: header}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		} else if err != nil {
+			return nil, readError(err)
+		}
+		line, _ := cr.FieldPos(0)
+		for i, f := range rec {
+			if !utf8.ValidString(f) {
+				return nil, wardload.FieldErrorf(wardload.EINVALID, header[i], "line %d, column %q: the cell is not valid UTF-8 text.", line, header[i])
+			}
+		}
+		if len(t.Records) == MaxRecords {
+			return nil, wardload.Errorf(wardload.EINVALID, "line %d: the file has more than %d data rows.", line, MaxRecords)
+		}
+		t.Records = append(t.Records, rec)
+		t.Lines = append(t.Lines, line)
+	}
+	if len(t.Records) == 0 {
+		return nil, wardload.Errorf(wardload.EINVALID, "The file has a header row but no data rows.")
+	}
+	return t, nil
+}
+
+// readError turns encoding/csv and line-limit errors into EINVALID with the
+// line number; other errors (the reader failing) are passed on wrapped.
+func readError(err error) error {
+	var long *lineTooLongError
+	if errors.As(err, &long) {
+		return wardload.Errorf(wardload.EINVALID, "line %d: the line is longer than %d bytes.", long.line, MaxLineBytes)
+	}
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		switch {
+		case errors.Is(pe.Err, csv.ErrFieldCount):
+			return wardload.Errorf(wardload.EINVALID, "line %d: the row does not have the same number of fields as the header.", pe.Line)
+		case errors.Is(pe.Err, csv.ErrQuote), errors.Is(pe.Err, csv.ErrBareQuote):
+			return wardload.Errorf(wardload.EINVALID, "line %d: a quote (\") is misplaced or not closed.", pe.Line)
+		}
+		return wardload.Errorf(wardload.EINVALID, "line %d: the row cannot be read as CSV.", pe.Line)
+	}
+	return fmt.Errorf("csvfile: read: %w", err)
+}
+
+// Index returns the position of the named column in the header, or -1.
+func (t *Table) Index(name string) int {
+	for i, h := range t.Header {
+		if h == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// mustIndex returns the column position or EINVALID naming the column and
+// the columns that do exist.
+func (t *Table) mustIndex(name string) (int, error) {
+	if i := t.Index(name); i >= 0 {
+		return i, nil
+	}
+	return -1, wardload.FieldErrorf(wardload.EINVALID, name, "line 1: there is no column %q (the columns are %s).", name, quoteList(t.Header))
+}
+
+func quoteList(names []string) string {
+	q := make([]string, len(names))
+	for i, n := range names {
+		q[i] = fmt.Sprintf("%q", n)
+	}
+	return strings.Join(q, ", ")
+}
+
+// Line returns the file line of 1-based data row row.
+func (t *Table) Line(row int) int { return t.Lines[row-1] }
