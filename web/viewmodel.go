@@ -1,0 +1,47 @@
+package web
+
+// LayoutVM is what every page's frame needs. Handlers fill it; the layout
+// renders it.
+type LayoutVM struct {
+	// Title is the page's own title; the layout appends " · wardload".
+	Title string
+	// Stylesheet is the versioned URL of wardload.css, so that browsers may
+	// cache it for a long time and still see a new version after a release.
+	Stylesheet string
+	// Icon is the versioned URL of the favicon.
+	Icon string
+	// Nav lists the navigation links; the current page has Current set.
+	Nav []NavItem
+	// UserName is the signed-in user, "" when nobody is signed in. The
+	// layout shows it beside the navigation.
+	UserName string
+}
+
+// NavItem is one link in the header navigation.
+type NavItem struct {
+	Label   string
+	URL     string
+	Current bool
+}
+
+// HomeVM is the home page: the wards the visitor may see.
+type HomeVM struct {
+	Wards []WardRowVM
+}
+
+// WardRowVM is one ward in a list of wards.
+type WardRowVM struct {
+	Code     string
+	Name     string
+	TimeZone string
+}
+
+// ErrorVM is the error page. Message is already safe to show (it comes from
+// wardload.ErrorMessage); RequestID lets staff quote the failure to an
+// administrator, who finds it in the logs.
+type ErrorVM struct {
+	Status    int
+	Title     string
+	Message   string
+	RequestID string
+}
