@@ -109,6 +109,7 @@ CREATE TABLE ratio_floors (
 	tier_id             INTEGER, -- NULL: all patients of the ward
 	patients_per_nurse  REAL NOT NULL CHECK (patients_per_nurse > 0),
 	charge_nurse_counts INTEGER NOT NULL DEFAULT 0,
+	position            INTEGER NOT NULL, -- floors come back in the order saved
 	FOREIGN KEY (ward_id, shift_id) REFERENCES shift_patterns (ward_id, id),
 	FOREIGN KEY (ward_id, tier_id) REFERENCES tiers (ward_id, id)
 );
