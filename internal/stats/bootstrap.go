@@ -1,0 +1,235 @@
+package stats
+
+import (
+	"math"
+	"runtime"
+	"sync"
+
+	"gonum.org/v1/gonum/stat"
+)
+
+// BootstrapTier is one tier's input to BootstrapTotals: its observed
+// per-shift minutes and the number of its patients on the projected shift.
+type BootstrapTier struct {
+	Values   []float64 // observed per-patient shift minutes, not modified
+	Patients int       // census of the tier, ≥ 0
+}
+
+// bootstrapChunk is the number of draws that share one random stream. The
+// split into chunks is fixed, so results do not depend on how many
+// goroutines run them.
+const bootstrapChunk = 4096
+
+// streamKey is mixed with the chunk index to give each chunk its own second
+// PCG seed word; any fixed odd constant would do (this one is 2⁶⁴/φ).
+const streamKey = 0x9e3779b97f4a7c15
+
+// BootstrapTotals simulates draws totals of shift care minutes with a
+// two-level (parametric-free) bootstrap. For each draw and each tier k with
+// m_k values and n_k patients:
+//
+//	r_1..r_m  ~ iid Uniform{values of tier k}      (resample the observations)
+//	p_1..p_n  ~ iid Uniform{r_1..r_m}              (draw the shift's patients)
+//	total     = Σ_k Σ_i p_i
+//
+// The first level carries the uncertainty of the tier's mean and shape
+// (the m_k observations are one sample of many possible), the second the
+// patient-to-patient variation; their variances add up to the two terms of
+// the analytic model in Project. Drawing p_i from the resample is the same
+// as drawing an index j uniformly in [0, m) and taking r_j, so r_j is made
+// only when first referenced in a draw (a per-tier cache with generation
+// stamps). A draw therefore costs about 2·Σn_k bounded integers instead of
+// Σ(m_k + n_k), with the same distribution as materialising every r_j.
+//
+// Randomness: draws are split into fixed chunks of 4096; chunk c uses
+// math/rand/v2's PCG-DXSM generator (see pcg.go) seeded with (seed, splitmix64(c ⊕ 2⁶⁴/φ)), and bounded
+// integers use Lemire's multiply-shift method with rejection on 32-bit
+// halves of each 64-bit output. Totals are plain sums in a fixed order (no
+// multiply-add that a compiler could fuse), so the same seed gives the same
+// totals bit for bit on every platform and for any GOMAXPROCS; chunks run on
+// up to min(GOMAXPROCS, 4) goroutines.
+//
+// It panics if draws < 1, a tier has Patients < 0, or a tier with patients
+// has no values (callers validate user input first; see Project).
+//
+// References: Efron, B. & Tibshirani, R. J. (1993). An Introduction to the
+// Bootstrap, ch. 6 (resampling); Davison, A. C. & Hinkley, D. V. (1997).
+// Bootstrap Methods and their Application, §3.8 (hierarchical data: resample
+// at both levels); Lemire, D. (2019). Fast random integer generation in an
+// interval. ACM TOMACS 29(1); O'Neill, M. E. (2014). PCG, HMC-CS-2014-0905.
+func BootstrapTotals(tiers []BootstrapTier, draws int, seed uint64) []float64 {
+	if draws < 1 {
+		panic("stats: BootstrapTotals needs draws ≥ 1")
+	}
+	for _, t := range tiers {
+		if t.Patients < 0 {
+			panic("stats: BootstrapTotals tier with negative patients")
+		}
+		if t.Patients > 0 && len(t.Values) == 0 {
+			panic("stats: BootstrapTotals tier with patients but no values")
+		}
+		if len(t.Values) > math.MaxUint32 {
+			panic("stats: BootstrapTotals tier with too many values")
+		}
+	}
+	out := make([]float64, draws)
+	chunks := (draws + bootstrapChunk - 1) / bootstrapChunk
+	workers := min(runtime.GOMAXPROCS(0), 4, chunks)
+	next := make(chan int, chunks)
+	for c := range chunks {
+		next <- c
+	}
+	close(next)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Go(func() {
+			w := newBootstrapWorker(tiers)
+			for c := range next {
+				lo := c * bootstrapChunk
+				hi := min(lo+bootstrapChunk, draws)
+				w.run(out[lo:hi], seed, uint64(c))
+			}
+		})
+	}
+	wg.Wait()
+	return out
+}
+
+// tierCache is one tier's lazily materialised resample: cache[j] holds r_j
+// when stamp[j] equals the current draw's generation.
+type tierCache struct {
+	values   []float64
+	patients int
+	m        uint32
+	cache    []float64
+	stamp    []uint32
+}
+
+type bootstrapWorker struct {
+	tiers []tierCache
+}
+
+func newBootstrapWorker(tiers []BootstrapTier) *bootstrapWorker {
+	w := &bootstrapWorker{}
+	for _, t := range tiers {
+		if t.Patients == 0 {
+			continue // contributes nothing and consumes no randomness
+		}
+		m := len(t.Values)
+		w.tiers = append(w.tiers, tierCache{
+			values: t.Values, patients: t.Patients, m: uint32(m),
+			cache: make([]float64, m), stamp: make([]uint32, m),
+		})
+	}
+	return w
+}
+
+// run fills out with the totals of one chunk. The generator and the
+// bounded-integer step are written out in the loop so that the compiler
+// keeps the PCG state in registers; pcg.go's tests check the inlined
+// generator against math/rand/v2.
+func (w *bootstrapWorker) run(out []float64, seed, chunk uint64) {
+	g := newPCG(seed, splitmix64(chunk^streamKey))
+	for k := range w.tiers {
+		clear(w.tiers[k].stamp) // generations restart at 1 in every chunk
+	}
+	for d := range out {
+		gen := uint32(d + 1)
+		total := 0.0
+		for k := range w.tiers {
+			t := &w.tiers[k]
+			m := t.m
+			for range t.patients {
+				// One 64-bit output: the low half picks the patient's slot j
+				// in the resample, the high half (used only if r_j is not
+				// made yet in this draw) picks which observation r_j is.
+				u := g.Uint64()
+				p := uint64(uint32(u)) * uint64(m)
+				if uint32(p) < m {
+					p = g.rejectLow(p, m)
+				}
+				j := uint32(p >> 32)
+				if t.stamp[j] != gen {
+					q := (u >> 32) * uint64(m)
+					if uint32(q) < m {
+						q = g.rejectLow(q, m)
+					}
+					t.cache[j] = t.values[q>>32]
+					t.stamp[j] = gen
+				}
+				total += t.cache[j]
+			}
+		}
+		out[d] = total
+	}
+}
+
+// splitmix64 is the SplitMix64 finaliser (Steele, Lea & Flood 2014), used to
+// turn a chunk index into a well-mixed second seed word.
+func splitmix64(x uint64) uint64 {
+	x += 0x9e3779b97f4a7c15
+	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9
+	x = (x ^ (x >> 27)) * 0x94d049bb133111eb
+	return x ^ (x >> 31)
+}
+
+// QuantileMethodSimulated names how Simulation quantiles are computed.
+const QuantileMethodSimulated = "Hyndman-Fan type 7 on the sorted totals; Monte Carlo SE of a quantile = half the distance between order statistics at ranks N·p ∓ √(N·p·(1−p)); of the mean = sd/√N"
+
+// summariseTotals reads the simulation summary off sorted totals.
+func summariseTotals(sorted []float64, seed uint64, cover float64) Simulation {
+	mean, sd := stat.MeanStdDev(sorted, nil)
+	s := Simulation{
+		Draws: len(sorted), Seed: seed, Mean: mean,
+		P10:            type7Sorted(sorted, 0.1),
+		P50:            type7Sorted(sorted, 0.5),
+		P90:            type7Sorted(sorted, 0.9),
+		Cover:          type7Sorted(sorted, cover),
+		P10SE:          quantileSE(sorted, 0.1),
+		P50SE:          quantileSE(sorted, 0.5),
+		P90SE:          quantileSE(sorted, 0.9),
+		CoverSE:        quantileSE(sorted, cover),
+		QuantileMethod: QuantileMethodSimulated,
+	}
+	if len(sorted) >= 2 {
+		se := sd / math.Sqrt(float64(len(sorted)))
+		s.MeanSE = &se
+	}
+	return s
+}
+
+// type7Sorted is the Hyndman & Fan (1996) type 7 sample quantile of sorted
+// x (R's default):
+//
+//	h = (N−1)·p,  Q(p) = x[⌊h⌋] + (h − ⌊h⌋)·(x[⌊h⌋+1] − x[⌊h⌋])   (0-based)
+//
+// The product is converted explicitly so that no platform fuses it into a
+// multiply-add: simulated quantiles stay bit-identical everywhere.
+func type7Sorted(x []float64, p float64) float64 {
+	h := float64(len(x)-1) * p
+	j := int(h)
+	if j >= len(x)-1 {
+		return x[len(x)-1]
+	}
+	return x[j] + float64((h-float64(j))*(x[j+1]-x[j]))
+}
+
+// quantileSE is the Monte Carlo standard error of the p-quantile of N
+// simulated values, from the distribution-free order-statistic interval:
+// the number of values below the true quantile is Binomial(N, p), so the
+// order statistics at ranks N·p ∓ √(N·p·(1−p)) (1-based, rounded outwards)
+// bracket it with about 68 % probability, and half their distance estimates
+// one standard error. Nil when either rank falls outside 1..N (too few
+// draws). Reference: Conover, W. J. (1999). Practical Nonparametric
+// Statistics, 3rd ed., §3.2 (quantile confidence intervals; from memory).
+func quantileSE(sorted []float64, p float64) *float64 {
+	n := float64(len(sorted))
+	half := math.Sqrt(n * p * (1 - p))
+	lo := int(math.Floor(n*p - half))
+	hi := int(math.Ceil(n*p + half))
+	if lo < 1 || hi > len(sorted) {
+		return nil
+	}
+	se := (sorted[hi-1] - sorted[lo-1]) / 2
+	return &se
+}

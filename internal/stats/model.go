@@ -1,0 +1,224 @@
+package stats
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/stat"
+
+	"wardload/internal/wardload"
+)
+
+// MethodVersion names the workload model, the simulation and its random
+// streams. It is stored with every projection so that a stored result can
+// be reproduced later; change it whenever a change to this package could
+// change any number Project returns for the same input.
+const MethodVersion = "wardload-model/1"
+
+// Caution is shown with every projection, in wardload's own words.
+const Caution = "This is a statistical estimate of care workload from past timed observations, not a staffing decision. " +
+	"Local staffing law, collective agreements and the judgement of licensed clinical staff come first. " +
+	"The ratio floor shown is the one configured in wardload; check it against the rules that apply to your ward and shift."
+
+// Limits on Project's input.
+const (
+	MaxDraws            = 10_000_000 // simulation draws; beyond this the run takes seconds and gains nothing visible
+	MaxPatients         = 10_000     // per tier, as wardload.Census allows
+	MaxNursesInRange    = 1000       // headcounts in the shortfall table
+	LowObservations     = 30         // fewer observations in a used tier gives a low-confidence warning
+	minTierObservations = 2          // a used tier needs a sample SD
+)
+
+// TierSample is one acuity tier's input to Project: its census on the
+// projected shift and its timed care observations. CareMinutes[i] was
+// observed over WindowHours[i]; Project scales it to the shift (see
+// ShiftMinutes). Observations must already be filtered (exclusions,
+// lookback) by the caller.
+type TierSample struct {
+	Code        string    // tier code, unique within the input
+	Patients    int       // census, ≥ 0; a tier with 0 patients needs no observations
+	CareMinutes []float64 // direct care minutes per observation, ≥ 0
+	WindowHours []float64 // window of each observation, in (0, 24]; same length as CareMinutes
+}
+
+// FloorSpec is the configured minimum nurse-to-patient ratio for the shift
+// (see wardload.RatioFloor). TierPatientsPerNurse gives tiers their own
+// ratio; patients of tiers without one are pooled under PatientsPerNurse.
+type FloorSpec struct {
+	PatientsPerNurse     float64            // ward-wide ratio; 0: none
+	TierPatientsPerNurse map[string]float64 // per-tier ratios by tier code; may be nil
+	ChargeNurseCounts    bool               // false: one nurse in charge is added on top
+}
+
+// ProjectionInput is everything Project needs. The zero value of the
+// optional fields means "default" as documented on each field.
+type ProjectionInput struct {
+	Tiers              []TierSample
+	ShiftHours         float64   // length of the projected shift, in (0, 24]
+	DirectCareFraction float64   // share of a nurse's shift available for direct care, in (0, 1]
+	Levels             []float64 // two-sided band levels, each in (0, 1); nil: none
+	Cover              float64   // one-sided cover probability q, in (0, 1)
+	Draws              int       // bootstrap draws, 1..MaxDraws
+	Seed               uint64    // seed of the bootstrap; same seed, same result
+	NursesFrom         int       // shortfall table range; both 0: a range around the need and the floor
+	NursesTo           int
+	Floor              *FloorSpec // nil: no ratio floor configured
+}
+
+// ShiftMinutes converts care minutes observed over a window to minutes per
+// shift under a constant-rate assumption,
+//
+//	y = care minutes ÷ window hours × shift hours
+//
+// i.e. care is assumed to be spread evenly over time. Where care clusters
+// (mornings, admissions) this is wrong, so Project warns whenever a window
+// differs from the shift. It panics if the slices differ in length.
+func ShiftMinutes(careMinutes, windowHours []float64, shiftHours float64) []float64 {
+	if len(careMinutes) != len(windowHours) {
+		panic("stats: ShiftMinutes length mismatch")
+	}
+	y := make([]float64, len(careMinutes))
+	for i, c := range careMinutes {
+		y[i] = c / windowHours[i] * shiftHours
+	}
+	return y
+}
+
+// TierMoments is one tier's share of the analytic workload model.
+type TierMoments struct {
+	Code             string   `json:"code"`
+	Patients         int      `json:"patients"`
+	Observations     int      `json:"observations"`
+	MeanMinutes      *float64 `json:"mean_minutes"`      // per patient per shift; null with no observations
+	SDMinutes        *float64 `json:"sd_minutes"`        // sample SD (n−1); null with fewer than 2 observations
+	ExpectedMinutes  float64  `json:"expected_minutes"`  // n·mean
+	VariancePatient  float64  `json:"variance_patient"`  // n·sd²
+	VarianceEstimate float64  `json:"variance_estimate"` // n²·sd²/m
+}
+
+// WorkloadMoments returns the mean and the two variance terms of the total
+// care minutes T of one shift, for tiers k with n_k patients, m_k
+// observations, sample mean ȳ_k and sample SD s_k (n−1 denominator):
+//
+//	E[T]              = Σ_k n_k·ȳ_k
+//	variance_patient  = Σ_k n_k·s_k²          (patients vary around the tier mean)
+//	variance_estimate = Σ_k n_k²·s_k² / m_k   (ȳ_k is itself estimated from m_k observations)
+//	Var[T]            = variance_patient + variance_estimate
+//
+// Patients are assumed independent and a tier's observations a random sample
+// of its patients' shifts; the census is taken as fixed for the shift (no
+// term for admissions during it). The first two lines are the mean and
+// variance of a sum of independent variables; the third is the variance of
+// n_k·ȳ_k, n_k²·σ_k²/m_k, with s_k² plugged in for σ_k².
+//
+// Each tier's mean and SD come from gonum's stat.MeanStdDev, a corrected
+// two-pass algorithm (Chan, Golub & LeVeque 1983). Tiers with Patients 0
+// contribute 0. It panics if a tier with patients has fewer than 2 values
+// or a negative count; Project returns EINVALID for those instead.
+func WorkloadMoments(codes []string, patients []int, values [][]float64) (mu, varPatient, varEstimate float64, tiers []TierMoments) {
+	if len(codes) != len(patients) || len(patients) != len(values) {
+		panic("stats: WorkloadMoments length mismatch")
+	}
+	tiers = make([]TierMoments, len(codes))
+	for k, y := range values {
+		n, m := patients[k], len(y)
+		if n < 0 || (n > 0 && m < minTierObservations) {
+			panic("stats: WorkloadMoments tier with patients needs 2 or more values")
+		}
+		t := TierMoments{Code: codes[k], Patients: n, Observations: m}
+		if m >= 1 {
+			mean, sd := stat.MeanStdDev(y, nil)
+			t.MeanMinutes = &mean
+			if m >= 2 {
+				t.SDMinutes = &sd
+			}
+		}
+		if n > 0 {
+			fn, fm := float64(n), float64(m)
+			mean, s2 := *t.MeanMinutes, *t.SDMinutes**t.SDMinutes
+			t.ExpectedMinutes = fn * mean
+			t.VariancePatient = fn * s2
+			t.VarianceEstimate = fn * fn * s2 / fm
+		}
+		mu += t.ExpectedMinutes
+		varPatient += t.VariancePatient
+		varEstimate += t.VarianceEstimate
+		tiers[k] = t
+	}
+	return mu, varPatient, varEstimate, tiers
+}
+
+// validate checks in and returns EINVALID naming the field. Field names
+// follow wardload.Settings where one exists.
+func (in *ProjectionInput) validate() error {
+	bad := func(field, format string, args ...any) error {
+		return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
+	}
+	if math.IsNaN(in.ShiftHours) || !(in.ShiftHours > 0 && in.ShiftHours <= 24) {
+		return bad("shift_hours", "Shift length must be more than 0 and at most 24 hours.")
+	}
+	if math.IsNaN(in.DirectCareFraction) || !(in.DirectCareFraction > 0 && in.DirectCareFraction <= 1) {
+		return bad("direct_care_fraction", "Direct-care fraction must be more than 0 and at most 1.")
+	}
+	for _, l := range in.Levels {
+		if !(l > 0 && l < 1) {
+			return bad("levels", "Band levels must be between 0 and 1 (for example 0.8 or 0.9).")
+		}
+	}
+	if !(in.Cover > 0 && in.Cover < 1) {
+		return bad("cover_level", "Cover level must be between 0 and 1 (for example 0.9).")
+	}
+	if in.Draws < 1 || in.Draws > MaxDraws {
+		return bad("draws", "Simulation draws must be between 1 and %d.", MaxDraws)
+	}
+	if in.NursesFrom < 0 || in.NursesTo < 0 || in.NursesTo < in.NursesFrom {
+		return bad("nurses_to", "The nurse range must be whole numbers from at least 0, with the end not before the start.")
+	}
+	if in.NursesTo-in.NursesFrom >= MaxNursesInRange {
+		return bad("nurses_to", "The nurse range may hold at most %d headcounts.", MaxNursesInRange)
+	}
+	seen := map[string]bool{}
+	for _, t := range in.Tiers {
+		if t.Code == "" {
+			return bad("tier", "Every tier needs a code.")
+		}
+		if seen[t.Code] {
+			return bad("tier", "Tier %s is listed twice.", t.Code)
+		}
+		seen[t.Code] = true
+		if t.Patients < 0 || t.Patients > MaxPatients {
+			return bad("census", "The census of tier %s must be a whole number from 0 to %d.", t.Code, MaxPatients)
+		}
+		if len(t.CareMinutes) != len(t.WindowHours) {
+			panic("stats: TierSample CareMinutes and WindowHours differ in length")
+		}
+		for i, c := range t.CareMinutes {
+			if math.IsNaN(c) || math.IsInf(c, 0) || c < 0 {
+				return bad("care_minutes", "Tier %s: care minutes must be numbers of at least 0.", t.Code)
+			}
+			if w := t.WindowHours[i]; math.IsNaN(w) || !(w > 0 && w <= 24) {
+				return bad("window_hours", "Tier %s: observation windows must be more than 0 and at most 24 hours.", t.Code)
+			}
+		}
+		if t.Patients > 0 && len(t.CareMinutes) == 0 {
+			return bad("tier", "Tier %s has %d patients but no care observations.", t.Code, t.Patients)
+		}
+		if t.Patients > 0 && len(t.CareMinutes) < minTierObservations {
+			return bad("tier", "Tier %s has patients but only one care observation; at least 2 are needed to estimate its spread.", t.Code)
+		}
+	}
+	if f := in.Floor; f != nil {
+		if math.IsNaN(f.PatientsPerNurse) || f.PatientsPerNurse < 0 || f.PatientsPerNurse > 50 ||
+			(f.PatientsPerNurse == 0 && len(f.TierPatientsPerNurse) == 0) {
+			return bad("patients_per_nurse", "Patients per nurse must be more than 0 and at most 50.")
+		}
+		for code, r := range f.TierPatientsPerNurse {
+			if !seen[code] {
+				return bad("patients_per_nurse", "A ratio floor names tier %s, which is not in the projection.", code)
+			}
+			if math.IsNaN(r) || !(r > 0 && r <= 50) {
+				return bad("patients_per_nurse", "Patients per nurse for tier %s must be more than 0 and at most 50.", code)
+			}
+		}
+	}
+	return nil
+}

@@ -1,0 +1,320 @@
+package stats
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+	"strings"
+)
+
+// Decided-by values of Nurses.DecidedBy.
+const (
+	DecidedByCover = "cover"       // the simulated need at the cover level is higher
+	DecidedByFloor = "ratio_floor" // the configured ratio floor is higher
+	DecidedByBoth  = "both"        // they are equal
+)
+
+// ceilTolerance is the relative slack of ceilNurses: a need of
+// 7.0000000001 nurses is float noise from dividing minutes that add up to
+// exactly 7 shifts, not a reason to call an eighth nurse. 1e-9 is far below
+// any real difference in care minutes (a 1e-9 share of a shift is well
+// under a millisecond) and far above double rounding error (about 1e-16).
+const ceilTolerance = 1e-9
+
+// ceilNurses rounds a nurse count up, treating values within a relative
+// 1e-9 above an integer as that integer:
+//
+//	ceil(x − 1e-9·max(1, |x|))
+func ceilNurses(x float64) int {
+	return int(math.Ceil(x - ceilTolerance*math.Max(1, math.Abs(x))))
+}
+
+// Band is a central normal band of the shift's total care minutes.
+type Band struct {
+	Level float64 `json:"level"`
+	Low   float64 `json:"low"`
+	High  float64 `json:"high"`
+}
+
+// Simulation summarises the bootstrap totals. Quantiles are Hyndman & Fan
+// type 7; standard errors are Monte Carlo errors of the simulation, not of
+// the model, and are null when they cannot be formed.
+type Simulation struct {
+	Draws          int      `json:"draws"`
+	Seed           uint64   `json:"seed"`
+	Mean           float64  `json:"mean"`
+	P10            float64  `json:"p10"`
+	P50            float64  `json:"p50"`
+	P90            float64  `json:"p90"`
+	Cover          float64  `json:"cover"` // q-quantile at the cover level
+	MeanSE         *float64 `json:"mean_se"`
+	P10SE          *float64 `json:"p10_se"`
+	P50SE          *float64 `json:"p50_se"`
+	P90SE          *float64 `json:"p90_se"`
+	CoverSE        *float64 `json:"cover_se"`
+	QuantileMethod string   `json:"quantile_method"`
+}
+
+// NurseHours are nurse hours needed on the shift: care minutes ÷ 60 ÷
+// direct-care fraction.
+type NurseHours struct {
+	Expected       float64 `json:"expected"`        // at the expected total
+	Cover          float64 `json:"cover"`           // at the normal q-quantile μ + z_q·sd
+	CoverSimulated float64 `json:"cover_simulated"` // at the bootstrap q-quantile
+}
+
+// Nurses are headcounts: nurse hours ÷ shift hours, unrounded and rounded
+// up (see ceilNurses).
+type Nurses struct {
+	ExpectedUnrounded       float64 `json:"expected_unrounded"`
+	Expected                int     `json:"expected"`
+	CoverUnrounded          float64 `json:"cover_unrounded"`
+	Cover                   int     `json:"cover"`
+	CoverSimulatedUnrounded float64 `json:"cover_simulated_unrounded"`
+	CoverSimulated          int     `json:"cover_simulated"`
+	Floor                   *int    `json:"floor"` // null when no ratio floor is configured
+	Recommended             int     `json:"recommended"`
+	DecidedBy               string  `json:"decided_by"`
+}
+
+// FloorUsed restates the ratio floor a projection applied, so every
+// result shows it.
+type FloorUsed struct {
+	PatientsPerNurse     *float64           `json:"patients_per_nurse"` // ward-wide; null if only per tier
+	TierPatientsPerNurse map[string]float64 `json:"tier_patients_per_nurse,omitempty"`
+	ChargeNurseCounts    bool               `json:"charge_nurse_counts"`
+	Nurses               int                `json:"nurses"`
+	Description          string             `json:"description"`
+}
+
+// Shortfall is the chance that the shift's care minutes exceed what a
+// headcount can give.
+type Shortfall struct {
+	Nurses               int     `json:"nurses"`
+	CapacityMinutes      float64 `json:"capacity_minutes"`      // nurses × shift hours × 60 × direct-care fraction
+	Probability          float64 `json:"probability"`           // normal model
+	SimulatedProbability float64 `json:"simulated_probability"` // share of bootstrap totals above capacity
+	SimulatedSE          float64 `json:"simulated_se"`          // √(p(1−p)/draws)
+}
+
+// Projection is the workload model's result for one shift. Its JSON form
+// is what `wardload project --json` prints.
+type Projection struct {
+	MethodVersion      string        `json:"method_version"`
+	ShiftHours         float64       `json:"shift_hours"`
+	DirectCareFraction float64       `json:"direct_care_fraction"`
+	CoverLevel         float64       `json:"cover_level"`
+	Patients           int           `json:"patients"`
+	ExpectedMinutes    float64       `json:"expected_minutes"`
+	VariancePatient    float64       `json:"variance_patient"`
+	VarianceEstimate   float64       `json:"variance_estimate"`
+	SDMinutes          float64       `json:"sd_minutes"`
+	CoverMinutes       float64       `json:"cover_minutes"` // μ + z_q·sd
+	Tiers              []TierMoments `json:"tiers"`
+	Bands              []Band        `json:"bands"`
+	Simulation         Simulation    `json:"simulation"`
+	NurseHours         NurseHours    `json:"nurse_hours"`
+	Nurses             Nurses        `json:"nurses"`
+	Floor              *FloorUsed    `json:"floor_used"` // null when no floor is configured
+	Shortfall          []Shortfall   `json:"shortfall"`
+	Warnings           []string      `json:"warnings"`
+	Caution            string        `json:"caution"`
+}
+
+// Project estimates the direct care minutes of one shift and the nurses
+// they need. With y the per-patient shift minutes (ShiftMinutes), μ and
+// sd from WorkloadMoments, q the cover level, f the direct-care fraction
+// and h the shift hours:
+//
+//	band(L)        = μ ± Φ⁻¹((1+L)/2)·sd                       (normal approximation)
+//	cover minutes  = μ + Φ⁻¹(q)·sd,   simulated: type-7 q-quantile of BootstrapTotals
+//	nurse hours    = minutes ÷ 60 ÷ f
+//	nurses         = nurse hours ÷ h,  rounded up by ceil(x − 1e-9·max(1,|x|))
+//	floor          = Σ_k ceil(n_k ÷ r_k) + ceil(pooled ÷ r) [+ 1 if the nurse in charge does not count]
+//	recommended    = max(simulated cover nurses, floor)
+//	shortfall(N)   = P(T > N·h·60·f):  normal 1 − Φ((cap − μ)/sd), simulated share of totals
+//
+// where tiers with their own ratio r_k are rounded separately and the rest
+// are pooled under the ward ratio r. The recommendation uses the bootstrap
+// quantile because with few patients and right-skewed care times the normal
+// upper tail is too light; the normal figures are shown beside it.
+//
+// Bad input returns a *wardload.Error with code EINVALID whose Field names
+// the input (shift_hours, direct_care_fraction, levels, cover_level, draws,
+// census, tier, care_minutes, window_hours, nurses_to, patients_per_nurse).
+// It panics only on programmer error (CareMinutes and WindowHours of
+// different lengths). Input slices are not modified.
+//
+// References: newsvendor critical fractile, e.g. Porteus, E. L. (2002).
+// Foundations of Stochastic Inventory Theory, ch. 1 (service level
+// μ + z_q·σ); Hyndman, R. J. & Fan, Y. (1996). Sample quantiles in
+// statistical packages. The American Statistician 50(4), 361–365.
+func Project(in ProjectionInput) (*Projection, error) {
+	if err := in.validate(); err != nil {
+		return nil, err
+	}
+	p := &Projection{
+		MethodVersion:      MethodVersion,
+		ShiftHours:         in.ShiftHours,
+		DirectCareFraction: in.DirectCareFraction,
+		CoverLevel:         in.Cover,
+		Caution:            Caution,
+		Warnings:           []string{},
+	}
+	codes := make([]string, len(in.Tiers))
+	patients := make([]int, len(in.Tiers))
+	values := make([][]float64, len(in.Tiers))
+	boot := make([]BootstrapTier, len(in.Tiers))
+	scaled := 0
+	for k, t := range in.Tiers {
+		codes[k], patients[k] = t.Code, t.Patients
+		values[k] = ShiftMinutes(t.CareMinutes, t.WindowHours, in.ShiftHours)
+		boot[k] = BootstrapTier{Values: values[k], Patients: t.Patients}
+		p.Patients += t.Patients
+		for _, w := range t.WindowHours {
+			if w != in.ShiftHours {
+				scaled++
+			}
+		}
+		if t.Patients > 0 && len(t.CareMinutes) < LowObservations {
+			p.Warnings = append(p.Warnings, fmt.Sprintf(
+				"Tier %s has only %d care observations (fewer than %d): its mean is uncertain, treat the projection as low confidence.",
+				t.Code, len(t.CareMinutes), LowObservations))
+		}
+	}
+	if scaled > 0 {
+		p.Warnings = append(p.Warnings, fmt.Sprintf(
+			"%d observations were timed over windows other than the %g-hour shift; their minutes were scaled to the shift assuming care is spread evenly over time, which is not true where care clusters at certain hours.",
+			scaled, in.ShiftHours))
+	}
+	if p.Patients == 0 {
+		p.Warnings = append(p.Warnings, "The census has no patients: the projected care workload is zero.")
+	}
+
+	// Analytic model.
+	p.ExpectedMinutes, p.VariancePatient, p.VarianceEstimate, p.Tiers = WorkloadMoments(codes, patients, values)
+	p.SDMinutes = math.Sqrt(p.VariancePatient + p.VarianceEstimate)
+	mu, sd := p.ExpectedMinutes, p.SDMinutes
+	p.Bands = make([]Band, len(in.Levels))
+	for i, l := range in.Levels {
+		z := TwoSidedZ(l)
+		p.Bands[i] = Band{Level: l, Low: mu - z*sd, High: mu + z*sd}
+		if p.Bands[i].Low < 0 {
+			p.Warnings = append(p.Warnings, fmt.Sprintf(
+				"The %g%% normal band reaches below zero minutes: the normal approximation is poor here; rely on the simulated figures.", 100*l))
+		}
+	}
+	p.CoverMinutes = mu + NormalQuantile(in.Cover)*sd
+
+	// Simulation.
+	totals := BootstrapTotals(boot, in.Draws, in.Seed)
+	slices.Sort(totals)
+	p.Simulation = summariseTotals(totals, in.Seed, in.Cover)
+	if in.Draws < 1000 {
+		p.Warnings = append(p.Warnings, fmt.Sprintf(
+			"Only %d simulation draws: the simulated figures carry visible Monte Carlo error.", in.Draws))
+	}
+
+	// Nurses.
+	perNurse := in.ShiftHours * 60 * in.DirectCareFraction
+	hours := func(minutes float64) float64 { return minutes / 60 / in.DirectCareFraction }
+	p.NurseHours = NurseHours{
+		Expected:       hours(mu),
+		Cover:          hours(p.CoverMinutes),
+		CoverSimulated: hours(p.Simulation.Cover),
+	}
+	n := &p.Nurses
+	n.ExpectedUnrounded = p.NurseHours.Expected / in.ShiftHours
+	n.Expected = ceilNurses(n.ExpectedUnrounded)
+	n.CoverUnrounded = p.NurseHours.Cover / in.ShiftHours
+	n.Cover = ceilNurses(n.CoverUnrounded)
+	n.CoverSimulatedUnrounded = p.NurseHours.CoverSimulated / in.ShiftHours
+	n.CoverSimulated = ceilNurses(n.CoverSimulatedUnrounded)
+	n.Recommended, n.DecidedBy = n.CoverSimulated, DecidedByCover
+	if in.Floor != nil {
+		p.Floor = ratioFloor(in.Floor, in.Tiers, &p.Warnings)
+		floor := p.Floor.Nurses
+		n.Floor = &floor
+		switch {
+		case floor > n.CoverSimulated:
+			n.Recommended, n.DecidedBy = floor, DecidedByFloor
+		case floor == n.CoverSimulated:
+			n.DecidedBy = DecidedByBoth
+		}
+	}
+
+	// Shortfall table.
+	from, to := in.NursesFrom, in.NursesTo
+	if from == 0 && to == 0 {
+		from = n.Expected
+		if n.Floor != nil {
+			from = min(from, *n.Floor)
+		}
+		to = n.Recommended + 3
+	}
+	p.Shortfall = make([]Shortfall, 0, to-from+1)
+	for nurses := from; nurses <= to; nurses++ {
+		capacity := float64(nurses) * perNurse
+		above := len(totals) - sort.SearchFloat64s(totals, math.Nextafter(capacity, math.Inf(1)))
+		ps := float64(above) / float64(len(totals))
+		p.Shortfall = append(p.Shortfall, Shortfall{
+			Nurses:               nurses,
+			CapacityMinutes:      capacity,
+			Probability:          normalExceed(capacity, mu, sd),
+			SimulatedProbability: ps,
+			SimulatedSE:          math.Sqrt(ps * (1 - ps) / float64(len(totals))),
+		})
+	}
+	return p, nil
+}
+
+// normalExceed returns P(T > x) for T ~ Normal(mu, sd²); a zero sd is a
+// point mass at mu.
+func normalExceed(x, mu, sd float64) float64 {
+	if sd == 0 {
+		if mu > x {
+			return 1
+		}
+		return 0
+	}
+	return NormalUpperTail((x - mu) / sd)
+}
+
+// ratioFloor applies the configured floor to the census. Tiers with their
+// own ratio are rounded up separately; the others are pooled under the
+// ward ratio (one ceiling for the pool, as a ward-wide ratio counts all its
+// patients together).
+func ratioFloor(f *FloorSpec, tiers []TierSample, warnings *[]string) *FloorUsed {
+	used := &FloorUsed{ChargeNurseCounts: f.ChargeNurseCounts}
+	var parts []string
+	pooled := 0
+	for _, t := range tiers {
+		if r, ok := f.TierPatientsPerNurse[t.Code]; ok {
+			used.Nurses += ceilNurses(float64(t.Patients) / r)
+			parts = append(parts, fmt.Sprintf("tier %s at most %g patients per nurse", t.Code, r))
+			continue
+		}
+		pooled += t.Patients
+		if f.PatientsPerNurse == 0 && t.Patients > 0 {
+			*warnings = append(*warnings, fmt.Sprintf(
+				"Tier %s has no ratio floor configured; its patients add nothing to the floor.", t.Code))
+		}
+	}
+	if len(f.TierPatientsPerNurse) > 0 {
+		used.TierPatientsPerNurse = f.TierPatientsPerNurse
+	}
+	if r := f.PatientsPerNurse; r > 0 {
+		used.PatientsPerNurse = &r
+		used.Nurses += ceilNurses(float64(pooled) / r)
+		parts = append([]string{fmt.Sprintf("at most %g patients per nurse", r)}, parts...)
+	}
+	if !f.ChargeNurseCounts {
+		used.Nurses++
+		parts = append(parts, "plus 1 nurse in charge who does not count towards the ratio")
+	} else {
+		parts = append(parts, "the nurse in charge counts towards the ratio")
+	}
+	used.Description = "Configured ratio floor: " + strings.Join(parts, "; ") + "."
+	return used
+}
