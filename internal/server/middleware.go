@@ -1,0 +1,130 @@
+package server
+
+import (
+	"context"
+	"crypto/rand"
+	"encoding/hex"
+	"fmt"
+	"net/http"
+	"runtime/debug"
+	"time"
+
+	"github.com/go-chi/chi/v5/middleware"
+
+	"wardload/internal/wardload"
+)
+
+type requestIDKey struct{}
+
+// RequestID returns the ID the server gave the request, or "".
+func RequestID(ctx context.Context) string {
+	id, _ := ctx.Value(requestIDKey{}).(string)
+	return id
+}
+
+// requestID gives each request a random ID, returned in X-Request-Id and
+// attached to every log line about it. An incoming X-Request-Id is ignored:
+// a client could otherwise forge entries that look like other requests.
+func (s *Server) requestID(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		var b [8]byte
+		rand.Read(b[:]) // never fails (crypto/rand panics instead)
+		id := hex.EncodeToString(b[:])
+		w.Header().Set("X-Request-Id", id)
+		next.ServeHTTP(w, r.WithContext(context.WithValue(r.Context(), requestIDKey{}, id)))
+	})
+}
+
+// logRequests writes one structured line per request.
+func (s *Server) logRequests(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		start := time.Now() // for the log only; never shown or stored
+		ww := middleware.NewWrapResponseWriter(w, r.ProtoMajor)
+		next.ServeHTTP(ww, r)
+		s.log.Info("request",
+			"request_id", RequestID(r.Context()),
+			"method", r.Method,
+			"path", r.URL.Path,
+			"status", ww.Status(),
+			"bytes", ww.BytesWritten(),
+			"duration_ms", time.Since(start).Milliseconds(),
+		)
+	})
+}
+
+// recoverPanics turns a panic in a handler into a logged internal error and
+// a 500 page that says nothing about the cause.
+func (s *Server) recoverPanics(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		defer func() {
+			rec := recover()
+			if rec == nil {
+				return
+			}
+			if rec == http.ErrAbortHandler {
+				// net/http's own way to abort a response; let it through.
+				panic(rec)
+			}
+			s.log.Error("panic", "request_id", RequestID(r.Context()), "method", r.Method,
+				"path", r.URL.Path, "panic", fmt.Sprint(rec), "stack", string(debug.Stack()))
+			if st, ok := w.(interface{ Status() int }); ok && st.Status() != 0 {
+				return // headers already sent; nothing sensible left to do
+			}
+			s.renderError(w, r, wardload.Errorf(wardload.EINTERNAL, "Internal error."))
+		}()
+		next.ServeHTTP(w, r)
+	})
+}
+
+// contentSecurityPolicy allows only same-origin resources and no inline
+// script or style, so templates must not use either.
+const contentSecurityPolicy = "default-src 'self'; frame-ancestors 'none'; base-uri 'none'; form-action 'self'"
+
+// securityHeaders sets the headers every response carries.
+func securityHeaders(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		h := w.Header()
+		h.Set("Content-Security-Policy", contentSecurityPolicy)
+		h.Set("X-Content-Type-Options", "nosniff")
+		h.Set("Referrer-Policy", "same-origin")
+		h.Set("X-Frame-Options", "DENY")
+		h.Set("Cross-Origin-Opener-Policy", "same-origin")
+		next.ServeHTTP(w, r)
+	})
+}
+
+// limitBody caps request bodies at MaxBodyBytes. A declared length over the
+// cap is refused at once; an undeclared one fails when read past the cap,
+// and the adapter turns that *http.MaxBytesError into a 413.
+func (s *Server) limitBody(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if r.ContentLength > s.cfg.MaxBodyBytes {
+			s.renderError(w, r, &http.MaxBytesError{Limit: s.cfg.MaxBodyBytes})
+			return
+		}
+		if r.Body != nil {
+			r.Body = http.MaxBytesReader(w, r.Body, s.cfg.MaxBodyBytes)
+		}
+		next.ServeHTTP(w, r)
+	})
+}
+
+// crossOrigin refuses state-changing requests from other sites (Go's
+// Sec-Fetch-Site / Origin check), answering through the error adapter so the
+// refusal looks like every other 403.
+func (s *Server) crossOrigin(next http.Handler) http.Handler {
+	return s.cop.Handler(next)
+}
+
+func (s *Server) newCrossOriginProtection() (*http.CrossOriginProtection, error) {
+	cop := http.NewCrossOriginProtection()
+	for _, o := range s.cfg.TrustedOrigins {
+		if err := cop.AddTrustedOrigin(o); err != nil {
+			return nil, fmt.Errorf("trusted origin %q: %w", o, err)
+		}
+	}
+	cop.SetDenyHandler(s.handle(func(http.ResponseWriter, *http.Request) error {
+		return wardload.Errorf(wardload.EFORBIDDEN, "This request came from another site and was refused.")
+	}))
+	return cop, nil
+}

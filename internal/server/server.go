@@ -1,0 +1,184 @@
+// Package server is wardload's HTTP layer: the chi router, its middleware,
+// the one adapter that turns handler errors into responses, and the
+// handlers. It depends on the domain interfaces only; cmd/wardload hands it
+// a store, a logger and a clock in a Config.
+package server
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"log/slog"
+	"net"
+	"net/http"
+	"time"
+
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// Config is everything the server needs. cmd/wardload fills it from flags
+// and the environment; nothing in this package reads either.
+type Config struct {
+	// Addr is the TCP address to listen on, e.g. "127.0.0.1:8080". Port 0
+	// picks a free port; Server.URL reports the real one after Listen.
+	Addr string
+	// SecureCookies marks cookies Secure; set it when wardload is served
+	// over HTTPS (directly or behind a proxy).
+	SecureCookies bool
+	// Store is the database. Required.
+	Store wardload.Store
+	// Logger receives request logs and internal errors. Required.
+	Logger *slog.Logger
+	// Now is the clock. Handlers that need "now" read it here, never
+	// time.Now, so tests can fix time. Defaults to time.Now.
+	Now wardload.Clock
+
+	// TrustedOrigins are origins (e.g. "https://wardload.example.org")
+	// allowed to send cross-origin POSTs despite the cross-origin check;
+	// normally none.
+	TrustedOrigins []string
+
+	// MaxBodyBytes caps every request body; larger bodies fail with 413.
+	MaxBodyBytes int64
+	// ReadyTimeout bounds the database ping of /readyz.
+	ReadyTimeout time.Duration
+
+	ReadHeaderTimeout time.Duration
+	ReadTimeout       time.Duration
+	WriteTimeout      time.Duration
+	IdleTimeout       time.Duration
+	// ShutdownTimeout bounds how long Serve waits for in-flight requests
+	// after its context is cancelled.
+	ShutdownTimeout time.Duration
+}
+
+// DefaultConfig returns a Config with the limits and timeouts filled in.
+// The caller still sets Store and Logger.
+func DefaultConfig() Config {
+	return Config{
+		Addr:              "127.0.0.1:8080",
+		Now:               time.Now,
+		MaxBodyBytes:      1 << 20,
+		ReadyTimeout:      2 * time.Second,
+		ReadHeaderTimeout: 5 * time.Second,
+		ReadTimeout:       15 * time.Second,
+		WriteTimeout:      30 * time.Second,
+		IdleTimeout:       120 * time.Second,
+		ShutdownTimeout:   10 * time.Second,
+	}
+}
+
+// Server serves wardload over HTTP.
+type Server struct {
+	cfg     Config
+	log     *slog.Logger
+	store   wardload.Store
+	now     wardload.Clock
+	assets  *assets
+	cop     *http.CrossOriginProtection
+	handler http.Handler
+	ln      net.Listener
+	http    *http.Server
+}
+
+// New checks cfg, fills zero limits from DefaultConfig and builds the
+// router from the route table. It does not listen yet.
+func New(cfg Config) (*Server, error) {
+	if cfg.Store == nil {
+		return nil, errors.New("server: Config.Store is required")
+	}
+	if cfg.Logger == nil {
+		return nil, errors.New("server: Config.Logger is required")
+	}
+	def := DefaultConfig()
+	if cfg.Now == nil {
+		cfg.Now = def.Now
+	}
+	for _, f := range []struct{ v, d *time.Duration }{
+		{&cfg.ReadyTimeout, &def.ReadyTimeout},
+		{&cfg.ReadHeaderTimeout, &def.ReadHeaderTimeout},
+		{&cfg.ReadTimeout, &def.ReadTimeout},
+		{&cfg.WriteTimeout, &def.WriteTimeout},
+		{&cfg.IdleTimeout, &def.IdleTimeout},
+		{&cfg.ShutdownTimeout, &def.ShutdownTimeout},
+	} {
+		if *f.v <= 0 {
+			*f.v = *f.d
+		}
+	}
+	if cfg.MaxBodyBytes <= 0 {
+		cfg.MaxBodyBytes = def.MaxBodyBytes
+	}
+	a, err := loadAssets(web.Static)
+	if err != nil {
+		return nil, fmt.Errorf("server: static assets: %w", err)
+	}
+	s := &Server{cfg: cfg, log: cfg.Logger, store: cfg.Store, now: cfg.Now, assets: a}
+	if s.cop, err = s.newCrossOriginProtection(); err != nil {
+		return nil, fmt.Errorf("server: %w", err)
+	}
+	s.handler = s.router(s.routeTable())
+	return s, nil
+}
+
+// Handler returns the complete HTTP handler: middleware, cross-origin
+// protection and every route of the table.
+func (s *Server) Handler() http.Handler { return s.handler }
+
+// Listen binds Config.Addr, so that a port already in use fails here,
+// before anything is served.
+func (s *Server) Listen() error {
+	ln, err := net.Listen("tcp", s.cfg.Addr)
+	if err != nil {
+		return fmt.Errorf("cannot listen on %s: %w", s.cfg.Addr, err)
+	}
+	s.ln = ln
+	return nil
+}
+
+// URL returns the base URL the server listens on, with the real port when
+// Addr asked for port 0. It is "" before Listen.
+func (s *Server) URL() string {
+	if s.ln == nil {
+		return ""
+	}
+	return "http://" + s.ln.Addr().String()
+}
+
+// Serve serves on the listener bound by Listen until ctx is cancelled, then
+// shuts down gracefully, waiting at most ShutdownTimeout for requests in
+// flight. It returns nil after a clean shutdown.
+func (s *Server) Serve(ctx context.Context) error {
+	if s.ln == nil {
+		return errors.New("server: Serve called before Listen")
+	}
+	s.http = &http.Server{
+		Handler:           s.handler,
+		ReadHeaderTimeout: s.cfg.ReadHeaderTimeout,
+		ReadTimeout:       s.cfg.ReadTimeout,
+		WriteTimeout:      s.cfg.WriteTimeout,
+		IdleTimeout:       s.cfg.IdleTimeout,
+		ErrorLog:          slog.NewLogLogger(s.log.Handler(), slog.LevelWarn),
+		// Requests carry the serve context's values but not its
+		// cancellation, so a shutdown lets them finish.
+		BaseContext: func(net.Listener) context.Context { return context.WithoutCancel(ctx) },
+	}
+	errc := make(chan error, 1)
+	go func() { errc <- s.http.Serve(s.ln) }()
+	select {
+	case err := <-errc:
+		return fmt.Errorf("server stopped: %w", err)
+	case <-ctx.Done():
+	}
+	sctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), s.cfg.ShutdownTimeout)
+	defer cancel()
+	if err := s.http.Shutdown(sctx); err != nil {
+		s.http.Close()
+		return fmt.Errorf("shutdown: %w", err)
+	}
+	if err := <-errc; err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return fmt.Errorf("server stopped: %w", err)
+	}
+	return nil
+}
