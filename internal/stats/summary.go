@@ -106,3 +106,116 @@ func moments(x []float64, sum float64) (mean, ss, comp float64) {
 func errNoValues() error {
 	return wardload.Errorf(wardload.EINVALID, "There are no values to summarize.")
 }
+
+// Fences are a lower and an upper cut-off.
+type Fences struct {
+	Lower float64
+	Upper float64
+}
+
+// Outlier kinds.
+const (
+	OutlierMild    = "mild"    // outside an inner fence, not outside an outer one
+	OutlierExtreme = "extreme" // outside an outer fence
+)
+
+// Outlier is a value strictly outside the inner fences. Index is its
+// 0-based position in the input slice.
+type Outlier struct {
+	Index int
+	Value float64
+	Kind  string
+}
+
+// Summary describes one sample, e.g. the care minutes of one tier.
+type Summary struct {
+	Quartiles   string // convention of Q1, Median, Q3
+	N           int
+	Min, Max    float64
+	Q1, Median  float64
+	Q3, IQR     float64
+	InnerFences Fences // Q1 − 1.5·IQR, Q3 + 1.5·IQR
+	OuterFences Fences // Q1 − 3·IQR,   Q3 + 3·IQR
+	Outliers    []Outlier
+	Mean        float64
+	SD          Number // n − 1; undefined for n = 1
+	SE          Number // SD/√n; undefined for n = 1
+	Bins        Binning
+}
+
+// Summarize returns the summary of x with quartiles under convention (see
+// QuartilesOf):
+//
+//	IQR          = Q3 − Q1
+//	inner fences = Q1 − 1.5·IQR, Q3 + 1.5·IQR
+//	outer fences = Q1 − 3·IQR,   Q3 + 3·IQR
+//	outlier      x < lower inner or x > upper inner (a value equal to a
+//	             fence is not outside it); "extreme" when also outside an
+//	             outer fence, else "mild"
+//	mean, SD     as MeanSD (SD with n − 1)
+//	SE           = SD / √n
+//	bins         BinsFor(n, IQR, min, max)
+//
+// Fences and the mild/extreme names follow Tukey (1977), Exploratory Data
+// Analysis, ch. 2; with hinges they flag the same points as R's
+// boxplot.stats(x)$out. Outliers are listed in input order.
+//
+// For n = 1 every quartile, the mean and the fences equal the value, there
+// are no outliers and SD and SE are undefined. An empty x or an unknown
+// convention is EINVALID. x is not modified; Summarize makes one copy of
+// it. It panics if x contains NaN or ±Inf.
+func Summarize(x []float64, convention string) (*Summary, error) {
+	if !wardload.ValidQuartiles(convention) {
+		return nil, errConvention(convention)
+	}
+	n := len(x)
+	if n == 0 {
+		return nil, errNoValues()
+	}
+	work := make([]float64, n)
+	lo, hi, sum := x[0], x[0], 0.0
+	for i, v := range x {
+		if v-v != 0 { // NaN or ±Inf
+			panic("stats: Summarize: value is NaN or infinite")
+		}
+		work[i] = v
+		sum += v
+		lo = min(lo, v)
+		hi = max(hi, v)
+	}
+	q := quartilesInPlace(work, convention)
+	work = nil
+	iqr := q.Q3 - q.Q1
+	s := &Summary{
+		Quartiles: convention, N: n, Min: lo, Max: hi,
+		Q1: q.Q1, Median: q.Median, Q3: q.Q3, IQR: iqr,
+		InnerFences: Fences{q.Q1 - 1.5*iqr, q.Q3 + 1.5*iqr},
+		OuterFences: Fences{q.Q1 - 3*iqr, q.Q3 + 3*iqr},
+		Bins:        BinsFor(n, iqr, lo, hi),
+	}
+	// Second pass: deviations from the first-pass mean (corrected two-pass,
+	// as MeanSD) and the fence test together, to read x only twice.
+	m := sum / float64(n)
+	var s1, s2 float64
+	in, out := s.InnerFences, s.OuterFences
+	for i, v := range x {
+		d := v - m
+		s1 += d
+		s2 += d * d
+		if v < in.Lower || v > in.Upper {
+			kind := OutlierMild
+			if v < out.Lower || v > out.Upper {
+				kind = OutlierExtreme
+			}
+			s.Outliers = append(s.Outliers, Outlier{Index: i, Value: v, Kind: kind})
+		}
+	}
+	s.Mean = m + s1/float64(n)
+	if n > 1 {
+		ss := max(s2-s1*s1/float64(n), 0)
+		sd := math.Sqrt(ss / float64(n-1))
+		s.SD = Defined(sd)
+		s.SE = Defined(sd / math.Sqrt(float64(n)))
+	}
+	return s, nil
+}

@@ -1,0 +1,47 @@
+package stats
+
+import "math"
+
+// Bin rules.
+const (
+	BinsFreedmanDiaconis = "freedman-diaconis"
+	BinsSturges          = "sturges"
+)
+
+// Binning is a suggested histogram: Bins bins of equal Width starting at
+// Start (the minimum), and the rule that chose them.
+type Binning struct {
+	Rule  string
+	Bins  int
+	Width float64
+	Start float64
+}
+
+// BinsFor returns the histogram bins for n values with the given IQR and
+// range:
+//
+//	Freedman–Diaconis  width = 2·IQR·n^(−1/3),  bins = ⌈(max − min)/width⌉
+//	Sturges            bins = ⌈log₂ n + 1⌉,     width = (max − min)/bins
+//
+// Freedman–Diaconis is used when IQR > 0; Sturges when IQR is 0 (the rule
+// would give zero-width bins). When max = min there is one bin of width 0.
+// Bins is at least 1. It panics if n < 1, iqr < 0 or max < min.
+//
+// References: Freedman, D. & Diaconis, P. (1981) "On the histogram as a
+// density estimator: L2 theory", Z. Wahrscheinlichkeitstheorie 57, 453–476;
+// Sturges, H. A. (1926) "The choice of a class interval", JASA 21, 65–66.
+func BinsFor(n int, iqr, min, max float64) Binning {
+	if n < 1 || !(iqr >= 0) || !(max >= min) {
+		panic("stats: BinsFor: need n ≥ 1, iqr ≥ 0 and max ≥ min")
+	}
+	span := max - min
+	if span == 0 {
+		return Binning{Rule: BinsSturges, Bins: 1, Width: 0, Start: min}
+	}
+	if iqr > 0 {
+		w := 2 * iqr * math.Pow(float64(n), -1.0/3)
+		return Binning{Rule: BinsFreedmanDiaconis, Bins: int(math.Max(1, math.Ceil(span/w))), Width: w, Start: min}
+	}
+	k := int(math.Ceil(math.Log2(float64(n)) + 1))
+	return Binning{Rule: BinsSturges, Bins: k, Width: span / float64(k), Start: min}
+}

@@ -1,0 +1,267 @@
+package stats
+
+import (
+	"math"
+	"slices"
+
+	"wardload/internal/wardload"
+)
+
+// DefaultQuartiles is the convention used when a ward has not chosen one:
+// Tukey's hinges. They are what R's fivenum and boxplot.stats use, so the
+// box, the 1.5·IQR fences and the flagged points match a boxplot drawn in
+// R; they are order statistics or midpoints of two, so they never invent a
+// value between distant points, and they are robust in Tukey's sense.
+const DefaultQuartiles = wardload.QuartilesHinges
+
+// Quartiles are the first quartile, the median and the third quartile of a
+// sample under the named convention (one of the wardload.Quartiles*
+// constants), which every output shows next to the values.
+type Quartiles struct {
+	Convention string
+	Q1         float64
+	Median     float64
+	Q3         float64
+}
+
+// QuartilesOf returns the quartiles of x under convention, with xₖ the k-th
+// smallest value (1-based) and n = len(x):
+//
+//	hinges  Tukey (1977) hinges as R's fivenum:
+//	          m = ⌊(n+3)/2⌋ / 2,  d = (m, (n+1)/2, n+1−m),
+//	          q = (x⌊d⌋ + x⌈d⌉) / 2
+//	hf6     Hyndman & Fan (1996) type 6, the p(n+1) rule of the NIST/
+//	        SEMATECH e-Handbook §7.2.6.2: see HFQuantile
+//	hf7     Hyndman & Fan (1996) type 7, R's and numpy's default: see HFQuantile
+//	halves  the median of the lower half x₁…x_⌊n/2⌋ and of the upper half
+//	        x_(n−⌊n/2⌋+1)…xₙ; when n is odd the median is in neither half
+//	        (the "exclusive" textbook method, e.g. Moore & McCabe)
+//
+// The median is the usual sample median under every convention. For n = 1
+// all three quartiles are the single value (R's fivenum does the same;
+// for halves this extends the definition, whose halves are empty).
+//
+// x is not modified; one copy is made and partially ordered by selection
+// (Hoare 1961, "Algorithm 65: Find"), so the cost is O(n), not a sort.
+// QuartilesOf returns EINVALID for an empty x or an unknown convention and
+// panics if x contains NaN.
+//
+// References: Hyndman, R. J. & Fan, Y. (1996) "Sample quantiles in
+// statistical packages", The American Statistician 50(4), 361–365;
+// Tukey, J. W. (1977) Exploratory Data Analysis, Addison-Wesley.
+func QuartilesOf(x []float64, convention string) (Quartiles, error) {
+	if !wardload.ValidQuartiles(convention) {
+		return Quartiles{}, errConvention(convention)
+	}
+	if len(x) == 0 {
+		return Quartiles{}, errNoValues()
+	}
+	work := slices.Clone(x)
+	for _, v := range work {
+		if v != v {
+			panic("stats: QuartilesOf: value is NaN")
+		}
+	}
+	return quartilesInPlace(work, convention), nil
+}
+
+func errConvention(name string) error {
+	return wardload.FieldErrorf(wardload.EINVALID, "quartiles", "Unknown quartile convention %q (use hinges, hf6, hf7 or halves).", name)
+}
+
+// HFQuantile returns the p-quantile of sorted under Hyndman & Fan (1996)
+// type 6 or 7. With 1-based order statistics xₖ, n = len(sorted):
+//
+//	type 6: h = (n+1)·p        (NIST/SEMATECH e-Handbook §7.2.6.2)
+//	type 7: h = (n−1)·p + 1    (R quantile default, numpy "linear")
+//	Q(p) = x⌊h⌋ + (h − ⌊h⌋)·(x⌊h⌋+1 − x⌊h⌋),  h clamped to [1, n]
+//
+// It panics if typ is not 6 or 7, p is outside [0, 1], sorted is empty,
+// contains NaN or is not in ascending order.
+func HFQuantile(typ int, p float64, sorted []float64) float64 {
+	if typ != 6 && typ != 7 {
+		panic("stats: HFQuantile: type must be 6 or 7")
+	}
+	if !(p >= 0 && p <= 1) {
+		panic("stats: HFQuantile: p outside [0, 1]")
+	}
+	if len(sorted) == 0 {
+		panic("stats: HFQuantile: no values")
+	}
+	for i, v := range sorted {
+		if v != v || (i > 0 && v < sorted[i-1]) {
+			panic("stats: HFQuantile: input is not sorted or contains NaN")
+		}
+	}
+	return hfPos(typ, p, len(sorted)).eval(sorted)
+}
+
+// pos is a quantile as a 0-based order statistic j plus weight w towards
+// the next one: (1−w)·x[j] + w·x[j+1].
+type pos struct {
+	j int
+	w float64
+}
+
+func (p pos) eval(a []float64) float64 {
+	if p.w == 0 {
+		return a[p.j]
+	}
+	lo, hi := a[p.j], a[p.j+1]
+	if lo == hi {
+		return lo
+	}
+	return (1-p.w)*lo + p.w*hi
+}
+
+// hfPos places Hyndman & Fan types 6 and 7 (see HFQuantile).
+func hfPos(typ int, p float64, n int) pos {
+	var h float64
+	if typ == 6 {
+		h = float64(n+1) * p
+	} else {
+		h = float64(n-1)*p + 1
+	}
+	if h <= 1 {
+		return pos{0, 0}
+	}
+	if h >= float64(n) {
+		return pos{n - 1, 0}
+	}
+	f := math.Floor(h)
+	return pos{int(f) - 1, h - f}
+}
+
+// medianPos is the usual median of n values starting at index off.
+func medianPos(off, n int) pos {
+	if n%2 == 1 {
+		return pos{off + n/2, 0}
+	}
+	return pos{off + n/2 - 1, 0.5}
+}
+
+// quartilePositions returns where Q1, the median and Q3 lie in the sorted
+// order of n ≥ 1 values under convention.
+func quartilePositions(convention string, n int) [3]pos {
+	med := medianPos(0, n)
+	switch convention {
+	case wardload.QuartilesHinges:
+		// d = ⌊(n+3)/2⌋/2 is an integer or a half; ⌊d⌋ and ⌈d⌉ are 1-based.
+		h := (n + 3) / 2 // 2·d
+		lo := pos{h/2 - 1, 0}
+		hi := pos{n - h/2, 0} // n+1−d, 0-based: n − ⌈d⌉ … n − ⌊d⌋
+		if h%2 == 1 {
+			lo.w = 0.5
+			hi = pos{n - h/2 - 1, 0.5}
+		}
+		return [3]pos{lo, med, hi}
+	case wardload.QuartilesHF6, wardload.QuartilesHF7:
+		typ := 6
+		if convention == wardload.QuartilesHF7 {
+			typ = 7
+		}
+		return [3]pos{hfPos(typ, 0.25, n), med, hfPos(typ, 0.75, n)}
+	case wardload.QuartilesHalves:
+		if n == 1 {
+			return [3]pos{med, med, med}
+		}
+		m := n / 2
+		return [3]pos{medianPos(0, m), med, medianPos(n-m, m)}
+	}
+	panic("stats: unknown quartile convention " + convention)
+}
+
+// quartilesInPlace computes the quartiles of work, reordering it.
+func quartilesInPlace(work []float64, convention string) Quartiles {
+	ps := quartilePositions(convention, len(work))
+	ks := make([]int, 0, 6)
+	for _, p := range ps {
+		ks = append(ks, p.j)
+		if p.w != 0 {
+			ks = append(ks, p.j+1)
+		}
+	}
+	slices.Sort(ks)
+	multiSelect(work, 0, slices.Compact(ks), 2*bitsLen(len(work)))
+	return Quartiles{Convention: convention, Q1: ps[0].eval(work), Median: ps[1].eval(work), Q3: ps[2].eval(work)}
+}
+
+func bitsLen(n int) int {
+	b := 0
+	for ; n > 0; n >>= 1 {
+		b++
+	}
+	return b
+}
+
+// multiSelect reorders a so that a[k−off] holds the (k+1)-th smallest
+// value for every k in ks (ascending, absolute indices; a starts at off).
+// It partitions once and recurses only into the sides that still hold a
+// wanted index, so a few order statistics cost O(n). Past depth limit it
+// sorts the remaining range, which bounds the worst case at O(n log n)
+// (Musser 1997, "Introspective sorting and selection algorithms").
+func multiSelect(a []float64, off int, ks []int, depth int) {
+	for len(ks) > 0 {
+		if len(a) <= 24 || depth == 0 {
+			slices.Sort(a)
+			return
+		}
+		depth--
+		p := partition(a)
+		at := p + off
+		i, _ := slices.BinarySearch(ks, at)
+		left, right := ks[:i], ks[i:]
+		if len(right) > 0 && right[0] == at {
+			right = right[1:]
+		}
+		// Recurse into the smaller side, loop on the larger.
+		if len(left) > 0 && len(right) > 0 && p < len(a)-p {
+			multiSelect(a[:p], off, left, depth)
+			a, off, ks = a[p+1:], at+1, right
+		} else if len(left) > 0 && len(right) > 0 {
+			multiSelect(a[p+1:], at+1, right, depth)
+			a, ks = a[:p], left
+		} else if len(left) > 0 {
+			a, ks = a[:p], left
+		} else {
+			a, off, ks = a[p+1:], at+1, right
+		}
+	}
+}
+
+// partition moves a median-of-three pivot to its sorted place p so that
+// a[:p] ≤ a[p] ≤ a[p+1:], and returns p. Values equal to the pivot stop
+// both scans, so a column of many equal values (whole care minutes) still
+// splits near the middle.
+func partition(a []float64) int {
+	n := len(a)
+	m := n / 2
+	if a[m] < a[0] {
+		a[m], a[0] = a[0], a[m]
+	}
+	if a[n-1] < a[0] {
+		a[n-1], a[0] = a[0], a[n-1]
+	}
+	if a[n-1] < a[m] {
+		a[n-1], a[m] = a[m], a[n-1]
+	}
+	a[0], a[m] = a[m], a[0] // median of the three to the front
+	pivot := a[0]
+	i, j := 1, n-1
+	for {
+		for i <= j && a[i] < pivot {
+			i++
+		}
+		for i <= j && a[j] > pivot {
+			j--
+		}
+		if i >= j {
+			break
+		}
+		a[i], a[j] = a[j], a[i]
+		i++
+		j--
+	}
+	a[0], a[j] = a[j], a[0]
+	return j
+}
