@@ -2,10 +2,9 @@ package stats
 
 import (
 	"math"
+	"math/bits"
 	"runtime"
 	"sync"
-
-	"gonum.org/v1/gonum/stat"
 )
 
 // BootstrapTier is one tier's input to BootstrapTotals: its observed
@@ -42,7 +41,7 @@ const streamKey = 0x9e3779b97f4a7c15
 // Σ(m_k + n_k), with the same distribution as materialising every r_j.
 //
 // Randomness: draws are split into fixed chunks of 4096; chunk c uses
-// math/rand/v2's PCG-DXSM generator (see pcg.go) seeded with (seed, splitmix64(c ⊕ 2⁶⁴/φ)), and bounded
+// math/rand/v2's PCG-DXSM generator (copied below as pcg) seeded with (seed, splitmix64(c ⊕ 2⁶⁴/φ)), and bounded
 // integers use Lemire's multiply-shift method with rejection on 32-bit
 // halves of each 64-bit output. Totals are plain sums in a fixed order (no
 // multiply-add that a compiler could fuse), so the same seed gives the same
@@ -126,8 +125,8 @@ func newBootstrapWorker(tiers []BootstrapTier) *bootstrapWorker {
 
 // run fills out with the totals of one chunk. The generator and the
 // bounded-integer step are written out in the loop so that the compiler
-// keeps the PCG state in registers; pcg.go's tests check the inlined
-// generator against math/rand/v2.
+// keeps the PCG state in registers; TestPCGMatchesStdlib checks the
+// copied generator against math/rand/v2.
 func (w *bootstrapWorker) run(out []float64, seed, chunk uint64) {
 	g := newPCG(seed, splitmix64(chunk^streamKey))
 	for k := range w.tiers {
@@ -178,9 +177,8 @@ const QuantileMethodSimulated = "Hyndman-Fan type 7 on the sorted totals; Monte 
 
 // summariseTotals reads the simulation summary off sorted totals.
 func summariseTotals(sorted []float64, seed uint64, cover float64) Simulation {
-	mean, sd := stat.MeanStdDev(sorted, nil)
 	s := Simulation{
-		Draws: len(sorted), Seed: seed, Mean: mean,
+		Draws: len(sorted), Seed: seed,
 		P10:            type7Sorted(sorted, 0.1),
 		P50:            type7Sorted(sorted, 0.5),
 		P90:            type7Sorted(sorted, 0.9),
@@ -192,8 +190,10 @@ func summariseTotals(sorted []float64, seed uint64, cover float64) Simulation {
 		QuantileMethod: QuantileMethodSimulated,
 	}
 	if len(sorted) >= 2 {
-		se := sd / math.Sqrt(float64(len(sorted)))
-		s.MeanSE = &se
+		mean, sd := MeanSD(sorted)
+		s.Mean, s.MeanSE = mean, Defined(sd/math.Sqrt(float64(len(sorted))))
+	} else {
+		s.Mean = sorted[0]
 	}
 	return s
 }
@@ -219,17 +219,63 @@ func type7Sorted(x []float64, p float64) float64 {
 // the number of values below the true quantile is Binomial(N, p), so the
 // order statistics at ranks N·p ∓ √(N·p·(1−p)) (1-based, rounded outwards)
 // bracket it with about 68 % probability, and half their distance estimates
-// one standard error. Nil when either rank falls outside 1..N (too few
+// one standard error. Undefined when either rank falls outside 1..N (too few
 // draws). Reference: Conover, W. J. (1999). Practical Nonparametric
 // Statistics, 3rd ed., §3.2 (quantile confidence intervals; from memory).
-func quantileSE(sorted []float64, p float64) *float64 {
+func quantileSE(sorted []float64, p float64) Number {
 	n := float64(len(sorted))
 	half := math.Sqrt(n * p * (1 - p))
 	lo := int(math.Floor(n*p - half))
 	hi := int(math.Ceil(n*p + half))
 	if lo < 1 || hi > len(sorted) {
-		return nil
+		return Undefined
 	}
-	se := (sorted[hi-1] - sorted[lo-1]) / 2
-	return &se
+	return Defined((sorted[hi-1] - sorted[lo-1]) / 2)
+}
+
+// pcg is math/rand/v2's PCG (128-bit LCG with the DXSM output function),
+// copied as a value type so the hot bootstrap loop can keep its state in
+// registers instead of calling through *rand.PCG. It must produce exactly
+// the sequence of rand.NewPCG(seed1, seed2); TestPCGMatchesStdlib checks.
+//
+// Reference: O'Neill, M. E. (2014). PCG: A family of simple fast
+// space-efficient statistically good algorithms for random number
+// generation. HMC-CS-2014-0905; DXSM as in pcg-cpp and NumPy.
+type pcg struct{ hi, lo uint64 }
+
+func newPCG(seed1, seed2 uint64) pcg { return pcg{seed1, seed2} }
+
+// Uint64 advances the state and returns the next 64-bit output.
+func (p *pcg) Uint64() uint64 {
+	const (
+		mulHi    = 2549297995355413924
+		mulLo    = 4865540595714422341
+		incHi    = 6364136223846793005
+		incLo    = 1442695040888963407
+		cheapMul = 0xda942042e4dd58b5
+	)
+	hi, lo := bits.Mul64(p.lo, mulLo)
+	hi += p.hi*mulLo + p.lo*mulHi
+	lo, c := bits.Add64(lo, incLo, 0)
+	hi, _ = bits.Add64(hi, incHi, c)
+	p.lo, p.hi = lo, hi
+	hi ^= hi >> 32
+	hi *= cheapMul
+	hi ^= hi >> 48
+	hi *= lo | 1
+	return hi
+}
+
+// rejectLow finishes Lemire's (2019) bounded-integer method: p is x·n for a
+// 32-bit x whose low word fell under n. If that low word is also under
+// 2³² mod n the product is biased and x is redrawn (from the low half of a
+// fresh output) until it is not. Returns the accepted product; its high word
+// is the uniform integer in [0, n). Rare (probability < n/2³²), so kept out
+// of line.
+func (p *pcg) rejectLow(prod uint64, n uint32) uint64 {
+	thresh := -n % n
+	for uint32(prod) < thresh {
+		prod = uint64(uint32(p.Uint64())) * uint64(n)
+	}
+	return prod
 }

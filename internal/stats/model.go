@@ -3,8 +3,6 @@ package stats
 import (
 	"math"
 
-	"gonum.org/v1/gonum/stat"
-
 	"wardload/internal/wardload"
 )
 
@@ -85,14 +83,14 @@ func ShiftMinutes(careMinutes, windowHours []float64, shiftHours float64) []floa
 
 // TierMoments is one tier's share of the analytic workload model.
 type TierMoments struct {
-	Code             string   `json:"code"`
-	Patients         int      `json:"patients"`
-	Observations     int      `json:"observations"`
-	MeanMinutes      *float64 `json:"mean_minutes"`      // per patient per shift; null with no observations
-	SDMinutes        *float64 `json:"sd_minutes"`        // sample SD (n−1); null with fewer than 2 observations
-	ExpectedMinutes  float64  `json:"expected_minutes"`  // n·mean
-	VariancePatient  float64  `json:"variance_patient"`  // n·sd²
-	VarianceEstimate float64  `json:"variance_estimate"` // n²·sd²/m
+	Code             string  `json:"code"`
+	Patients         int     `json:"patients"`
+	Observations     int     `json:"observations"`
+	MeanMinutes      Number  `json:"mean_minutes"`      // per patient per shift; null with no observations
+	SDMinutes        Number  `json:"sd_minutes"`        // sample SD (n−1); null with fewer than 2 observations
+	ExpectedMinutes  float64 `json:"expected_minutes"`  // n·mean
+	VariancePatient  float64 `json:"variance_patient"`  // n·sd²
+	VarianceEstimate float64 `json:"variance_estimate"` // n²·sd²/m
 }
 
 // WorkloadMoments returns the mean and the two variance terms of the total
@@ -110,8 +108,8 @@ type TierMoments struct {
 // variance of a sum of independent variables; the third is the variance of
 // n_k·ȳ_k, n_k²·σ_k²/m_k, with s_k² plugged in for σ_k².
 //
-// Each tier's mean and SD come from gonum's stat.MeanStdDev, a corrected
-// two-pass algorithm (Chan, Golub & LeVeque 1983). Tiers with Patients 0
+// Each tier's mean and SD come from MeanSD, a corrected two-pass algorithm
+// (Chan, Golub & LeVeque 1983). Tiers with Patients 0
 // contribute 0. It panics if a tier with patients has fewer than 2 values
 // or a negative count; Project returns EINVALID for those instead.
 func WorkloadMoments(codes []string, patients []int, values [][]float64) (mu, varPatient, varEstimate float64, tiers []TierMoments) {
@@ -125,16 +123,16 @@ func WorkloadMoments(codes []string, patients []int, values [][]float64) (mu, va
 			panic("stats: WorkloadMoments tier with patients needs 2 or more values")
 		}
 		t := TierMoments{Code: codes[k], Patients: n, Observations: m}
-		if m >= 1 {
-			mean, sd := stat.MeanStdDev(y, nil)
-			t.MeanMinutes = &mean
-			if m >= 2 {
-				t.SDMinutes = &sd
-			}
+		switch {
+		case m == 1:
+			t.MeanMinutes = Defined(y[0])
+		case m >= 2:
+			mean, sd := MeanSD(y)
+			t.MeanMinutes, t.SDMinutes = Defined(mean), Defined(sd)
 		}
 		if n > 0 {
 			fn, fm := float64(n), float64(m)
-			mean, s2 := *t.MeanMinutes, *t.SDMinutes**t.SDMinutes
+			mean, s2 := t.MeanMinutes.Value, t.SDMinutes.Value*t.SDMinutes.Value
 			t.ExpectedMinutes = fn * mean
 			t.VariancePatient = fn * s2
 			t.VarianceEstimate = fn * fn * s2 / fm

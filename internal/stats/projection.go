@@ -41,19 +41,19 @@ type Band struct {
 // type 7; standard errors are Monte Carlo errors of the simulation, not of
 // the model, and are null when they cannot be formed.
 type Simulation struct {
-	Draws          int      `json:"draws"`
-	Seed           uint64   `json:"seed"`
-	Mean           float64  `json:"mean"`
-	P10            float64  `json:"p10"`
-	P50            float64  `json:"p50"`
-	P90            float64  `json:"p90"`
-	Cover          float64  `json:"cover"` // q-quantile at the cover level
-	MeanSE         *float64 `json:"mean_se"`
-	P10SE          *float64 `json:"p10_se"`
-	P50SE          *float64 `json:"p50_se"`
-	P90SE          *float64 `json:"p90_se"`
-	CoverSE        *float64 `json:"cover_se"`
-	QuantileMethod string   `json:"quantile_method"`
+	Draws          int     `json:"draws"`
+	Seed           uint64  `json:"seed"`
+	Mean           float64 `json:"mean"`
+	P10            float64 `json:"p10"`
+	P50            float64 `json:"p50"`
+	P90            float64 `json:"p90"`
+	Cover          float64 `json:"cover"` // q-quantile at the cover level
+	MeanSE         Number  `json:"mean_se"`
+	P10SE          Number  `json:"p10_se"`
+	P50SE          Number  `json:"p50_se"`
+	P90SE          Number  `json:"p90_se"`
+	CoverSE        Number  `json:"cover_se"`
+	QuantileMethod string  `json:"quantile_method"`
 }
 
 // NurseHours are nurse hours needed on the shift: care minutes ÷ 60 ÷
