@@ -1,0 +1,151 @@
+package postgres
+
+import (
+	"context"
+	"time"
+
+	"github.com/jackc/pgx/v5"
+
+	"wardload/internal/wardload"
+)
+
+// CreateCensus stores c as the next revision for its ward, date and shift.
+func (s *Store) CreateCensus(ctx context.Context, c *wardload.Census) error {
+	if err := c.Validate(); err != nil {
+		return err
+	}
+	var out wardload.Census
+	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		// Locking the ward row serialises census entries of one ward, so two
+		// charge nurses saving at once get revisions n and n+1 rather than a
+		// unique violation. NO KEY UPDATE still lets other rows refer to it.
+		var one int
+		err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR NO KEY UPDATE`, c.WardID).Scan(&one)
+		if err == pgx.ErrNoRows {
+			return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
+		} else if err != nil {
+			return err
+		}
+		shifts, err := idSet(ctx, tx, `SELECT id FROM shift_patterns WHERE ward_id = $1`, c.WardID)
+		if err != nil {
+			return err
+		}
+		if !shifts[c.ShiftID] {
+			return wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found on this ward.")
+		}
+		tiers, err := findTiers(ctx, tx, c.WardID)
+		if err != nil {
+			return err
+		}
+		given := map[int64]int{}
+		for _, tc := range c.Counts {
+			given[tc.TierID] = tc.Patients
+		}
+		counts := make([]wardload.TierCount, 0, len(tiers))
+		for _, t := range tiers {
+			n, ok := given[t.ID]
+			if ok {
+				delete(given, t.ID)
+			}
+			counts = append(counts, wardload.TierCount{TierID: t.ID, Patients: n})
+		}
+		if len(given) > 0 {
+			return wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "A counted tier is not a tier of this ward.")
+		}
+		out = wardload.Census{WardID: c.WardID, Date: c.Date, ShiftID: c.ShiftID, Counts: counts, EnteredBy: c.EnteredBy, EnteredAt: now}
+		if err := tx.QueryRow(ctx, `
+			INSERT INTO census (ward_id, date, shift_id, revision, entered_by, entered_at)
+			VALUES ($1, $2, $3, (SELECT coalesce(max(revision), 0) + 1 FROM census WHERE ward_id = $1 AND date = $2 AND shift_id = $3), $4, $5)
+			RETURNING id, revision`,
+			c.WardID, dateArg(c.Date), c.ShiftID, c.EnteredBy, now).Scan(&out.ID, &out.Revision); err != nil {
+			return err
+		}
+		for _, tc := range counts {
+			if _, err := tx.Exec(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES ($1, $2, $3)`,
+				out.ID, tc.TierID, tc.Patients); err != nil {
+				return err
+			}
+		}
+		return audit(ctx, tx, now, "census.create", "census", out.ID, out.WardID, nil, &out)
+	})
+	if err != nil {
+		return err
+	}
+	*c = out
+	return nil
+}
+
+// FindCensusByID returns ENOTFOUND if there is no such entry.
+func (s *Store) FindCensusByID(ctx context.Context, id int64) (*wardload.Census, error) {
+	cs, err := s.findCensus(ctx, " WHERE c.id = $1", "", id)
+	return one(cs, err, "Census entry")
+}
+
+// FindCensus returns matches by Date descending, shift start, then
+// Revision descending, and the total ignoring Offset and Limit.
+func (s *Store) FindCensus(ctx context.Context, f wardload.CensusFilter) ([]*wardload.Census, int, error) {
+	var w where
+	if f.WardID != nil {
+		w.add("c.ward_id = ?", *f.WardID)
+	}
+	if f.ShiftID != nil {
+		w.add("c.shift_id = ?", *f.ShiftID)
+	}
+	if f.From != nil {
+		w.add("c.date >= ?", dateArg(*f.From))
+	}
+	if f.To != nil {
+		w.add("c.date <= ?", dateArg(*f.To))
+	}
+	if f.LatestOnly {
+		w.conds = append(w.conds, `c.revision = (SELECT max(l.revision) FROM census l
+			WHERE l.ward_id = c.ward_id AND l.date = c.date AND l.shift_id = c.shift_id)`)
+	}
+	var n int
+	if err := s.pool.QueryRow(ctx, `SELECT count(*) FROM census c`+w.String(), w.args...).Scan(&n); err != nil {
+		return nil, 0, formatError(err)
+	}
+	cs, err := s.findCensus(ctx, w.String(), page(f.Offset, f.Limit), w.args...)
+	if err != nil {
+		return nil, 0, err
+	}
+	return cs, n, nil
+}
+
+func (s *Store) findCensus(ctx context.Context, where, page string, args ...any) ([]*wardload.Census, error) {
+	rows, err := s.pool.Query(ctx, `
+		SELECT c.id, c.ward_id, c.date, c.shift_id, c.revision, c.entered_by, c.entered_at
+		FROM census c JOIN shift_patterns p ON p.id = c.shift_id`+where+`
+		ORDER BY c.date DESC, p.start_minute, c.shift_id, c.revision DESC, c.id`+page, args...)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	cs, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.Census, error) {
+		var c wardload.Census
+		var d time.Time
+		err := r.Scan(&c.ID, &c.WardID, &d, &c.ShiftID, &c.Revision, &c.EnteredBy, &c.EnteredAt)
+		c.Date, c.EnteredAt = dateOf(d), c.EnteredAt.UTC()
+		return &c, err
+	})
+	if err != nil || len(cs) == 0 {
+		return cs, formatError(err)
+	}
+	ids := make([]int64, len(cs))
+	byID := make(map[int64]*wardload.Census, len(cs))
+	for i, c := range cs {
+		ids[i], byID[c.ID] = c.ID, c
+	}
+	rows, err = s.pool.Query(ctx, `
+		SELECT k.census_id, k.tier_id, k.patients FROM census_counts k JOIN tiers t ON t.id = k.tier_id
+		WHERE k.census_id = ANY($1) ORDER BY k.census_id, t.display_order, t.code`, ids)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	var id int64
+	var tc wardload.TierCount
+	_, err = pgx.ForEachRow(rows, []any{&id, &tc.TierID, &tc.Patients}, func() error {
+		byID[id].Counts = append(byID[id].Counts, tc)
+		return nil
+	})
+	return cs, formatError(err)
+}

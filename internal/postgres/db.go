@@ -1,0 +1,162 @@
+// Package postgres implements wardload.Store on PostgreSQL with pgx.
+//
+// SQL is written by hand with $n placeholders. Every change runs in one
+// transaction together with its audit row, and every driver error passes
+// through formatError so that no driver text reaches a user.
+package postgres
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io/fs"
+	"net"
+	"time"
+
+	"github.com/jackc/pgx/v5"
+	"github.com/jackc/pgx/v5/pgconn"
+	"github.com/jackc/pgx/v5/pgxpool"
+	"github.com/jackc/pgx/v5/stdlib"
+	"github.com/pressly/goose/v3"
+
+	"wardload/internal/wardload"
+	"wardload/migrations"
+)
+
+// Config is what Open needs.
+type Config struct {
+	URL string         // postgres:// URL or key=value DSN
+	Now wardload.Clock // nil means time.Now
+	// Schema, when set, becomes the connections' search_path, so that all
+	// tables (goose's version table included) live in that schema. Tests
+	// use one schema per test; "" keeps the server's default.
+	Schema string
+}
+
+// Store is a wardload.Store backed by a pgx connection pool.
+type Store struct {
+	pool    *pgxpool.Pool
+	connCfg *pgx.ConnConfig // for the database/sql handle goose needs
+	now     wardload.Clock
+}
+
+var _ wardload.Store = (*Store)(nil)
+
+// connectTimeout bounds Open when the server does not answer, so that a
+// wrong host fails in seconds rather than at the OS TCP timeout.
+const connectTimeout = 5 * time.Second
+
+// Open connects to PostgreSQL and checks the connection. It does not
+// migrate; call Migrate. Errors are one line and never include the
+// password from the URL.
+func Open(ctx context.Context, cfg Config) (*Store, error) {
+	pcfg, err := pgxpool.ParseConfig(cfg.URL)
+	if err != nil {
+		// pgx's parse errors can quote the URL, password included.
+		return nil, errors.New("postgres: the database URL is not valid")
+	}
+	if pcfg.ConnConfig.ConnectTimeout == 0 {
+		pcfg.ConnConfig.ConnectTimeout = connectTimeout
+	}
+	if cfg.Schema != "" {
+		pcfg.ConnConfig.RuntimeParams["search_path"] = pgx.Identifier{cfg.Schema}.Sanitize()
+	}
+	pool, err := pgxpool.NewWithConfig(ctx, pcfg)
+	if err != nil {
+		return nil, connectError(pcfg.ConnConfig, err)
+	}
+	if err := pool.Ping(ctx); err != nil {
+		pool.Close()
+		return nil, connectError(pcfg.ConnConfig, err)
+	}
+	now := cfg.Now
+	if now == nil {
+		now = time.Now
+	}
+	return &Store{pool: pool, connCfg: pcfg.ConnConfig, now: now}, nil
+}
+
+// connectError describes a failed connection by host, port, database and
+// the root cause only (e.g. "connection refused"), on one line.
+func connectError(cc *pgx.ConnConfig, err error) error {
+	where := fmt.Sprintf("%s database %q", net.JoinHostPort(cc.Host, fmt.Sprint(cc.Port)), cc.Database)
+	var pgErr *pgconn.PgError
+	if errors.As(err, &pgErr) {
+		return fmt.Errorf("postgres: cannot connect to %s: %s (SQLSTATE %s)", where, pgErr.Message, pgErr.Code)
+	}
+	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
+		return fmt.Errorf("postgres: cannot connect to %s: %w", where, ctxErr(err))
+	}
+	root := err
+	for {
+		next := errors.Unwrap(root)
+		if next == nil {
+			break
+		}
+		root = next
+	}
+	return fmt.Errorf("postgres: cannot connect to %s: %v", where, root)
+}
+
+func ctxErr(err error) error {
+	if errors.Is(err, context.Canceled) {
+		return context.Canceled
+	}
+	return context.DeadlineExceeded
+}
+
+// Migrate applies all pending embedded migrations with goose. It uses its
+// own short-lived database/sql handle built from the same connection
+// settings, so a Config.Schema applies to the migrations too.
+func (s *Store) Migrate(ctx context.Context) error {
+	fsys, err := fs.Sub(migrations.Postgres, "postgres")
+	if err != nil {
+		return fmt.Errorf("postgres: migrations: %w", err)
+	}
+	db := stdlib.OpenDB(*s.connCfg)
+	defer db.Close()
+	p, err := goose.NewProvider(goose.DialectPostgres, db, fsys)
+	if err != nil {
+		return fmt.Errorf("postgres: migrations: %w", err)
+	}
+	if _, err := p.Up(ctx); err != nil {
+		return fmt.Errorf("postgres: migrate: %w", err)
+	}
+	return nil
+}
+
+// Pool returns the connection pool, e.g. for the scs session store.
+func (s *Store) Pool() *pgxpool.Pool { return s.pool }
+
+// Ping returns an error if the database cannot be reached.
+func (s *Store) Ping(ctx context.Context) error {
+	if err := s.pool.Ping(ctx); err != nil {
+		return connectError(s.connCfg, err)
+	}
+	return nil
+}
+
+// Close releases the pool.
+func (s *Store) Close() error {
+	s.pool.Close()
+	return nil
+}
+
+// stamp is the store's one timestamp for a transaction, in UTC and
+// truncated to microseconds because that is what TIMESTAMPTZ keeps: the
+// value a caller gets back equals the value read later.
+func (s *Store) stamp() time.Time { return s.now().UTC().Truncate(time.Microsecond) }
+
+// inTx runs fn in a transaction with one fixed timestamp and commits if fn
+// returns nil. Errors come back through formatError.
+func (s *Store) inTx(ctx context.Context, fn func(tx pgx.Tx, now time.Time) error) error {
+	tx, err := s.pool.Begin(ctx)
+	if err != nil {
+		return formatError(err)
+	}
+	defer tx.Rollback(ctx) // no-op after Commit
+	if err := fn(tx, s.stamp()); err != nil {
+		return formatError(err)
+	}
+	return formatError(tx.Commit(ctx))
+}

@@ -1,0 +1,59 @@
+package postgres
+
+import (
+	"errors"
+	"fmt"
+
+	"github.com/jackc/pgx/v5/pgconn"
+
+	"wardload/internal/wardload"
+)
+
+// uniqueFields names, for each unique constraint, the input that clashed
+// and the message a user sees. Constraint names are fixed in the migrations.
+var uniqueFields = map[string]struct{ field, msg string }{
+	"wards_code_key":                            {"code", "That ward code is already taken."},
+	"tiers_ward_id_code_key":                    {"code", "That tier code is already used on this ward."},
+	"shift_patterns_ward_id_name_key":           {"name", "That shift name is already used on this ward."},
+	"users_name_key":                            {"name", "That user name is already taken."},
+	"api_tokens_name_key":                       {"name", "That token name is already taken."},
+	"api_tokens_hash_key":                       {"hash", "That token secret is already in use."},
+	"census_ward_id_date_shift_id_revision_key": {"census", "Another census entry for this shift was saved at the same moment; please try again."},
+	"ratio_floors_key_idx":                      {"floors", "A shift has two ratio floors for the same tier."},
+}
+
+// formatError maps driver errors to wardload errors by SQLSTATE, the one
+// place that does so. Application errors pass through unchanged; anything
+// else stays an internal error whose text ErrorMessage never shows.
+func formatError(err error) error {
+	if err == nil {
+		return nil
+	}
+	var appErr *wardload.Error
+	if errors.As(err, &appErr) {
+		return err
+	}
+	var pgErr *pgconn.PgError
+	if !errors.As(err, &pgErr) {
+		return err
+	}
+	switch pgErr.Code {
+	case "23505": // unique_violation
+		if u, ok := uniqueFields[pgErr.ConstraintName]; ok {
+			return wardload.FieldErrorf(wardload.ECONFLICT, u.field, "%s", u.msg)
+		}
+		return wardload.Errorf(wardload.ECONFLICT, "That value is already taken.")
+	case "23503": // foreign_key_violation
+		return wardload.Errorf(wardload.ENOTFOUND, "A referenced record does not exist.")
+	case "23514": // check_violation
+		return wardload.Errorf(wardload.EINVALID, "A value is out of range.")
+	case "40001", "40P01": // serialization_failure, deadlock_detected
+		return wardload.Errorf(wardload.ECONFLICT, "A concurrent change won; please try again.")
+	}
+	// Keep the SQLSTATE for the log, never for the user.
+	return fmt.Errorf("postgres: SQLSTATE %s: %w", pgErr.Code, err)
+}
+
+func notFound(what string) error {
+	return wardload.Errorf(wardload.ENOTFOUND, "%s not found.", what)
+}

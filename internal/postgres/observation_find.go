@@ -1,0 +1,156 @@
+package postgres
+
+import (
+	"context"
+	"strings"
+	"time"
+
+	"github.com/jackc/pgx/v5"
+
+	"wardload/internal/wardload"
+)
+
+const obsColumns = `id, ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at,
+	batch_id, excluded, excluded_reason, excluded_by, excluded_at`
+
+// FindObservationByID returns ENOTFOUND if there is no such observation.
+func (s *Store) FindObservationByID(ctx context.Context, id int64) (*wardload.Observation, error) {
+	return findObservation(ctx, s.pool, id, "")
+}
+
+func findObservation(ctx context.Context, q querier, id int64, lock string) (*wardload.Observation, error) {
+	os, err := queryObservations(ctx, q, `SELECT `+obsColumns+` FROM observations WHERE id = $1`+lock, id)
+	return one(os, err, "Observation")
+}
+
+// FindObservations returns matches ordered by Date, then ID, and the total
+// count ignoring Offset and Limit.
+func (s *Store) FindObservations(ctx context.Context, f wardload.ObservationFilter) ([]*wardload.Observation, int, error) {
+	var w where
+	if f.WardID != nil {
+		w.add("ward_id = ?", *f.WardID)
+	}
+	if f.TierID != nil {
+		w.add("tier_id = ?", *f.TierID)
+	}
+	if f.ShiftID != nil {
+		w.add("shift_id = ?", *f.ShiftID)
+	}
+	if f.From != nil {
+		w.add("date >= ?", dateArg(*f.From))
+	}
+	if f.To != nil {
+		w.add("date <= ?", dateArg(*f.To))
+	}
+	if f.BatchID != nil {
+		w.add("batch_id = ?", *f.BatchID)
+	}
+	if !f.IncludeExcluded {
+		w.conds = append(w.conds, "NOT excluded")
+	}
+	var n int
+	if err := s.pool.QueryRow(ctx, `SELECT count(*) FROM observations`+w.String(), w.args...).Scan(&n); err != nil {
+		return nil, 0, formatError(err)
+	}
+	os, err := queryObservations(ctx, s.pool, `SELECT `+obsColumns+` FROM observations`+w.String()+
+		` ORDER BY date, id`+page(f.Offset, f.Limit), w.args...)
+	if err != nil {
+		return nil, 0, err
+	}
+	return os, n, nil
+}
+
+// queryObservations runs a SELECT of obsColumns and fills in the factors.
+func queryObservations(ctx context.Context, q querier, sql string, args ...any) ([]*wardload.Observation, error) {
+	rows, err := q.Query(ctx, sql, args...)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	os, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.Observation, error) {
+		var o wardload.Observation
+		var d time.Time
+		var exAt *time.Time
+		err := r.Scan(&o.ID, &o.WardID, &o.TierID, &d, &o.ShiftID, &o.WindowHours, &o.CareMinutes, &o.EnteredBy, &o.EnteredAt,
+			&o.BatchID, &o.Excluded, &o.ExcludedReason, &o.ExcludedBy, &exAt)
+		o.Date, o.EnteredAt, o.ExcludedAt = dateOf(d), o.EnteredAt.UTC(), timeOf(exAt)
+		return &o, err
+	})
+	if err != nil || len(os) == 0 {
+		return os, formatError(err)
+	}
+	ids := make([]int64, len(os))
+	byID := make(map[int64]*wardload.Observation, len(os))
+	for i, o := range os {
+		ids[i], byID[o.ID] = o.ID, o
+	}
+	rows, err = q.Query(ctx, `SELECT observation_id, name, value FROM observation_factors WHERE observation_id = ANY($1)`, ids)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	var id int64
+	var name string
+	var v float64
+	_, err = pgx.ForEachRow(rows, []any{&id, &name, &v}, func() error {
+		o := byID[id]
+		if o.Factors == nil {
+			o.Factors = map[string]float64{}
+		}
+		o.Factors[name] = v
+		return nil
+	})
+	return os, formatError(err)
+}
+
+// ExcludeObservation marks an observation as excluded with a reason.
+func (s *Store) ExcludeObservation(ctx context.Context, id int64, reason string, by int64) (*wardload.Observation, error) {
+	if err := wardload.ValidExclusionReason(reason); err != nil {
+		return nil, err
+	}
+	reason = strings.TrimSpace(reason)
+	return s.setExcluded(ctx, id, "observation.exclude", func(o *wardload.Observation, now time.Time) error {
+		if o.Excluded {
+			return wardload.Errorf(wardload.ECONFLICT, "This observation is already excluded.")
+		}
+		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = true, reason, by, now
+		return nil
+	})
+}
+
+// RestoreObservation includes an excluded observation again.
+func (s *Store) RestoreObservation(ctx context.Context, id int64, by int64) (*wardload.Observation, error) {
+	return s.setExcluded(ctx, id, "observation.restore", func(o *wardload.Observation, now time.Time) error {
+		if !o.Excluded {
+			return wardload.Errorf(wardload.ECONFLICT, "This observation is not excluded.")
+		}
+		// The restore itself is attributed in the audit row; the
+		// observation keeps no trace of a past exclusion.
+		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = false, "", 0, time.Time{}
+		return nil
+	})
+}
+
+// setExcluded locks the observation, lets change alter its review state,
+// stores it and writes the audit row.
+func (s *Store) setExcluded(ctx context.Context, id int64, action string, change func(*wardload.Observation, time.Time) error) (*wardload.Observation, error) {
+	var out *wardload.Observation
+	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		before, err := findObservation(ctx, tx, id, " FOR UPDATE")
+		if err != nil {
+			return err
+		}
+		o := *before
+		if err := change(&o, now); err != nil {
+			return err
+		}
+		if _, err := tx.Exec(ctx, `UPDATE observations SET excluded = $1, excluded_reason = $2, excluded_by = $3, excluded_at = $4 WHERE id = $5`,
+			o.Excluded, o.ExcludedReason, o.ExcludedBy, timeArg(o.ExcludedAt), id); err != nil {
+			return err
+		}
+		out = &o
+		return audit(ctx, tx, now, action, "observation", id, o.WardID, before, &o)
+	})
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}

@@ -1,0 +1,109 @@
+package postgres
+
+import (
+	"context"
+	"time"
+
+	"github.com/jackc/pgx/v5"
+
+	"wardload/internal/wardload"
+)
+
+// CreateTier returns EINVALID, ENOTFOUND (ward) or ECONFLICT (code taken in the ward).
+func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
+	if err := t.Validate(); err != nil {
+		return err
+	}
+	return s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		if err := wardExists(ctx, tx, t.WardID); err != nil {
+			return err
+		}
+		if err := tx.QueryRow(ctx, `INSERT INTO tiers (ward_id, code, label, description, display_order)
+			VALUES ($1, $2, $3, $4, $5) RETURNING id`,
+			t.WardID, t.Code, t.Label, t.Description, t.DisplayOrder).Scan(&t.ID); err != nil {
+			return err
+		}
+		return audit(ctx, tx, now, "tier.create", "tier", t.ID, t.WardID, nil, t)
+	})
+}
+
+// wardExists returns ENOTFOUND naming the field "ward" if there is no such
+// ward, and locks the ward against deletion for the rest of the transaction.
+func wardExists(ctx context.Context, tx pgx.Tx, id int64) error {
+	var one int
+	err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR KEY SHARE`, id).Scan(&one)
+	if err == pgx.ErrNoRows {
+		return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
+	}
+	return err
+}
+
+const tierColumns = `id, ward_id, code, label, description, display_order`
+
+func scanTier(r pgx.CollectableRow) (*wardload.Tier, error) {
+	var t wardload.Tier
+	err := r.Scan(&t.ID, &t.WardID, &t.Code, &t.Label, &t.Description, &t.DisplayOrder)
+	return &t, err
+}
+
+// FindTierByID returns ENOTFOUND if there is no such tier.
+func (s *Store) FindTierByID(ctx context.Context, id int64) (*wardload.Tier, error) {
+	return findTier(ctx, s.pool, id, "")
+}
+
+func findTier(ctx context.Context, q querier, id int64, lock string) (*wardload.Tier, error) {
+	rows, err := q.Query(ctx, `SELECT `+tierColumns+` FROM tiers WHERE id = $1`+lock, id)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	ts, err := pgx.CollectRows(rows, scanTier)
+	return one(ts, formatError(err), "Tier")
+}
+
+// FindTiers returns the ward's tiers by DisplayOrder then Code.
+func (s *Store) FindTiers(ctx context.Context, wardID int64) ([]*wardload.Tier, error) {
+	return findTiers(ctx, s.pool, wardID)
+}
+
+func findTiers(ctx context.Context, q querier, wardID int64) ([]*wardload.Tier, error) {
+	rows, err := q.Query(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = $1 ORDER BY display_order, code`, wardID)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	ts, err := pgx.CollectRows(rows, scanTier)
+	return ts, formatError(err)
+}
+
+// UpdateTier returns ENOTFOUND or EINVALID.
+func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdate) (*wardload.Tier, error) {
+	var out *wardload.Tier
+	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		before, err := findTier(ctx, tx, id, " FOR UPDATE")
+		if err != nil {
+			return err
+		}
+		t := *before
+		if upd.Label != nil {
+			t.Label = *upd.Label
+		}
+		if upd.Description != nil {
+			t.Description = *upd.Description
+		}
+		if upd.DisplayOrder != nil {
+			t.DisplayOrder = *upd.DisplayOrder
+		}
+		if err := t.Validate(); err != nil {
+			return err
+		}
+		if _, err := tx.Exec(ctx, `UPDATE tiers SET label = $1, description = $2, display_order = $3 WHERE id = $4`,
+			t.Label, t.Description, t.DisplayOrder, id); err != nil {
+			return err
+		}
+		out = &t
+		return audit(ctx, tx, now, "tier.update", "tier", id, t.WardID, before, &t)
+	})
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}

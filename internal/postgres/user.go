@@ -1,0 +1,193 @@
+package postgres
+
+import (
+	"context"
+	"slices"
+	"time"
+
+	"github.com/jackc/pgx/v5"
+
+	"wardload/internal/wardload"
+)
+
+// userAudit is what the audit log keeps of a user: never the password hash.
+type userAudit struct {
+	ID        int64
+	Name      string
+	Role      string
+	Disabled  bool
+	WardIDs   []int64
+	CreatedAt time.Time
+}
+
+func auditUser(u *wardload.User) userAudit {
+	return userAudit{u.ID, u.Name, u.Role, u.Disabled, u.WardIDs, u.CreatedAt}
+}
+
+// CreateUser returns EINVALID, ENOTFOUND (a ward) or ECONFLICT (name taken).
+func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
+	if err := u.Validate(); err != nil {
+		return err
+	}
+	return s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		if err := tx.QueryRow(ctx, `INSERT INTO users (name, role, password_hash, disabled, created_at)
+			VALUES ($1, $2, $3, $4, $5) RETURNING id`, u.Name, u.Role, u.PasswordHash, u.Disabled, now).Scan(&u.ID); err != nil {
+			return err
+		}
+		wards, err := setMemberships(ctx, tx, `user_wards`, `user_id`, u.ID, u.WardIDs)
+		if err != nil {
+			return err
+		}
+		u.WardIDs, u.CreatedAt = wards, now
+		return audit(ctx, tx, now, "user.create", "user", u.ID, 0, nil, auditUser(u))
+	})
+}
+
+// setMemberships replaces the ward links of a user or token and returns the
+// ward IDs ascending and without repeats. Returns ENOTFOUND for a missing ward.
+func setMemberships(ctx context.Context, tx pgx.Tx, table, column string, id int64, wardIDs []int64) ([]int64, error) {
+	if _, err := tx.Exec(ctx, `DELETE FROM `+table+` WHERE `+column+` = $1`, id); err != nil {
+		return nil, err
+	}
+	ids := slices.Clone(wardIDs)
+	slices.Sort(ids)
+	ids = slices.Compact(ids)
+	if len(ids) == 0 {
+		return nil, nil
+	}
+	known, err := idSet(ctx, tx, `SELECT id FROM wards WHERE id = ANY($1)`, ids)
+	if err != nil {
+		return nil, err
+	}
+	for _, w := range ids {
+		if !known[w] {
+			return nil, wardload.FieldErrorf(wardload.ENOTFOUND, "wards", "Ward %d not found.", w)
+		}
+		if _, err := tx.Exec(ctx, `INSERT INTO `+table+` (`+column+`, ward_id) VALUES ($1, $2)`, id, w); err != nil {
+			return nil, err
+		}
+	}
+	return ids, nil
+}
+
+// FindUserByID returns ENOTFOUND if there is no such user.
+func (s *Store) FindUserByID(ctx context.Context, id int64) (*wardload.User, error) {
+	us, err := findUsers(ctx, s.pool, wardload.UserFilter{ID: &id}, "")
+	return one(us, err, "User")
+}
+
+// FindUserByName returns ENOTFOUND if there is no such user.
+func (s *Store) FindUserByName(ctx context.Context, name string) (*wardload.User, error) {
+	us, err := findUsers(ctx, s.pool, wardload.UserFilter{Name: &name}, "")
+	return one(us, err, "User")
+}
+
+// FindUsers returns matches ordered by Name and the total count.
+func (s *Store) FindUsers(ctx context.Context, f wardload.UserFilter) ([]*wardload.User, int, error) {
+	w := userWhere(f)
+	var n int
+	if err := s.pool.QueryRow(ctx, `SELECT count(*) FROM users`+w.String(), w.args...).Scan(&n); err != nil {
+		return nil, 0, formatError(err)
+	}
+	us, err := findUsers(ctx, s.pool, f, page(f.Offset, f.Limit))
+	if err != nil {
+		return nil, 0, err
+	}
+	return us, n, nil
+}
+
+func userWhere(f wardload.UserFilter) *where {
+	var w where
+	if f.ID != nil {
+		w.add("id = ?", *f.ID)
+	}
+	if f.Name != nil {
+		w.add("name = ?", *f.Name)
+	}
+	if f.Role != nil {
+		w.add("role = ?", *f.Role)
+	}
+	if f.WardID != nil {
+		w.add("id IN (SELECT user_id FROM user_wards WHERE ward_id = ?)", *f.WardID)
+	}
+	return &w
+}
+
+func findUsers(ctx context.Context, q querier, f wardload.UserFilter, suffix string) ([]*wardload.User, error) {
+	w := userWhere(f)
+	rows, err := q.Query(ctx, `SELECT id, name, role, password_hash, disabled, created_at FROM users`+w.String()+` ORDER BY name`+suffix, w.args...)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	us, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.User, error) {
+		var u wardload.User
+		err := r.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &u.CreatedAt)
+		u.CreatedAt = u.CreatedAt.UTC()
+		return &u, err
+	})
+	if err != nil || len(us) == 0 {
+		return us, formatError(err)
+	}
+	ids := make([]int64, len(us))
+	byID := make(map[int64]*wardload.User, len(us))
+	for i, u := range us {
+		ids[i], byID[u.ID] = u.ID, u
+	}
+	err = loadWardLinks(ctx, q, `SELECT user_id, ward_id FROM user_wards WHERE user_id = ANY($1) ORDER BY user_id, ward_id`, ids,
+		func(id, ward int64) { byID[id].WardIDs = append(byID[id].WardIDs, ward) })
+	return us, err
+}
+
+// loadWardLinks runs a two-column (owner, ward) query and hands each pair to add.
+func loadWardLinks(ctx context.Context, q querier, sql string, ids []int64, add func(id, ward int64)) error {
+	rows, err := q.Query(ctx, sql, ids)
+	if err != nil {
+		return formatError(err)
+	}
+	var id, ward int64
+	_, err = pgx.ForEachRow(rows, []any{&id, &ward}, func() error {
+		add(id, ward)
+		return nil
+	})
+	return formatError(err)
+}
+
+// UpdateUser returns ENOTFOUND or EINVALID.
+func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdate) (*wardload.User, error) {
+	var out *wardload.User
+	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		us, err := findUsers(ctx, tx, wardload.UserFilter{ID: &id}, " FOR UPDATE")
+		before, err := one(us, err, "User")
+		if err != nil {
+			return err
+		}
+		u := *before
+		if upd.Role != nil {
+			u.Role = *upd.Role
+		}
+		if upd.PasswordHash != nil {
+			u.PasswordHash = *upd.PasswordHash
+		}
+		if upd.Disabled != nil {
+			u.Disabled = *upd.Disabled
+		}
+		if err := u.Validate(); err != nil {
+			return err
+		}
+		if _, err := tx.Exec(ctx, `UPDATE users SET role = $1, password_hash = $2, disabled = $3 WHERE id = $4`,
+			u.Role, u.PasswordHash, u.Disabled, id); err != nil {
+			return err
+		}
+		if upd.WardIDs != nil {
+			if u.WardIDs, err = setMemberships(ctx, tx, `user_wards`, `user_id`, id, upd.WardIDs); err != nil {
+				return err
+			}
+		}
+		out = &u
+		return audit(ctx, tx, now, "user.update", "user", id, 0, auditUser(before), auditUser(&u))
+	})
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
