@@ -1,0 +1,176 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"wardload/internal/demo"
+	"wardload/internal/password"
+	"wardload/internal/wardload"
+)
+
+func TestMain(m *testing.M) {
+	// Production argon2 parameters cost 64 MiB per hash; the hash itself
+	// is tested in internal/password.
+	password.DefaultParams = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
+	os.Exit(m.Run())
+}
+
+// runCLI runs wardload in-process against the SQLite database in dir.
+func runCLI(t *testing.T, dir, stdin string, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	e := &env{stdin: strings.NewReader(stdin), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+	code = run(context.Background(), append(args, "--data-dir", dir), e)
+	return code, out.String(), errb.String()
+}
+
+// openTestStore opens the store the commands used, for checking what they did.
+func openTestStore(t *testing.T, dir string) *openedStore {
+	t.Helper()
+	st, err := openStore(context.Background(), &storeOptions{DataDir: dir}, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	return st
+}
+
+func TestUserAdd(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := runCLI(t, dir, "first admin pw\n", "user", "add", "--role", "admin", "ada.admin")
+	if code != exitOK || out != "created user ada.admin (admin)\n" {
+		t.Fatalf("user add = %d, %q, %q; want 0 and the created line", code, out, errs)
+	}
+
+	st := openTestStore(t, dir)
+	u, err := st.FindUserByName(context.Background(), "ada.admin")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if u.Role != wardload.RoleAdmin {
+		t.Errorf("role = %q; want admin", u.Role)
+	}
+	if ok, err := password.Verify("first admin pw", u.PasswordHash); err != nil || !ok {
+		t.Errorf("stored hash does not verify the piped password: %v, %v", ok, err)
+	}
+	if strings.Contains(u.PasswordHash, "first admin pw") {
+		t.Error("the password is stored in clear")
+	}
+}
+
+func TestUserAddWithWard(t *testing.T) {
+	dir := t.TempDir()
+	st := openTestStore(t, dir)
+	ctx := context.Background()
+	w := &wardload.Ward{Code: "w2", Name: "Ward 2", TimeZone: "Europe/London"}
+	if err := st.CreateWard(ctx, w); err != nil {
+		t.Fatal(err)
+	}
+	st.Close()
+
+	code, out, errs := runCLI(t, dir, "a long password\r\nsecond line ignored\n", "user", "add", "--role", "manager", "--ward", "w2", "m.ward")
+	if code != exitOK || out != "created user m.ward (manager)\n" {
+		t.Fatalf("user add = %d, %q, %q", code, out, errs)
+	}
+	if !strings.Contains(errs, "no admin yet") {
+		t.Errorf("stderr = %q; want a note that no admin exists", errs)
+	}
+	st = openTestStore(t, dir)
+	u, err := st.FindUserByName(ctx, "m.ward")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(u.WardIDs) != 1 || u.WardIDs[0] != w.ID {
+		t.Errorf("wards = %v; want [%d]", u.WardIDs, w.ID)
+	}
+	if ok, _ := password.Verify("a long password", u.PasswordHash); !ok {
+		t.Error("password with CRLF line end not stored as typed without the line end")
+	}
+}
+
+func TestUserAddRejects(t *testing.T) {
+	for _, tc := range []struct {
+		name   string
+		stdin  string
+		args   []string
+		code   int
+		stderr string
+	}{
+		{"short password", "short\n", []string{"user", "add", "nine.chars"}, exitUsage, "at least 10 characters"},
+		{"no password", "", []string{"user", "add", "no.pw"}, exitUsage, "No password given"},
+		{"bad role", "long enough pw\n", []string{"user", "add", "--role", "boss", "bad.role"}, exitUsage, "Role must be"},
+		{"bad name", "long enough pw\n", []string{"user", "add", "Has Spaces"}, exitUsage, "User name must be"},
+		{"no name", "long enough pw\n", []string{"user", "add"}, exitUsage, "exactly one user NAME"},
+		{"unknown ward", "long enough pw\n", []string{"user", "add", "--ward", "nope", "x.ward"}, exitUsage, `no ward with code "nope"`},
+		{"password flag", "", []string{"user", "add", "--password", "secret12345", "pw.flag"}, exitUsage, "flag provided but not defined"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			dir := t.TempDir()
+			code, out, errs := runCLI(t, dir, tc.stdin, tc.args...)
+			if code != tc.code || out != "" || !strings.Contains(errs, tc.stderr) {
+				t.Fatalf("= %d, %q, %q; want %d, no output, stderr containing %q", code, out, errs, tc.code, tc.stderr)
+			}
+			st := openTestStore(t, dir)
+			if _, n, err := st.FindUsers(context.Background(), wardload.UserFilter{}); err != nil || n != 0 {
+				t.Errorf("users after rejected add = %d, %v; want 0", n, err)
+			}
+		})
+	}
+}
+
+func TestUserAddDuplicate(t *testing.T) {
+	dir := t.TempDir()
+	if code, _, errs := runCLI(t, dir, "long enough pw\n", "user", "add", "dup.user"); code != exitOK {
+		t.Fatalf("first add = %d, %q", code, errs)
+	}
+	code, out, errs := runCLI(t, dir, "long enough pw\n", "user", "add", "dup.user")
+	if code != exitUsage || out != "" || errs == "" {
+		t.Fatalf("second add = %d, %q, %q; want exit 2 with a message", code, out, errs)
+	}
+}
+
+func TestUserAddDatabaseFailure(t *testing.T) {
+	// A data directory that is a regular file cannot hold a database.
+	file := filepath.Join(t.TempDir(), "not-a-dir")
+	if err := os.WriteFile(file, []byte("x"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCLI(t, file, "long enough pw\n", "user", "add", "db.fail")
+	if code != exitFailure || out != "" || errs == "" {
+		t.Fatalf("= %d, %q, %q; want exit 1 with a message", code, out, errs)
+	}
+}
+
+func TestWardList(t *testing.T) {
+	dir := t.TempDir()
+	st := openTestStore(t, dir)
+	ctx := context.Background()
+	for _, w := range []*wardload.Ward{
+		{Code: "b-ward", Name: "Second by code", TimeZone: "UTC"},
+		{Code: "a-ward", Name: "First by code", TimeZone: "Europe/London"},
+	} {
+		if err := st.CreateWard(ctx, w); err != nil {
+			t.Fatal(err)
+		}
+	}
+	res, err := demo.Seed(ctx, st, time.Date(2026, 11, 20, 9, 0, 0, 0, time.UTC))
+	if err != nil {
+		t.Fatal(err)
+	}
+	st.Close()
+
+	code, out, errs := runCLI(t, dir, "", "ward", "list")
+	want := "a-ward\tFirst by code\nb-ward\tSecond by code\n" + demo.WardCode + "\t" + res.Ward.Name + "\n"
+	if code != exitOK || out != want || errs != "" {
+		t.Fatalf("ward list = %d, %q, %q; want 0, %q", code, out, errs, want)
+	}
+	if code, _, errs := runCLI(t, dir, "", "ward", "list", "extra"); code != exitUsage || errs == "" {
+		t.Errorf("ward list extra = %d, %q; want exit 2", code, errs)
+	}
+}

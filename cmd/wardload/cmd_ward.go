@@ -1,0 +1,46 @@
+package main
+
+import (
+	"context"
+	"fmt"
+
+	"wardload/internal/wardload"
+)
+
+func init() {
+	register(command{name: "ward list", summary: "list ward codes and names", run: runWardList})
+}
+
+// runWardList prints "CODE<TAB>NAME" per ward, ordered by code, so that it
+// can be piped into cut or awk.
+func runWardList(ctx context.Context, e *env, args []string) int {
+	fs := newFlagSet(e, "ward list", "", "List the wards: code and name, tab-separated, one per line.")
+	so := addStoreFlags(fs, e)
+	if code, ok := parseFlags(fs, args); !ok {
+		return code
+	}
+	if fs.NArg() != 0 {
+		fmt.Fprintln(e.stderr, "wardload ward list: takes no arguments (see --help)")
+		return exitUsage
+	}
+	st, err := openStore(ctx, so, false)
+	if err != nil {
+		fmt.Fprintf(e.stderr, "wardload ward list: %v\n", err)
+		return exitFailure
+	}
+	defer st.Close()
+
+	const page = 500
+	for offset := 0; ; offset += page {
+		wards, total, err := st.FindWards(ctx, wardload.WardFilter{Offset: offset, Limit: page})
+		if err != nil {
+			return reportError(e, "ward list", err)
+		}
+		for _, w := range wards {
+			fmt.Fprintf(e.stdout, "%s\t%s\n", w.Code, w.Name)
+		}
+		if len(wards) == 0 || offset+len(wards) >= total {
+			return exitOK
+		}
+	}
+}
