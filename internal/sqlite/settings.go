@@ -1,0 +1,100 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+
+	"wardload/internal/wardload"
+)
+
+// FindSettings returns the ward's saved settings or its defaults.
+func (s *Store) FindSettings(ctx context.Context, wardID int64) (*wardload.Settings, error) {
+	return findSettings(ctx, s.r, wardID)
+}
+
+func findSettings(ctx context.Context, q querier, wardID int64) (*wardload.Settings, error) {
+	if err := wardExists(ctx, q, wardID); err != nil {
+		return nil, err
+	}
+	st := &wardload.Settings{WardID: wardID}
+	var updated string
+	err := q.QueryRowContext(ctx, `SELECT direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at
+		FROM ward_settings WHERE ward_id = ?`, wardID).Scan(
+		&st.DirectCareFraction, &st.CoverLevel, &st.LookbackWeeks, &st.Quartiles, &st.Beds, &st.UpdatedBy, &updated)
+	if errors.Is(err, sql.ErrNoRows) {
+		return wardload.DefaultSettings(wardID), nil
+	} else if err != nil {
+		return nil, err
+	}
+	if st.UpdatedAt, err = parseTime(updated); err != nil {
+		return nil, err
+	}
+	rows, err := q.QueryContext(ctx, `SELECT shift_id, COALESCE(tier_id, 0), patients_per_nurse, charge_nurse_counts
+		FROM ratio_floors WHERE ward_id = ? ORDER BY position`, wardID)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	for rows.Next() {
+		var f wardload.RatioFloor
+		if err := rows.Scan(&f.ShiftID, &f.TierID, &f.PatientsPerNurse, &f.ChargeNurseCounts); err != nil {
+			return nil, err
+		}
+		st.Floors = append(st.Floors, f)
+	}
+	return st, rows.Err()
+}
+
+// SaveSettings replaces the ward's settings and floors in one transaction.
+func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
+	if err := st.Validate(); err != nil {
+		return err
+	}
+	return s.write(ctx, func(tx *Tx) error {
+		before, err := findSettings(ctx, tx, st.WardID)
+		if err != nil {
+			return err
+		}
+		for _, f := range st.Floors {
+			if ok, err := shiftOfWard(ctx, tx, st.WardID, f.ShiftID); err != nil {
+				return err
+			} else if !ok {
+				return wardload.FieldErrorf(wardload.ENOTFOUND, "floors", "A ratio floor names a shift that is not one of this ward's.")
+			}
+			if f.TierID != 0 {
+				if ok, err := tierOfWard(ctx, tx, st.WardID, f.TierID); err != nil {
+					return err
+				} else if !ok {
+					return wardload.FieldErrorf(wardload.ENOTFOUND, "floors", "A ratio floor names a tier that is not one of this ward's.")
+				}
+			}
+		}
+		if _, err := tx.ExecContext(ctx, `INSERT INTO ward_settings
+			(ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?)
+			ON CONFLICT (ward_id) DO UPDATE SET direct_care_fraction = excluded.direct_care_fraction,
+				cover_level = excluded.cover_level, lookback_weeks = excluded.lookback_weeks,
+				quartiles = excluded.quartiles, beds = excluded.beds,
+				updated_by = excluded.updated_by, updated_at = excluded.updated_at`,
+			st.WardID, st.DirectCareFraction, st.CoverLevel, st.LookbackWeeks, st.Quartiles, st.Beds, st.UpdatedBy, formatTime(tx.now)); err != nil {
+			return err
+		}
+		if _, err := tx.ExecContext(ctx, `DELETE FROM ratio_floors WHERE ward_id = ?`, st.WardID); err != nil {
+			return err
+		}
+		for i, f := range st.Floors {
+			if _, err := tx.ExecContext(ctx, `INSERT INTO ratio_floors
+				(ward_id, shift_id, tier_id, patients_per_nurse, charge_nurse_counts, position) VALUES (?, ?, ?, ?, ?, ?)`,
+				st.WardID, f.ShiftID, nullID(f.TierID), f.PatientsPerNurse, boolInt(f.ChargeNurseCounts), i); err != nil {
+				return err
+			}
+		}
+		st.UpdatedAt = tx.now
+		var b any
+		if !before.UpdatedAt.IsZero() { // defaults were never saved: nothing before
+			b = before
+		}
+		return tx.audit("settings.save", "settings", st.WardID, st.WardID, b, st)
+	})
+}

@@ -1,0 +1,116 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+
+	"wardload/internal/wardload"
+)
+
+// CreateShiftPattern stores a shift pattern of an existing ward.
+func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern) error {
+	if err := p.Validate(); err != nil {
+		return err
+	}
+	return s.write(ctx, func(tx *Tx) error {
+		if err := wardExists(ctx, tx, p.WardID); err != nil {
+			return err
+		}
+		res, err := tx.ExecContext(ctx, `INSERT INTO shift_patterns (ward_id, name, start_minute, nominal_hours) VALUES (?, ?, ?, ?)`,
+			p.WardID, p.Name, p.StartMinute, p.NominalHours)
+		if err != nil {
+			return err
+		}
+		if p.ID, err = res.LastInsertId(); err != nil {
+			return err
+		}
+		return tx.audit("shift.create", "shift", p.ID, p.WardID, nil, p)
+	})
+}
+
+// FindShiftPatternByID returns ENOTFOUND if there is no such pattern.
+func (s *Store) FindShiftPatternByID(ctx context.Context, id int64) (*wardload.ShiftPattern, error) {
+	return findShift(ctx, s.r, id)
+}
+
+// FindShiftPatterns returns the ward's patterns by start time (then name,
+// so that two shifts starting together have a stable order).
+func (s *Store) FindShiftPatterns(ctx context.Context, wardID int64) ([]*wardload.ShiftPattern, error) {
+	rows, err := s.r.QueryContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = ? ORDER BY start_minute, name`, wardID)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var ps []*wardload.ShiftPattern
+	for rows.Next() {
+		p, err := scanShift(rows)
+		if err != nil {
+			return nil, err
+		}
+		ps = append(ps, p)
+	}
+	return ps, rows.Err()
+}
+
+// UpdateShiftPattern applies upd in one transaction.
+func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.ShiftPatternUpdate) (*wardload.ShiftPattern, error) {
+	var out *wardload.ShiftPattern
+	err := s.write(ctx, func(tx *Tx) error {
+		before, err := findShift(ctx, tx, id)
+		if err != nil {
+			return err
+		}
+		p := *before
+		if upd.Name != nil {
+			p.Name = *upd.Name
+		}
+		if upd.StartMinute != nil {
+			p.StartMinute = *upd.StartMinute
+		}
+		if upd.NominalHours != nil {
+			p.NominalHours = *upd.NominalHours
+		}
+		if err := p.Validate(); err != nil {
+			return err
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE shift_patterns SET name = ?, start_minute = ?, nominal_hours = ? WHERE id = ?`,
+			p.Name, p.StartMinute, p.NominalHours, id); err != nil {
+			return err
+		}
+		out = &p
+		return tx.audit("shift.update", "shift", id, p.WardID, before, &p)
+	})
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+const shiftColumns = `id, ward_id, name, start_minute, nominal_hours`
+
+func scanShift(r scanner) (*wardload.ShiftPattern, error) {
+	var p wardload.ShiftPattern
+	if err := r.Scan(&p.ID, &p.WardID, &p.Name, &p.StartMinute, &p.NominalHours); err != nil {
+		return nil, err
+	}
+	return &p, nil
+}
+
+func findShift(ctx context.Context, q querier, id int64) (*wardload.ShiftPattern, error) {
+	p, err := scanShift(q.QueryRowContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE id = ?`, id))
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil, wardload.Errorf(wardload.ENOTFOUND, "Shift pattern not found.")
+	}
+	return p, err
+}
+
+// shiftOfWard reports whether shift id exists and belongs to ward wardID.
+func shiftOfWard(ctx context.Context, q querier, wardID, id int64) (bool, error) {
+	var one int
+	err := q.QueryRowContext(ctx, `SELECT 1 FROM shift_patterns WHERE id = ? AND ward_id = ?`, id, wardID).Scan(&one)
+	if errors.Is(err, sql.ErrNoRows) {
+		return false, nil
+	}
+	return err == nil, err
+}

@@ -1,0 +1,131 @@
+// Package sqlite implements wardload.Store on an embedded SQLite database
+// (modernc.org/sqlite, no cgo). It is the default store: one file in the
+// data directory, no server to run.
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"net/url"
+	"runtime"
+	"time"
+
+	"github.com/pressly/goose/v3"
+	_ "modernc.org/sqlite" // registers the "sqlite" driver
+
+	"wardload/internal/wardload"
+	"wardload/migrations"
+)
+
+// Config configures Open.
+type Config struct {
+	// Path is the database file. ":memory:" gives a private in-memory
+	// database (a single connection, so reads wait for writes).
+	Path string
+	// Now is the clock for created/entered/updated timestamps; nil means time.Now.
+	Now wardload.Clock
+}
+
+// Store is a wardload.Store backed by SQLite.
+//
+// SQLite allows one writer at a time. Rather than let several pooled
+// connections race for the write lock and spend busy_timeout waiting, all
+// writes go through w, a pool of exactly one connection whose transactions
+// BEGIN IMMEDIATE (so a transaction that reads before writing cannot fail
+// to upgrade its lock). Reads use r, a separate pool that WAL lets run
+// alongside the writer.
+type Store struct {
+	w, r *sql.DB
+	now  wardload.Clock
+}
+
+var _ wardload.Store = (*Store)(nil)
+
+// Open opens (creating if needed) the database at cfg.Path and checks that
+// it can be reached. It does not migrate; call Migrate.
+func Open(ctx context.Context, cfg Config) (*Store, error) {
+	if cfg.Path == "" {
+		return nil, errors.New("sqlite: database path is empty")
+	}
+	s := &Store{now: cfg.Now}
+	if s.now == nil {
+		s.now = time.Now
+	}
+	// Pragmas go in the DSN so that every pooled connection gets them,
+	// not only the first one.
+	q := url.Values{}
+	q.Add("_pragma", "busy_timeout(5000)")
+	q.Add("_pragma", "foreign_keys(ON)")
+	if cfg.Path == ":memory:" {
+		db, err := sql.Open("sqlite", ":memory:?"+q.Encode())
+		if err != nil {
+			return nil, fmt.Errorf("sqlite: open in-memory database: %w", err)
+		}
+		// Each connection to :memory: is its own database, so there must be
+		// exactly one, kept forever.
+		db.SetMaxOpenConns(1)
+		db.SetMaxIdleConns(1)
+		db.SetConnMaxLifetime(0)
+		db.SetConnMaxIdleTime(0)
+		s.w, s.r = db, db
+	} else {
+		q.Add("_pragma", "journal_mode(WAL)")
+		wq := url.Values{"_pragma": q["_pragma"], "_txlock": {"immediate"}}
+		w, err := sql.Open("sqlite", cfg.Path+"?"+wq.Encode())
+		if err != nil {
+			return nil, fmt.Errorf("sqlite: open %s: %w", cfg.Path, err)
+		}
+		w.SetMaxOpenConns(1)
+		r, err := sql.Open("sqlite", cfg.Path+"?"+q.Encode())
+		if err != nil {
+			w.Close()
+			return nil, fmt.Errorf("sqlite: open %s: %w", cfg.Path, err)
+		}
+		r.SetMaxOpenConns(max(4, runtime.NumCPU()))
+		s.w, s.r = w, r
+	}
+	// sql.Open is lazy: connect now so that a bad path fails here, cleanly,
+	// rather than on the first request. The writer goes first so that it
+	// creates the file and switches it to WAL.
+	if err := s.Ping(ctx); err != nil {
+		s.Close()
+		return nil, fmt.Errorf("sqlite: open %s: %w", cfg.Path, err)
+	}
+	return s, nil
+}
+
+// Migrate applies every pending migration in migrations/sqlite.
+func (s *Store) Migrate(ctx context.Context) error {
+	p, err := goose.NewProvider(goose.DialectSQLite3, s.w, migrations.SQLite)
+	if err != nil {
+		return fmt.Errorf("sqlite: migrations: %w", err)
+	}
+	if _, err := p.Up(ctx); err != nil {
+		return fmt.Errorf("sqlite: migrate: %w", err)
+	}
+	return nil
+}
+
+// DB returns the writer pool, for the session store (scs sqlite3store):
+// sessions are written on most requests, and sharing the single writer
+// keeps SQLite to one writer rather than adding a second one.
+func (s *Store) DB() *sql.DB { return s.w }
+
+// Ping checks both pools.
+func (s *Store) Ping(ctx context.Context) error {
+	if err := s.w.PingContext(ctx); err != nil {
+		return err
+	}
+	return s.r.PingContext(ctx)
+}
+
+// Close closes both pools.
+func (s *Store) Close() error {
+	err := s.w.Close()
+	if s.r != s.w {
+		err = errors.Join(err, s.r.Close())
+	}
+	return err
+}

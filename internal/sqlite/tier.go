@@ -1,0 +1,118 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+
+	"wardload/internal/wardload"
+)
+
+// CreateTier stores a tier of an existing ward.
+func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
+	if err := t.Validate(); err != nil {
+		return err
+	}
+	return s.write(ctx, func(tx *Tx) error {
+		if err := wardExists(ctx, tx, t.WardID); err != nil {
+			return err
+		}
+		res, err := tx.ExecContext(ctx, `INSERT INTO tiers (ward_id, code, label, description, display_order) VALUES (?, ?, ?, ?, ?)`,
+			t.WardID, t.Code, t.Label, t.Description, t.DisplayOrder)
+		if err != nil {
+			return err
+		}
+		if t.ID, err = res.LastInsertId(); err != nil {
+			return err
+		}
+		return tx.audit("tier.create", "tier", t.ID, t.WardID, nil, t)
+	})
+}
+
+// FindTierByID returns ENOTFOUND if there is no such tier.
+func (s *Store) FindTierByID(ctx context.Context, id int64) (*wardload.Tier, error) {
+	return findTier(ctx, s.r, id)
+}
+
+// FindTiers returns the ward's tiers by display order, then code.
+func (s *Store) FindTiers(ctx context.Context, wardID int64) ([]*wardload.Tier, error) {
+	rows, err := s.r.QueryContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = ? ORDER BY display_order, code`, wardID)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var ts []*wardload.Tier
+	for rows.Next() {
+		t, err := scanTier(rows)
+		if err != nil {
+			return nil, err
+		}
+		ts = append(ts, t)
+	}
+	return ts, rows.Err()
+}
+
+// UpdateTier applies upd in one transaction.
+func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdate) (*wardload.Tier, error) {
+	var out *wardload.Tier
+	err := s.write(ctx, func(tx *Tx) error {
+		before, err := findTier(ctx, tx, id)
+		if err != nil {
+			return err
+		}
+		t := *before
+		if upd.Label != nil {
+			t.Label = *upd.Label
+		}
+		if upd.Description != nil {
+			t.Description = *upd.Description
+		}
+		if upd.DisplayOrder != nil {
+			t.DisplayOrder = *upd.DisplayOrder
+		}
+		if err := t.Validate(); err != nil {
+			return err
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE tiers SET label = ?, description = ?, display_order = ? WHERE id = ?`,
+			t.Label, t.Description, t.DisplayOrder, id); err != nil {
+			return err
+		}
+		out = &t
+		return tx.audit("tier.update", "tier", id, t.WardID, before, &t)
+	})
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+const tierColumns = `id, ward_id, code, label, description, display_order`
+
+type scanner interface{ Scan(dest ...any) error }
+
+func scanTier(r scanner) (*wardload.Tier, error) {
+	var t wardload.Tier
+	if err := r.Scan(&t.ID, &t.WardID, &t.Code, &t.Label, &t.Description, &t.DisplayOrder); err != nil {
+		return nil, err
+	}
+	return &t, nil
+}
+
+func findTier(ctx context.Context, q querier, id int64) (*wardload.Tier, error) {
+	t, err := scanTier(q.QueryRowContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE id = ?`, id))
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil, wardload.Errorf(wardload.ENOTFOUND, "Tier not found.")
+	}
+	return t, err
+}
+
+// tierOfWard reports whether tier id exists and belongs to ward wardID;
+// a tier of another ward counts as unknown.
+func tierOfWard(ctx context.Context, q querier, wardID, id int64) (bool, error) {
+	var one int
+	err := q.QueryRowContext(ctx, `SELECT 1 FROM tiers WHERE id = ? AND ward_id = ?`, id, wardID).Scan(&one)
+	if errors.Is(err, sql.ErrNoRows) {
+		return false, nil
+	}
+	return err == nil, err
+}

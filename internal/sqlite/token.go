@@ -1,0 +1,156 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"slices"
+	"time"
+
+	"wardload/internal/wardload"
+)
+
+// tokenAudit is what the audit log keeps of a token: never its hash.
+type tokenAudit struct {
+	ID        int64
+	Name      string
+	WardIDs   []int64
+	CreatedBy int64
+	CreatedAt time.Time
+	RevokedAt time.Time
+}
+
+func auditToken(t *wardload.APIToken) tokenAudit {
+	return tokenAudit{t.ID, t.Name, t.WardIDs, t.CreatedBy, t.CreatedAt, t.RevokedAt}
+}
+
+// CreateToken stores a token and the wards it may read.
+func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
+	if err := t.Validate(); err != nil {
+		return err
+	}
+	return s.write(ctx, func(tx *Tx) error {
+		res, err := tx.ExecContext(ctx, `INSERT INTO api_tokens (name, hash, created_by, created_at) VALUES (?, ?, ?, ?)`,
+			t.Name, t.Hash, t.CreatedBy, formatTime(tx.now))
+		if err != nil {
+			return err
+		}
+		id, err := res.LastInsertId()
+		if err != nil {
+			return err
+		}
+		wards := slices.Compact(slices.Sorted(slices.Values(t.WardIDs)))
+		for _, w := range wards {
+			if err := wardExists(ctx, tx, w); err != nil {
+				return err
+			}
+			if _, err := tx.ExecContext(ctx, `INSERT INTO token_wards (token_id, ward_id) VALUES (?, ?)`, id, w); err != nil {
+				return err
+			}
+		}
+		t.ID, t.CreatedAt, t.WardIDs = id, tx.now, wards
+		return tx.audit("token.create", "token", id, 0, nil, auditToken(t))
+	})
+}
+
+// FindTokenByHash returns the token with that hash, revoked or not.
+func (s *Store) FindTokenByHash(ctx context.Context, hash string) (*wardload.APIToken, error) {
+	return findToken(ctx, s.r, "hash = ?", hash)
+}
+
+// FindTokenByName returns ENOTFOUND if there is no such token.
+func (s *Store) FindTokenByName(ctx context.Context, name string) (*wardload.APIToken, error) {
+	return findToken(ctx, s.r, "name = ?", name)
+}
+
+// FindTokens returns tokens by name; wardID 0 returns all.
+func (s *Store) FindTokens(ctx context.Context, wardID int64) ([]*wardload.APIToken, error) {
+	if wardID == 0 {
+		return findTokens(ctx, s.r, "1 = 1")
+	}
+	return findTokens(ctx, s.r, "id IN (SELECT token_id FROM token_wards WHERE ward_id = ?)", wardID)
+}
+
+// RevokeToken sets RevokedAt.
+func (s *Store) RevokeToken(ctx context.Context, id int64) error {
+	return s.write(ctx, func(tx *Tx) error {
+		before, err := findToken(ctx, tx, "id = ?", id)
+		if err != nil {
+			return err
+		}
+		if !before.Active() {
+			return wardload.Errorf(wardload.ECONFLICT, "This token is already revoked.")
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE api_tokens SET revoked_at = ? WHERE id = ?`, formatTime(tx.now), id); err != nil {
+			return err
+		}
+		after := *before
+		after.RevokedAt = tx.now
+		return tx.audit("token.revoke", "token", id, 0, auditToken(before), auditToken(&after))
+	})
+}
+
+// TouchToken records a use. It is not audited: it happens on every API
+// call and says nothing a reviewer needs.
+func (s *Store) TouchToken(ctx context.Context, id int64, at time.Time) error {
+	return s.write(ctx, func(tx *Tx) error {
+		res, err := tx.ExecContext(ctx, `UPDATE api_tokens SET last_used_at = ? WHERE id = ?`, formatTime(at), id)
+		if err != nil {
+			return err
+		}
+		if n, err := res.RowsAffected(); err != nil {
+			return err
+		} else if n == 0 {
+			return wardload.Errorf(wardload.ENOTFOUND, "Token not found.")
+		}
+		return nil
+	})
+}
+
+func findToken(ctx context.Context, q querier, cond string, arg any) (*wardload.APIToken, error) {
+	ts, err := findTokens(ctx, q, cond, arg)
+	if err != nil {
+		return nil, err
+	}
+	if len(ts) == 0 {
+		return nil, wardload.Errorf(wardload.ENOTFOUND, "Token not found.")
+	}
+	return ts[0], nil
+}
+
+func findTokens(ctx context.Context, q querier, cond string, args ...any) ([]*wardload.APIToken, error) {
+	rows, err := q.QueryContext(ctx, `SELECT id, name, hash, created_by, created_at, last_used_at, revoked_at
+		FROM api_tokens WHERE `+cond+` ORDER BY name`, args...)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var ts []*wardload.APIToken
+	for rows.Next() {
+		var t wardload.APIToken
+		var created string
+		var used, revoked sql.NullString
+		if err := rows.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &created, &used, &revoked); err != nil {
+			return nil, err
+		}
+		if t.CreatedAt, err = parseTime(created); err != nil {
+			return nil, err
+		}
+		if t.LastUsedAt, err = parseNullTime(used); err != nil {
+			return nil, err
+		}
+		if t.RevokedAt, err = parseNullTime(revoked); err != nil {
+			return nil, err
+		}
+		ts = append(ts, &t)
+	}
+	if err := rows.Err(); err != nil {
+		return nil, err
+	}
+	rows.Close()
+	for _, t := range ts {
+		if t.WardIDs, err = idList(ctx, q, `SELECT ward_id FROM token_wards WHERE token_id = ? ORDER BY ward_id`, t.ID); err != nil {
+			return nil, err
+		}
+	}
+	return ts, nil
+}

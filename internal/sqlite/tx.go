@@ -1,0 +1,136 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"encoding/json"
+	"fmt"
+	"time"
+
+	"wardload/internal/wardload"
+)
+
+// querier is what both *sql.DB and *sql.Tx offer, so that lookups can run
+// inside a write transaction or on the read pool.
+type querier interface {
+	ExecContext(ctx context.Context, query string, args ...any) (sql.Result, error)
+	QueryContext(ctx context.Context, query string, args ...any) (*sql.Rows, error)
+	QueryRowContext(ctx context.Context, query string, args ...any) *sql.Row
+}
+
+// Tx is a write transaction with one fixed timestamp, so that every row a
+// change touches (and its audit row) carries the same instant.
+type Tx struct {
+	*sql.Tx
+	ctx context.Context
+	now time.Time
+}
+
+// write runs fn in a write transaction and commits if it returns nil.
+// Errors from fn and the driver pass through formatError.
+func (s *Store) write(ctx context.Context, fn func(tx *Tx) error) error {
+	stx, err := s.w.BeginTx(ctx, nil)
+	if err != nil {
+		return formatError(err)
+	}
+	defer stx.Rollback()
+	tx := &Tx{Tx: stx, ctx: ctx, now: s.now().UTC()}
+	if err := fn(tx); err != nil {
+		return formatError(err)
+	}
+	return formatError(stx.Commit())
+}
+
+// audit appends an audit row in tx for the actor in the context. before
+// and after are marshalled to JSON; nil gives "".
+func (tx *Tx) audit(action, entity string, entityID, wardID int64, before, after any) error {
+	b, err := auditJSON(before)
+	if err != nil {
+		return err
+	}
+	a, err := auditJSON(after)
+	if err != nil {
+		return err
+	}
+	actor := wardload.ActorFrom(tx.ctx)
+	return insertAudit(tx.ctx, tx, &wardload.AuditEntry{
+		At: tx.now, UserID: actor.UserID, Actor: actor.Name, Action: action,
+		Entity: entity, EntityID: entityID, WardID: wardID, Before: b, After: a,
+	})
+}
+
+func auditJSON(v any) (string, error) {
+	if v == nil {
+		return "", nil
+	}
+	b, err := json.Marshal(v)
+	if err != nil {
+		return "", fmt.Errorf("audit json: %w", err)
+	}
+	return string(b), nil
+}
+
+// timeFormat is fixed-width (always nine fractional digits, always UTC
+// "Z") so that stored times sort correctly as text and round-trip to the
+// nanosecond.
+const timeFormat = "2006-01-02T15:04:05.000000000Z"
+
+func formatTime(t time.Time) string { return t.UTC().Format(timeFormat) }
+
+func parseTime(s string) (time.Time, error) {
+	t, err := time.Parse(timeFormat, s)
+	if err != nil {
+		return time.Time{}, fmt.Errorf("stored time %q: %w", s, err)
+	}
+	return t, nil
+}
+
+// nullTime stores the zero time as NULL.
+func nullTime(t time.Time) any {
+	if t.IsZero() {
+		return nil
+	}
+	return formatTime(t)
+}
+
+// parseNullTime reads a nullable time column; NULL is the zero time.
+func parseNullTime(s sql.NullString) (time.Time, error) {
+	if !s.Valid {
+		return time.Time{}, nil
+	}
+	return parseTime(s.String)
+}
+
+func parseDate(s string) (wardload.Date, error) {
+	d, err := wardload.ParseDate(s)
+	if err != nil {
+		return d, fmt.Errorf("stored date %q: %w", s, err)
+	}
+	return d, nil
+}
+
+// nullID stores 0 as NULL for optional references.
+func nullID(id int64) any {
+	if id == 0 {
+		return nil
+	}
+	return id
+}
+
+// page appends LIMIT/OFFSET; SQLite needs a LIMIT to use OFFSET.
+func page(q string, offset, limit int) string {
+	if limit <= 0 && offset <= 0 {
+		return q
+	}
+	if limit <= 0 {
+		limit = -1
+	}
+	return q + fmt.Sprintf(" LIMIT %d OFFSET %d", limit, max(offset, 0))
+}
+
+func boolInt(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}

@@ -1,0 +1,188 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"strings"
+
+	"wardload/internal/wardload"
+)
+
+// CreateWard stores a new ward and its factor names.
+func (s *Store) CreateWard(ctx context.Context, w *wardload.Ward) error {
+	if err := w.Validate(); err != nil {
+		return err
+	}
+	return s.write(ctx, func(tx *Tx) error {
+		res, err := tx.ExecContext(ctx, `INSERT INTO wards (code, name, time_zone, created_at) VALUES (?, ?, ?, ?)`,
+			w.Code, w.Name, w.TimeZone, formatTime(tx.now))
+		if err != nil {
+			return err
+		}
+		id, err := res.LastInsertId()
+		if err != nil {
+			return err
+		}
+		if err := replaceFactors(ctx, tx, id, w.FactorNames); err != nil {
+			return err
+		}
+		w.ID, w.CreatedAt = id, tx.now
+		return tx.audit("ward.create", "ward", id, id, nil, w)
+	})
+}
+
+func replaceFactors(ctx context.Context, tx *Tx, wardID int64, names []string) error {
+	if _, err := tx.ExecContext(ctx, `DELETE FROM ward_factors WHERE ward_id = ?`, wardID); err != nil {
+		return err
+	}
+	for i, n := range names {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO ward_factors (ward_id, name, position) VALUES (?, ?, ?)`, wardID, n, i); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// FindWardByID returns ENOTFOUND if there is no such ward.
+func (s *Store) FindWardByID(ctx context.Context, id int64) (*wardload.Ward, error) {
+	return findWard(ctx, s.r, id)
+}
+
+// FindWardByCode returns ENOTFOUND if there is no such ward.
+func (s *Store) FindWardByCode(ctx context.Context, code string) (*wardload.Ward, error) {
+	ws, _, err := findWards(ctx, s.r, wardload.WardFilter{Code: &code})
+	if err != nil {
+		return nil, err
+	}
+	if len(ws) == 0 {
+		return nil, wardload.Errorf(wardload.ENOTFOUND, "Ward %q not found.", code)
+	}
+	return ws[0], nil
+}
+
+// FindWards returns matching wards ordered by code and the total count.
+func (s *Store) FindWards(ctx context.Context, f wardload.WardFilter) ([]*wardload.Ward, int, error) {
+	return findWards(ctx, s.r, f)
+}
+
+// UpdateWard applies upd in one transaction.
+func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdate) (*wardload.Ward, error) {
+	var out *wardload.Ward
+	err := s.write(ctx, func(tx *Tx) error {
+		before, err := findWard(ctx, tx, id)
+		if err != nil {
+			return err
+		}
+		w := *before
+		if upd.Name != nil {
+			w.Name = *upd.Name
+		}
+		if upd.TimeZone != nil {
+			w.TimeZone = *upd.TimeZone
+		}
+		if upd.FactorNames != nil {
+			w.FactorNames = append([]string(nil), upd.FactorNames...)
+		}
+		if err := w.Validate(); err != nil {
+			return err
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE wards SET name = ?, time_zone = ? WHERE id = ?`, w.Name, w.TimeZone, id); err != nil {
+			return err
+		}
+		if upd.FactorNames != nil {
+			if err := replaceFactors(ctx, tx, id, w.FactorNames); err != nil {
+				return err
+			}
+		}
+		out = &w
+		return tx.audit("ward.update", "ward", id, id, before, &w)
+	})
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+func findWard(ctx context.Context, q querier, id int64) (*wardload.Ward, error) {
+	ws, _, err := findWards(ctx, q, wardload.WardFilter{ID: &id})
+	if err != nil {
+		return nil, err
+	}
+	if len(ws) == 0 {
+		return nil, wardload.Errorf(wardload.ENOTFOUND, "Ward not found.")
+	}
+	return ws[0], nil
+}
+
+func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardload.Ward, int, error) {
+	where, args := []string{"1 = 1"}, []any{}
+	if f.ID != nil {
+		where, args = append(where, "id = ?"), append(args, *f.ID)
+	}
+	if f.Code != nil {
+		where, args = append(where, "code = ?"), append(args, *f.Code)
+	}
+	if f.UserID != nil {
+		where, args = append(where, "id IN (SELECT ward_id FROM user_wards WHERE user_id = ?)"), append(args, *f.UserID)
+	}
+	cond := strings.Join(where, " AND ")
+	var total int
+	if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM wards WHERE `+cond, args...).Scan(&total); err != nil {
+		return nil, 0, err
+	}
+	rows, err := q.QueryContext(ctx, page(`SELECT id, code, name, time_zone, created_at FROM wards WHERE `+cond+` ORDER BY code`, f.Offset, f.Limit), args...)
+	if err != nil {
+		return nil, 0, err
+	}
+	defer rows.Close()
+	var ws []*wardload.Ward
+	for rows.Next() {
+		var w wardload.Ward
+		var created string
+		if err := rows.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &created); err != nil {
+			return nil, 0, err
+		}
+		if w.CreatedAt, err = parseTime(created); err != nil {
+			return nil, 0, err
+		}
+		ws = append(ws, &w)
+	}
+	if err := rows.Err(); err != nil {
+		return nil, 0, err
+	}
+	rows.Close()
+	for _, w := range ws {
+		if w.FactorNames, err = wardFactors(ctx, q, w.ID); err != nil {
+			return nil, 0, err
+		}
+	}
+	return ws, total, nil
+}
+
+func wardFactors(ctx context.Context, q querier, wardID int64) ([]string, error) {
+	rows, err := q.QueryContext(ctx, `SELECT name FROM ward_factors WHERE ward_id = ? ORDER BY position`, wardID)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var names []string
+	for rows.Next() {
+		var n string
+		if err := rows.Scan(&n); err != nil {
+			return nil, err
+		}
+		names = append(names, n)
+	}
+	return names, rows.Err()
+}
+
+// wardExists returns ENOTFOUND naming field "ward" unless the ward exists.
+func wardExists(ctx context.Context, q querier, id int64) error {
+	var one int
+	err := q.QueryRowContext(ctx, `SELECT 1 FROM wards WHERE id = ?`, id).Scan(&one)
+	if errors.Is(err, sql.ErrNoRows) {
+		return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
+	}
+	return err
+}
