@@ -11,6 +11,7 @@ import (
 	"fmt"
 	"io/fs"
 	"net"
+	"strings"
 	"time"
 
 	"github.com/jackc/pgx/v5"
@@ -87,15 +88,15 @@ func connectError(cc *pgx.ConnConfig, err error) error {
 	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
 		return fmt.Errorf("postgres: cannot connect to %s: %w", where, ctxErr(err))
 	}
-	root := err
-	for {
-		next := errors.Unwrap(root)
-		if next == nil {
-			break
-		}
-		root = next
+	// A network failure: the OS reason ("connect: connection refused") is
+	// the useful part; pgconn's wrapping repeats the address.
+	var opErr *net.OpError
+	if errors.As(err, &opErr) && opErr.Err != nil {
+		return fmt.Errorf("postgres: cannot connect to %s: %v", where, opErr.Err)
 	}
-	return fmt.Errorf("postgres: cannot connect to %s: %v", where, root)
+	// pgx joins the errors of each attempt (TLS, then plain) with newlines.
+	msg := strings.Join(strings.Fields(strings.ReplaceAll(err.Error(), "\n", "; ")), " ")
+	return fmt.Errorf("postgres: cannot connect to %s: %s", where, msg)
 }
 
 func ctxErr(err error) error {
