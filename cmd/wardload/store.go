@@ -1,0 +1,138 @@
+package main
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/jackc/pgx/v5/pgxpool"
+
+	"wardload/internal/postgres"
+	"wardload/internal/sqlite"
+	"wardload/internal/wardload"
+)
+
+// storeOptions choose the database: a postgres:// URL selects PostgreSQL,
+// anything empty selects the SQLite file in DataDir.
+type storeOptions struct {
+	DB      string
+	DataDir string
+}
+
+// addStoreFlags registers --db and --data-dir on fs, with the environment
+// (WARDLOAD_DB, WARDLOAD_DATA_DIR) as their defaults.
+func addStoreFlags(fs *flag.FlagSet, e *env) *storeOptions {
+	o := &storeOptions{}
+	fs.StringVar(&o.DB, "db", envOr(e, "WARDLOAD_DB", ""),
+		"PostgreSQL URL (postgres://…); empty uses the SQLite file in --data-dir (env WARDLOAD_DB)")
+	fs.StringVar(&o.DataDir, "data-dir", envOr(e, "WARDLOAD_DATA_DIR", "./wardload-data"),
+		"directory for the SQLite database (env WARDLOAD_DATA_DIR)")
+	return o
+}
+
+// openedStore is an open store plus the handle its kind offers, which the
+// session store needs (scs has one backend per database).
+type openedStore struct {
+	wardload.Store
+	SQLDB  *sql.DB       // SQLite's pool, nil for PostgreSQL
+	PGPool *pgxpool.Pool // PostgreSQL's pool, nil for SQLite
+	Kind   string        // "sqlite" or "postgres"
+	Where  string        // the SQLite file, or host/database of PostgreSQL (no password)
+}
+
+// kind returns which database o selects, or an error for a URL that is
+// neither empty nor postgres.
+func (o *storeOptions) kind() (string, error) {
+	switch {
+	case o.DB == "":
+		return "sqlite", nil
+	case strings.HasPrefix(o.DB, "postgres://"), strings.HasPrefix(o.DB, "postgresql://"):
+		return "postgres", nil
+	}
+	// Do not echo the value: it may be a URL with a password in it.
+	return "", errors.New("--db must be empty (SQLite) or a postgres:// or postgresql:// URL")
+}
+
+// sqlitePath is the SQLite file inside the data directory.
+func (o *storeOptions) sqlitePath() string { return filepath.Join(o.DataDir, "wardload.db") }
+
+// openStore opens the selected database and, when migrate is set, applies
+// pending migrations. Errors are one line, fit to print after "wardload: ".
+func openStore(ctx context.Context, o *storeOptions, migrate bool) (*openedStore, error) {
+	kind, err := o.kind()
+	if err != nil {
+		return nil, err
+	}
+	var st *openedStore
+	switch kind {
+	case "sqlite":
+		if o.DataDir == "" {
+			return nil, errors.New("--data-dir must not be empty")
+		}
+		// 0700: the database holds password hashes and the audit log.
+		if err := os.MkdirAll(o.DataDir, 0o700); err != nil {
+			return nil, fmt.Errorf("cannot create data directory: %s", oneLine(err))
+		}
+		path := o.sqlitePath()
+		db, err := sqlite.Open(ctx, sqlite.Config{Path: path, Now: time.Now})
+		if err != nil {
+			return nil, fmt.Errorf("cannot open database: %s", oneLine(err))
+		}
+		st = &openedStore{Store: db, SQLDB: db.DB(), Kind: kind, Where: path}
+	case "postgres":
+		db, err := postgres.Open(ctx, postgres.Config{URL: o.DB, Now: time.Now})
+		if err != nil {
+			return nil, fmt.Errorf("cannot open database: %s", oneLine(err))
+		}
+		cc := db.Pool().Config().ConnConfig
+		st = &openedStore{Store: db, PGPool: db.Pool(), Kind: kind,
+			Where: fmt.Sprintf("%s:%d/%s", cc.Host, cc.Port, cc.Database)}
+	}
+	if migrate {
+		if err := st.migrate(ctx); err != nil {
+			st.Close()
+			return nil, err
+		}
+	}
+	return st, nil
+}
+
+// migrate applies pending migrations of whichever store is open.
+func (st *openedStore) migrate(ctx context.Context) error {
+	m, ok := st.Store.(interface{ Migrate(context.Context) error })
+	if !ok {
+		return fmt.Errorf("cannot migrate: the %s store has no migrations", st.Kind)
+	}
+	if err := m.Migrate(ctx); err != nil {
+		return fmt.Errorf("cannot migrate database: %s", oneLine(err))
+	}
+	return nil
+}
+
+// schemaVersion returns the newest applied migration, 0 for a fresh
+// database. It reads goose's version table, which both stores use.
+func (st *openedStore) schemaVersion(ctx context.Context) (int64, error) {
+	const q = `SELECT COALESCE(MAX(version_id), 0) FROM goose_db_version`
+	var v int64
+	var err error
+	switch {
+	case st.SQLDB != nil:
+		err = st.SQLDB.QueryRowContext(ctx, q).Scan(&v)
+	case st.PGPool != nil:
+		err = st.PGPool.QueryRow(ctx, q).Scan(&v)
+	default:
+		err = errors.New("no database handle")
+	}
+	return v, err
+}
+
+// oneLine flattens multi-line driver errors so the command prints one line.
+func oneLine(err error) string {
+	return strings.Join(strings.Fields(err.Error()), " ")
+}
