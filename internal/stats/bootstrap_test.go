@@ -104,14 +104,14 @@ func TestBootstrapDeterministic(t *testing.T) {
 }
 
 // Values from R 4.2.2: quantile(c(3.5,1,7,2,2,10,4.25,8), c(.1,.5,.9,.95), type=7).
-func TestType7SortedR(t *testing.T) {
+func TestType7R(t *testing.T) {
 	x := []float64{3.5, 1, 7, 2, 2, 10, 4.25, 8}
 	slices.Sort(x)
 	for _, tc := range []struct{ p, want float64 }{
 		{0.1, 1.7000000000000002}, {0.5, 3.875}, {0.9, 8.5999999999999996}, {0.95, 9.2999999999999989},
 		{0, 1}, {1, 10}, // ends: R gives min and max
 	} {
-		if got := type7Sorted(x, tc.p); !scalar.EqualWithinAbsOrRel(got, tc.want, 1e-14, 1e-14) {
+		if got := type7Selected(x, tc.p); !scalar.EqualWithinAbsOrRel(got, tc.want, 1e-14, 1e-14) {
 			t.Errorf("type7(%v) = %.17g, R %.17g", tc.p, got, tc.want)
 		}
 	}
@@ -161,5 +161,31 @@ func TestBootstrapInputNotModified(t *testing.T) {
 	BootstrapTotals([]BootstrapTier{{Values: v, Patients: 5}}, 100, 1)
 	if !slices.Equal(v, []float64{5, 1, 4}) {
 		t.Errorf("values modified: %v", v)
+	}
+}
+
+// Selecting order statistics must give exactly what sorting gives.
+func TestSummariseTotalsSelectionMatchesSort(t *testing.T) {
+	for _, n := range []int{1, 2, 7, 25, 1000, 100_003} {
+		totals := BootstrapTotals([]BootstrapTier{{Values: []float64{3, 1, 4, 1, 5, 9, 2, 6}, Patients: 5}}, n, uint64(n))
+		sorted := slices.Clone(totals)
+		slices.Sort(sorted)
+		got := summariseTotals(slices.Clone(totals), 5, 0.75)
+		for _, c := range []struct {
+			name string
+			got  float64
+			p    float64
+			se   Number
+		}{{"p10", got.P10, 0.1, got.P10SE}, {"p50", got.P50, 0.5, got.P50SE}, {"p90", got.P90, 0.9, got.P90SE}, {"cover", got.Cover, 0.75, got.CoverSE}} {
+			if want := type7Selected(sorted, c.p); c.got != want {
+				t.Errorf("n=%d %s = %v, sorted gives %v", n, c.name, c.got, want)
+			}
+			if want := quantileSE(sorted, c.p); c.se != want {
+				t.Errorf("n=%d %s SE = %v, sorted gives %v", n, c.name, c.se, want)
+			}
+		}
+		if got.Draws != n || got.Seed != 5 || got.MeanSE.Defined != (n >= 2) {
+			t.Errorf("n=%d summary header %+v", n, got)
+		}
 	}
 }

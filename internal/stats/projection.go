@@ -3,8 +3,6 @@ package stats
 import (
 	"fmt"
 	"math"
-	"slices"
-	"sort"
 	"strings"
 )
 
@@ -209,7 +207,6 @@ func Project(in ProjectionInput) (*Projection, error) {
 
 	// Simulation.
 	totals := BootstrapTotals(boot, in.Draws, in.Seed)
-	slices.Sort(totals)
 	p.Simulation = summariseTotals(totals, in.Seed, in.Cover)
 	if in.Draws < 1000 {
 		p.Warnings = append(p.Warnings, fmt.Sprintf(
@@ -256,7 +253,12 @@ func Project(in ProjectionInput) (*Projection, error) {
 	p.Shortfall = make([]Shortfall, 0, to-from+1)
 	for nurses := from; nurses <= to; nurses++ {
 		capacity := float64(nurses) * perNurse
-		above := len(totals) - sort.SearchFloat64s(totals, math.Nextafter(capacity, math.Inf(1)))
+		above := 0
+		for _, v := range totals {
+			if v > capacity {
+				above++
+			}
+		}
 		ps := float64(above) / float64(len(totals))
 		p.Shortfall = append(p.Shortfall, Shortfall{
 			Nurses:               nurses,

@@ -1,0 +1,28 @@
+package stats
+
+import "testing"
+
+// BenchmarkProjection is the performance target of the one-shift
+// projection: 100,000 draws, 40 patients in 4 tiers of 60 observations,
+// at most 30 ms per projection on the project's 2-core machine
+// (bench/projection.sh checks the figure).
+func BenchmarkProjection(b *testing.B) {
+	in := benchInput(100_000)
+	for b.Loop() {
+		if _, err := Project(in); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkBootstrapTotals isolates the simulation from the sort and summary.
+func BenchmarkBootstrapTotals(b *testing.B) {
+	in := benchInput(100_000)
+	tiers := make([]BootstrapTier, len(in.Tiers))
+	for k, t := range in.Tiers {
+		tiers[k] = BootstrapTier{Values: ShiftMinutes(t.CareMinutes, t.WindowHours, in.ShiftHours), Patients: t.Patients}
+	}
+	for b.Loop() {
+		BootstrapTotals(tiers, in.Draws, in.Seed)
+	}
+}
