@@ -12,13 +12,14 @@ import (
 // uniqueFields names, for each unique constraint, the input that clashed
 // and the message a user sees. Constraint names are fixed in the migrations.
 var uniqueFields = map[string]struct{ field, msg string }{
-	"wards_code_key":                            {"code", "That ward code is already taken."},
-	"tiers_ward_id_code_key":                    {"code", "That tier code is already used on this ward."},
-	"shift_patterns_ward_id_name_key":           {"name", "That shift name is already used on this ward."},
-	"users_name_key":                            {"name", "That user name is already taken."},
-	"api_tokens_name_key":                       {"name", "That token name is already taken."},
-	"api_tokens_hash_key":                       {"hash", "That token secret is already in use."},
-	"census_ward_id_date_shift_id_revision_key": {"census", "Another census entry for this shift was saved at the same moment; please try again."},
+	// Wording as internal/sqlite's, so users read the same on either backend.
+	"wards_code_key":                            {"code", "A ward with this code already exists."},
+	"tiers_ward_id_code_key":                    {"code", "The ward already has a tier with this code."},
+	"shift_patterns_ward_id_name_key":           {"name", "The ward already has a shift with this name."},
+	"users_name_key":                            {"name", "A user with this name already exists."},
+	"api_tokens_name_key":                       {"name", "A token with this name already exists."},
+	"api_tokens_hash_key":                       {"hash", "This token secret is already in use; generate a new one."},
+	"census_ward_id_date_shift_id_revision_key": {"", "Someone else saved this census at the same moment; please try again."},
 	"ratio_floors_key_idx":                      {"floors", "A shift has two ratio floors for the same tier."},
 }
 
@@ -42,11 +43,11 @@ func formatError(err error) error {
 		if u, ok := uniqueFields[pgErr.ConstraintName]; ok {
 			return wardload.FieldErrorf(wardload.ECONFLICT, u.field, "%s", u.msg)
 		}
-		return wardload.Errorf(wardload.ECONFLICT, "That value is already taken.")
+		return wardload.Errorf(wardload.ECONFLICT, "This entry already exists.")
 	case "23503": // foreign_key_violation
-		return wardload.Errorf(wardload.ENOTFOUND, "A referenced record does not exist.")
-	case "23514": // check_violation
-		return wardload.Errorf(wardload.EINVALID, "A value is out of range.")
+		return wardload.Errorf(wardload.ENOTFOUND, "A ward, tier, shift or user referred to does not exist.")
+	case "23514", "23502": // check_violation, not_null_violation
+		return wardload.Errorf(wardload.EINVALID, "A value is missing or out of range.")
 	case "40001", "40P01": // serialization_failure, deadlock_detected
 		return wardload.Errorf(wardload.ECONFLICT, "A concurrent change won; please try again.")
 	}

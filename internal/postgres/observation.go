@@ -4,6 +4,7 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/hex"
+	"slices"
 	"time"
 
 	"github.com/jackc/pgx/v5"
@@ -34,7 +35,7 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 				return rowError(i, err)
 			}
 		}
-		wardIDs := map[int64]bool{}
+		var wards []int64 // in order of first appearance
 		for _, o := range obs {
 			if err := tx.QueryRow(ctx, `
 				INSERT INTO observations (ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at, batch_id)
@@ -48,21 +49,28 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 					return err
 				}
 			}
-			wardIDs[o.WardID] = true
+			if !slices.Contains(wards, o.WardID) {
+				wards = append(wards, o.WardID)
+			}
 		}
 		// One audit row per import: the rows themselves carry no more than
 		// the numbers, and an import of thousands would swamp the log.
 		var wardID int64
-		if len(wardIDs) == 1 {
-			wardID = obs[0].WardID
+		if len(wards) == 1 {
+			wardID = wards[0]
 		}
 		summary := struct {
 			BatchID string
 			Rows    int
-		}{batch, len(obs)}
+			WardIDs []int64
+		}{batch, len(obs), wards}
 		return audit(ctx, tx, now, "observation.import", "observation_batch", 0, wardID, nil, summary)
 	})
 	if err != nil {
+		// The rollback took the IDs back; do not leave them on the caller's rows.
+		for _, o := range obs {
+			o.ID = 0
+		}
 		return "", err
 	}
 	for _, o := range obs {
