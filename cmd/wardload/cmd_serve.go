@@ -1,0 +1,118 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"log/slog"
+	"strconv"
+	"text/tabwriter"
+	"time"
+
+	"wardload/internal/demo"
+	"wardload/internal/server"
+)
+
+func init() {
+	register(command{name: "serve", summary: "run the web interface and API", run: runServe})
+}
+
+func runServe(ctx context.Context, e *env, args []string) int {
+	fs := newFlagSet(e, "serve", "", "Migrate the database, then serve the web interface and API until interrupted.")
+	addr := fs.String("addr", envOr(e, "WARDLOAD_ADDR", "127.0.0.1:8080"), "address to listen on; port 0 picks a free port (env WARDLOAD_ADDR)")
+	so := addStoreFlags(fs, e)
+	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once")
+	secure := fs.Bool("secure-cookies", false, "mark cookies Secure; use when served over HTTPS (env WARDLOAD_SECURE_COOKIES)")
+	if code, ok := parseFlags(fs, args); !ok {
+		return code
+	}
+	if fs.NArg() > 0 {
+		fmt.Fprintf(e.stderr, "wardload: serve takes no arguments\n")
+		return exitUsage
+	}
+	if v := e.getenv("WARDLOAD_SECURE_COOKIES"); v != "" && !flagSet(fs, "secure-cookies") {
+		b, err := strconv.ParseBool(v)
+		if err != nil {
+			fmt.Fprintf(e.stderr, "wardload: WARDLOAD_SECURE_COOKIES must be true or false\n")
+			return exitUsage
+		}
+		*secure = b
+	}
+	if _, err := so.kind(); err != nil {
+		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
+		return exitUsage
+	}
+	log := slog.New(slog.NewTextHandler(e.stderr, nil))
+
+	st, err := openStore(ctx, so, true)
+	if err != nil {
+		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
+		return exitFailure
+	}
+	defer st.Close()
+	log.Info("database ready", "kind", st.Kind, "where", st.Where)
+
+	if *seed {
+		res, err := demo.Seed(ctx, st.Store, time.Now())
+		if err != nil {
+			fmt.Fprintf(e.stderr, "wardload: cannot add demo data: %s\n", oneLine(err))
+			return exitFailure
+		}
+		printDemo(e, res)
+	}
+
+	cfg := server.DefaultConfig()
+	cfg.Addr = *addr
+	cfg.SecureCookies = *secure
+	cfg.Store = st.Store
+	cfg.Logger = log
+	cfg.Now = time.Now
+	srv, err := server.New(cfg)
+	if err != nil {
+		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
+		return exitFailure
+	}
+	if err := srv.Listen(); err != nil {
+		fmt.Fprintf(e.stderr, "wardload: %s\n", oneLine(err))
+		return exitFailure
+	}
+	// Plain line on stdout for people and for the end-to-end tests, which
+	// parse the real port from it.
+	fmt.Fprintf(e.stdout, "listening on %s\n", srv.URL())
+	log.Info("listening", "url", srv.URL())
+	if err := srv.Serve(ctx); err != nil {
+		fmt.Fprintf(e.stderr, "wardload: %s\n", oneLine(err))
+		return exitFailure
+	}
+	log.Info("stopped")
+	return exitOK
+}
+
+// printDemo shows the demo accounts' passwords, which exist only now: the
+// store keeps hashes. A second start with --demo finds the ward and prints
+// nothing.
+func printDemo(e *env, res *demo.Result) {
+	if !res.Created {
+		fmt.Fprintln(e.stdout, "demo data already present; passwords were shown when it was created")
+		return
+	}
+	fmt.Fprintln(e.stdout, "Demo data created (a fictional ward). Accounts; passwords are shown only this once:")
+	tw := tabwriter.NewWriter(e.stdout, 2, 8, 2, ' ', 0)
+	fmt.Fprintln(tw, "  NAME\tROLE\tPASSWORD")
+	for _, a := range res.Accounts {
+		fmt.Fprintf(tw, "  %s\t%s\t%s\n", a.Name, a.Role, a.Password)
+	}
+	tw.Flush()
+}
+
+// flagSet reports whether the flag name was given on the command line, so
+// that an environment value does not override an explicit flag.
+func flagSet(fs *flag.FlagSet, name string) bool {
+	found := false
+	fs.Visit(func(f *flag.Flag) {
+		if f.Name == name {
+			found = true
+		}
+	})
+	return found
+}
