@@ -1,6 +1,7 @@
 package storetest
 
 import (
+	"sync"
 	"testing"
 	"time"
 
@@ -60,6 +61,39 @@ func censusCases() []testCase {
 			}
 			_, err = f.store.FindCensusByID(f.ctx, 9999)
 			wantErr(t, err, wardload.ENOTFOUND, "")
+		}},
+		{"Census/ConcurrentRevisions", func(t *testing.T, f *fixture) {
+			// Corrections entered at the same moment from two screens must
+			// both be kept, as consecutive revisions, never as duplicates.
+			sw := f.seedWard("w1")
+			const n = 8
+			var wg sync.WaitGroup
+			errs := make([]error, n)
+			for i := range n {
+				wg.Add(1)
+				go func() {
+					defer wg.Done()
+					c := &wardload.Census{WardID: sw.ward.ID, Date: date(2026, 3, 2), ShiftID: sw.day.ID, Counts: []wardload.TierCount{{TierID: sw.tiers[0].ID, Patients: i}}}
+					errs[i] = f.store.CreateCensus(f.ctx, c)
+				}()
+			}
+			wg.Wait()
+			for _, err := range errs {
+				noErr(t, err)
+			}
+			cs, total, err := f.store.FindCensus(f.ctx, wardload.CensusFilter{WardID: &sw.ward.ID})
+			noErr(t, err)
+			if total != n {
+				t.Fatalf("%d entries stored, want %d", total, n)
+			}
+			for i, c := range cs {
+				if c.Revision != n-i {
+					t.Fatalf("revision at %d = %d, want %d (revisions must be 1..%d without gaps or repeats)", i, c.Revision, n-i, n)
+				}
+			}
+			if got := f.auditCount("census.create"); got != n {
+				t.Fatalf("census.create rows = %d, want %d", got, n)
+			}
 		}},
 		{"Census/Errors", func(t *testing.T, f *fixture) {
 			sw := f.seedWard("w1")

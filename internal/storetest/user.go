@@ -63,6 +63,9 @@ func userCases() []testCase {
 			if len(got.WardIDs) != 0 {
 				t.Fatalf("after empty wards = %v", got.WardIDs)
 			}
+			if n := f.auditCount("user.update"); n != 3 {
+				t.Fatalf("three updates wrote %d user.update rows, want 3", n)
+			}
 		}},
 		{"User/Errors", func(t *testing.T, f *fixture) {
 			w := f.seedWard("w1")
