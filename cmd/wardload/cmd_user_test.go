@@ -21,12 +21,15 @@ func TestMain(m *testing.M) {
 	os.Exit(m.Run())
 }
 
-// runCLI runs wardload in-process against the SQLite database in dir.
+// runCLI runs the two-word command args[0:2] in-process against the SQLite
+// database in dir; --data-dir goes first because flags end at the first
+// argument that is not a flag.
 func runCLI(t *testing.T, dir, stdin string, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	e := &env{stdin: strings.NewReader(stdin), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
-	code = run(context.Background(), append(args, "--data-dir", dir), e)
+	full := append([]string{args[0], args[1], "--data-dir", dir}, args[2:]...)
+	code = run(context.Background(), full, e)
 	return code, out.String(), errb.String()
 }
 
