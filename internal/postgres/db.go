@@ -114,7 +114,7 @@ func (s *Store) Migrate(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("postgres: migrations: %w", err)
 	}
-	db := stdlib.OpenDB(*s.connCfg)
+	db := stdlib.OpenDB(*s.connCfg.Copy())
 	defer db.Close()
 	p, err := goose.NewProvider(goose.DialectPostgres, db, fsys)
 	if err != nil {
@@ -157,6 +157,20 @@ func (s *Store) inTx(ctx context.Context, fn func(tx pgx.Tx, now time.Time) erro
 	}
 	defer tx.Rollback(ctx) // no-op after Commit
 	if err := fn(tx, s.stamp()); err != nil {
+		return formatError(err)
+	}
+	return formatError(tx.Commit(ctx))
+}
+
+// inSnapshot runs fn in a read-only REPEATABLE READ transaction, so that a
+// finder reading several tables sees them at one moment.
+func (s *Store) inSnapshot(ctx context.Context, fn func(tx pgx.Tx) error) error {
+	tx, err := s.pool.BeginTx(ctx, pgx.TxOptions{IsoLevel: pgx.RepeatableRead, AccessMode: pgx.ReadOnly})
+	if err != nil {
+		return formatError(err)
+	}
+	defer tx.Rollback(ctx)
+	if err := fn(tx); err != nil {
 		return formatError(err)
 	}
 	return formatError(tx.Commit(ctx))

@@ -13,8 +13,7 @@ import (
 // saved yet. Returns ENOTFOUND for an unknown ward.
 func (s *Store) FindSettings(ctx context.Context, wardID int64) (*wardload.Settings, error) {
 	var out *wardload.Settings
-	// A read-only transaction, so settings and floors come from one snapshot.
-	err := s.inTx(ctx, func(tx pgx.Tx, _ time.Time) error {
+	err := s.inSnapshot(ctx, func(tx pgx.Tx) error {
 		var err error
 		out, err = findSettings(ctx, tx, wardID)
 		return err

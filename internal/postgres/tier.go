@@ -28,10 +28,10 @@ func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
 }
 
 // wardExists returns ENOTFOUND naming the field "ward" if there is no such
-// ward, and locks the ward against deletion for the rest of the transaction.
-func wardExists(ctx context.Context, tx pgx.Tx, id int64) error {
+// ward. Wards are never deleted, so the answer holds for the transaction.
+func wardExists(ctx context.Context, q querier, id int64) error {
 	var one int
-	err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR KEY SHARE`, id).Scan(&one)
+	err := q.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1`, id).Scan(&one)
 	if err == pgx.ErrNoRows {
 		return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
 	}
