@@ -2,6 +2,7 @@ package stats
 
 import (
 	"math"
+	"math/rand/v2"
 	"slices"
 
 	"wardload/internal/wardload"
@@ -41,10 +42,9 @@ type Quartiles struct {
 // all three quartiles are the single value (R's fivenum does the same;
 // for halves this extends the definition, whose halves are empty).
 //
-// x is not modified; one copy is made and partially ordered by selection
-// (Hoare 1961, "Algorithm 65: Find"), so the cost is O(n), not a sort.
+// x is not modified and the cost is O(n), not a sort: see orderStats.
 // QuartilesOf returns EINVALID for an empty x or an unknown convention and
-// panics if x contains NaN.
+// panics if x contains NaN or ±Inf.
 //
 // References: Hyndman, R. J. & Fan, Y. (1996) "Sample quantiles in
 // statistical packages", The American Statistician 50(4), 361–365;
@@ -56,13 +56,8 @@ func QuartilesOf(x []float64, convention string) (Quartiles, error) {
 	if len(x) == 0 {
 		return Quartiles{}, errNoValues()
 	}
-	work := slices.Clone(x)
-	for _, v := range work {
-		if v != v {
-			panic("stats: QuartilesOf: value is NaN")
-		}
-	}
-	return quartilesInPlace(work, convention), nil
+	q, _ := quartilesScan(x, convention)
+	return q, nil
 }
 
 func errConvention(name string) error {
@@ -107,7 +102,11 @@ func (p pos) eval(a []float64) float64 {
 	if p.w == 0 {
 		return a[p.j]
 	}
-	lo, hi := a[p.j], a[p.j+1]
+	return p.between(a[p.j], a[p.j+1])
+}
+
+// between interpolates between the order statistics at j and j+1.
+func (p pos) between(lo, hi float64) float64 {
 	if lo == hi {
 		return lo
 	}
@@ -171,9 +170,10 @@ func quartilePositions(convention string, n int) [3]pos {
 	panic("stats: unknown quartile convention " + convention)
 }
 
-// quartilesInPlace computes the quartiles of work, reordering it.
-func quartilesInPlace(work []float64, convention string) Quartiles {
-	ps := quartilePositions(convention, len(work))
+// quartilesScan returns the quartiles of x under convention, and the
+// sum, minimum and maximum of x from the same pass. x is not modified.
+func quartilesScan(x []float64, convention string) (Quartiles, scan) {
+	ps := quartilePositions(convention, len(x))
 	ks := make([]int, 0, 6)
 	for _, p := range ps {
 		ks = append(ks, p.j)
@@ -182,8 +182,18 @@ func quartilesInPlace(work []float64, convention string) Quartiles {
 		}
 	}
 	slices.Sort(ks)
-	multiSelect(work, 0, slices.Compact(ks), 2*bitsLen(len(work)))
-	return Quartiles{Convention: convention, Q1: ps[0].eval(work), Median: ps[1].eval(work), Q3: ps[2].eval(work)}
+	ks = slices.Compact(ks)
+	vals, sc := orderStats(x, ks)
+	var q [3]float64
+	for i, p := range ps {
+		j, _ := slices.BinarySearch(ks, p.j)
+		if p.w == 0 {
+			q[i] = vals[j]
+		} else {
+			q[i] = p.between(vals[j], vals[j+1])
+		}
+	}
+	return Quartiles{Convention: convention, Q1: q[0], Median: q[1], Q3: q[2]}, sc
 }
 
 func bitsLen(n int) int {
@@ -264,4 +274,140 @@ func partition(a []float64) int {
 	}
 	a[0], a[j] = a[j], a[0]
 	return j
+}
+
+// scan is what the pass that finds the order statistics also collects.
+type scan struct {
+	sum, min, max float64
+}
+
+// bandMinN is the size from which orderStats samples first: below it a
+// copy and selection are fast enough and sampling does not pay.
+const bandMinN = 1 << 16
+
+// orderStats returns the values of the order statistics at the 0-based
+// ranks ks (ascending, distinct) of x, without modifying x, and the scan
+// totals. It panics if x holds NaN or ±Inf.
+//
+// Small inputs are copied and partially ordered by selection (Hoare 1961,
+// "Algorithm 65: Find"). Large ones first take the sampling step of
+// Floyd & Rivest (1975, "Algorithm 489: SELECT", CACM 18(3)): a seeded
+// sample brackets each wanted rank between two values, one pass counts
+// the values below each bracket and keeps only those inside, and the
+// selection runs on those few. The counts prove that each rank did fall in
+// its bracket; if one did not (chance, or adversarial order), the plain
+// path runs instead, so the result is always exact. Either way at most one
+// copy of x is held.
+func orderStats(x []float64, ks []int) ([]float64, scan) {
+	if len(x) >= bandMinN {
+		if vals, sc, ok := orderStatsSampled(x, ks); ok {
+			return vals, sc
+		}
+	}
+	work := make([]float64, len(x))
+	sc := scan{min: x[0], max: x[0]}
+	for i, v := range x {
+		if v-v != 0 {
+			panic("stats: value is NaN or infinite")
+		}
+		work[i] = v
+		sc.sum += v
+		sc.min = min(sc.min, v)
+		sc.max = max(sc.max, v)
+	}
+	multiSelect(work, 0, ks, 2*bitsLen(len(work)))
+	vals := make([]float64, len(ks))
+	for i, k := range ks {
+		vals[i] = work[k]
+	}
+	return vals, sc
+}
+
+// band is a bracket [lo, hi] of values that should hold the ranks ks.
+type band struct {
+	lo, hi float64
+	ks     []int
+	keep   []float64
+}
+
+func orderStatsSampled(x []float64, ks []int) ([]float64, scan, bool) {
+	const size = 1 << 15
+	// ±5 standard deviations of a sample rank (at most √size/2) either
+	// side: a miss is very unlikely and only costs the plain path.
+	const spread = 5 * 91
+	n := len(x)
+	rng := rand.New(rand.NewPCG(19751, 489))
+	sample := make([]float64, size)
+	for i := range sample {
+		sample[i] = x[rng.IntN(n)]
+	}
+	slices.Sort(sample)
+	var bands []band
+	for _, k := range ks {
+		c := int(float64(k) / float64(n) * size)
+		lo, hi := sample[max(c-spread, 0)], sample[min(c+spread, size-1)]
+		if m := len(bands) - 1; m >= 0 && lo <= bands[m].hi {
+			bands[m].hi = max(bands[m].hi, hi)
+			bands[m].ks = append(bands[m].ks, k)
+			continue
+		}
+		bands = append(bands, band{lo: lo, hi: hi, ks: []int{k}})
+	}
+	if len(bands) > 3 {
+		return nil, scan{}, false
+	}
+	// Unused brackets sit at +Inf so that no finite value reaches them.
+	var lo, hi [3]float64
+	for i := range lo {
+		lo[i], hi[i] = math.Inf(1), math.Inf(1)
+		if i < len(bands) {
+			lo[i], hi[i] = bands[i].lo, bands[i].hi
+			bands[i].keep = make([]float64, 0, n/size*(2*spread+1)*5/4+64)
+		}
+	}
+	budget := n / 4 // values kept before giving up for the plain path
+	var regions [7]int
+	sc := scan{min: x[0], max: x[0]}
+	for _, v := range x {
+		if v-v != 0 {
+			panic("stats: value is NaN or infinite")
+		}
+		sc.sum += v
+		sc.min = min(sc.min, v)
+		sc.max = max(sc.max, v)
+		// Region 2b+1 is inside bracket b; even regions lie between.
+		// Counting instead of branching keeps the CPU from mispredicting
+		// on every value.
+		r := b2i(v >= lo[0]) + b2i(v > hi[0]) + b2i(v >= lo[1]) + b2i(v > hi[1]) + b2i(v >= lo[2]) + b2i(v > hi[2])
+		regions[r]++
+		if r&1 == 1 {
+			b := &bands[r>>1]
+			b.keep = append(b.keep, v)
+			if budget--; budget < 0 {
+				return nil, scan{}, false
+			}
+		}
+	}
+	vals := make([]float64, 0, len(ks))
+	below := 0
+	for i := range bands {
+		below += regions[2*i]
+		b := &bands[i]
+		if b.ks[0] < below || b.ks[len(b.ks)-1] >= below+len(b.keep) {
+			return nil, scan{}, false
+		}
+		multiSelect(b.keep, below, b.ks, 2*bitsLen(len(b.keep)))
+		for _, k := range b.ks {
+			vals = append(vals, b.keep[k-below])
+		}
+		below += len(b.keep)
+	}
+	return vals, sc, true
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }

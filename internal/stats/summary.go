@@ -172,19 +172,8 @@ func Summarize(x []float64, convention string) (*Summary, error) {
 	if n == 0 {
 		return nil, errNoValues()
 	}
-	work := make([]float64, n)
-	lo, hi, sum := x[0], x[0], 0.0
-	for i, v := range x {
-		if v-v != 0 { // NaN or ±Inf
-			panic("stats: Summarize: value is NaN or infinite")
-		}
-		work[i] = v
-		sum += v
-		lo = min(lo, v)
-		hi = max(hi, v)
-	}
-	q := quartilesInPlace(work, convention)
-	work = nil
+	q, sc := quartilesScan(x, convention)
+	lo, hi, sum := sc.min, sc.max, sc.sum
 	iqr := q.Q3 - q.Q1
 	s := &Summary{
 		Quartiles: convention, N: n, Min: lo, Max: hi,
@@ -194,20 +183,30 @@ func Summarize(x []float64, convention string) (*Summary, error) {
 		Bins:        BinsFor(n, iqr, lo, hi),
 	}
 	// Second pass: deviations from the first-pass mean (corrected two-pass,
-	// as MeanSD) and the fence test together, to read x only twice.
+	// as MeanSD) and a count of the outliers, so that their list is
+	// allocated once at its size instead of growing by copies.
 	m := sum / float64(n)
 	var s1, s2 float64
 	in, out := s.InnerFences, s.OuterFences
-	for i, v := range x {
+	count := 0
+	for _, v := range x {
 		d := v - m
 		s1 += d
 		s2 += d * d
 		if v < in.Lower || v > in.Upper {
-			kind := OutlierMild
-			if v < out.Lower || v > out.Upper {
-				kind = OutlierExtreme
+			count++
+		}
+	}
+	if count > 0 {
+		s.Outliers = make([]Outlier, 0, count)
+		for i, v := range x {
+			if v < in.Lower || v > in.Upper {
+				kind := OutlierMild
+				if v < out.Lower || v > out.Upper {
+					kind = OutlierExtreme
+				}
+				s.Outliers = append(s.Outliers, Outlier{Index: i, Value: v, Kind: kind})
 			}
-			s.Outliers = append(s.Outliers, Outlier{Index: i, Value: v, Kind: kind})
 		}
 	}
 	s.Mean = m + s1/float64(n)
