@@ -21,14 +21,18 @@ func TestMain(m *testing.M) {
 	os.Exit(m.Run())
 }
 
-// runCLI runs the two-word command args[0:2] in-process against the SQLite
-// database in dir; --data-dir goes first because flags end at the first
-// argument that is not a flag.
+// runCLI runs the command in args in-process against the SQLite database
+// in dir. --data-dir goes right after the command's name (one or two
+// words) because flags end at the first argument that is not a flag.
 func runCLI(t *testing.T, dir, stdin string, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	e := &env{stdin: strings.NewReader(stdin), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
-	full := append([]string{args[0], args[1], "--data-dir", dir}, args[2:]...)
+	words := 1
+	if _, ok := commands[strings.Join(args[:min(2, len(args))], " ")]; ok && len(args) >= 2 {
+		words = 2
+	}
+	full := append(append(append([]string{}, args[:words]...), "--data-dir", dir), args[words:]...)
 	code = run(context.Background(), full, e)
 	return code, out.String(), errb.String()
 }
