@@ -83,8 +83,9 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 		return tx.audit("observation.import", "observation_batch", 0, wardID, nil, after)
 	})
 	if err != nil {
+		// Nothing was stored, so nothing the rolled-back inserts set may remain.
 		for _, o := range obs {
-			o.ID, o.BatchID = 0, ""
+			o.ID, o.BatchID, o.EnteredAt = 0, "", time.Time{}
 		}
 		return "", err
 	}
