@@ -93,17 +93,17 @@ func securityHeaders(next http.Handler) http.Handler {
 	})
 }
 
-// limitBody caps request bodies at MaxBodyBytes. A declared length over the
+// limitBody caps request bodies at limit bytes. A declared length over the
 // cap is refused at once; an undeclared one fails when read past the cap,
 // and the adapter turns that *http.MaxBytesError into a 413.
-func (s *Server) limitBody(next http.Handler) http.Handler {
+func (s *Server) limitBody(limit int64, next http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
-		if r.ContentLength > s.cfg.MaxBodyBytes {
-			s.renderError(w, r, &http.MaxBytesError{Limit: s.cfg.MaxBodyBytes})
+		if r.ContentLength > limit {
+			s.renderError(w, r, &http.MaxBytesError{Limit: limit})
 			return
 		}
 		if r.Body != nil {
-			r.Body = http.MaxBytesReader(w, r.Body, s.cfg.MaxBodyBytes)
+			r.Body = http.MaxBytesReader(w, r.Body, limit)
 		}
 		next.ServeHTTP(w, r)
 	})

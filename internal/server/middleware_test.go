@@ -85,17 +85,23 @@ func TestBodyLimit(t *testing.T) {
 	if limit != 1<<20 {
 		t.Fatalf("default MaxBodyBytes = %d, want 1 MiB", limit)
 	}
-	h := withRoutes(s, Route{Method: "POST", Pattern: "/test/body", Name: "t", Access: Access{Public: true}, Handler: readBody})
+	h := withRoutes(s,
+		Route{Method: "POST", Pattern: "/test/body", Name: "t", Access: Access{Public: true}, Handler: readBody},
+		Route{Method: "POST", Pattern: "/test/upload", Name: "u", Access: Access{Public: true}, Handler: readBody, MaxBodyBytes: 2 * limit},
+	)
 	for _, tc := range []struct {
 		name       string
+		path       string
 		size       int64
 		declared   bool // send Content-Length
 		wantStatus int
 	}{
-		{"at limit", limit, true, 200},
-		{"over limit, declared", limit + 1, true, 413},
-		{"at limit, chunked", limit, false, 200},
-		{"over limit, chunked", limit + 1, false, 413},
+		{"at limit", "/test/body", limit, true, 200},
+		{"over limit, declared", "/test/body", limit + 1, true, 413},
+		{"at limit, chunked", "/test/body", limit, false, 200},
+		{"over limit, chunked", "/test/body", limit + 1, false, 413},
+		{"route with a larger limit", "/test/upload", 2 * limit, false, 200},
+		{"over a route's larger limit", "/test/upload", 2*limit + 1, false, 413},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			// io.MultiReader hides the length from httptest, so the body is
@@ -104,7 +110,7 @@ func TestBodyLimit(t *testing.T) {
 			if !tc.declared {
 				body = io.MultiReader(body)
 			}
-			req := httptest.NewRequest("POST", "/test/body", body)
+			req := httptest.NewRequest("POST", tc.path, body)
 			if tc.declared != (req.ContentLength == tc.size) {
 				t.Fatalf("ContentLength = %d, declared %v", req.ContentLength, tc.declared)
 			}

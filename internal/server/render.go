@@ -2,6 +2,7 @@ package server
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"net/http"
 
@@ -45,4 +46,26 @@ func (s *Server) layout(r *http.Request, title string) web.LayoutVM {
 		Icon:       s.assets.URL("favicon.svg"),
 		Nav:        items,
 	}
+}
+
+// writeJSON writes v as the JSON body of an API response. It encodes into a
+// buffer first, so an encoding failure becomes an error for the adapter
+// instead of a truncated body.
+func writeJSON(w http.ResponseWriter, status int, v any) error {
+	b, err := json.Marshal(v)
+	if err != nil {
+		return fmt.Errorf("encode JSON: %w", err)
+	}
+	w.Header().Set("Content-Type", "application/json; charset=utf-8")
+	w.Header().Set("Cache-Control", "no-store")
+	w.WriteHeader(status)
+	_, err = w.Write(append(b, '\n'))
+	return err
+}
+
+// seeOther ends a successful POST with a 303 to url, so reloading the page
+// that follows does not submit the form again.
+func seeOther(w http.ResponseWriter, r *http.Request, url string) error {
+	http.Redirect(w, r, url, http.StatusSeeOther)
+	return nil
 }

@@ -37,6 +37,9 @@ type Route struct {
 	Name    string // short stable name for logs and tests, e.g. "home"
 	Access  Access
 	Handler handlerFunc
+	// MaxBodyBytes overrides Config.MaxBodyBytes for this route, e.g. for
+	// a CSV upload; 0 keeps the server's limit.
+	MaxBodyBytes int64
 }
 
 // routeTable is the one list of wardload's routes. To add a route, add an
@@ -65,10 +68,11 @@ func (s *Server) Routes() []Route {
 // request ID comes first so every log line has it; logging wraps the
 // recoverer so a panic is logged as a 500; security headers are set before
 // anything can write, so every response, 404s and refusals included,
-// carries them.
+// carries them. The body limit is per route (see Route.MaxBodyBytes);
+// requests that match no route never have their body read.
 func (s *Server) router(routes []Route) http.Handler {
 	r := chi.NewRouter()
-	r.Use(s.requestID, s.logRequests, s.recoverPanics, securityHeaders, s.limitBody)
+	r.Use(s.requestID, s.logRequests, s.recoverPanics, securityHeaders)
 	r.Use(s.crossOrigin)
 	// HEAD is answered by the GET route (monitoring tools and link
 	// checkers send HEAD).
@@ -81,7 +85,11 @@ func (s *Server) router(routes []Route) http.Handler {
 		return &wardload.Error{Code: eMethod, Message: "This address does not accept that kind of request."}
 	}))
 	for _, rt := range routes {
-		r.Method(rt.Method, rt.Pattern, s.guard(rt, s.handle(rt.Handler)))
+		limit := s.cfg.MaxBodyBytes
+		if rt.MaxBodyBytes > 0 {
+			limit = rt.MaxBodyBytes
+		}
+		r.Method(rt.Method, rt.Pattern, s.limitBody(limit, s.guard(rt, s.handle(rt.Handler))))
 	}
 	return r
 }
