@@ -164,12 +164,13 @@ func Project(in ProjectionInput) (*Projection, error) {
 	patients := make([]int, len(in.Tiers))
 	values := make([][]float64, len(in.Tiers))
 	boot := make([]BootstrapTier, len(in.Tiers))
-	scaled := 0
+	scaled, observations := 0, 0
 	for k, t := range in.Tiers {
 		codes[k], patients[k] = t.Code, t.Patients
 		values[k] = ShiftMinutes(t.CareMinutes, t.WindowHours, in.ShiftHours)
 		boot[k] = BootstrapTier{Values: values[k], Patients: t.Patients}
 		p.Patients += t.Patients
+		observations += len(t.CareMinutes)
 		for _, w := range t.WindowHours {
 			if w != in.ShiftHours {
 				scaled++
@@ -183,8 +184,8 @@ func Project(in ProjectionInput) (*Projection, error) {
 	}
 	if scaled > 0 {
 		p.Warnings = append(p.Warnings, fmt.Sprintf(
-			"%d observations were timed over windows other than the %g-hour shift; their minutes were scaled to the shift assuming care is spread evenly over time, which is not true where care clusters at certain hours.",
-			scaled, in.ShiftHours))
+			"%d of %d observations were timed over windows other than the %g-hour shift; their minutes were scaled to the shift assuming care is spread evenly over time, which is not true where care clusters at certain hours.",
+			scaled, observations, in.ShiftHours))
 	}
 	if p.Patients == 0 {
 		p.Warnings = append(p.Warnings, "The census has no patients: the projected care workload is zero.")
