@@ -19,6 +19,7 @@ import (
 	"github.com/jackc/pgx/v5/pgxpool"
 	"github.com/jackc/pgx/v5/stdlib"
 	"github.com/pressly/goose/v3"
+	"github.com/pressly/goose/v3/lock"
 
 	"wardload/internal/wardload"
 	"wardload/migrations"
@@ -116,7 +117,14 @@ func (s *Store) Migrate(ctx context.Context) error {
 	}
 	db := stdlib.OpenDB(*s.connCfg.Copy())
 	defer db.Close()
-	p, err := goose.NewProvider(goose.DialectPostgres, db, fsys)
+	// An advisory lock, so instances starting together migrate once; the
+	// others retry each second for up to five minutes (goose's default
+	// total, with a shorter period than its 5 s so waiters start sooner).
+	locker, err := lock.NewPostgresSessionLocker(lock.WithLockTimeout(1, 300))
+	if err != nil {
+		return fmt.Errorf("postgres: migrations: %w", err)
+	}
+	p, err := goose.NewProvider(goose.DialectPostgres, db, fsys, goose.WithSessionLocker(locker))
 	if err != nil {
 		return fmt.Errorf("postgres: migrations: %w", err)
 	}
