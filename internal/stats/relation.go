@@ -223,7 +223,11 @@ func curvature(x, y []float64, sseLine float64) string {
 	if p >= curvatureAlpha {
 		return ""
 	}
-	return fmt.Sprintf("The pattern looks curved, not straight: a curve with an x² term explains %.0f%% of what the straight line leaves unexplained (F-test p = %.2g). r and the line describe a straight-line trend only.", 100*gain/sseLine, p)
+	ps := fmt.Sprintf("p = %.2g", p)
+	if p < 0.001 {
+		ps = "p < 0.001"
+	}
+	return fmt.Sprintf("The pattern looks curved, not straight: a curve with an x² term explains %.0f%% of what the straight line leaves unexplained (F-test %s). r and the line describe a straight-line trend only.", 100*gain/sseLine, ps)
 }
 
 func distinct(x []float64) int {
