@@ -86,8 +86,10 @@ func connectError(cc *pgx.ConnConfig, err error) error {
 	if errors.As(err, &pgErr) {
 		return fmt.Errorf("postgres: cannot connect to %s: %s (SQLSTATE %s)", where, pgErr.Message, pgErr.Code)
 	}
-	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
-		return fmt.Errorf("postgres: cannot connect to %s: %w", where, ctxErr(err))
+	for _, c := range []error{context.DeadlineExceeded, context.Canceled} {
+		if errors.Is(err, c) {
+			return fmt.Errorf("postgres: cannot connect to %s: %w", where, c)
+		}
 	}
 	// A network failure: the OS reason ("connect: connection refused") is
 	// the useful part; pgconn's wrapping repeats the address.
@@ -98,13 +100,6 @@ func connectError(cc *pgx.ConnConfig, err error) error {
 	// pgx joins the errors of each attempt (TLS, then plain) with newlines.
 	msg := strings.Join(strings.Fields(strings.ReplaceAll(err.Error(), "\n", "; ")), " ")
 	return fmt.Errorf("postgres: cannot connect to %s: %s", where, msg)
-}
-
-func ctxErr(err error) error {
-	if errors.Is(err, context.Canceled) {
-		return context.Canceled
-	}
-	return context.DeadlineExceeded
 }
 
 // Migrate applies all pending embedded migrations with goose. It uses its

@@ -35,20 +35,11 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 				return rowError(i, err)
 			}
 		}
+		if err := insertObservations(ctx, tx, obs, batch, now); err != nil {
+			return err
+		}
 		var wards []int64 // in order of first appearance
 		for _, o := range obs {
-			if err := tx.QueryRow(ctx, `
-				INSERT INTO observations (ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at, batch_id)
-				VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
-				o.WardID, o.TierID, dateArg(o.Date), o.ShiftID, o.WindowHours, o.CareMinutes, o.EnteredBy, now, batch,
-			).Scan(&o.ID); err != nil {
-				return err
-			}
-			for name, v := range o.Factors {
-				if _, err := tx.Exec(ctx, `INSERT INTO observation_factors (observation_id, name, value) VALUES ($1, $2, $3)`, o.ID, name, v); err != nil {
-					return err
-				}
-			}
 			if !slices.Contains(wards, o.WardID) {
 				wards = append(wards, o.WardID)
 			}
@@ -78,6 +69,31 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 		o.EnteredAt = stamp
 	}
 	return batch, nil
+}
+
+// insertObservations stores the rows and their factors in two pipelined
+// batches rather than a round trip per row, since imports can be large.
+func insertObservations(ctx context.Context, tx pgx.Tx, obs []*wardload.Observation, batch string, now time.Time) error {
+	b := &pgx.Batch{}
+	for _, o := range obs {
+		b.Queue(`INSERT INTO observations (ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at, batch_id)
+			VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
+			o.WardID, o.TierID, dateArg(o.Date), o.ShiftID, o.WindowHours, o.CareMinutes, o.EnteredBy, now, batch,
+		).QueryRow(func(r pgx.Row) error { return r.Scan(&o.ID) })
+	}
+	if err := tx.SendBatch(ctx, b).Close(); err != nil {
+		return err
+	}
+	b = &pgx.Batch{}
+	for _, o := range obs {
+		for name, v := range o.Factors {
+			b.Queue(`INSERT INTO observation_factors (observation_id, name, value) VALUES ($1, $2, $3)`, o.ID, name, v)
+		}
+	}
+	if b.Len() == 0 {
+		return nil
+	}
+	return tx.SendBatch(ctx, b).Close()
 }
 
 func newBatchID() (string, error) {
