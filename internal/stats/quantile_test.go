@@ -132,7 +132,9 @@ func TestHFQuantileNISTHandbook(t *testing.T) {
 func TestSelectionMatchesSort(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	var inputs [][]float64
-	for _, n := range []int{1, 2, 3, 5, 24, 25, 26, 100, 1001, 5000} {
+	// From bandMinN on, orderStats samples first; 70001 and 100000 test
+	// that path, and all-equal or few-valued inputs its fallback.
+	for _, n := range []int{1, 2, 3, 5, 24, 25, 26, 100, 1001, 5000, bandMinN, 70001, 100000} {
 		rnd := make([]float64, n)
 		ties := make([]float64, n)
 		for i := range rnd {
@@ -199,3 +201,32 @@ func TestQuantilePanics(t *testing.T) {
 }
 
 func zero() float64 { return 0 }
+
+// The sampled path must really be taken on ordinary data (else the
+// benchmark would time the fallback) and must give up, not fail, when the
+// brackets hold too much (all values equal). Invented data.
+func TestOrderStatsSampledPath(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	x := make([]float64, 200_000)
+	for i := range x {
+		x[i] = rng.ExpFloat64()
+	}
+	ks := []int{49_999, 50_000, 99_999, 100_000, 149_999, 150_000}
+	vals, sc, ok := orderStatsSampled(x, ks)
+	if !ok {
+		t.Fatal("sampled path fell back on exponential data")
+	}
+	sorted := slices.Clone(x)
+	slices.Sort(sorted)
+	for i, k := range ks {
+		if vals[i] != sorted[k] {
+			t.Errorf("rank %d: %v, sorted %v", k, vals[i], sorted[k])
+		}
+	}
+	if sc.min != sorted[0] || sc.max != sorted[len(x)-1] {
+		t.Errorf("min/max %v %v", sc.min, sc.max)
+	}
+	if _, _, ok := orderStatsSampled(make([]float64, 200_000), ks); ok {
+		t.Error("all-equal input should exceed the budget and fall back")
+	}
+}
