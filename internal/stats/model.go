@@ -22,6 +22,8 @@ const (
 	MaxDraws            = 10_000_000 // simulation draws; beyond this the run takes seconds and gains nothing visible
 	MaxPatients         = 10_000     // per tier, as wardload.Census allows
 	MaxNursesInRange    = 1000       // headcounts in the shortfall table
+	MaxNurses           = 100_000    // largest headcount the shortfall table takes
+	MaxShiftMinutes     = 1e7        // largest per-patient shift minutes after scaling; keeps every sum finite
 	LowObservations     = 30         // fewer observations in a used tier gives a low-confidence warning
 	minTierObservations = 2          // a used tier needs a sample SD
 )
@@ -171,6 +173,9 @@ func (in *ProjectionInput) validate() error {
 	if in.NursesFrom < 0 || in.NursesTo < 0 || in.NursesTo < in.NursesFrom {
 		return bad("nurses_to", "The nurse range must be whole numbers from at least 0, with the end not before the start.")
 	}
+	if in.NursesTo > MaxNurses {
+		return bad("nurses_to", "The nurse range may go up to %d.", MaxNurses)
+	}
 	if in.NursesTo-in.NursesFrom >= MaxNursesInRange {
 		return bad("nurses_to", "The nurse range may hold at most %d headcounts.", MaxNursesInRange)
 	}
@@ -193,8 +198,12 @@ func (in *ProjectionInput) validate() error {
 			if math.IsNaN(c) || math.IsInf(c, 0) || c < 0 {
 				return bad("care_minutes", "Tier %s: care minutes must be numbers of at least 0.", t.Code)
 			}
-			if w := t.WindowHours[i]; math.IsNaN(w) || !(w > 0 && w <= 24) {
+			w := t.WindowHours[i]
+			if math.IsNaN(w) || !(w > 0 && w <= 24) {
 				return bad("window_hours", "Tier %s: observation windows must be more than 0 and at most 24 hours.", t.Code)
+			}
+			if !(c/w*in.ShiftHours <= MaxShiftMinutes) {
+				return bad("care_minutes", "Tier %s: an observation of %g minutes in %g hours scales to more than %g minutes per shift; check the minutes and the window.", t.Code, c, w, MaxShiftMinutes)
 			}
 		}
 		if t.Patients > 0 && len(t.CareMinutes) == 0 {

@@ -3,6 +3,7 @@ package stats
 import (
 	"fmt"
 	"math"
+	"sort"
 	"strings"
 )
 
@@ -250,26 +251,43 @@ func Project(in ProjectionInput) (*Projection, error) {
 			from = min(from, *n.Floor)
 		}
 		to = n.Recommended + 3
+		from = max(from, to-MaxNursesInRange+1)
 	}
-	p.Shortfall = make([]Shortfall, 0, to-from+1)
+	capacities := make([]float64, 0, to-from+1)
 	for nurses := from; nurses <= to; nurses++ {
-		capacity := float64(nurses) * perNurse
-		above := 0
-		for _, v := range totals {
-			if v > capacity {
-				above++
-			}
-		}
-		ps := float64(above) / float64(len(totals))
-		p.Shortfall = append(p.Shortfall, Shortfall{
-			Nurses:               nurses,
+		capacities = append(capacities, float64(nurses)*perNurse)
+	}
+	above := countAbove(totals, capacities)
+	p.Shortfall = make([]Shortfall, len(capacities))
+	for i, capacity := range capacities {
+		ps := float64(above[i]) / float64(len(totals))
+		p.Shortfall[i] = Shortfall{
+			Nurses:               from + i,
 			CapacityMinutes:      capacity,
 			Probability:          normalExceed(capacity, mu, sd),
 			SimulatedProbability: ps,
 			SimulatedSE:          math.Sqrt(ps * (1 - ps) / float64(len(totals))),
-		})
+		}
 	}
 	return p, nil
+}
+
+// countAbove returns, for each of the ascending thresholds, how many
+// values exceed it, in one pass over values with a binary search each
+// (O(N log R) rather than O(N·R) for R thresholds).
+func countAbove(values, thresholds []float64) []int {
+	// hist[i] counts values above exactly the first i thresholds.
+	hist := make([]int, len(thresholds)+1)
+	for _, v := range values {
+		hist[sort.SearchFloat64s(thresholds, v)]++
+	}
+	above := make([]int, len(thresholds))
+	run := 0
+	for i := len(thresholds) - 1; i >= 0; i-- {
+		run += hist[i+1]
+		above[i] = run
+	}
+	return above
 }
 
 // normalExceed returns P(T > x) for T ~ Normal(mu, sd²); a zero sd is a

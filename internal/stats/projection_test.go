@@ -316,3 +316,28 @@ func TestProjectionJSON(t *testing.T) {
 		t.Errorf("tier c sd = %v, want null", tiers[2])
 	}
 }
+
+func TestCountAbove(t *testing.T) {
+	values := []float64{1, 2, 2, 3, 5, 8}
+	thresholds := []float64{0, 2, 4, 8, 9}
+	// above 0: all 6; above 2: 3, 5, 8; above 4: 5, 8; above 8: none (strict).
+	want := []int{6, 3, 2, 0, 0}
+	if got := countAbove(values, thresholds); !slices.Equal(got, want) {
+		t.Errorf("countAbove = %v, want %v", got, want)
+	}
+}
+
+// Input that would overflow (a tiny window) or a huge range is refused,
+// not turned into Inf or a panic.
+func TestProjectExtremeInput(t *testing.T) {
+	in := handInput()
+	in.Tiers[0].WindowHours = []float64{1e-300, 8, 8}
+	if _, err := Project(in); wardload.ErrorField(err) != "care_minutes" {
+		t.Errorf("tiny window: %v, want EINVALID care_minutes", err)
+	}
+	in = handInput()
+	in.NursesFrom, in.NursesTo = MaxNurses, MaxNurses+1
+	if _, err := Project(in); wardload.ErrorField(err) != "nurses_to" {
+		t.Errorf("huge range: %v, want EINVALID nurses_to", err)
+	}
+}
