@@ -25,7 +25,7 @@ const bootstrapChunk = 4096
 const streamKey = 0x9e3779b97f4a7c15
 
 // BootstrapTotals simulates draws totals of shift care minutes with a
-// two-level (parametric-free) bootstrap. For each draw and each tier k with
+// two-level nonparametric bootstrap. For each draw and each tier k with
 // m_k values and n_k patients:
 //
 //	r_1..r_m  ~ iid Uniform{values of tier k}      (resample the observations)
@@ -34,29 +34,38 @@ const streamKey = 0x9e3779b97f4a7c15
 //
 // The first level carries the uncertainty of the tier's mean and shape
 // (the m_k observations are one sample of many possible), the second the
-// patient-to-patient variation; their variances add up to the two terms of
-// the analytic model in Project. Drawing p_i from the resample is the same
-// as drawing an index j uniformly in [0, m) and taking r_j, so r_j is made
-// only when first referenced in a draw (a per-tier cache with generation
-// stamps). A draw therefore costs about 2·Σn_k bounded integers instead of
-// Σ(m_k + n_k), with the same distribution as materialising every r_j.
+// patient-to-patient variation. With σ̂² = s²(m−1)/m the plug-in variance,
+// a tier's bootstrap total has mean n·ȳ and variance
+//
+//	n·σ̂²·(1 − 1/m) + n²·σ̂²/m
+//
+// the counterpart of the analytic model's two terms (slightly smaller for
+// small m, as plug-in variances are).
+//
+// Drawing p_i from the resample is the same as drawing an index j
+// uniformly in [0, m) and taking r_j, so r_j is made only when first
+// referenced in a draw (a per-tier cache with generation stamps). A draw
+// therefore costs one 64-bit random output per patient (its low half picks
+// j, its high half r_j when needed) instead of Σ(m_k + n_k) bounded
+// integers, with the same distribution as materialising every r_j.
 //
 // Randomness: draws are split into fixed chunks of 4096; chunk c uses
-// math/rand/v2's PCG-DXSM generator (copied below as pcg) seeded with (seed, splitmix64(c ⊕ 2⁶⁴/φ)), and bounded
-// integers use Lemire's multiply-shift method with rejection on 32-bit
-// halves of each 64-bit output. Totals are plain sums in a fixed order (no
-// multiply-add that a compiler could fuse), so the same seed gives the same
-// totals bit for bit on every platform and for any GOMAXPROCS; chunks run on
-// up to min(GOMAXPROCS, 4) goroutines.
+// math/rand/v2's PCG-DXSM generator (copied below as pcg) seeded with
+// (seed, splitmix64(c ⊕ 0x9e3779b97f4a7c15)), and bounded integers use
+// Lemire's multiply-shift method with rejection. Totals are plain sums in
+// a fixed order (no multiply-add that a compiler could fuse), so the same
+// seed gives the same totals bit for bit on every platform and for any
+// GOMAXPROCS; chunks run on up to min(GOMAXPROCS, 4) goroutines.
 //
 // It panics if draws < 1, a tier has Patients < 0, or a tier with patients
 // has no values (callers validate user input first; see Project).
 //
 // References: Efron, B. & Tibshirani, R. J. (1993). An Introduction to the
-// Bootstrap, ch. 6 (resampling); Davison, A. C. & Hinkley, D. V. (1997).
-// Bootstrap Methods and their Application, §3.8 (hierarchical data: resample
-// at both levels); Lemire, D. (2019). Fast random integer generation in an
-// interval. ACM TOMACS 29(1); O'Neill, M. E. (2014). PCG, HMC-CS-2014-0905.
+// Bootstrap, ch. 6; Davison, A. C. & Hinkley, D. V. (1997). Bootstrap
+// Methods and their Application, section on hierarchical data (resample
+// at both levels; section number from memory, §3.8); Lemire, D. (2019).
+// Fast random integer generation in an interval. ACM TOMACS 29(1);
+// O'Neill, M. E. (2014). PCG, HMC-CS-2014-0905.
 func BootstrapTotals(tiers []BootstrapTier, draws int, seed uint64) []float64 {
 	if draws < 1 {
 		panic("stats: BootstrapTotals needs draws ≥ 1")
