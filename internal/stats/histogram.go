@@ -2,6 +2,10 @@ package stats
 
 import "math"
 
+// MaxBins caps the bin count: a heavy tail can make Freedman–Diaconis ask
+// for millions of bins, which no display can use.
+const MaxBins = 10_000
+
 // Bin rules.
 const (
 	BinsFreedmanDiaconis = "freedman-diaconis"
@@ -25,7 +29,8 @@ type Binning struct {
 //
 // Freedman–Diaconis is used when IQR > 0; Sturges when IQR is 0 (the rule
 // would give zero-width bins). When max = min there is one bin of width 0.
-// Bins is at least 1. It panics if n < 1, iqr < 0 or max < min.
+// Bins is at least 1 and at most MaxBins (the width then grows to span the
+// range in MaxBins bins). It panics if n < 1, iqr < 0 or max < min.
 //
 // References: Freedman, D. & Diaconis, P. (1981) "On the histogram as a
 // density estimator: L2 theory", Z. Wahrscheinlichkeitstheorie 57, 453–476;
@@ -40,7 +45,11 @@ func BinsFor(n int, iqr, min, max float64) Binning {
 	}
 	if iqr > 0 {
 		w := 2 * iqr * math.Pow(float64(n), -1.0/3)
-		return Binning{Rule: BinsFreedmanDiaconis, Bins: int(math.Max(1, math.Ceil(span/w))), Width: w, Start: min}
+		k := math.Max(1, math.Ceil(span/w))
+		if k > MaxBins {
+			return Binning{Rule: BinsFreedmanDiaconis, Bins: MaxBins, Width: span / MaxBins, Start: min}
+		}
+		return Binning{Rule: BinsFreedmanDiaconis, Bins: int(k), Width: w, Start: min}
 	}
 	k := int(math.Ceil(math.Log2(float64(n)) + 1))
 	return Binning{Rule: BinsSturges, Bins: k, Width: span / float64(k), Start: min}

@@ -18,6 +18,7 @@ func TestBinsFor(t *testing.T) {
 		{"FD rounds up", 8, 2, 0, 10.5, Binning{BinsFreedmanDiaconis, 6, 2, 0}},
 		{"Sturges when IQR is 0", 16, 0, 1, 11, Binning{BinsSturges, 5, 2, 1}},
 		{"constant", 3, 0, 4, 4, Binning{BinsSturges, 1, 0, 4}},
+		{"capped", 8, 1e-9, 0, 1e12, Binning{BinsFreedmanDiaconis, MaxBins, 1e12 / MaxBins, 0}},
 	} {
 		got := BinsFor(tc.n, tc.iqr, tc.min, tc.max)
 		if got.Rule != tc.want.Rule || got.Bins != tc.want.Bins || math.Abs(got.Width-tc.want.Width) > 1e-12 || got.Start != tc.want.Start {

@@ -357,16 +357,18 @@ func orderStatsSampled(x []float64, ks []int) ([]float64, scan, bool) {
 		return nil, scan{}, false
 	}
 	// Unused brackets sit at +Inf so that no finite value reaches them.
-	var lo, hi [3]float64
+	var lo [3]float64
+	top := [4]float64{math.Inf(-1), math.Inf(1), math.Inf(1), math.Inf(1)}
 	for i := range lo {
-		lo[i], hi[i] = math.Inf(1), math.Inf(1)
+		lo[i] = math.Inf(1)
 		if i < len(bands) {
-			lo[i], hi[i] = bands[i].lo, bands[i].hi
+			lo[i], top[i+1] = bands[i].lo, bands[i].hi
 			bands[i].keep = make([]float64, 0, n/size*(2*spread+1)*5/4+64)
 		}
 	}
-	budget := n / 4 // values kept before giving up for the plain path
-	var regions [7]int
+	lo0, lo1, lo2 := lo[0], lo[1], lo[2]
+	budget := n / 4       // values kept before giving up for the plain path
+	var at0, at1, at2 int // values ≥ each bracket's lower end
 	sc := scan{min: x[0], max: x[0]}
 	for _, v := range x {
 		if v-v != 0 {
@@ -375,23 +377,27 @@ func orderStatsSampled(x []float64, ks []int) ([]float64, scan, bool) {
 		sc.sum += v
 		sc.min = min(sc.min, v)
 		sc.max = max(sc.max, v)
-		// Region 2b+1 is inside bracket b; even regions lie between.
-		// Counting instead of branching keeps the CPU from mispredicting
-		// on every value.
-		r := b2i(v >= lo[0]) + b2i(v > hi[0]) + b2i(v >= lo[1]) + b2i(v > hi[1]) + b2i(v >= lo[2]) + b2i(v > hi[2])
-		regions[r]++
-		if r&1 == 1 {
-			b := &bands[r>>1]
+		// Comparisons turned into counts rather than branches keep the
+		// CPU from mispredicting on every value; only the rare "inside a
+		// bracket" case branches. k brackets start at or below v, so v
+		// is inside bracket k−1 when it is also ≤ that bracket's top.
+		a0, a1, a2 := b2i(v >= lo0), b2i(v >= lo1), b2i(v >= lo2)
+		at0 += a0
+		at1 += a1
+		at2 += a2
+		k := a0 + a1 + a2
+		if v <= top[k] {
+			b := &bands[k-1]
 			b.keep = append(b.keep, v)
 			if budget--; budget < 0 {
 				return nil, scan{}, false
 			}
 		}
 	}
+	atLeast := [3]int{at0, at1, at2}
 	vals := make([]float64, 0, len(ks))
-	below := 0
 	for i := range bands {
-		below += regions[2*i]
+		below := n - atLeast[i] // values under bracket i
 		b := &bands[i]
 		if b.ks[0] < below || b.ks[len(b.ks)-1] >= below+len(b.keep) {
 			return nil, scan{}, false
@@ -400,7 +406,6 @@ func orderStatsSampled(x []float64, ks []int) ([]float64, scan, bool) {
 		for _, k := range b.ks {
 			vals = append(vals, b.keep[k-below])
 		}
-		below += len(b.keep)
 	}
 	return vals, sc, true
 }

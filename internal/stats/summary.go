@@ -162,8 +162,10 @@ type Summary struct {
 //
 // For n = 1 every quartile, the mean and the fences equal the value, there
 // are no outliers and SD and SE are undefined. An empty x or an unknown
-// convention is EINVALID. x is not modified; Summarize makes one copy of
-// it. It panics if x contains NaN or ±Inf.
+// convention is EINVALID. x is not modified and never held twice: the
+// quartiles come from orderStats (sampled selection, O(n)); mean, SD and
+// the fence test take one more pass, and listing the outliers a third
+// only when there are any. It panics if x contains NaN or ±Inf.
 func Summarize(x []float64, convention string) (*Summary, error) {
 	if !wardload.ValidQuartiles(convention) {
 		return nil, errConvention(convention)
