@@ -50,7 +50,6 @@ func Read(r io.Reader) (*Table, error) {
 		br.Discard(3)
 	}
 	cr := csv.NewReader(br)
-	cr.ReuseRecord = false
 	header, err := cr.Read()
 	if err == io.EOF {
 		return nil, wardload.Errorf(wardload.EINVALID, "The file is empty: it needs a header row and at least one data row.")
