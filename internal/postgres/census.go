@@ -15,64 +15,72 @@ func (s *Store) CreateCensus(ctx context.Context, c *wardload.Census) error {
 		return err
 	}
 	var out wardload.Census
-	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
-		// Locking the ward row serialises census entries of one ward, so two
-		// charge nurses saving at once get revisions n and n+1 rather than a
-		// unique violation. NO KEY UPDATE still lets other rows refer to it.
-		var one int
-		err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR NO KEY UPDATE`, c.WardID).Scan(&one)
-		if err == pgx.ErrNoRows {
-			return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
-		} else if err != nil {
-			return err
-		}
-		shifts, err := idSet(ctx, tx, `SELECT id FROM shift_patterns WHERE ward_id = $1`, c.WardID)
-		if err != nil {
-			return err
-		}
-		if !shifts[c.ShiftID] {
-			return wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found on this ward.")
-		}
-		tiers, err := findTiers(ctx, tx, c.WardID)
-		if err != nil {
-			return err
-		}
-		given := map[int64]int{}
-		for _, tc := range c.Counts {
-			given[tc.TierID] = tc.Patients
-		}
-		counts := make([]wardload.TierCount, 0, len(tiers))
-		for _, t := range tiers {
-			n, ok := given[t.ID]
-			if ok {
-				delete(given, t.ID)
-			}
-			counts = append(counts, wardload.TierCount{TierID: t.ID, Patients: n})
-		}
-		if len(given) > 0 {
-			return wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "A counted tier is not a tier of this ward.")
-		}
-		out = wardload.Census{WardID: c.WardID, Date: c.Date, ShiftID: c.ShiftID, Counts: counts, EnteredBy: c.EnteredBy, EnteredAt: now}
-		if err := tx.QueryRow(ctx, `
-			INSERT INTO census (ward_id, date, shift_id, revision, entered_by, entered_at)
-			VALUES ($1, $2, $3, (SELECT coalesce(max(revision), 0) + 1 FROM census WHERE ward_id = $1 AND date = $2 AND shift_id = $3), $4, $5)
-			RETURNING id, revision`,
-			c.WardID, dateArg(c.Date), c.ShiftID, c.EnteredBy, now).Scan(&out.ID, &out.Revision); err != nil {
-			return err
-		}
-		for _, tc := range counts {
-			if _, err := tx.Exec(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES ($1, $2, $3)`,
-				out.ID, tc.TierID, tc.Patients); err != nil {
-				return err
-			}
-		}
-		return audit(ctx, tx, now, "census.create", "census", out.ID, out.WardID, nil, &out)
+	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) (err error) {
+		out, err = createCensus(ctx, tx, now, c)
+		return err
 	})
 	if err != nil {
 		return err
 	}
 	*c = out
 	return nil
+}
+
+// createCensus is CreateCensus inside tx, shared with
+// CreateCensusProjection. It returns the stored entry and leaves c as it is.
+func createCensus(ctx context.Context, tx pgx.Tx, now time.Time, c *wardload.Census) (wardload.Census, error) {
+	var out wardload.Census
+	// Locking the ward row serialises census entries of one ward, so two
+	// charge nurses saving at once get revisions n and n+1 rather than a
+	// unique violation. NO KEY UPDATE still lets other rows refer to it.
+	var one int
+	err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR NO KEY UPDATE`, c.WardID).Scan(&one)
+	if err == pgx.ErrNoRows {
+		return out, wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
+	} else if err != nil {
+		return out, err
+	}
+	shifts, err := idSet(ctx, tx, `SELECT id FROM shift_patterns WHERE ward_id = $1`, c.WardID)
+	if err != nil {
+		return out, err
+	}
+	if !shifts[c.ShiftID] {
+		return out, wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found on this ward.")
+	}
+	tiers, err := findTiers(ctx, tx, c.WardID)
+	if err != nil {
+		return out, err
+	}
+	given := map[int64]int{}
+	for _, tc := range c.Counts {
+		given[tc.TierID] = tc.Patients
+	}
+	counts := make([]wardload.TierCount, 0, len(tiers))
+	for _, t := range tiers {
+		n, ok := given[t.ID]
+		if ok {
+			delete(given, t.ID)
+		}
+		counts = append(counts, wardload.TierCount{TierID: t.ID, Patients: n})
+	}
+	if len(given) > 0 {
+		return out, wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "A counted tier is not a tier of this ward.")
+	}
+	out = wardload.Census{WardID: c.WardID, Date: c.Date, ShiftID: c.ShiftID, Counts: counts, EnteredBy: c.EnteredBy, EnteredAt: now}
+	if err := tx.QueryRow(ctx, `
+		INSERT INTO census (ward_id, date, shift_id, revision, entered_by, entered_at)
+		VALUES ($1, $2, $3, (SELECT coalesce(max(revision), 0) + 1 FROM census WHERE ward_id = $1 AND date = $2 AND shift_id = $3), $4, $5)
+		RETURNING id, revision`,
+		c.WardID, dateArg(c.Date), c.ShiftID, c.EnteredBy, now).Scan(&out.ID, &out.Revision); err != nil {
+		return out, err
+	}
+	for _, tc := range counts {
+		if _, err := tx.Exec(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES ($1, $2, $3)`,
+			out.ID, tc.TierID, tc.Patients); err != nil {
+			return out, err
+		}
+	}
+	return out, audit(ctx, tx, now, "census.create", "census", out.ID, out.WardID, nil, &out)
 }
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.

@@ -12,55 +12,58 @@ func (s *Store) CreateCensus(ctx context.Context, c *wardload.Census) error {
 	if err := c.Validate(); err != nil {
 		return err
 	}
-	return s.write(ctx, func(tx *Tx) error {
-		if err := wardExists(ctx, tx, c.WardID); err != nil {
-			return err
-		}
-		if ok, err := shiftOfWard(ctx, tx, c.WardID, c.ShiftID); err != nil {
+	return s.write(ctx, func(tx *Tx) error { return createCensus(ctx, tx, c) })
+}
+
+// createCensus is CreateCensus inside tx, shared with CreateCensusProjection.
+func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
+	if err := wardExists(ctx, tx, c.WardID); err != nil {
+		return err
+	}
+	if ok, err := shiftOfWard(ctx, tx, c.WardID, c.ShiftID); err != nil {
+		return err
+	} else if !ok {
+		return wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found for this ward.")
+	}
+	given := map[int64]int{}
+	for _, tc := range c.Counts {
+		if ok, err := tierOfWard(ctx, tx, c.WardID, tc.TierID); err != nil {
 			return err
 		} else if !ok {
-			return wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found for this ward.")
+			return wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "Tier not found for this ward.")
 		}
-		given := map[int64]int{}
-		for _, tc := range c.Counts {
-			if ok, err := tierOfWard(ctx, tx, c.WardID, tc.TierID); err != nil {
-				return err
-			} else if !ok {
-				return wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "Tier not found for this ward.")
-			}
-			given[tc.TierID] = tc.Patients
-		}
-		var rev int
-		if err := tx.QueryRowContext(ctx, `SELECT COALESCE(MAX(revision), 0) + 1 FROM census WHERE ward_id = ? AND date = ? AND shift_id = ?`,
-			c.WardID, c.Date.String(), c.ShiftID).Scan(&rev); err != nil {
+		given[tc.TierID] = tc.Patients
+	}
+	var rev int
+	if err := tx.QueryRowContext(ctx, `SELECT COALESCE(MAX(revision), 0) + 1 FROM census WHERE ward_id = ? AND date = ? AND shift_id = ?`,
+		c.WardID, c.Date.String(), c.ShiftID).Scan(&rev); err != nil {
+		return err
+	}
+	res, err := tx.ExecContext(ctx, `INSERT INTO census (ward_id, date, shift_id, revision, entered_by, entered_at) VALUES (?, ?, ?, ?, ?, ?)`,
+		c.WardID, c.Date.String(), c.ShiftID, rev, c.EnteredBy, formatTime(tx.now))
+	if err != nil {
+		return err
+	}
+	id, err := res.LastInsertId()
+	if err != nil {
+		return err
+	}
+	// Every tier of the ward gets a row: a tier left out was counted as empty.
+	tiers, err := wardTierIDs(ctx, tx, c.WardID)
+	if err != nil {
+		return err
+	}
+	for _, tid := range tiers {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES (?, ?, ?)`, id, tid, given[tid]); err != nil {
 			return err
 		}
-		res, err := tx.ExecContext(ctx, `INSERT INTO census (ward_id, date, shift_id, revision, entered_by, entered_at) VALUES (?, ?, ?, ?, ?, ?)`,
-			c.WardID, c.Date.String(), c.ShiftID, rev, c.EnteredBy, formatTime(tx.now))
-		if err != nil {
-			return err
-		}
-		id, err := res.LastInsertId()
-		if err != nil {
-			return err
-		}
-		// Every tier of the ward gets a row: a tier left out was counted as empty.
-		tiers, err := wardTierIDs(ctx, tx, c.WardID)
-		if err != nil {
-			return err
-		}
-		for _, tid := range tiers {
-			if _, err := tx.ExecContext(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES (?, ?, ?)`, id, tid, given[tid]); err != nil {
-				return err
-			}
-		}
-		stored, err := findOneCensus(ctx, tx, id)
-		if err != nil {
-			return err
-		}
-		c.ID, c.Revision, c.EnteredAt = id, rev, tx.now
-		return tx.audit("census.create", "census", id, c.WardID, nil, stored)
-	})
+	}
+	stored, err := findOneCensus(ctx, tx, id)
+	if err != nil {
+		return err
+	}
+	c.ID, c.Revision, c.EnteredAt = id, rev, tx.now
+	return tx.audit("census.create", "census", id, c.WardID, nil, stored)
 }
 
 func wardTierIDs(ctx context.Context, q querier, wardID int64) ([]int64, error) {

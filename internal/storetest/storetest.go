@@ -23,6 +23,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		shiftCases(),
 		observationCases(),
 		censusCases(),
+		projectionCases(),
 		settingsCases(),
 		userCases(),
 		tokenCases(),

@@ -17,6 +17,7 @@ type Store interface {
 	ShiftService
 	ObservationService
 	CensusService
+	ProjectionService
 	SettingsService
 	UserService
 	TokenService
