@@ -175,7 +175,10 @@ func projectionCases() []testCase {
 				{"no input", func(c *wardload.Census, p *wardload.Projection) { p.Input = "" }, wardload.EINVALID, "projection"},
 				{"no window", func(c *wardload.Census, p *wardload.Projection) { p.End = p.Start }, wardload.EINVALID, "shift"},
 				{"bad cover", func(c *wardload.Census, p *wardload.Projection) { p.CoverLevel = 1 }, wardload.EINVALID, "cover_level"},
-				{"negative count", func(c *wardload.Census, p *wardload.Projection) { c.Counts[0].Patients = -1; p.TotalPatients = c.Total() }, wardload.EINVALID, "patients"},
+				{"negative count", func(c *wardload.Census, p *wardload.Projection) {
+					c.Counts[0].Patients = -1
+					p.TotalPatients = c.Total()
+				}, wardload.EINVALID, "patients"},
 				{"unknown ward", func(c *wardload.Census, p *wardload.Projection) { c.WardID, p.WardID = 9999, 9999 }, wardload.ENOTFOUND, "ward"},
 				{"shift of other ward", func(c *wardload.Census, p *wardload.Projection) { c.ShiftID, p.ShiftID = other.day.ID, other.day.ID }, wardload.ENOTFOUND, "shift"},
 				{"tier of other ward", func(c *wardload.Census, p *wardload.Projection) { c.Counts[1].TierID = other.tiers[1].ID }, wardload.ENOTFOUND, "tier"},
