@@ -232,3 +232,26 @@ func TestParseCensus(t *testing.T) {
 		}
 	}
 }
+
+// FuzzParseCensus: parseCensus never panics, and whatever it accepts is a
+// count from 0 to stats.MaxPatients for a known tier.
+func FuzzParseCensus(f *testing.F) {
+	for _, s := range []string{"t1=4,t2=10", "t1=-1", "t1=4,t1=4", " t2 = 3 ", "x=1", "t1=1e3", "=", ",,"} {
+		f.Add(s)
+	}
+	known := []string{"t1", "t2"}
+	f.Fuzz(func(t *testing.T, s string) {
+		counts, err := parseCensus(s, known)
+		if err != nil {
+			if wardload.ErrorCode(err) != wardload.EINVALID || wardload.ErrorField(err) != "census" {
+				t.Fatalf("parseCensus(%q) error %v is not EINVALID census", s, err)
+			}
+			return
+		}
+		for k, n := range counts {
+			if (k != "t1" && k != "t2") || n < 0 || n > stats.MaxPatients {
+				t.Fatalf("parseCensus(%q) accepted %s=%d", s, k, n)
+			}
+		}
+	})
+}

@@ -224,7 +224,7 @@ func summariseTotals(totals []float64, seed uint64, cover float64) Simulation {
 //
 //	h = (n−1)·p,  j = ⌊h⌋,  g = h − j,  Q(p) = x₍ⱼ₎ + g·(x₍ⱼ₊₁₎ − x₍ⱼ₎)
 func type7Pos(n int, p float64) (j int, g float64) {
-	h := float64(n-1) * p
+	h := float64(float64(n-1) * p) // rounded before the subtraction below: no fused multiply-add
 	j = int(h)
 	return j, h - float64(j)
 }
@@ -247,8 +247,9 @@ func type7Selected(x []float64, p float64) float64 {
 func seRanks(n int, p float64) (lo, hi int, ok bool) {
 	fn := float64(n)
 	half := math.Sqrt(fn * p * (1 - p))
-	lo = int(math.Floor(fn*p - half))
-	hi = int(math.Ceil(fn*p + half))
+	np := float64(fn * p)
+	lo = int(math.Floor(np - half))
+	hi = int(math.Ceil(np + half))
 	if lo < 1 || hi > n {
 		return 0, 0, false
 	}

@@ -189,3 +189,40 @@ func TestSummariseTotalsSelectionMatchesSort(t *testing.T) {
 		}
 	}
 }
+
+// The lazy resample must give exactly the two-level distribution. For one
+// tier with values 0, 1, 5 (m = 3) and n = 2 patients, enumerate all 27
+// resamples r and all 9 index pairs (j1, j2): P(total) is exact. 300,000
+// draws: each frequency must lie within 5 binomial SE of its probability.
+func TestBootstrapExactDistribution(t *testing.T) {
+	values := []float64{0, 1, 5}
+	exact := map[float64]float64{}
+	for r0 := range 3 {
+		for r1 := range 3 {
+			for r2 := range 3 {
+				r := []float64{values[r0], values[r1], values[r2]}
+				for j1 := range 3 {
+					for j2 := range 3 {
+						exact[r[j1]+r[j2]] += 1.0 / (27 * 9)
+					}
+				}
+			}
+		}
+	}
+	const draws = 300_000
+	got := map[float64]float64{}
+	for _, v := range BootstrapTotals([]BootstrapTier{{Values: values, Patients: 2}}, draws, 11) {
+		got[v] += 1.0 / draws
+	}
+	for total, p := range exact {
+		se := math.Sqrt(p * (1 - p) / draws)
+		if math.Abs(got[total]-p) > 5*se {
+			t.Errorf("P(total = %v): simulated %.5f, exact %.5f (SE %.5f)", total, got[total], p, se)
+		}
+	}
+	for total := range got {
+		if _, ok := exact[total]; !ok {
+			t.Errorf("impossible total %v simulated", total)
+		}
+	}
+}

@@ -34,34 +34,35 @@ const (
 // ShiftMinutes). Observations must already be filtered (exclusions,
 // lookback) by the caller.
 type TierSample struct {
-	Code        string    // tier code, unique within the input
-	Patients    int       // census, ≥ 0; a tier with 0 patients needs no observations
-	CareMinutes []float64 // direct care minutes per observation, ≥ 0
-	WindowHours []float64 // window of each observation, in (0, 24]; same length as CareMinutes
+	Code        string    `json:"code"`         // tier code, unique within the input
+	Patients    int       `json:"patients"`     // census, ≥ 0; a tier with 0 patients needs no observations
+	CareMinutes []float64 `json:"care_minutes"` // direct care minutes per observation, ≥ 0
+	WindowHours []float64 `json:"window_hours"` // window of each observation, in (0, 24]; same length as CareMinutes
 }
 
 // FloorSpec is the configured minimum nurse-to-patient ratio for the shift
 // (see wardload.RatioFloor). TierPatientsPerNurse gives tiers their own
 // ratio; patients of tiers without one are pooled under PatientsPerNurse.
 type FloorSpec struct {
-	PatientsPerNurse     float64            // ward-wide ratio; 0: none
-	TierPatientsPerNurse map[string]float64 // per-tier ratios by tier code; may be nil
-	ChargeNurseCounts    bool               // false: one nurse in charge is added on top
+	PatientsPerNurse     float64            `json:"patients_per_nurse"`      // ward-wide ratio; 0: none
+	TierPatientsPerNurse map[string]float64 `json:"tier_patients_per_nurse"` // per-tier ratios by tier code; may be nil
+	ChargeNurseCounts    bool               `json:"charge_nurse_counts"`     // false: one nurse in charge is added on top
 }
 
 // ProjectionInput is everything Project needs. The zero value of the
-// optional fields means "default" as documented on each field.
+// optional fields means "default" as documented on each field. Its JSON
+// form is what a stored projection keeps to be re-run later.
 type ProjectionInput struct {
-	Tiers              []TierSample
-	ShiftHours         float64   // length of the projected shift, in (0, 24]
-	DirectCareFraction float64   // share of a nurse's shift available for direct care, in (0, 1]
-	Levels             []float64 // two-sided band levels, each in (0, 1); nil: none
-	Cover              float64   // one-sided cover probability q, in (0, 1)
-	Draws              int       // bootstrap draws, 1..MaxDraws
-	Seed               uint64    // seed of the bootstrap; same seed, same result
-	NursesFrom         int       // shortfall table range; both 0: a range around the need and the floor
-	NursesTo           int
-	Floor              *FloorSpec // nil: no ratio floor configured
+	Tiers              []TierSample `json:"tiers"`
+	ShiftHours         float64      `json:"shift_hours"`          // length of the projected shift, in (0, 24]
+	DirectCareFraction float64      `json:"direct_care_fraction"` // share of a nurse's shift available for direct care, in (0, 1]
+	Levels             []float64    `json:"levels"`               // two-sided band levels, each in (0, 1); nil: none
+	Cover              float64      `json:"cover"`                // one-sided cover probability q, in (0, 1)
+	Draws              int          `json:"draws"`                // bootstrap draws, 1..MaxDraws
+	Seed               uint64       `json:"seed"`                 // seed of the bootstrap; same seed, same result
+	NursesFrom         int          `json:"nurses_from"`          // shortfall table range; both 0: a range around the need and the floor
+	NursesTo           int          `json:"nurses_to"`
+	Floor              *FloorSpec   `json:"floor"` // nil: no ratio floor configured
 }
 
 // ShiftMinutes converts care minutes observed over a window to minutes per
@@ -134,10 +135,13 @@ func WorkloadMoments(codes []string, patients []int, values [][]float64) (mu, va
 		}
 		if n > 0 {
 			fn, fm := float64(n), float64(m)
-			mean, s2 := t.MeanMinutes.Value, t.SDMinutes.Value*t.SDMinutes.Value
-			t.ExpectedMinutes = fn * mean
-			t.VariancePatient = fn * s2
-			t.VarianceEstimate = fn * fn * s2 / fm
+			// float64(…) around products that feed a sum keeps any
+			// platform from fusing them into a multiply-add, so stored
+			// results reproduce bit for bit (Go spec, "Arithmetic operators").
+			mean, s2 := t.MeanMinutes.Value, float64(t.SDMinutes.Value*t.SDMinutes.Value)
+			t.ExpectedMinutes = float64(fn * mean)
+			t.VariancePatient = float64(fn * s2)
+			t.VarianceEstimate = float64(fn * fn * s2 / fm)
 		}
 		mu += t.ExpectedMinutes
 		varPatient += t.VariancePatient

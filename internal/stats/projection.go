@@ -26,7 +26,7 @@ const ceilTolerance = 1e-9
 //
 //	ceil(x − 1e-9·max(1, |x|))
 func ceilNurses(x float64) int {
-	return int(math.Ceil(x - ceilTolerance*math.Max(1, math.Abs(x))))
+	return int(math.Ceil(x - float64(ceilTolerance*math.Max(1, math.Abs(x)))))
 }
 
 // Band is a central normal band of the shift's total care minutes.
@@ -199,13 +199,14 @@ func Project(in ProjectionInput) (*Projection, error) {
 	p.Bands = make([]Band, len(in.Levels))
 	for i, l := range in.Levels {
 		z := TwoSidedZ(l)
-		p.Bands[i] = Band{Level: l, Low: mu - z*sd, High: mu + z*sd}
+		half := float64(z * sd) // no fused multiply-add: see WorkloadMoments
+		p.Bands[i] = Band{Level: l, Low: mu - half, High: mu + half}
 		if p.Bands[i].Low < 0 {
 			p.Warnings = append(p.Warnings, fmt.Sprintf(
 				"The %g%% normal band reaches below zero minutes: the normal approximation is poor here; rely on the simulated figures.", 100*l))
 		}
 	}
-	p.CoverMinutes = mu + NormalQuantile(in.Cover)*sd
+	p.CoverMinutes = mu + float64(NormalQuantile(in.Cover)*sd)
 
 	// Simulation.
 	totals := BootstrapTotals(boot, in.Draws, in.Seed)

@@ -341,3 +341,30 @@ func TestProjectExtremeInput(t *testing.T) {
 		t.Errorf("huge range: %v, want EINVALID nurses_to", err)
 	}
 }
+
+// A stored input, re-read from JSON, reproduces the result byte for byte.
+func TestProjectionInputJSONRoundTrip(t *testing.T) {
+	in := handInput()
+	in.Floor.TierPatientsPerNurse = map[string]float64{"b": 2}
+	stored, err := json.Marshal(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var again ProjectionInput
+	if err := json.Unmarshal(stored, &again); err != nil {
+		t.Fatal(err)
+	}
+	p1, err1 := Project(in)
+	p2, err2 := Project(again)
+	if err1 != nil || err2 != nil {
+		t.Fatal(err1, err2)
+	}
+	r1, _ := json.Marshal(p1)
+	r2, _ := json.Marshal(p2)
+	if string(r1) != string(r2) {
+		t.Errorf("re-run differs:\n%s\n%s", r1, r2)
+	}
+	if !strings.Contains(string(stored), `"care_minutes":[10,20,30]`) {
+		t.Errorf("stored input %s", stored)
+	}
+}
