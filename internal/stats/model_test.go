@@ -158,6 +158,7 @@ func TestCeilNurses(t *testing.T) {
 		{6.999, 7},
 		{0.1, 1},
 		{1.1453031655690669, 2},
+		{-0.4, 0}, // a normal quantile below zero needs no nurses
 	}
 	for _, tc := range tests {
 		if got := ceilNurses(tc.x); got != tc.want {

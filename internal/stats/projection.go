@@ -22,11 +22,13 @@ const (
 const ceilTolerance = 1e-9
 
 // ceilNurses rounds a nurse count up, treating values within a relative
-// 1e-9 above an integer as that integer:
+// 1e-9 above an integer as that integer, and never below 0 (a normal
+// quantile below zero minutes, possible for a cover level under 0.5, needs
+// no nurses rather than a negative number):
 //
-//	ceil(x − 1e-9·max(1, |x|))
+//	max(0, ceil(x − 1e-9·max(1, |x|)))
 func ceilNurses(x float64) int {
-	return int(math.Ceil(x - float64(ceilTolerance*math.Max(1, math.Abs(x)))))
+	return max(0, int(math.Ceil(x-float64(ceilTolerance*math.Max(1, math.Abs(x))))))
 }
 
 // Band is a central normal band of the shift's total care minutes.
