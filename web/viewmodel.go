@@ -15,6 +15,8 @@ type LayoutVM struct {
 	// UserName is the signed-in user, "" when nobody is signed in. The
 	// layout shows it beside the navigation.
 	UserName string
+	// UserRole is the signed-in user's role, shown beside the name.
+	UserRole string
 }
 
 // NavItem is one link in the header navigation.
@@ -34,6 +36,9 @@ type WardRowVM struct {
 	Code     string
 	Name     string
 	TimeZone string
+	// TokensURL links to the ward's API tokens; "" for roles that may
+	// not manage them.
+	TokensURL string
 }
 
 // ErrorVM is the error page. Message is already safe to show (it comes from

@@ -131,7 +131,7 @@ func TestHeadAnsweredByGet(t *testing.T) {
 	s, _ := MustNew(t, newFakeStore())
 	// net/http drops a HEAD response's body itself; the router's part is
 	// to route HEAD to the GET handler instead of answering 405.
-	res, _ := do(t, s.Handler(), httptest.NewRequest("HEAD", "/", nil))
+	res, _ := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("HEAD", "/", nil)))
 	if res.StatusCode != 200 || res.Header.Get("Content-Type") != "text/html; charset=utf-8" {
 		t.Errorf("HEAD / = %d %q, want 200 text/html", res.StatusCode, res.Header.Get("Content-Type"))
 	}

@@ -22,7 +22,7 @@ func TestHomeListsWards(t *testing.T) {
 		}, 2, nil
 	}
 	s, _ := MustNew(t, st)
-	res, body := do(t, s.Handler(), httptest.NewRequest("GET", "/", nil))
+	res, body := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", "/", nil)))
 	if res.StatusCode != http.StatusOK {
 		t.Fatalf("status = %d, want 200", res.StatusCode)
 	}
@@ -50,7 +50,7 @@ func TestHomeListsWards(t *testing.T) {
 
 func TestHomeEmpty(t *testing.T) {
 	s, _ := MustNew(t, newFakeStore())
-	res, body := do(t, s.Handler(), httptest.NewRequest("GET", "/", nil))
+	res, body := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", "/", nil)))
 	if res.StatusCode != http.StatusOK {
 		t.Fatalf("status = %d, want 200", res.StatusCode)
 	}
@@ -68,7 +68,7 @@ func TestHomeStoreFailureIsInternal(t *testing.T) {
 		return nil, 0, errors.New("SQL logic error: no such table: wards")
 	}
 	s, logs := MustNew(t, st)
-	res, body := do(t, s.Handler(), httptest.NewRequest("GET", "/", nil))
+	res, body := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", "/", nil)))
 	if res.StatusCode != http.StatusInternalServerError {
 		t.Errorf("status = %d, want 500", res.StatusCode)
 	}

@@ -48,8 +48,8 @@ func TestNoInlineScriptOrStyle(t *testing.T) {
 	// The CSP forbids inline script and style; a template that used them
 	// would silently break in browsers.
 	s, _ := MustNew(t, newFakeStore())
-	for _, path := range []string{"/", "/no/such/page"} {
-		_, body := do(t, s.Handler(), httptest.NewRequest("GET", path, nil))
+	for _, path := range []string{"/", "/signin", "/no/such/page"} {
+		_, body := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", path, nil)))
 		for _, bad := range []string{"<script", "<style", "style=", "onclick=", "onload=", "javascript:"} {
 			if strings.Contains(strings.ToLower(body), bad) {
 				t.Errorf("%s contains %q", path, bad)

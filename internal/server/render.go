@@ -5,9 +5,11 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
+	"slices"
 
 	"github.com/a-h/templ"
 
+	"wardload/internal/wardload"
 	"wardload/web"
 )
 
@@ -27,25 +29,40 @@ func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c te
 	return err
 }
 
-// nav is the header navigation. Sign-in and role-dependent links join it
-// with the accounts work.
-var nav = []web.NavItem{
-	{Label: "Wards", URL: "/"},
+// navItem is a header link and the roles that see it.
+type navItem struct {
+	web.NavItem
+	roles []string
+}
+
+// nav is the header navigation; each signed-in user sees the links their
+// role may use (the route table still decides access).
+var nav = []navItem{
+	{web.NavItem{Label: "Wards", URL: "/"}, allRoles},
+	{web.NavItem{Label: "Audit log", URL: "/audit"}, []string{wardload.RoleManager, wardload.RoleAdmin}},
+	{web.NavItem{Label: "Users", URL: "/admin/users"}, []string{wardload.RoleAdmin}},
 }
 
 // layout returns the frame of a page titled title.
 func (s *Server) layout(r *http.Request, title string) web.LayoutVM {
-	items := make([]web.NavItem, len(nav))
-	for i, n := range nav {
-		n.Current = r.URL.Path == n.URL
-		items[i] = n
-	}
-	return web.LayoutVM{
+	vm := web.LayoutVM{
 		Title:      title,
 		Stylesheet: s.assets.URL("wardload.css"),
 		Icon:       s.assets.URL("favicon.svg"),
-		Nav:        items,
 	}
+	u := principalFrom(r.Context()).User
+	if u == nil {
+		vm.Nav = []web.NavItem{{Label: "Sign in", URL: "/signin", Current: r.URL.Path == "/signin"}}
+		return vm
+	}
+	vm.UserName, vm.UserRole = u.Name, u.Role
+	for _, n := range nav {
+		if slices.Contains(n.roles, u.Role) {
+			n.Current = r.URL.Path == n.URL
+			vm.Nav = append(vm.Nav, n.NavItem)
+		}
+	}
+	return vm
 }
 
 // writeJSON writes v as the JSON body of an API response. It encodes into a

@@ -15,18 +15,20 @@ import (
 type handlerFunc func(w http.ResponseWriter, r *http.Request) error
 
 // Access declares who may use a route. The route table is the only place
-// it is declared, so one test can walk every route × role.
+// it is declared, so one test can walk every route × role. Exactly one of
+// Public, API or Roles must be set; New refuses a route with none.
 type Access struct {
 	// Public routes are open to anybody, signed in or not.
 	Public bool
-	// Roles that may use the route (wardload.Role*); empty with Public
-	// false means any signed-in user.
+	// Roles that may use the page (wardload.Role*); allRoles for any
+	// signed-in user. Signed-out visitors are sent to the sign-in page.
 	Roles []string
-	// API routes authenticate with a token or session and answer JSON;
-	// a missing sign-in is 401 rather than a redirect to the sign-in page.
+	// API routes take a bearer token (never a session cookie) and answer
+	// JSON; a missing or bad token is 401. Tokens have wards, not roles.
 	API bool
 	// WardScoped routes carry {ward} (a ward code) in the pattern; the
-	// user must be a member of that ward (admins are members of all).
+	// user or token must be a member of that ward (admins are members of
+	// all). An unknown ward is 404.
 	WardScoped bool
 }
 
@@ -46,11 +48,32 @@ type Route struct {
 // entry here with its Access; nothing else registers routes.
 func (s *Server) routeTable() []Route {
 	public := Access{Public: true}
+	signedIn := Access{Roles: allRoles}
+	managers := Access{Roles: []string{wardload.RoleManager, wardload.RoleAdmin}}
+	wardManagers := Access{Roles: managers.Roles, WardScoped: true}
+	admins := Access{Roles: []string{wardload.RoleAdmin}}
+	api := Access{API: true}
 	return []Route{
-		{Method: http.MethodGet, Pattern: "/", Name: "home", Access: public, Handler: s.handleHome},
+		{Method: http.MethodGet, Pattern: "/", Name: "home", Access: signedIn, Handler: s.handleHome},
 		{Method: http.MethodGet, Pattern: "/healthz", Name: "healthz", Access: public, Handler: s.handleHealthz},
 		{Method: http.MethodGet, Pattern: "/readyz", Name: "readyz", Access: public, Handler: s.handleReadyz},
 		{Method: http.MethodGet, Pattern: "/static/*", Name: "static", Access: public, Handler: s.handleStatic},
+
+		{Method: http.MethodGet, Pattern: "/signin", Name: "signin.form", Access: public, Handler: s.handleSignInForm},
+		{Method: http.MethodPost, Pattern: "/signin", Name: "signin", Access: public, Handler: s.handleSignIn, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/signout", Name: "signout", Access: signedIn, Handler: s.handleSignOut, MaxBodyBytes: 8 << 10},
+
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/tokens", Name: "tokens", Access: wardManagers, Handler: s.handleTokens},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/tokens", Name: "token.create", Access: wardManagers, Handler: s.handleTokenCreate, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/tokens/{id}/revoke", Name: "token.revoke", Access: wardManagers, Handler: s.handleTokenRevoke, MaxBodyBytes: 8 << 10},
+
+		{Method: http.MethodGet, Pattern: "/audit", Name: "audit", Access: managers, Handler: s.handleAudit},
+
+		{Method: http.MethodGet, Pattern: "/admin/users", Name: "users", Access: admins, Handler: s.handleUsers},
+		{Method: http.MethodPost, Pattern: "/admin/users", Name: "user.create", Access: admins, Handler: s.handleUserCreate, MaxBodyBytes: 64 << 10},
+		{Method: http.MethodPost, Pattern: "/admin/users/{id}", Name: "user.update", Access: admins, Handler: s.handleUserUpdate, MaxBodyBytes: 64 << 10},
+
+		{Method: http.MethodGet, Pattern: "/api/v1/wards", Name: "api.wards", Access: api, Handler: s.handleAPIWards},
 	}
 }
 
@@ -92,14 +115,6 @@ func (s *Server) router(routes []Route) http.Handler {
 		r.Method(rt.Method, rt.Pattern, s.limitBody(limit, s.guard(rt, s.handle(rt.Handler))))
 	}
 	return r
-}
-
-// guard is where a route's Access is enforced. Nothing is enforced yet:
-// sign-in, roles and ward membership arrive with the accounts work, which
-// replaces this body (redirect to sign-in for pages, 401 for API, 403 for
-// a wrong role or ward).
-func (s *Server) guard(rt Route, next http.Handler) http.Handler {
-	return next
 }
 
 // allowMethods sets the Allow header of a 405 from the route table, since

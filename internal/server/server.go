@@ -11,7 +11,10 @@ import (
 	"log/slog"
 	"net"
 	"net/http"
+	"sync"
 	"time"
+
+	"github.com/alexedwards/scs/v2"
 
 	"wardload/internal/wardload"
 	"wardload/web"
@@ -26,6 +29,19 @@ type Config struct {
 	// SecureCookies marks cookies Secure; set it when wardload is served
 	// over HTTPS (directly or behind a proxy).
 	SecureCookies bool
+	// SessionStore keeps sign-in sessions: cmd/wardload passes scs's
+	// sqlite3store or pgxstore on the same database. Nil keeps sessions in
+	// memory, which only tests should do.
+	SessionStore scs.Store
+	// SessionIdle signs a user out after this long without a request;
+	// SessionLifetime after this long in any case. The defaults, 8 and 12
+	// hours, let a session last one long shift but not into the next.
+	SessionIdle     time.Duration
+	SessionLifetime time.Duration
+	// TrustForwardedFor counts failed sign-ins against the address in
+	// X-Forwarded-For instead of the TCP peer. Set it only behind a proxy
+	// that sets that header; otherwise any client could choose its address.
+	TrustForwardedFor bool
 	// Store is the database. Required.
 	Store wardload.Store
 	// Logger receives request logs and internal errors. Required.
@@ -66,6 +82,8 @@ func DefaultConfig() Config {
 		WriteTimeout:      30 * time.Second,
 		IdleTimeout:       120 * time.Second,
 		ShutdownTimeout:   10 * time.Second,
+		SessionIdle:       8 * time.Hour,
+		SessionLifetime:   12 * time.Hour,
 	}
 }
 
@@ -80,6 +98,16 @@ type Server struct {
 	handler http.Handler
 	ln      net.Listener
 	http    *http.Server
+
+	sessions *scs.SessionManager
+	// Failed sign-ins are throttled per account from the third failure
+	// and per address only from the twentieth, because a whole hospital
+	// may reach wardload through one address.
+	acctThrottle *throttle
+	addrThrottle *throttle
+	sealKey      []byte // seals one-time token secrets kept in the session
+	dummyOnce    sync.Once
+	dummy        string
 }
 
 // New checks cfg, fills zero limits from DefaultConfig and builds the
@@ -102,6 +130,8 @@ func New(cfg Config) (*Server, error) {
 		{&cfg.WriteTimeout, &def.WriteTimeout},
 		{&cfg.IdleTimeout, &def.IdleTimeout},
 		{&cfg.ShutdownTimeout, &def.ShutdownTimeout},
+		{&cfg.SessionIdle, &def.SessionIdle},
+		{&cfg.SessionLifetime, &def.SessionLifetime},
 	} {
 		if *f.v <= 0 {
 			*f.v = *f.d
@@ -114,11 +144,25 @@ func New(cfg Config) (*Server, error) {
 	if err != nil {
 		return nil, fmt.Errorf("server: static assets: %w", err)
 	}
-	s := &Server{cfg: cfg, log: cfg.Logger, store: cfg.Store, now: cfg.Now, assets: a}
+	s := &Server{cfg: cfg, log: cfg.Logger, store: cfg.Store, now: cfg.Now, assets: a,
+		sessions:     newSessions(cfg),
+		acctThrottle: newThrottle(3, 15*time.Minute),
+		addrThrottle: newThrottle(20, 15*time.Minute),
+		sealKey:      newSealKey(),
+	}
+	s.sessions.ErrorFunc = func(w http.ResponseWriter, r *http.Request, err error) {
+		s.renderError(w, r, fmt.Errorf("session: %w", err))
+	}
 	if s.cop, err = s.newCrossOriginProtection(); err != nil {
 		return nil, fmt.Errorf("server: %w", err)
 	}
-	s.handler = s.router(s.routeTable())
+	routes := s.routeTable()
+	for _, rt := range routes {
+		if !checkAccess(rt) {
+			return nil, fmt.Errorf("server: route %s %s has no valid Access declaration", rt.Method, rt.Pattern)
+		}
+	}
+	s.handler = s.router(routes)
 	return s, nil
 }
 

@@ -40,8 +40,12 @@ func TestHomeWithSQLite(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
+	admin := &wardload.User{Name: "a.admin", Role: wardload.RoleAdmin, PasswordHash: "x"}
+	if err := st.CreateUser(ctx, admin); err != nil {
+		t.Fatal(err)
+	}
 	s, _ := MustNew(t, st)
-	res, body := do(t, s.Handler(), httptest.NewRequest("GET", "/", nil))
+	res, body := do(t, s.Handler(), asUser(t, s, admin.ID, httptest.NewRequest("GET", "/", nil)))
 	if res.StatusCode != 200 {
 		t.Fatalf("status = %d", res.StatusCode)
 	}

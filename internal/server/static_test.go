@@ -62,7 +62,7 @@ func TestStatic(t *testing.T) {
 
 func TestPagesLinkVersionedAssets(t *testing.T) {
 	s, _ := MustNew(t, newFakeStore())
-	_, body := do(t, s.Handler(), httptest.NewRequest("GET", "/", nil))
+	_, body := do(t, s.Handler(), httptest.NewRequest("GET", "/signin", nil))
 	for _, name := range []string{"wardload.css", "favicon.svg"} {
 		if !strings.Contains(body, `href="`+s.assets.URL(name)+`"`) {
 			t.Errorf("page does not link %s", s.assets.URL(name))

@@ -1,0 +1,149 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"net/url"
+	"sort"
+	"strconv"
+	"strings"
+	"time"
+
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// auditPageSize is how many entries one audit page shows.
+const auditPageSize = 50
+
+// handleAudit lists audit entries with filters, newest first. An admin
+// sees every entry; a manager sees the entries of their wards only, which
+// leaves out entries tied to no ward (users, tokens, sign-ins).
+func (s *Server) handleAudit(w http.ResponseWriter, r *http.Request) error {
+	u := principalFrom(r.Context()).User
+	q := r.URL.Query()
+	vm := web.AuditVM{
+		Ward: clip(q.Get("ward"), 32), Action: clip(q.Get("action"), 64), Entity: clip(q.Get("entity"), 64),
+		User: clip(q.Get("user"), 40), From: clip(q.Get("from"), 10), To: clip(q.Get("to"), 10),
+	}
+	codes, err := s.wardCodes(r, nil)
+	if err != nil {
+		return err
+	}
+	visible := codes
+	if u.Role != wardload.RoleAdmin {
+		visible = map[int64]string{}
+		for _, id := range u.WardIDs {
+			visible[id] = codes[id]
+		}
+	}
+	for _, c := range visible {
+		vm.WardCodes = append(vm.WardCodes, c)
+	}
+	sort.Strings(vm.WardCodes)
+
+	f, msg, err := s.auditFilter(r, vm, u, visible)
+	if err != nil {
+		return err
+	}
+	page, _ := strconv.Atoi(q.Get("page"))
+	page = max(1, min(page, 1_000_000))
+	status := http.StatusOK
+	if msg != "" {
+		vm.Error, status = msg, http.StatusBadRequest
+	} else if f != nil {
+		f.Offset, f.Limit = (page-1)*auditPageSize, auditPageSize
+		es, total, err := s.store.FindAudit(r.Context(), *f)
+		if err != nil {
+			return fmt.Errorf("audit: %w", err)
+		}
+		vm.Total = total
+		for _, e := range es {
+			row := web.AuditRowVM{At: e.At.UTC().Format("2006-01-02 15:04:05"), Actor: e.Actor, Action: e.Action,
+				Entity: e.Entity, Ward: codes[e.WardID], Before: e.Before, After: e.After}
+			if e.EntityID != 0 {
+				row.EntityID = "#" + strconv.FormatInt(e.EntityID, 10)
+			}
+			vm.Rows = append(vm.Rows, row)
+		}
+		if len(es) > 0 {
+			vm.PageText = fmt.Sprintf("Entries %d–%d of %d", f.Offset+1, f.Offset+len(es), total)
+		}
+		link := func(p int) string {
+			v := url.Values{}
+			for k, val := range map[string]string{"ward": vm.Ward, "action": vm.Action, "entity": vm.Entity,
+				"user": vm.User, "from": vm.From, "to": vm.To} {
+				if val != "" {
+					v.Set(k, val)
+				}
+			}
+			v.Set("page", strconv.Itoa(p))
+			return "/audit?" + v.Encode()
+		}
+		if page > 1 {
+			vm.PrevURL = link(page - 1)
+		}
+		if f.Offset+len(es) < total {
+			vm.NextURL = link(page + 1)
+		}
+	}
+	return s.render(w, r, status, web.AuditPage(s.layout(r, "Audit log"), vm))
+}
+
+// auditFilter turns the typed filters into an AuditFilter restricted to
+// the wards the user may see. It returns a message for input that cannot
+// be used, and a nil filter (no entries) when nothing could match.
+func (s *Server) auditFilter(r *http.Request, vm web.AuditVM, u *wardload.User, visible map[int64]string) (*wardload.AuditFilter, string, error) {
+	f := &wardload.AuditFilter{}
+	if vm.Ward != "" {
+		var id int64
+		for wid, c := range visible {
+			if c == vm.Ward {
+				id = wid
+			}
+		}
+		if id == 0 {
+			return nil, "Choose one of your wards.", nil
+		}
+		f.WardIDs = []int64{id}
+	} else if u.Role != wardload.RoleAdmin {
+		// An empty WardIDs would mean "every ward": a manager of no ward
+		// must see nothing instead.
+		if len(u.WardIDs) == 0 {
+			return nil, "", nil
+		}
+		f.WardIDs = u.WardIDs
+	}
+	if vm.Action != "" {
+		f.Action = &vm.Action
+	}
+	if vm.Entity != "" {
+		f.Entity = &vm.Entity
+	}
+	if vm.User != "" {
+		name := strings.ToLower(strings.TrimSpace(vm.User))
+		found, err := s.store.FindUserByName(r.Context(), name)
+		if wardload.ErrorCode(err) == wardload.ENOTFOUND {
+			return nil, "There is no user called " + auditName(name) + ".", nil
+		} else if err != nil {
+			return nil, "", fmt.Errorf("audit: find user: %w", err)
+		}
+		f.UserID = &found.ID
+	}
+	for _, d := range []struct {
+		text string
+		dst  **time.Time
+		add  int // days: "to" is inclusive, the filter's To exclusive
+	}{{vm.From, &f.From, 0}, {vm.To, &f.To, 1}} {
+		if d.text == "" {
+			continue
+		}
+		t, err := time.Parse(time.DateOnly, d.text)
+		if err != nil {
+			return nil, "Dates must look like 2026-03-02.", nil
+		}
+		t = t.AddDate(0, 0, d.add)
+		*d.dst = &t
+	}
+	return f, "", nil
+}

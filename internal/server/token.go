@@ -1,0 +1,149 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/go-chi/chi/v5"
+
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// handleTokens lists the ward's API tokens. Right after a create it shows
+// the new secret, once: the sealed secret is popped from the session, so a
+// reload no longer has it.
+func (s *Server) handleTokens(w http.ResponseWriter, r *http.Request) error {
+	vm := web.TokensVM{}
+	ctx := r.Context()
+	vm.Notice = s.sessions.PopString(ctx, sessFlash)
+	if sealed := s.sessions.PopString(ctx, sessSecret); sealed != "" {
+		name, secretSealed, _ := strings.Cut(sealed, ":")
+		if secret, err := s.unseal(secretSealed); err == nil {
+			vm.NewName, vm.NewSecret = name, secret
+		} else {
+			vm.SecretLost = true
+		}
+	}
+	return s.renderTokens(w, r, http.StatusOK, vm)
+}
+
+func (s *Server) renderTokens(w http.ResponseWriter, r *http.Request, status int, vm web.TokensVM) error {
+	ward := principalFrom(r.Context()).Ward
+	ts, err := s.store.FindTokens(r.Context(), ward.ID)
+	if err != nil {
+		return fmt.Errorf("tokens: %w", err)
+	}
+	codes, err := s.wardCodes(r, nil)
+	if err != nil {
+		return err
+	}
+	vm.WardCode, vm.WardName = ward.Code, ward.Name
+	vm.CreateURL = "/wards/" + ward.Code + "/tokens"
+	for _, t := range ts {
+		row := web.TokenRowVM{
+			Name:      t.Name,
+			CreatedAt: formatAt(t.CreatedAt),
+			LastUsed:  "never",
+			RevokeURL: fmt.Sprintf("/wards/%s/tokens/%d/revoke", ward.Code, t.ID),
+		}
+		var ws []string
+		for _, id := range t.WardIDs {
+			ws = append(ws, codes[id])
+		}
+		row.Wards = strings.Join(ws, ", ")
+		if !t.LastUsedAt.IsZero() {
+			row.LastUsed = formatAt(t.LastUsedAt)
+		}
+		if !t.Active() {
+			row.Revoked = formatAt(t.RevokedAt)
+		}
+		vm.Tokens = append(vm.Tokens, row)
+	}
+	return s.render(w, r, status, web.TokensPage(s.layout(r, "API tokens"), vm))
+}
+
+// handleTokenCreate makes a token for this ward. The secret goes to the
+// next page view sealed in the session; the store gets only its hash.
+func (s *Server) handleTokenCreate(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	p := principalFrom(r.Context())
+	name := strings.TrimSpace(r.PostForm.Get("name"))
+	secret, hash := NewTokenSecret()
+	t := &wardload.APIToken{Name: name, Hash: hash, WardIDs: []int64{p.Ward.ID}, CreatedBy: p.User.ID}
+	if err := s.store.CreateToken(r.Context(), t); err != nil {
+		switch wardload.ErrorCode(err) {
+		case wardload.EINVALID, wardload.ECONFLICT:
+			msg := wardload.ErrorMessage(err)
+			if wardload.ErrorCode(err) == wardload.ECONFLICT {
+				msg = "A token with this name exists already (names are unique across wards)."
+			}
+			return s.renderTokens(w, r, http.StatusBadRequest, web.TokensVM{FormName: clip(name, 32), Error: msg})
+		}
+		return fmt.Errorf("token create: %w", err)
+	}
+	s.sessions.Put(r.Context(), sessSecret, t.Name+":"+s.seal(secret))
+	return seeOther(w, r, "/wards/"+p.Ward.Code+"/tokens")
+}
+
+// handleTokenRevoke revokes a token of this ward.
+func (s *Server) handleTokenRevoke(w http.ResponseWriter, r *http.Request) error {
+	ward := principalFrom(r.Context()).Ward
+	id, err := strconv.ParseInt(chi.URLParam(r, "id"), 10, 64)
+	if err != nil {
+		return wardload.Errorf(wardload.ENOTFOUND, "There is no such token.")
+	}
+	ts, err := s.store.FindTokens(r.Context(), ward.ID)
+	if err != nil {
+		return fmt.Errorf("token revoke: %w", err)
+	}
+	var t *wardload.APIToken
+	for _, x := range ts {
+		if x.ID == id {
+			t = x
+		}
+	}
+	if t == nil {
+		return wardload.Errorf(wardload.ENOTFOUND, "There is no such token on this ward.")
+	}
+	if err := s.store.RevokeToken(r.Context(), t.ID); err != nil && wardload.ErrorCode(err) != wardload.ECONFLICT {
+		return fmt.Errorf("token revoke: %w", err)
+	}
+	s.sessions.Put(r.Context(), sessFlash, "Token "+t.Name+" is revoked.")
+	return seeOther(w, r, "/wards/"+ward.Code+"/tokens")
+}
+
+// wardCodes maps ward IDs to codes; only is an optional subset.
+func (s *Server) wardCodes(r *http.Request, only []int64) (map[int64]string, error) {
+	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
+	if err != nil {
+		return nil, fmt.Errorf("find wards: %w", err)
+	}
+	m := map[int64]string{}
+	for _, w := range ws {
+		if only == nil || containsID(only, w.ID) {
+			m[w.ID] = w.Code
+		}
+	}
+	return m, nil
+}
+
+// formatAt shows an instant in UTC to the minute; pages that show audit
+// or token times say they are UTC.
+func formatAt(t time.Time) string {
+	return t.UTC().Format("2006-01-02 15:04 UTC")
+}
+
+// clip shortens user input that is shown back, so a huge field cannot
+// blow up a page.
+func clip(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	return strings.ToValidUTF8(s[:n], "")
+}

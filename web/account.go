@@ -1,0 +1,86 @@
+package web
+
+// SignInVM is the sign-in form. Error is one plain message that never says
+// which of name and password was wrong.
+type SignInVM struct {
+	Name  string // re-shown after a failure; the password never is
+	Next  string // local path to go to after signing in
+	Error string
+}
+
+// TokensVM is a ward's API token page. NewSecret is set only on the one
+// page view right after a token was created.
+type TokensVM struct {
+	WardCode   string
+	WardName   string
+	CreateURL  string
+	Tokens     []TokenRowVM
+	NewName    string
+	NewSecret  string
+	SecretLost bool   // a secret was made but can no longer be shown
+	Notice     string // e.g. "Token revoked."
+	FormName   string // the name typed into the create form
+	Error      string // why the create form failed
+}
+
+// TokenRowVM is one API token in the list.
+type TokenRowVM struct {
+	Name      string
+	Wards     string // comma-separated ward codes
+	CreatedAt string
+	LastUsed  string // "never" when unused
+	Revoked   string // "" while active
+	RevokeURL string
+}
+
+// AuditVM is the audit log page: filters, one page of entries, paging.
+type AuditVM struct {
+	Ward, Action, Entity, User, From, To string // the filters as typed
+	WardCodes                            []string
+	Error                                string
+	Rows                                 []AuditRowVM
+	Total                                int
+	PageText                             string // e.g. "Entries 1–50 of 120"
+	PrevURL, NextURL                     string
+}
+
+// AuditRowVM is one audit entry. Before and After are the stored JSON.
+type AuditRowVM struct {
+	At, Actor, Action, Entity, EntityID, Ward, Before, After string
+}
+
+// UsersVM is the user administration page.
+type UsersVM struct {
+	Users  []UserRowVM
+	Wards  []WardOptionVM // every ward, for the create form
+	Roles  []string
+	Form   UserFormVM
+	Notice string
+}
+
+// UserFormVM is the create form as typed, with its messages by field.
+type UserFormVM struct {
+	Name   string
+	Role   string
+	Errors map[string]string
+}
+
+// UserRowVM is one user with an edit form.
+type UserRowVM struct {
+	ID        string
+	Name      string
+	Role      string
+	Disabled  bool
+	Self      bool // the signed-in admin: may not disable or demote themself
+	Wards     []WardOptionVM
+	CreatedAt string
+	UpdateURL string
+	Error     string
+}
+
+// WardOptionVM is a ward checkbox.
+type WardOptionVM struct {
+	ID      string
+	Code    string
+	Checked bool
+}
