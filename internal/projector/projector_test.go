@@ -1,0 +1,320 @@
+package projector_test
+
+import (
+	"context"
+	"encoding/json"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"gonum.org/v1/gonum/floats/scalar"
+
+	"wardload/internal/projector"
+	"wardload/internal/sqlite"
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+)
+
+// now is the fixed clock of these tests: 20 March 2026, 10:00 UTC.
+var now = time.Date(2026, 3, 20, 10, 0, 0, 0, time.UTC)
+
+var ctx = wardload.WithActor(context.Background(), wardload.Actor{UserID: 7, Name: "c.nurse"})
+
+// MustOpen returns a migrated SQLite store in t.TempDir() with the fixed clock.
+func MustOpen(tb testing.TB) *sqlite.Store {
+	tb.Helper()
+	s, err := sqlite.Open(context.Background(), sqlite.Config{Path: filepath.Join(tb.TempDir(), "wardload.db"), Now: func() time.Time { return now }})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	tb.Cleanup(func() { s.Close() })
+	if err := s.Migrate(context.Background()); err != nil {
+		tb.Fatal(err)
+	}
+	return s
+}
+
+func must(tb testing.TB, err error) {
+	tb.Helper()
+	if err != nil {
+		tb.Fatal(err)
+	}
+}
+
+func day(s string) wardload.Date {
+	d, err := wardload.ParseDate(s)
+	if err != nil {
+		panic(err)
+	}
+	return d
+}
+
+// handWard is the hand-checkable case of internal/stats TestProjectHand
+// as store content: an 8-hour "Early" shift in UTC, tiers a, b, c, direct
+// care 0.5, cover 0.9, a one-week lookback and a floor of 4 patients per
+// nurse with the nurse in charge not counting. The lookback holds a 10,
+// 20, 30; b 50, 70; c 5 (8-hour windows). Around them are observations the
+// projection must not use: one excluded, one a day before the lookback,
+// one on the shift's own date, one of another shift.
+type handWard struct {
+	st           *sqlite.Store
+	ward         *wardload.Ward
+	a, b, c      *wardload.Tier
+	early, late  *wardload.ShiftPattern
+	shiftDate    wardload.Date
+	excludedObs  int64
+	settingsSave *wardload.Settings
+}
+
+func seedHand(t *testing.T) *handWard {
+	t.Helper()
+	st := MustOpen(t)
+	h := &handWard{st: st, shiftDate: day("2026-03-20")}
+	h.ward = &wardload.Ward{Code: "hand", Name: "Hand case", TimeZone: "UTC"}
+	must(t, st.CreateWard(ctx, h.ward))
+	for i, p := range []**wardload.Tier{&h.a, &h.b, &h.c} {
+		code := []string{"a", "b", "c"}[i]
+		*p = &wardload.Tier{WardID: h.ward.ID, Code: code, Label: "Tier " + strings.ToUpper(code), DisplayOrder: i + 1}
+		must(t, st.CreateTier(ctx, *p))
+	}
+	h.early = &wardload.ShiftPattern{WardID: h.ward.ID, Name: "Early", StartMinute: 7 * 60, NominalHours: 8}
+	must(t, st.CreateShiftPattern(ctx, h.early))
+	h.late = &wardload.ShiftPattern{WardID: h.ward.ID, Name: "Late", StartMinute: 15 * 60, NominalHours: 8}
+	must(t, st.CreateShiftPattern(ctx, h.late))
+	h.settingsSave = &wardload.Settings{WardID: h.ward.ID, DirectCareFraction: 0.5, CoverLevel: 0.9, LookbackWeeks: 1,
+		Quartiles: wardload.QuartilesHinges, Floors: []wardload.RatioFloor{{ShiftID: h.early.ID, PatientsPerNurse: 4}}}
+	must(t, st.SaveSettings(ctx, h.settingsSave))
+	o := func(tier *wardload.Tier, shift *wardload.ShiftPattern, date string, minutes float64) *wardload.Observation {
+		return &wardload.Observation{WardID: h.ward.ID, TierID: tier.ID, ShiftID: shift.ID, Date: day(date), WindowHours: 8, CareMinutes: minutes}
+	}
+	obs := []*wardload.Observation{
+		o(h.a, h.early, "2026-03-13", 10), o(h.a, h.early, "2026-03-16", 20), o(h.a, h.early, "2026-03-19", 30),
+		o(h.b, h.early, "2026-03-14", 50), o(h.b, h.early, "2026-03-18", 70),
+		o(h.c, h.early, "2026-03-15", 5),
+		o(h.a, h.early, "2026-03-17", 500), // excluded below
+		o(h.a, h.early, "2026-03-12", 900), // a day before the lookback
+		o(h.b, h.early, "2026-03-20", 900), // the shift's own date
+		o(h.a, h.late, "2026-03-16", 900),  // another shift
+	}
+	_, err := st.CreateObservations(ctx, obs)
+	must(t, err)
+	h.excludedObs = obs[6].ID
+	_, err = st.ExcludeObservation(ctx, h.excludedObs, "typed 500 for 50", 7)
+	must(t, err)
+	return h
+}
+
+func (h *handWard) service() *projector.Service {
+	return &projector.Service{Store: h.st, Now: func() time.Time { return now }}
+}
+
+func (h *handWard) counts(a, b, c int) []wardload.TierCount {
+	return []wardload.TierCount{{TierID: h.a.ID, Patients: a}, {TierID: h.b.ID, Patients: b}, {TierID: h.c.ID, Patients: c}}
+}
+
+func decodeInput(t *testing.T, p *wardload.Projection) projector.Input {
+	t.Helper()
+	var in projector.Input
+	must(t, json.Unmarshal([]byte(p.Input), &in))
+	return in
+}
+
+// By hand (as internal/stats TestProjectHand): μ = 220 minutes, so
+// expected nurse-hours = 220 / 60 / 0.5 = 7.3333; floor = ceil(5/4) + 1 = 3.
+// Band at two-sided level 0.9, in nurse-hours, from R 4.2.2 Patched
+// (2022-11-10 r83330), Debian r-base-core:
+// sprintf("%.17g", (220 + c(-1, 1)*qnorm(0.95)*sqrt(800 + 3100/3))/60/0.5)
+// = 4.9857191782163852, 9.6809474884502809.
+func TestPrepareHand(t *testing.T) {
+	h := seedHand(t)
+	c, p, err := h.service().Prepare(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 3, 0))
+	must(t, err)
+	near := func(name string, got, want float64) {
+		t.Helper()
+		if !scalar.EqualWithinAbsOrRel(got, want, 1e-12, 1e-12) {
+			t.Errorf("%s = %.17g, want %.17g", name, got, want)
+		}
+	}
+	near("expected nurse-hours", p.ExpectedNurseHours, 220.0/60/0.5)
+	near("band low", p.BandLowNurseHours, 4.9857191782163852)
+	near("band high", p.BandHighNurseHours, 9.6809474884502809)
+	if p.Floor == nil || *p.Floor != 3 || p.Recommended != 3 || p.DecidedBy != stats.DecidedByFloor {
+		t.Errorf("floor %v, recommended %d by %s; want 3, 3 by ratio_floor", p.Floor, p.Recommended, p.DecidedBy)
+	}
+	// The analytic cover need is 1.145 nurses (stats TestProjectHand); the
+	// simulated one is near it, so it rounds up to 2.
+	if p.NursesCover != 2 || p.CoverNurseHours <= 8 || p.CoverNurseHours > 16 {
+		t.Errorf("nurses at cover %d (%g nurse-hours), want 2 (8 to 16 nurse-hours)", p.NursesCover, p.CoverNurseHours)
+	}
+	if p.ShiftHours != 8 || p.ShiftName != "Early" || !p.Start.Equal(time.Date(2026, 3, 20, 7, 0, 0, 0, time.UTC)) ||
+		!p.End.Equal(time.Date(2026, 3, 20, 15, 0, 0, 0, time.UTC)) {
+		t.Errorf("shift %s %g h %v–%v", p.ShiftName, p.ShiftHours, p.Start, p.End)
+	}
+	if p.TotalPatients != 5 || c.Total() != 5 || p.CoverLevel != 0.9 || p.CreatedBy != 7 || c.EnteredBy != 7 {
+		t.Errorf("total %d/%d cover %g by %d/%d", p.TotalPatients, c.Total(), p.CoverLevel, p.CreatedBy, c.EnteredBy)
+	}
+	if p.MethodVersion != stats.MethodVersion || p.Draws != projector.DefaultDraws || p.Seed != projector.Seed(h.ward.ID, h.shiftDate, h.early.ID) {
+		t.Errorf("method %s draws %d seed %d", p.MethodVersion, p.Draws, p.Seed)
+	}
+	// Only the six observations in the lookback, of this shift, included, were used.
+	in := decodeInput(t, p)
+	want := [][]float64{{10, 20, 30}, {50, 70}, {5}}
+	for k, tier := range in.Model.Tiers {
+		if !slices.Equal(tier.CareMinutes, want[k]) || in.Tiers[k].Observations != len(want[k]) {
+			t.Errorf("tier %s used %v, want %v", tier.Code, tier.CareMinutes, want[k])
+		}
+	}
+	if s := in.Settings; s.LookbackFrom != "2026-03-13" || s.LookbackTo != "2026-03-19" || s.Quartiles != "hinges" || len(s.Floors) != 1 {
+		t.Errorf("input settings = %+v", s)
+	}
+	if in.Model.Levels[0] != 0.9 || in.Model.Floor == nil || in.Model.Floor.PatientsPerNurse != 4 || in.Model.Floor.ChargeNurseCounts {
+		t.Errorf("model input = %+v floor %+v", in.Model, in.Model.Floor)
+	}
+	var res struct { // stats.Number has no UnmarshalJSON, so not stats.Projection
+		Caution string           `json:"caution"`
+		Floor   *stats.FloorUsed `json:"floor_used"`
+	}
+	must(t, json.Unmarshal([]byte(p.Result), &res))
+	if res.Caution != stats.Caution || res.Floor == nil || !strings.Contains(res.Floor.Description, "4 patients per nurse") {
+		t.Errorf("result lacks the caution or the floor used: %+v", res.Floor)
+	}
+}
+
+func TestSaveAndRecompute(t *testing.T) {
+	h := seedHand(t)
+	s := h.service()
+	c1, p1, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 3, 0))
+	must(t, err)
+	if c1.Revision != 1 || p1.CensusRevision != 1 || p1.ID == 0 {
+		t.Fatalf("first save: census rev %d, projection %d rev %d", c1.Revision, p1.ID, p1.CensusRevision)
+	}
+	stored, err := h.st.FindProjectionByID(ctx, p1.ID)
+	must(t, err)
+	for name, p := range map[string]*wardload.Projection{"returned": p1, "stored": stored} {
+		got, err := projector.Recompute(p)
+		must(t, err)
+		b, err := json.Marshal(got)
+		must(t, err)
+		if string(b) != p.Result {
+			t.Errorf("%s: recomputed result differs from the stored one:\n%s\n%s", name, b, p.Result)
+		}
+	}
+	// A correction is a new revision with its own projection; the first is kept.
+	_, p2, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 4, 0))
+	must(t, err)
+	if p2.CensusRevision != 2 || p2.ExpectedNurseHours <= p1.ExpectedNurseHours || p2.Seed != p1.Seed {
+		t.Errorf("correction: rev %d, nurse-hours %g after %g, seed %d vs %d", p2.CensusRevision, p2.ExpectedNurseHours, p1.ExpectedNurseHours, p2.Seed, p1.Seed)
+	}
+	all, n, err := h.st.FindProjections(ctx, wardload.ProjectionFilter{WardID: &h.ward.ID})
+	must(t, err)
+	if n != 2 || all[0].ID != p2.ID || all[1].ID != p1.ID {
+		t.Errorf("history = %d projections, want revision 2 then 1", n)
+	}
+	// A projection of another method version cannot be reproduced here.
+	old := *stored
+	old.MethodVersion = "wardload-model/0"
+	if _, err := projector.Recompute(&old); wardload.ErrorField(err) != "method_version" {
+		t.Errorf("old method: %v", err)
+	}
+}
+
+func TestPrepareErrors(t *testing.T) {
+	h := seedHand(t)
+	other := &wardload.Ward{Code: "other", Name: "Other", TimeZone: "UTC"}
+	must(t, h.st.CreateWard(ctx, other))
+	otherShift := &wardload.ShiftPattern{WardID: other.ID, Name: "Early", StartMinute: 420, NominalHours: 8}
+	must(t, h.st.CreateShiftPattern(ctx, otherShift))
+	otherTier := &wardload.Tier{WardID: other.ID, Code: "a", Label: "A"}
+	must(t, h.st.CreateTier(ctx, otherTier))
+	d := &wardload.Tier{WardID: h.ward.ID, Code: "d", Label: "Tier D", DisplayOrder: 4}
+	must(t, h.st.CreateTier(ctx, d))
+	beds := *h.settingsSave
+	beds.Beds = 6
+	must(t, h.st.SaveSettings(ctx, &beds))
+	auditBefore := countAudit(t, h.st)
+
+	for _, tc := range []struct {
+		name   string
+		ward   int64
+		date   string
+		shift  int64
+		counts []wardload.TierCount
+		code   string
+		field  string
+		msg    string // part of the message
+	}{
+		{"unknown ward", 9999, "2026-03-20", h.early.ID, nil, wardload.ENOTFOUND, "", ""},
+		{"unknown shift", h.ward.ID, "2026-03-20", 9999, nil, wardload.EINVALID, "shift", "no such shift"},
+		{"shift of other ward", h.ward.ID, "2026-03-20", otherShift.ID, nil, wardload.EINVALID, "shift", "no such shift"},
+		{"three days ahead", h.ward.ID, "2026-03-23", h.early.ID, nil, wardload.EINVALID, "date", "too far from today"},
+		{"fifteen days back", h.ward.ID, "2026-03-05", h.early.ID, nil, wardload.EINVALID, "date", "14 days back"},
+		{"tier with no observations", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: d.ID, Patients: 1}}, wardload.EINVALID, "tier_d", "Tier D has 1 patients but no care observations"},
+		{"tier with one observation", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: h.c.ID, Patients: 1}}, wardload.EINVALID, "tier_c", "only one care observation"},
+		{"tier above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(7, 0, 0), wardload.EINVALID, "tier_a", "6 beds"},
+		{"total above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(4, 3, 0), wardload.EINVALID, "patients", "7 patients, more than the ward's 6 beds"},
+		{"negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(-1, 0, 0), wardload.EINVALID, "tier_a", "Tier A"},
+		{"tier of other ward", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: otherTier.ID, Patients: 1}}, wardload.EINVALID, "tier", ""},
+		{"tier twice", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: h.a.ID, Patients: 1}, {TierID: h.a.ID, Patients: 1}}, wardload.EINVALID, "tier", "twice"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			var date wardload.Date
+			if tc.date != "" {
+				date = day(tc.date)
+			}
+			c, p, err := h.service().Save(ctx, tc.ward, date, tc.shift, tc.counts)
+			if c != nil || p != nil || wardload.ErrorCode(err) != tc.code || wardload.ErrorField(err) != tc.field {
+				t.Fatalf("got %v, want %s field %q", err, tc.code, tc.field)
+			}
+			if !strings.Contains(wardload.ErrorMessage(err), tc.msg) {
+				t.Errorf("message %q lacks %q", wardload.ErrorMessage(err), tc.msg)
+			}
+		})
+	}
+	if _, n, _ := h.st.FindCensus(ctx, wardload.CensusFilter{}); n != 0 {
+		t.Errorf("%d census entries stored by failed saves", n)
+	}
+	if _, n, _ := h.st.FindProjections(ctx, wardload.ProjectionFilter{}); n != 0 {
+		t.Errorf("%d projections stored by failed saves", n)
+	}
+	if got := countAudit(t, h.st); got != auditBefore {
+		t.Errorf("audit rows %d -> %d", auditBefore, got)
+	}
+}
+
+// The window's edges are inside it: 14 days back and 2 days ahead. An
+// empty census needs no observations, so only the date can fail.
+func TestDateWindowEdges(t *testing.T) {
+	h := seedHand(t)
+	for _, d := range []string{"2026-03-06", "2026-03-22"} {
+		_, p, err := h.service().Prepare(ctx, h.ward.ID, day(d), h.early.ID, nil)
+		if err != nil {
+			t.Fatalf("%s: %v", d, err)
+		}
+		// No patients: the floor is the nurse in charge alone.
+		if p.TotalPatients != 0 || p.ExpectedNurseHours != 0 || p.Recommended != 1 {
+			t.Errorf("%s: empty census gave %+v", d, p)
+		}
+	}
+	// "Today" is the ward's: at 23:30 UTC on 20 March it is already the
+	// 21st in Auckland, so 23 March is two days ahead there.
+	akl := &wardload.Ward{Code: "akl", Name: "Auckland", TimeZone: "Pacific/Auckland"}
+	must(t, h.st.CreateWard(ctx, akl))
+	sp := &wardload.ShiftPattern{WardID: akl.ID, Name: "Day", StartMinute: 420, NominalHours: 12}
+	must(t, h.st.CreateShiftPattern(ctx, sp))
+	late := &projector.Service{Store: h.st, Now: func() time.Time { return time.Date(2026, 3, 20, 23, 30, 0, 0, time.UTC) }}
+	if _, _, err := late.Prepare(ctx, akl.ID, day("2026-03-23"), sp.ID, nil); err != nil {
+		t.Errorf("two days ahead in Auckland: %v", err)
+	}
+	if _, _, err := late.Prepare(ctx, h.ward.ID, day("2026-03-23"), h.early.ID, nil); wardload.ErrorField(err) != "date" {
+		t.Errorf("three days ahead in UTC: %v", err)
+	}
+}
+
+func countAudit(t *testing.T, st wardload.Store) int {
+	t.Helper()
+	_, n, err := st.FindAudit(ctx, wardload.AuditFilter{})
+	must(t, err)
+	return n
+}
