@@ -9,6 +9,10 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"github.com/alexedwards/scs/pgxstore"
+	"github.com/alexedwards/scs/sqlite3store"
+	"github.com/alexedwards/scs/v2"
+
 	"wardload/internal/demo"
 	"wardload/internal/server"
 )
@@ -23,6 +27,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	so := addStoreFlags(fs, e)
 	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once")
 	secure := fs.Bool("secure-cookies", false, "mark cookies Secure; use when served over HTTPS (env WARDLOAD_SECURE_COOKIES)")
+	trustXFF := fs.Bool("trust-proxy", false, "count failed sign-ins by the X-Forwarded-For address; only behind a proxy that sets it")
 	if code, ok := parseFlags(fs, args); !ok {
 		return code
 	}
@@ -67,6 +72,10 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	cfg.Store = st.Store
 	cfg.Logger = log
 	cfg.Now = time.Now
+	cfg.TrustForwardedFor = *trustXFF
+	sessions := sessionStore(st)
+	defer sessions.StopCleanup()
+	cfg.SessionStore = sessions
 	srv, err := server.New(cfg)
 	if err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
@@ -103,6 +112,19 @@ func printDemo(e *env, res *demo.Result) {
 		fmt.Fprintf(tw, "  %s\t%s\t%s\n", a.Name, a.Role, a.Password)
 	}
 	tw.Flush()
+}
+
+// sessionStore keeps sign-in sessions in the same database as everything
+// else, in the sessions table both migrations create; expired rows are
+// removed every five minutes.
+func sessionStore(st *openedStore) interface {
+	scs.Store
+	StopCleanup()
+} {
+	if st.PGPool != nil {
+		return pgxstore.NewWithCleanupInterval(st.PGPool, 5*time.Minute)
+	}
+	return sqlite3store.NewWithCleanupInterval(st.SQLDB, 5*time.Minute)
 }
 
 // flagSet reports whether the flag name was given on the command line, so

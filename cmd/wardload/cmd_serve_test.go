@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"net/http"
+	"net/http/cookiejar"
 	"net/url"
 	"os"
 	"regexp"
@@ -104,8 +105,46 @@ func get(tb testing.TB, u string) (int, string) {
 	return res.StatusCode, string(b)
 }
 
+// signIn signs in over HTTP and returns a client that carries the session
+// cookie, which the server keeps in its database-backed session store.
+func signIn(tb testing.TB, base, name, pw string) *http.Client {
+	tb.Helper()
+	jar, err := cookiejar.New(nil)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	c := &http.Client{Jar: jar}
+	res, err := c.PostForm(base+"/signin", url.Values{"name": {name}, "password": {pw}, "next": {"/"}})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	body, _ := io.ReadAll(res.Body)
+	res.Body.Close()
+	if res.StatusCode != http.StatusOK || res.Request.URL.Path != "/" {
+		tb.Fatalf("sign in as %s: %d at %s\n%s", name, res.StatusCode, res.Request.URL, body)
+	}
+	return c
+}
+
+func getWith(tb testing.TB, c *http.Client, u string) (int, string) {
+	tb.Helper()
+	res, err := c.Get(u)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	defer res.Body.Close()
+	b, err := io.ReadAll(res.Body)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return res.StatusCode, string(b)
+}
+
 func TestServeEndToEnd(t *testing.T) {
 	dir := t.TempDir()
+	if code, _, errs := runCLI(t, dir, "first admin pw\n", "user", "add", "--role", "admin", "ada.admin"); code != exitOK {
+		t.Fatalf("user add: %d %s", code, errs)
+	}
 	s := MustServe(t, "--addr", "127.0.0.1:0", "--data-dir", dir)
 	if strings.HasSuffix(s.URL, ":0") {
 		t.Fatalf("URL %q does not carry the real port", s.URL)
@@ -115,9 +154,23 @@ func TestServeEndToEnd(t *testing.T) {
 			t.Errorf("GET %s = %d\n%s", p, code, body)
 		}
 	}
-	_, home := get(t, s.URL+"/")
-	if !strings.Contains(home, "No wards have been set up yet") {
-		t.Errorf("home page of an empty database lacks the empty state:\n%s", home)
+	// Signed out, the home page sends people to sign in.
+	if _, body := get(t, s.URL+"/"); !strings.Contains(body, `data-testid="signin-form"`) {
+		t.Errorf("signed-out home did not end at the sign-in form:\n%s", body)
+	}
+	c := signIn(t, s.URL, "ada.admin", "first admin pw")
+	_, home := getWith(t, c, s.URL+"/")
+	if !strings.Contains(home, "No wards have been set up yet") || !strings.Contains(home, "Signed in as ada.admin") {
+		t.Errorf("home page of an empty database lacks the empty state or the user:\n%s", home)
+	}
+	// Sign out is a POST; afterwards the cookie no longer works.
+	res, err := c.PostForm(s.URL+"/signout", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res.Body.Close()
+	if _, body := getWith(t, c, s.URL+"/"); !strings.Contains(body, `data-testid="signin-form"`) {
+		t.Errorf("after sign-out, home did not end at the sign-in form")
 	}
 	if code := s.Stop(t); code != exitOK {
 		t.Errorf("exit %d after cancel, want 0\nstderr: %s", code, s.stderr)
@@ -140,7 +193,11 @@ func TestServeDemo(t *testing.T) {
 	if !strings.Contains(out, "passwords are shown only this once") {
 		t.Errorf("demo accounts not printed:\n%s", out)
 	}
-	_, home := get(t, s.URL+"/")
+	m := regexp.MustCompile(`demo\.manager\s+manager\s+(\S+)`).FindStringSubmatch(out)
+	if m == nil {
+		t.Fatalf("no demo.manager password in:\n%s", out)
+	}
+	_, home := getWith(t, signIn(t, s.URL, "demo.manager", m[1]), s.URL+"/")
 	if !strings.Contains(home, demo.WardCode) {
 		t.Errorf("home page lacks the demo ward %q", demo.WardCode)
 	}
@@ -216,11 +273,18 @@ func TestServePostgres(t *testing.T) {
 		t.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL end-to-end test skipped")
 	}
 	dbURL := mustCreateDatabase(t, base)
+	if code, _, errs := runCLI(t, t.TempDir(), "first admin pw\n", "user", "add", "--role", "admin", "--db", dbURL, "ada.admin"); code != exitOK {
+		t.Fatalf("user add: %d %s", code, errs)
+	}
 	s := MustServe(t, "--addr", "127.0.0.1:0", "--db", dbURL, "--data-dir", t.TempDir())
 	for _, p := range []string{"/readyz", "/"} {
 		if code, body := get(t, s.URL+p); code != http.StatusOK {
 			t.Errorf("GET %s = %d\n%s", p, code, body)
 		}
+	}
+	// The session lives in PostgreSQL (pgxstore).
+	if _, home := getWith(t, signIn(t, s.URL, "ada.admin", "first admin pw"), s.URL+"/"); !strings.Contains(home, "Signed in as ada.admin") {
+		t.Errorf("home after sign-in on PostgreSQL:\n%s", home)
 	}
 	if code := s.Stop(t); code != exitOK {
 		t.Errorf("exit %d\nstderr: %s", code, s.stderr)

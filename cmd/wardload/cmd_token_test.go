@@ -1,0 +1,81 @@
+package main
+
+import (
+	"context"
+	"strings"
+	"testing"
+
+	"wardload/internal/server"
+	"wardload/internal/wardload"
+)
+
+func TestTokenCreateAndRevoke(t *testing.T) {
+	dir := t.TempDir()
+	st := openTestStore(t, dir)
+	ctx := context.Background()
+	for _, c := range []string{"w2", "w3"} {
+		if err := st.CreateWard(ctx, &wardload.Ward{Code: c, Name: "Ward " + c, TimeZone: "Europe/London"}); err != nil {
+			t.Fatal(err)
+		}
+	}
+
+	code, out, errs := runCLI(t, dir, "", "token", "create", "--ward", "w2,w3", "--name", "roster-planner")
+	if code != exitOK {
+		t.Fatalf("token create = %d, %q, %q", code, out, errs)
+	}
+	secret := strings.TrimSpace(out)
+	if !strings.HasPrefix(secret, "wlk_") || strings.Count(out, "\n") != 1 {
+		t.Fatalf("stdout = %q, want the secret alone on one line", out)
+	}
+	tok, err := st.FindTokenByName(ctx, "roster-planner")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if tok.Hash != server.TokenHash(secret) || tok.Hash == secret || len(tok.WardIDs) != 2 || !tok.Active() {
+		t.Errorf("stored token = %+v; want the hash of the printed secret, two wards, active", tok)
+	}
+	es, _, err := st.FindAudit(ctx, wardload.AuditFilter{Action: ptr("token.create")})
+	if err != nil || len(es) != 1 || es[0].Actor != "cli" {
+		t.Fatalf("audit of token.create = %+v, %v; want one row by cli", es, err)
+	}
+
+	// The same name again is refused as bad input.
+	if code, _, errs := runCLI(t, dir, "", "token", "create", "--ward", "w2", "--name", "roster-planner"); code != exitUsage {
+		t.Errorf("duplicate name = %d (%s), want %d", code, errs, exitUsage)
+	}
+
+	code, out, errs = runCLI(t, dir, "", "token", "revoke", "roster-planner")
+	if code != exitOK || out != "revoked token roster-planner\n" {
+		t.Fatalf("token revoke = %d, %q, %q", code, out, errs)
+	}
+	if tok, err = st.FindTokenByName(ctx, "roster-planner"); err != nil || tok.Active() {
+		t.Errorf("after revoke: %+v, %v; want revoked", tok, err)
+	}
+	if code, _, _ := runCLI(t, dir, "", "token", "revoke", "roster-planner"); code != exitUsage {
+		t.Errorf("second revoke = %d, want %d (already revoked)", code, exitUsage)
+	}
+}
+
+func TestTokenBadInput(t *testing.T) {
+	dir := t.TempDir()
+	for _, tc := range []struct {
+		name string
+		args []string
+	}{
+		{"no ward", []string{"token", "create", "--name", "x"}},
+		{"no name", []string{"token", "create", "--ward", "w2"}},
+		{"unknown ward", []string{"token", "create", "--ward", "nope", "--name", "x"}},
+		{"bad name", []string{"token", "create", "--ward", "nope", "--name", "Bad Name"}},
+		{"revoke unknown", []string{"token", "revoke", "nobody"}},
+		{"revoke without name", []string{"token", "revoke"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			code, out, errs := runCLI(t, dir, "", tc.args...)
+			if code != exitUsage || out != "" || errs == "" {
+				t.Errorf("= %d, %q, %q; want %d, no output, a message", code, out, errs, exitUsage)
+			}
+		})
+	}
+}
+
+func ptr[T any](v T) *T { return &v }
