@@ -136,9 +136,10 @@ func newBootstrapWorker(tiers []BootstrapTier) *bootstrapWorker {
 // run fills out with the totals of one chunk. The generator and the
 // bounded-integer step are written out in the loop so that the compiler
 // keeps the PCG state in registers; TestPCGMatchesStdlib checks the
-// copied generator against math/rand/v2.
+// copied generator against math/rand/v2, and TestBootstrapDeterministic
+// pins the first totals.
 func (w *bootstrapWorker) run(out []float64, seed, chunk uint64) {
-	g := newPCG(seed, splitmix64(chunk^streamKey))
+	hi, lo := seed, splitmix64(chunk^streamKey) // PCG state, as rand.NewPCG(seed, …)
 	for k := range w.tiers {
 		clear(w.tiers[k].stamp) // generations restart at 1 in every chunk
 	}
@@ -147,26 +148,28 @@ func (w *bootstrapWorker) run(out []float64, seed, chunk uint64) {
 		total := 0.0
 		for k := range w.tiers {
 			t := &w.tiers[k]
-			m := t.m
+			// Locals, so the slice headers are not reloaded after every store.
+			m, stamp, cache, values := t.m, t.stamp, t.cache, t.values
 			for range t.patients {
 				// One 64-bit output: the low half picks the patient's slot j
 				// in the resample, the high half (used only if r_j is not
 				// made yet in this draw) picks which observation r_j is.
-				u := g.Uint64()
+				var u uint64
+				hi, lo, u = pcgNext(hi, lo)
 				p := uint64(uint32(u)) * uint64(m)
 				if uint32(p) < m {
-					p = g.rejectLow(p, m)
+					hi, lo, p = rejectLow(hi, lo, p, m)
 				}
 				j := uint32(p >> 32)
-				if t.stamp[j] != gen {
+				if stamp[j] != gen {
 					q := (u >> 32) * uint64(m)
 					if uint32(q) < m {
-						q = g.rejectLow(q, m)
+						hi, lo, q = rejectLow(hi, lo, q, m)
 					}
-					t.cache[j] = t.values[q>>32]
-					t.stamp[j] = gen
+					cache[j] = values[q>>32]
+					stamp[j] = gen
 				}
-				total += t.cache[j]
+				total += cache[j]
 			}
 		}
 		out[d] = total
@@ -287,6 +290,16 @@ func newPCG(seed1, seed2 uint64) pcg { return pcg{seed1, seed2} }
 
 // Uint64 advances the state and returns the next 64-bit output.
 func (p *pcg) Uint64() uint64 {
+	var out uint64
+	p.hi, p.lo, out = pcgNext(p.hi, p.lo)
+	return out
+}
+
+// pcgNext is one PCG-DXSM step on a state held in two words: it returns
+// the new state and the output. The bootstrap loop keeps hi and lo in
+// local variables, which the compiler holds in registers; a pcg value
+// whose address is taken would be reloaded from memory on every draw.
+func pcgNext(hi, lo uint64) (nhi, nlo, out uint64) {
 	const (
 		mulHi    = 2549297995355413924
 		mulLo    = 4865540595714422341
@@ -294,28 +307,30 @@ func (p *pcg) Uint64() uint64 {
 		incLo    = 1442695040888963407
 		cheapMul = 0xda942042e4dd58b5
 	)
-	hi, lo := bits.Mul64(p.lo, mulLo)
-	hi += p.hi*mulLo + p.lo*mulHi
-	lo, c := bits.Add64(lo, incLo, 0)
-	hi, _ = bits.Add64(hi, incHi, c)
-	p.lo, p.hi = lo, hi
-	hi ^= hi >> 32
-	hi *= cheapMul
-	hi ^= hi >> 48
-	hi *= lo | 1
-	return hi
+	h, l := bits.Mul64(lo, mulLo)
+	h += hi*mulLo + lo*mulHi
+	l, c := bits.Add64(l, incLo, 0)
+	h, _ = bits.Add64(h, incHi, c)
+	out = h
+	out ^= out >> 32
+	out *= cheapMul
+	out ^= out >> 48
+	out *= l | 1
+	return h, l, out
 }
 
-// rejectLow finishes Lemire's (2019) bounded-integer method: p is x·n for a
-// 32-bit x whose low word fell under n. If that low word is also under
-// 2³² mod n the product is biased and x is redrawn (from the low half of a
-// fresh output) until it is not. Returns the accepted product; its high word
-// is the uniform integer in [0, n). Rare (probability < n/2³²), so kept out
-// of line.
-func (p *pcg) rejectLow(prod uint64, n uint32) uint64 {
+// rejectLow finishes Lemire's (2019) bounded-integer method: prod is x·n
+// for a 32-bit x whose low word fell under n. If that low word is also
+// under 2³² mod n the product is biased and x is redrawn (from the low half
+// of a fresh output) until it is not. Returns the new generator state and
+// the accepted product, whose high word is the uniform integer in [0, n).
+// Rare (probability < n/2³²), so kept out of the loop body.
+func rejectLow(hi, lo, prod uint64, n uint32) (nhi, nlo, nprod uint64) {
 	thresh := -n % n
 	for uint32(prod) < thresh {
-		prod = uint64(uint32(p.Uint64())) * uint64(n)
+		var u uint64
+		hi, lo, u = pcgNext(hi, lo)
+		prod = uint64(uint32(u)) * uint64(n)
 	}
-	return prod
+	return hi, lo, prod
 }
