@@ -368,3 +368,37 @@ func TestProjectionInputJSONRoundTrip(t *testing.T) {
 		t.Errorf("stored input %s", stored)
 	}
 }
+
+// The domain brief's §1.6 illustration end to end (a [D] derivation in the
+// brief, used only as a cross-check): 12-hour shift, direct-care fraction
+// 0.85 (10.2 usable hours), tiers (n, μ h, σ h) = (10, 1.5, 0.6),
+// (8, 3.0, 1.2), (4, 6.0, 2.5) with 30 observations each. Brief: the mean
+// needs 6.18 → 7 nurses, the 90th percentile 7.04 → 8. R 4.2.2
+// (testdata/projection_reference.R) gives 7.0444519485649364 for the latter;
+// the former is 63 / 10.2 exactly.
+func TestProjectDomainBrief(t *testing.T) {
+	in := ProjectionInput{ShiftHours: 12, DirectCareFraction: 0.85, Cover: 0.9, Draws: 1000, Seed: 1}
+	for k, s := range []struct{ n, mu, sigma float64 }{{10, 1.5, 0.6}, {8, 3.0, 1.2}, {4, 6.0, 2.5}} {
+		a := s.sigma * math.Sqrt(29.0/30)
+		ts := TierSample{Code: string(rune('a' + k)), Patients: int(s.n)}
+		for i := range 30 {
+			y := 60 * (s.mu - a)
+			if i%2 == 1 {
+				y = 60 * (s.mu + a)
+			}
+			ts.CareMinutes = append(ts.CareMinutes, y)
+			ts.WindowHours = append(ts.WindowHours, 12)
+		}
+		in.Tiers = append(in.Tiers, ts)
+	}
+	p, err := Project(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !scalar.EqualWithinRel(p.Nurses.ExpectedUnrounded, 63/10.2, 1e-12) || p.Nurses.Expected != 7 {
+		t.Errorf("mean need %.17g → %d, want 6.176… → 7", p.Nurses.ExpectedUnrounded, p.Nurses.Expected)
+	}
+	if !scalar.EqualWithinRel(p.Nurses.CoverUnrounded, 7.0444519485649364, 1e-12) || p.Nurses.Cover != 8 {
+		t.Errorf("90%% need %.17g → %d, want 7.0444… → 8", p.Nurses.CoverUnrounded, p.Nurses.Cover)
+	}
+}
