@@ -72,7 +72,8 @@ type ProjectionInput struct {
 //
 // i.e. care is assumed to be spread evenly over time. Where care clusters
 // (mornings, admissions) this is wrong, so Project warns whenever a window
-// differs from the shift. It panics if the slices differ in length.
+// differs from the shift (pro-rating by time: common practice, no source).
+// It panics if the slices differ in length.
 func ShiftMinutes(careMinutes, windowHours []float64, shiftHours float64) []float64 {
 	if len(careMinutes) != len(windowHours) {
 		panic("stats: ShiftMinutes length mismatch")
@@ -109,7 +110,9 @@ type TierMoments struct {
 // of its patients' shifts; the census is taken as fixed for the shift (no
 // term for admissions during it). The first two lines are the mean and
 // variance of a sum of independent variables; the third is the variance of
-// n_k·ȳ_k, n_k²·σ_k²/m_k, with s_k² plugged in for σ_k².
+// n_k·ȳ_k, n_k²·σ_k²/m_k, with s_k² plugged in for σ_k² (standard results
+// for sums of independent variables and the variance of a sample mean; the
+// decomposition is the domain brief's §1.6 [D] model).
 //
 // Each tier's mean and SD come from MeanSD, a corrected two-pass algorithm
 // (Chan, Golub & LeVeque 1983). Tiers with Patients 0
@@ -232,4 +235,37 @@ func (in *ProjectionInput) validate() error {
 		}
 	}
 	return nil
+}
+
+// FloorFor builds the FloorSpec of one shift pattern from a ward's
+// configured ratio floors (wardload.Settings.Floors), or nil when none
+// applies to the shift. tierCode maps tier IDs to the codes used in
+// ProjectionInput; a floor naming a tier missing from it is skipped (the
+// tier has no patients on the projection). The nurse in charge counts
+// only if every applicable floor says so: where any one of them says the
+// nurse in charge is extra, one nurse is added (the cautious reading).
+func FloorFor(floors []wardload.RatioFloor, shiftID int64, tierCode map[int64]string) *FloorSpec {
+	var spec *FloorSpec
+	for _, f := range floors {
+		if f.ShiftID != shiftID {
+			continue
+		}
+		if spec == nil {
+			spec = &FloorSpec{ChargeNurseCounts: true}
+		}
+		spec.ChargeNurseCounts = spec.ChargeNurseCounts && f.ChargeNurseCounts
+		if f.TierID == 0 {
+			spec.PatientsPerNurse = f.PatientsPerNurse
+			continue
+		}
+		code, ok := tierCode[f.TierID]
+		if !ok {
+			continue
+		}
+		if spec.TierPatientsPerNurse == nil {
+			spec.TierPatientsPerNurse = map[string]float64{}
+		}
+		spec.TierPatientsPerNurse[code] = f.PatientsPerNurse
+	}
+	return spec
 }

@@ -5,6 +5,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"wardload/internal/wardload"
 )
 
 // Hand-computed (small integers, checkable on paper):
@@ -164,5 +166,31 @@ func TestCeilNurses(t *testing.T) {
 		if got := ceilNurses(tc.x); got != tc.want {
 			t.Errorf("ceilNurses(%.17g) = %d, want %d", tc.x, got, tc.want)
 		}
+	}
+}
+
+func TestFloorFor(t *testing.T) {
+	floors := []wardload.RatioFloor{
+		{ShiftID: 1, PatientsPerNurse: 4, ChargeNurseCounts: true},
+		{ShiftID: 1, TierID: 30, PatientsPerNurse: 2, ChargeNurseCounts: true},
+		{ShiftID: 1, TierID: 99, PatientsPerNurse: 1, ChargeNurseCounts: true}, // tier not in the projection
+		{ShiftID: 2, PatientsPerNurse: 6},
+	}
+	codes := map[int64]string{10: "t1", 30: "t3"}
+	got := FloorFor(floors, 1, codes)
+	if got == nil || got.PatientsPerNurse != 4 || !got.ChargeNurseCounts ||
+		len(got.TierPatientsPerNurse) != 1 || got.TierPatientsPerNurse["t3"] != 2 {
+		t.Errorf("shift 1: %+v", got)
+	}
+	if got := FloorFor(floors, 2, codes); got == nil || got.PatientsPerNurse != 6 || got.ChargeNurseCounts || got.TierPatientsPerNurse != nil {
+		t.Errorf("shift 2: %+v", got)
+	}
+	if got := FloorFor(floors, 3, codes); got != nil {
+		t.Errorf("shift 3 has no floor, got %+v", got)
+	}
+	// One floor saying the nurse in charge is extra is enough to add one.
+	mixed := append(floors[:2:2], wardload.RatioFloor{ShiftID: 1, TierID: 10, PatientsPerNurse: 3})
+	if got := FloorFor(mixed, 1, codes); got.ChargeNurseCounts {
+		t.Errorf("mixed charge-nurse rules: %+v, want ChargeNurseCounts false", got)
 	}
 }
