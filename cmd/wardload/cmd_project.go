@@ -76,7 +76,7 @@ func runProject(_ context.Context, e *env, args []string) int {
 	chargeCounts := fs.Bool("charge-nurse-counts", false, "the nurse in charge counts towards the ratio floor (otherwise one nurse is added)")
 	column := fs.String("column", defaultColumn, "name of the care minutes column")
 	asJSON := fs.Bool("json", false, "print one JSON object instead of a table")
-	files, code, ok := parseInterleaved(fs, args)
+	files, code, ok := parseInterleaved(e, fs, args)
 	if !ok {
 		return code
 	}
@@ -162,11 +162,24 @@ func runProject(_ context.Context, e *env, args []string) int {
 
 // parseInterleaved parses flags that may come before and after positional
 // arguments ("project FILE --census …"): Go's flag package stops at the
-// first positional argument, so parsing resumes after each one.
-func parseInterleaved(fs *flag.FlagSet, args []string) (positional []string, code int, ok bool) {
+// first positional argument, so parsing resumes after each one. Unlike
+// parseFlags it reports a bad flag in one line (the flag package's own
+// message) instead of the whole usage, so that a script sees one clear
+// line; --help still prints the usage.
+func parseInterleaved(e *env, fs *flag.FlagSet, args []string) (positional []string, code int, ok bool) {
+	help := fs.Usage
+	fs.Usage = func() {}
+	fs.SetOutput(io.Discard)
 	for {
-		if code, ok := parseFlags(fs, args); !ok {
-			return nil, code, false
+		err := fs.Parse(args)
+		if errors.Is(err, flag.ErrHelp) {
+			fs.SetOutput(e.stderr)
+			help()
+			return nil, exitOK, false
+		}
+		if err != nil {
+			fmt.Fprintf(e.stderr, "wardload %s: %v (see wardload %s --help)\n", fs.Name(), err, fs.Name())
+			return nil, exitUsage, false
 		}
 		if fs.NArg() == 0 {
 			return positional, 0, true

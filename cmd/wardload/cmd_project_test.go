@@ -151,6 +151,10 @@ func TestProjectCommandTable(t *testing.T) {
 	if !strings.Contains(out, "No ratio floor was given") {
 		t.Errorf("table without floor does not say so:\n%s", out)
 	}
+	code, out, errs = runProjectCLI(t, "", "--help")
+	if code != exitOK || out != "" || !strings.Contains(errs, "Usage: wardload project") || !strings.Contains(errs, "-census") {
+		t.Errorf("--help: exit %d, stdout %q, stderr %q", code, out, errs)
+	}
 }
 
 func TestProjectCommandBadInput(t *testing.T) {
@@ -187,6 +191,8 @@ func TestProjectCommandBadInput(t *testing.T) {
 			exitUsage, `line 3, column "window_hours"`},
 		{"no window", "tier,care_minutes\na,10\na,4\n", append([]string{"-", "--census", "a=1"}, base...), exitUsage, "--window-hours"},
 		{"no column", handCSV, append([]string{"-", "--census", "a=1", "--column", "minutes"}, base...), exitUsage, `no column "minutes"`},
+		{"draws not a number", handCSV, append([]string{"-", "--census", "a=1", "--draws", "many"}, base...), exitUsage, "-draws"},
+		{"unknown flag", handCSV, append([]string{"-", "--census", "a=1", "--beds", "3"}, base...), exitUsage, "-beds"},
 		{"missing file", "", append([]string{filepath.Join(t.TempDir(), "nope.csv"), "--census", "a=1"}, base...), exitFailure, "cannot open the file"},
 	}
 	for _, tc := range tests {
