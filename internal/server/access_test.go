@@ -1,0 +1,244 @@
+package server
+
+import (
+	"context"
+	"fmt"
+	"net/http"
+	"net/http/httptest"
+	"net/url"
+	"slices"
+	"strings"
+	"testing"
+
+	"wardload/internal/wardload"
+)
+
+// Token principals of API routes.
+const (
+	tNone     = "no token"
+	tForged   = "forged token"
+	tRevoked  = "revoked token"
+	tOtherW   = "token of ward B"
+	tValid    = "token of ward A"
+	pSignedIn = "session cookie" // a signed-in admin's cookie on an API route
+	pAnon     = "signed out"
+)
+
+var (
+	everyone  = []string{pAnon, pNurseA, pManagerA, pAdmin, pManagerB}
+	signedIn  = []string{pNurseA, pManagerA, pAdmin, pManagerB}
+	managers  = []string{pManagerA, pAdmin, pManagerB}
+	wardAMgrs = []string{pManagerA, pAdmin} // manager/admin who may see ward A
+	admins    = []string{pAdmin}
+)
+
+// routeExpectations says, for every route by name, which principals may
+// use it. It is written independently of the route table: a route the
+// table adds without an entry here fails TestEveryRouteByEveryPrincipal.
+var routeExpectations = map[string][]string{
+	"home":         signedIn,
+	"healthz":      everyone,
+	"readyz":       everyone,
+	"static":       everyone,
+	"signin.form":  everyone,
+	"signin":       everyone,
+	"signout":      signedIn,
+	"tokens":       wardAMgrs,
+	"token.create": wardAMgrs,
+	"token.revoke": wardAMgrs,
+	"audit":        managers,
+	"users":        admins,
+	"user.create":  admins,
+	"user.update":  admins,
+	// API routes: token principals. A token of ward B may list its own
+	// wards; ward-scoped API routes would refuse it for ward A.
+	"api.wards": {tValid, tOtherW},
+}
+
+// TestEveryRouteByEveryPrincipal walks every route of the table as every
+// principal and checks the declared answer: signed out → 303 to sign-in
+// (pages) or 401 (API); wrong role or other ward → 403; allowed → neither.
+func TestEveryRouteByEveryPrincipal(t *testing.T) {
+	f := newFixture(t)
+	validSecret, _ := f.MustToken(t, "planner-a", f.wardA.ID)
+	otherSecret, _ := f.MustToken(t, "planner-b", f.wardB.ID)
+	revokedSecret, revoked := f.MustToken(t, "planner-old", f.wardA.ID)
+	if err := f.st.RevokeToken(context.Background(), revoked.ID); err != nil {
+		t.Fatal(err)
+	}
+	_, target := f.MustToken(t, "to-revoke", f.wardA.ID)
+	forged, _ := NewTokenSecret()
+	tokens := map[string]string{tNone: "", tForged: forged, tRevoked: revokedSecret, tOtherW: otherSecret, tValid: validSecret}
+
+	seen := map[string]bool{}
+	for _, rt := range f.s.Routes() {
+		allowed, ok := routeExpectations[rt.Name]
+		if !ok {
+			t.Errorf("route %s %s (%s) has no expectation in routeExpectations", rt.Method, rt.Pattern, rt.Name)
+			continue
+		}
+		seen[rt.Name] = true
+		path := strings.NewReplacer("{ward}", f.wardA.Code, "*", "wardload.css").Replace(rt.Pattern)
+		path = strings.ReplaceAll(path, "{id}", fmt.Sprint(idFor(rt, f, target)))
+		if strings.Contains(path, "{") {
+			t.Errorf("route %s: test cannot fill %s", rt.Name, path)
+			continue
+		}
+		newReq := func() *http.Request {
+			if rt.Method == http.MethodPost {
+				return post(path, url.Values{})
+			}
+			return httptest.NewRequest(rt.Method, path, nil)
+		}
+		if rt.Access.API {
+			for _, p := range []string{pSignedIn, tNone, tForged, tRevoked, tOtherW, tValid} {
+				t.Run(rt.Name+"/"+p, func(t *testing.T) {
+					req := newReq()
+					if p == pSignedIn {
+						req = f.as(t, pAdmin, req)
+					} else if tokens[p] != "" {
+						req.Header.Set("Authorization", "Bearer "+tokens[p])
+					}
+					res, body := f.do(t, req)
+					switch {
+					case slices.Contains(allowed, p):
+						if res.StatusCode == 401 || res.StatusCode == 403 {
+							t.Errorf("allowed: status %d %s", res.StatusCode, body)
+						}
+					case p == tOtherW:
+						if res.StatusCode != 403 {
+							t.Errorf("other ward's token: status %d, want 403", res.StatusCode)
+						}
+					default:
+						if res.StatusCode != 401 || !strings.HasPrefix(res.Header.Get("WWW-Authenticate"), "Bearer") {
+							t.Errorf("status %d WWW-Authenticate %q, want 401 Bearer", res.StatusCode, res.Header.Get("WWW-Authenticate"))
+						}
+						if !strings.Contains(body, `"code":"unauthorized"`) {
+							t.Errorf("body %s, want JSON unauthorized", body)
+						}
+					}
+				})
+			}
+			continue
+		}
+		for _, p := range everyone {
+			t.Run(rt.Name+"/"+p, func(t *testing.T) {
+				req := newReq()
+				if p != pAnon {
+					req = f.as(t, p, req)
+				}
+				res, body := f.do(t, req)
+				loc := res.Header.Get("Location")
+				toSignIn := res.StatusCode == 303 && strings.HasPrefix(loc, "/signin?next=")
+				switch {
+				case slices.Contains(allowed, p):
+					if res.StatusCode == 401 || res.StatusCode == 403 || toSignIn {
+						t.Errorf("allowed: status %d Location %q\n%s", res.StatusCode, loc, body)
+					}
+				case p == pAnon:
+					if !toSignIn {
+						t.Errorf("signed out: status %d Location %q, want 303 to /signin?next=", res.StatusCode, loc)
+					}
+				default:
+					if res.StatusCode != 403 || len(byTestID(t, body, "error-message")) != 1 {
+						t.Errorf("refused: status %d, want the 403 page", res.StatusCode)
+					}
+				}
+			})
+		}
+	}
+	for name := range routeExpectations {
+		if !seen[name] {
+			t.Errorf("expectation for %s, which is not in the route table", name)
+		}
+	}
+}
+
+// idFor returns an existing ID for a route's {id}: a token of ward A for
+// token routes, a user for user routes.
+func idFor(rt Route, f *fixture, tok *wardload.APIToken) int64 {
+	switch {
+	case strings.Contains(rt.Pattern, "/tokens/"):
+		return tok.ID
+	case strings.Contains(rt.Pattern, "/users/"):
+		return f.users[pNurseA].ID
+	}
+	return 0
+}
+
+func TestUnknownWardIs404(t *testing.T) {
+	f := newFixture(t)
+	for _, p := range []string{pManagerA, pAdmin} {
+		res, _ := f.do(t, f.as(t, p, httptest.NewRequest("GET", "/wards/no-such-ward/tokens", nil)))
+		if res.StatusCode != 404 {
+			t.Errorf("%s: unknown ward = %d, want 404", p, res.StatusCode)
+		}
+	}
+}
+
+func TestSignedOutRedirectKeepsOnlyLocalNext(t *testing.T) {
+	f := newFixture(t)
+	res, _ := f.do(t, httptest.NewRequest("GET", "/audit?action=signin.fail", nil))
+	if got := res.Header.Get("Location"); got != "/signin?next="+url.QueryEscape("/audit?action=signin.fail") {
+		t.Errorf("Location = %q", got)
+	}
+	// A form post cannot be repeated after signing in: next is home.
+	res, _ = f.do(t, post("/wards/w-a/tokens", url.Values{"name": {"x"}}))
+	if got := res.Header.Get("Location"); got != "/signin?next=%2F" {
+		t.Errorf("POST Location = %q, want /signin?next=%%2F", got)
+	}
+}
+
+func TestLocalPath(t *testing.T) {
+	for in, want := range map[string]string{
+		"/":                     "/",
+		"/audit?ward=w-a":       "/audit?ward=w-a",
+		"":                      "/",
+		"//evil.example/":       "/",
+		"/\\evil.example":       "/",
+		"https://evil.example/": "/",
+		"evil":                  "/",
+		"/ok\r\nSet-Cookie: x":  "/",
+		"javascript:alert(1)":   "/",
+	} {
+		if got := localPath(in); got != want {
+			t.Errorf("localPath(%q) = %q, want %q", in, got, want)
+		}
+	}
+}
+
+// TestCrossSitePostToRealRoutes: the cross-origin check sits in front of
+// every route, so a signed-in manager's browser tricked by another site
+// into posting creates nothing and signs nobody in or out.
+func TestCrossSitePostToRealRoutes(t *testing.T) {
+	f := newFixture(t)
+	for _, tc := range []struct {
+		name string
+		req  *http.Request
+	}{
+		{"create token", f.as(t, pManagerA, post("/wards/w-a/tokens", url.Values{"name": {"evil"}}))},
+		{"sign in", post("/signin", url.Values{"name": {"a.admin"}, "password": {f.passwords["a.admin"]}})},
+		{"create user", f.as(t, pAdmin, post("/admin/users", url.Values{"name": {"evil"}, "role": {"admin"}, "password": {"0123456789abc"}}))},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			tc.req.Header.Set("Sec-Fetch-Site", "cross-site")
+			tc.req.Header.Set("Origin", "https://evil.example")
+			res, _ := f.do(t, tc.req)
+			if res.StatusCode != 403 {
+				t.Errorf("status %d, want 403", res.StatusCode)
+			}
+			if f.sessionCookie(res) != nil {
+				t.Error("refused request set a session cookie")
+			}
+		})
+	}
+	if _, err := f.st.FindTokenByName(context.Background(), "evil"); wardload.ErrorCode(err) != wardload.ENOTFOUND {
+		t.Errorf("token after cross-site post: %v, want not found", err)
+	}
+	if _, err := f.st.FindUserByName(context.Background(), "evil"); wardload.ErrorCode(err) != wardload.ENOTFOUND {
+		t.Errorf("user after cross-site post: %v, want not found", err)
+	}
+	if n := len(f.audit(t, "signin.ok")); n != 0 {
+		t.Errorf("%d sign-ins after cross-site post, want 0", n)
+	}
+}
