@@ -1,0 +1,145 @@
+// Package export writes a ward's projections for a roster planner, as CSV
+// (RFC 4180) and as JSON with the same rows, columns and digits. The shift
+// list download, `wardload export projections` and the projections API
+// all use it, so the three give identical content.
+//
+// Every export carries the caution that its figures are estimates which
+// defer to local staffing law, collective agreements and licensed clinical
+// judgement, and the ratio floor used for each row.
+package export
+
+import (
+	"context"
+	"encoding/json"
+	"slices"
+	"strconv"
+	"time"
+
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+)
+
+// MaxDays is the longest date range one export covers (inclusive), so a
+// typing error in a year cannot ask for decades of rows.
+const MaxDays = 366
+
+// Row is one ward × dated shift: its newest projection.
+type Row struct {
+	Ward               string        // ward code
+	Date               wardload.Date // the dated shift's date
+	Shift              string        // shift name when projected
+	Start, End         time.Time     // in the ward's time zone
+	ShiftHours         float64       // real hours of the dated shift
+	CensusRevision     int
+	TotalPatients      int
+	Census             []int // patients per tier, in the order of Rows' tiers
+	CoverLevel         float64
+	ExpectedNurseHours float64
+	BandLowNurseHours  float64 // normal band at two-sided level CoverLevel
+	BandHighNurseHours float64
+	NursesCover        int
+	Floor              *int   // nil: no ratio floor configured for the shift
+	FloorRule          string // the floor used, in words; NoFloor when none
+	Recommended        int
+	DecidedBy          string
+	MethodVersion      string
+	GeneratedAt        time.Time // when the projection was made, in the ward's time zone
+	Caution            string
+}
+
+// Rows returns the newest projection (wardload.ProjectionFilter.LatestOnly)
+// of each dated shift of ward from from to to inclusive, oldest first
+// (date, then shift start): a roster is read forward in time. It also
+// returns the ward's tiers, whose order Row.Census follows. Returns
+// EINVALID "from" or "to" for a missing date, an end before the start or
+// a range over MaxDays.
+func Rows(ctx context.Context, st wardload.Store, ward *wardload.Ward, from, to wardload.Date) ([]*wardload.Tier, []Row, error) {
+	if from.IsZero() {
+		return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "from", "The first date is required.")
+	}
+	if to.IsZero() {
+		return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "to", "The last date is required.")
+	}
+	if to.Before(from) {
+		return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "to", "The last date %s is before the first date %s.", to, from)
+	}
+	if !to.Before(from.AddDays(MaxDays)) {
+		return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "to", "An export covers at most %d days.", MaxDays)
+	}
+	loc, err := ward.Location()
+	if err != nil {
+		return nil, nil, err
+	}
+	tiers, err := st.FindTiers(ctx, ward.ID)
+	if err != nil {
+		return nil, nil, err
+	}
+	ps, _, err := st.FindProjections(ctx, wardload.ProjectionFilter{WardID: &ward.ID, From: &from, To: &to, LatestOnly: true})
+	if err != nil {
+		return nil, nil, err
+	}
+	slices.Reverse(ps) // the store gives newest first
+	rows := make([]Row, 0, len(ps))
+	for _, p := range ps {
+		r := Row{
+			Ward: ward.Code, Date: p.Date, Shift: p.ShiftName,
+			Start: p.Start.In(loc), End: p.End.In(loc), ShiftHours: p.ShiftHours,
+			CensusRevision: p.CensusRevision, TotalPatients: p.TotalPatients,
+			CoverLevel: p.CoverLevel, ExpectedNurseHours: p.ExpectedNurseHours,
+			BandLowNurseHours: p.BandLowNurseHours, BandHighNurseHours: p.BandHighNurseHours,
+			NursesCover: p.NursesCover, Floor: p.Floor, Recommended: p.Recommended, DecidedBy: p.DecidedBy,
+			MethodVersion: p.MethodVersion, GeneratedAt: p.CreatedAt.In(loc), Caution: stats.Caution,
+		}
+		byTier := map[int64]int{}
+		for _, tc := range p.Counts {
+			byTier[tc.TierID] = tc.Patients
+		}
+		for _, t := range tiers {
+			r.Census = append(r.Census, byTier[t.ID])
+		}
+		if r.FloorRule, err = floorRule(p); err != nil {
+			return nil, nil, err
+		}
+		rows = append(rows, r)
+	}
+	return tiers, rows, nil
+}
+
+// NoFloor is Row.FloorRule when no ratio floor was configured for the shift.
+const NoFloor = "No ratio floor is configured in wardload for this shift."
+
+// floorRule reads the description of the floor used from the stored
+// result; NoFloor when the projection had none.
+func floorRule(p *wardload.Projection) (string, error) {
+	var res struct {
+		Floor *struct {
+			Description string `json:"description"`
+		} `json:"floor_used"`
+	}
+	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
+		return "", wardload.Errorf(wardload.EINTERNAL, "The stored result of projection %d cannot be read.", p.ID)
+	}
+	if res.Floor == nil {
+		return NoFloor, nil
+	}
+	return res.Floor.Description, nil
+}
+
+// FormatHours formats hours and nurse-hours as the export writes them:
+// fixed, two decimals (hundredths of an hour, 36 seconds, are finer than
+// any roster), with "-0.00" written as "0.00". Pages that show exported
+// figures should use it so that they show the same digits.
+func FormatHours(v float64) string {
+	s := strconv.FormatFloat(v, 'f', 2, 64)
+	if s == "-0.00" {
+		return "0.00"
+	}
+	return s
+}
+
+// FormatLevel formats a probability such as the cover level in the
+// shortest form that reads back exactly (0.9, not 0.90).
+func FormatLevel(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// FormatTime formats an instant as RFC 3339 with its offset, to the second.
+func FormatTime(t time.Time) string { return t.Format(time.RFC3339) }

@@ -1,0 +1,166 @@
+package export
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"strconv"
+
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+)
+
+// Columns returns the CSV header for tiers: the fixed columns with one
+// "census_<code>" column per tier after census_total.
+func Columns(tiers []*wardload.Tier) []string {
+	cols := []string{"ward", "date", "shift", "start", "end", "shift_hours", "census_revision", "census_total"}
+	for _, t := range tiers {
+		cols = append(cols, "census_"+t.Code)
+	}
+	return append(cols, "cover_level", "expected_nurse_hours", "band_low_nurse_hours", "band_high_nurse_hours",
+		"nurses_at_cover", "ratio_floor_nurses", "ratio_floor_rule", "recommended_nurses", "decided_by",
+		"method_version", "generated_at", "caution")
+}
+
+// fields returns the row's values as the export writes them, in Columns
+// order: hours with FormatHours, levels with FormatLevel, instants with
+// FormatTime, a missing floor as "".
+func (r *Row) fields() []string {
+	f := []string{r.Ward, r.Date.String(), r.Shift, FormatTime(r.Start), FormatTime(r.End), FormatHours(r.ShiftHours),
+		strconv.Itoa(r.CensusRevision), strconv.Itoa(r.TotalPatients)}
+	for _, n := range r.Census {
+		f = append(f, strconv.Itoa(n))
+	}
+	floor := ""
+	if r.Floor != nil {
+		floor = strconv.Itoa(*r.Floor)
+	}
+	return append(f, FormatLevel(r.CoverLevel), FormatHours(r.ExpectedNurseHours), FormatHours(r.BandLowNurseHours),
+		FormatHours(r.BandHighNurseHours), strconv.Itoa(r.NursesCover), floor, r.FloorRule, strconv.Itoa(r.Recommended),
+		r.DecidedBy, r.MethodVersion, FormatTime(r.GeneratedAt), r.Caution)
+}
+
+// WriteCSV writes a header row and one record per row, per RFC 4180
+// (encoding/csv with CRLF line ends). It returns an error if a row's census
+// does not have one count per tier, or the writer fails.
+func WriteCSV(w io.Writer, tiers []*wardload.Tier, rows []Row) error {
+	cw := csv.NewWriter(w)
+	cw.UseCRLF = true
+	if err := cw.Write(Columns(tiers)); err != nil {
+		return err
+	}
+	for i := range rows {
+		if err := checkCensus(&rows[i], tiers); err != nil {
+			return err
+		}
+		if err := cw.Write(rows[i].fields()); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteJSON writes one JSON object:
+//
+//	{"ward": code, "from": date, "to": date, "caution": text,
+//	 "tiers": [{"code", "label"}...], "rows": [{column: value}...]}
+//
+// Each row object has the CSV columns as keys, in the same order, except
+// that the census_<code> columns are gathered into one "census" object
+// (keys in tier order). Numbers are JSON numbers with exactly the CSV's
+// digits; a missing floor is null. The object ends with a newline.
+func WriteJSON(w io.Writer, ward *wardload.Ward, from, to wardload.Date, tiers []*wardload.Tier, rows []Row) error {
+	var b bytes.Buffer
+	b.WriteString("{")
+	key(&b, "ward", ward.Code)
+	b.WriteString(",")
+	key(&b, "from", from.String())
+	b.WriteString(",")
+	key(&b, "to", to.String())
+	b.WriteString(",")
+	key(&b, "caution", stats.Caution)
+	b.WriteString(`,"tiers":[`)
+	for i, t := range tiers {
+		if i > 0 {
+			b.WriteString(",")
+		}
+		b.WriteString("{")
+		key(&b, "code", t.Code)
+		b.WriteString(",")
+		key(&b, "label", t.Label)
+		b.WriteString("}")
+	}
+	b.WriteString(`],"rows":[`)
+	for i := range rows {
+		r := &rows[i]
+		if err := checkCensus(r, tiers); err != nil {
+			return err
+		}
+		if i > 0 {
+			b.WriteString(",")
+		}
+		b.WriteString("\n{")
+		floor := json.RawMessage("null")
+		if r.Floor != nil {
+			floor = json.RawMessage(strconv.Itoa(*r.Floor))
+		}
+		census := &bytes.Buffer{}
+		census.WriteString("{")
+		for k, t := range tiers {
+			if k > 0 {
+				census.WriteString(",")
+			}
+			key(census, t.Code, json.RawMessage(strconv.Itoa(r.Census[k])))
+		}
+		census.WriteString("}")
+		for k, kv := range []struct {
+			k string
+			v any
+		}{
+			{"ward", r.Ward}, {"date", r.Date.String()}, {"shift", r.Shift},
+			{"start", FormatTime(r.Start)}, {"end", FormatTime(r.End)},
+			{"shift_hours", json.RawMessage(FormatHours(r.ShiftHours))},
+			{"census_revision", r.CensusRevision}, {"census_total", r.TotalPatients},
+			{"census", json.RawMessage(census.Bytes())},
+			{"cover_level", json.RawMessage(FormatLevel(r.CoverLevel))},
+			{"expected_nurse_hours", json.RawMessage(FormatHours(r.ExpectedNurseHours))},
+			{"band_low_nurse_hours", json.RawMessage(FormatHours(r.BandLowNurseHours))},
+			{"band_high_nurse_hours", json.RawMessage(FormatHours(r.BandHighNurseHours))},
+			{"nurses_at_cover", r.NursesCover}, {"ratio_floor_nurses", floor}, {"ratio_floor_rule", r.FloorRule},
+			{"recommended_nurses", r.Recommended}, {"decided_by", r.DecidedBy},
+			{"method_version", r.MethodVersion}, {"generated_at", FormatTime(r.GeneratedAt)}, {"caution", r.Caution},
+		} {
+			if k > 0 {
+				b.WriteString(",")
+			}
+			key(&b, kv.k, kv.v)
+		}
+		b.WriteString("}")
+	}
+	b.WriteString("\n]}\n")
+	if !json.Valid(b.Bytes()) {
+		return fmt.Errorf("export: built invalid JSON")
+	}
+	_, err := w.Write(b.Bytes())
+	return err
+}
+
+// key writes "k":v with v JSON-encoded (a json.RawMessage as it is).
+// Encoding strings and small integers cannot fail.
+func key(b *bytes.Buffer, k string, v any) {
+	kb, _ := json.Marshal(k)
+	vb, _ := json.Marshal(v)
+	b.Write(kb)
+	b.WriteString(":")
+	b.Write(vb)
+}
+
+func checkCensus(r *Row, tiers []*wardload.Tier) error {
+	if len(r.Census) != len(tiers) {
+		return fmt.Errorf("export: row %s %s has %d tier counts for %d tiers", r.Date, r.Shift, len(r.Census), len(tiers))
+	}
+	return nil
+}
