@@ -175,7 +175,7 @@ func (s *Server) sessionUser(r *http.Request) (*wardload.User, error) {
 	now := s.now()
 	authAt := time.Unix(s.sessions.GetInt64(ctx, sessAuthAt), 0)
 	seenAt := time.Unix(s.sessions.GetInt64(ctx, sessSeenAt), 0)
-	if now.Sub(authAt) > s.cfg.SessionLifetime || now.Sub(seenAt) > s.cfg.SessionIdle {
+	if now.Sub(authAt) >= s.cfg.SessionLifetime || now.Sub(seenAt) >= s.cfg.SessionIdle {
 		return nil, s.sessions.Destroy(ctx)
 	}
 	u, err := s.store.FindUserByID(ctx, id)
