@@ -63,7 +63,7 @@ var projectFlags = map[string]string{
 func runProject(_ context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "project", "FILE", projectSummary)
 	census := fs.String("census", "", "patients per tier on the shift, e.g. t1=4,t2=10 (tiers left out count 0) (required)")
-	shiftHours := fs.Float64("shift-hours", 0, "length of the projected shift in hours, more than 0 and at most 24 (required)")
+	shiftHours := fs.Float64("shift-hours", 0, "length of the projected shift in hours, more than 0 and at most 25, the real length of a 24-hour shift over the autumn clock change (required)")
 	windowHours := fs.Float64("window-hours", 0, "hours every observation covered; overrides a window_hours column (one of the two is required)")
 	directCare := fs.Float64("direct-care", 0, "share of a nurse's shift available for direct care, more than 0 and at most 1 (required)")
 	levels := fs.String("levels", defaultLevels, "two-sided levels of the normal bands, comma-separated, each between 0 and 1")

@@ -54,7 +54,7 @@ type FloorSpec struct {
 // form is what a stored projection keeps to be re-run later.
 type ProjectionInput struct {
 	Tiers              []TierSample `json:"tiers"`
-	ShiftHours         float64      `json:"shift_hours"`          // length of the projected shift, in (0, 24]
+	ShiftHours         float64      `json:"shift_hours"`          // real length of the projected shift, in (0, 25] (a 24-hour shift lasts 25 h over the autumn clock change)
 	DirectCareFraction float64      `json:"direct_care_fraction"` // share of a nurse's shift available for direct care, in (0, 1]
 	Levels             []float64    `json:"levels"`               // two-sided band levels, each in (0, 1); nil: none
 	Cover              float64      `json:"cover"`                // one-sided cover probability q, in (0, 1)
@@ -160,8 +160,8 @@ func (in *ProjectionInput) validate() error {
 	bad := func(field, format string, args ...any) error {
 		return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
 	}
-	if math.IsNaN(in.ShiftHours) || !(in.ShiftHours > 0 && in.ShiftHours <= 24) {
-		return bad("shift_hours", "Shift length must be more than 0 and at most 24 hours.")
+	if math.IsNaN(in.ShiftHours) || !(in.ShiftHours > 0 && in.ShiftHours <= 25) {
+		return bad("shift_hours", "Shift length must be more than 0 and at most 25 hours.")
 	}
 	if math.IsNaN(in.DirectCareFraction) || !(in.DirectCareFraction > 0 && in.DirectCareFraction <= 1) {
 		return bad("direct_care_fraction", "Direct-care fraction must be more than 0 and at most 1.")

@@ -228,7 +228,7 @@ func TestProjectInvalid(t *testing.T) {
 		field string
 	}{
 		{"shift hours 0", func(in *ProjectionInput) { in.ShiftHours = 0 }, "shift_hours"},
-		{"shift hours 25", func(in *ProjectionInput) { in.ShiftHours = 25 }, "shift_hours"},
+		{"shift hours 25.5", func(in *ProjectionInput) { in.ShiftHours = 25.5 }, "shift_hours"},
 		{"shift hours NaN", func(in *ProjectionInput) { in.ShiftHours = math.NaN() }, "shift_hours"},
 		{"direct care 0", func(in *ProjectionInput) { in.DirectCareFraction = 0 }, "direct_care_fraction"},
 		{"direct care 1.1", func(in *ProjectionInput) { in.DirectCareFraction = 1.1 }, "direct_care_fraction"},

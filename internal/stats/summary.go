@@ -46,6 +46,21 @@ func (n Number) MarshalJSON() ([]byte, error) {
 	return strconv.AppendFloat(nil, n.Value, 'g', -1, 64), nil
 }
 
+// UnmarshalJSON reads what MarshalJSON writes, so a stored result can be
+// decoded again: null is undefined, a number is defined.
+func (n *Number) UnmarshalJSON(b []byte) error {
+	if string(b) == "null" {
+		*n = Undefined
+		return nil
+	}
+	v, err := strconv.ParseFloat(string(b), 64)
+	if err != nil {
+		return err
+	}
+	*n = Defined(v)
+	return nil
+}
+
 // String formats the number with up to 6 significant digits, or "undefined".
 func (n Number) String() string {
 	if !n.Defined {
@@ -93,7 +108,7 @@ func moments(x []float64, sum float64) (mean, ss, comp float64) {
 	for _, v := range x {
 		d := v - m
 		s1 += d
-		s2 += d * d
+		s2 += float64(d * d) // explicit conversion forbids a fused multiply-add, so results are bit-identical on every platform
 	}
 	ss = s2 - s1*s1/n
 	if ss < 0 { // rounding on a constant column
@@ -194,7 +209,7 @@ func Summarize(x []float64, convention string) (*Summary, error) {
 	for _, v := range x {
 		d := v - m
 		s1 += d
-		s2 += d * d
+		s2 += float64(d * d) // explicit conversion forbids a fused multiply-add, so results are bit-identical on every platform
 		if v < in.Lower || v > in.Upper {
 			count++
 		}

@@ -320,3 +320,19 @@ func TestStRDUnivariateCertified(t *testing.T) {
 		}
 	}
 }
+
+func TestNumberJSONRoundTrip(t *testing.T) {
+	for _, n := range []Number{Undefined, Defined(0), Defined(-1.5e-300), Defined(0.1 + 0.2)} {
+		b, err := n.MarshalJSON()
+		if err != nil {
+			t.Fatal(err)
+		}
+		var back Number
+		if err := back.UnmarshalJSON(b); err != nil {
+			t.Fatal(err)
+		}
+		if back != n {
+			t.Errorf("%s round-tripped to %v", b, back)
+		}
+	}
+}
