@@ -182,4 +182,3 @@ func scanDatabase(tb testing.TB, f *fixture, needles []string) []string {
 	}
 	return hits
 }
-
