@@ -16,7 +16,14 @@ const correctionEvery = 23
 // days and charge nurse 2 on nights. The ward runs nearly full, a little
 // emptier at weekends, and the night count drifts from the day's by a
 // patient or two (admissions and discharges).
+//
+// Each entry is stored with its workload projection where the lookback
+// allows one (see saveCensus), so that the shift list has history.
 func (s *seeder) createCensus(ctx context.Context, first, last wardload.Date) error {
+	loc, err := s.ward.Location()
+	if err != nil {
+		return err
+	}
 	n := 0
 	for d := first; !d.After(last); d = d.AddDays(1) {
 		weekday := time.Date(d.Year, d.Month, d.Day, 12, 0, 0, 0, time.UTC).Weekday()
@@ -31,14 +38,14 @@ func (s *seeder) createCensus(ctx context.Context, first, last wardload.Date) er
 			}
 			by := s.users[chargeNames[si%len(chargeNames)]].ID
 			c := &wardload.Census{WardID: s.ward.ID, Date: d, ShiftID: s.shifts[si].ID, Counts: s.split(total), EnteredBy: by}
-			if err := s.st.CreateCensus(ctx, c); err != nil {
+			if _, err := s.saveCensus(ctx, c, loc); err != nil {
 				return fmt.Errorf("create census %s %s: %w", d, shiftSpecs[si].name, err)
 			}
 			n++
 			if n%correctionEvery == 0 {
 				// A patient was counted in the wrong tier: move one up.
 				fixed := &wardload.Census{WardID: c.WardID, Date: d, ShiftID: c.ShiftID, Counts: moveOneUp(c.Counts), EnteredBy: by}
-				if err := s.st.CreateCensus(ctx, fixed); err != nil {
+				if _, err := s.saveCensus(ctx, fixed, loc); err != nil {
 					return fmt.Errorf("correct census %s %s: %w", d, shiftSpecs[si].name, err)
 				}
 			}

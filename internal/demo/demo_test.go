@@ -2,6 +2,7 @@ package demo_test
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"path/filepath"
@@ -12,6 +13,7 @@ import (
 
 	"wardload/internal/demo"
 	"wardload/internal/password"
+	"wardload/internal/projector"
 	"wardload/internal/sqlite"
 	"wardload/internal/wardload"
 )
@@ -197,6 +199,45 @@ func checkSeed(t *testing.T, st wardload.Store) {
 		}
 	})
 
+	t.Run("projections for the census history", func(t *testing.T) {
+		ps, total, err := st.FindProjections(ctx, wardload.ProjectionFilter{WardID: &res.Ward.ID, LatestOnly: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Only the first days, before every tier has two observations of
+		// the shift, may lack one.
+		if want := demo.Weeks*7*2 - 14; total < want || len(ps) != total {
+			t.Errorf("latest projections: %d (total %d); want at least %d", len(ps), total, want)
+		}
+		latest, _, err := st.FindCensus(ctx, wardload.CensusFilter{WardID: &res.Ward.ID, LatestOnly: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		type key struct {
+			d     wardload.Date
+			shift int64
+		}
+		rev := map[key]int{}
+		for _, c := range latest {
+			rev[key{c.Date, c.ShiftID}] = c.Revision
+		}
+		for _, p := range ps {
+			if p.CensusRevision != rev[key{p.Date, p.ShiftID}] {
+				t.Errorf("projection %s %s is of revision %d; the census is at %d", p.Date, p.ShiftName, p.CensusRevision, rev[key{p.Date, p.ShiftID}])
+			}
+			if p.Floor == nil || p.Recommended < *p.Floor || p.Recommended < p.NursesCover || p.TotalPatients < 20 {
+				t.Errorf("projection %s %s: %d patients, floor %v, cover %d, recommended %d", p.Date, p.ShiftName, p.TotalPatients, p.Floor, p.NursesCover, p.Recommended)
+			}
+		}
+		got, err := projector.Recompute(ps[0])
+		if err != nil {
+			t.Fatal(err)
+		}
+		if b, _ := json.Marshal(got); string(b) != ps[0].Result {
+			t.Error("the newest demo projection does not recompute to its stored result")
+		}
+	})
+
 	t.Run("settings", func(t *testing.T) {
 		s, err := st.FindSettings(ctx, res.Ward.ID)
 		if err != nil {
@@ -248,7 +289,7 @@ func TestSeedIsDeterministic(t *testing.T) {
 	}
 }
 
-// dump renders a ward's observations and census without IDs or times.
+// dump renders a ward's observations, census and projections without IDs or times.
 func dump(t *testing.T, st wardload.Store, wardID int64) []string {
 	t.Helper()
 	var out []string
@@ -269,6 +310,13 @@ func dump(t *testing.T, st wardload.Store, wardID int64) []string {
 			counts += fmt.Sprintf(" %d", tc.Patients)
 		}
 		out = append(out, fmt.Sprintf("census %s %s r%d%s", c.Date, shiftName(t, st, c.ShiftID), c.Revision, counts))
+	}
+	ps, _, err := st.FindProjections(context.Background(), wardload.ProjectionFilter{WardID: &wardID})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range ps {
+		out = append(out, fmt.Sprintf("projection %s %s r%d %g %g %d %s", p.Date, p.ShiftName, p.CensusRevision, p.ShiftHours, p.ExpectedNurseHours, p.Recommended, p.Result))
 	}
 	return out
 }
