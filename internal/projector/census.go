@@ -42,34 +42,19 @@ func checkCounts(wardID int64, date wardload.Date, shiftID int64, tiers []*wardl
 	return c, nil
 }
 
-// floorSpec builds the model's ratio floor from the ward's floors for
-// shiftID, and appends those floors to used. It returns nil when the shift
-// has none.
+// floorSpec builds the model's ratio floor for shiftID with
+// stats.FloorFor (the same reading the web layer uses) and appends the
+// ward's floors for that shift to used. It returns nil when the shift has
+// none.
 func floorSpec(floors []wardload.RatioFloor, shiftID int64, tiers []*wardload.Tier, used *[]wardload.RatioFloor) *stats.FloorSpec {
 	code := map[int64]string{}
 	for _, t := range tiers {
 		code[t.ID] = t.Code
 	}
-	var f *stats.FloorSpec
 	for _, rf := range floors {
-		if rf.ShiftID != shiftID {
-			continue
+		if rf.ShiftID == shiftID {
+			*used = append(*used, rf)
 		}
-		*used = append(*used, rf)
-		if f == nil {
-			f = &stats.FloorSpec{ChargeNurseCounts: true}
-		}
-		// Counting the nurse in charge is the less cautious choice, so
-		// it needs every floor of the shift to agree.
-		f.ChargeNurseCounts = f.ChargeNurseCounts && rf.ChargeNurseCounts
-		if rf.TierID == 0 {
-			f.PatientsPerNurse = rf.PatientsPerNurse
-			continue
-		}
-		if f.TierPatientsPerNurse == nil {
-			f.TierPatientsPerNurse = map[string]float64{}
-		}
-		f.TierPatientsPerNurse[code[rf.TierID]] = rf.PatientsPerNurse
 	}
-	return f
+	return stats.FloorFor(floors, shiftID, code)
 }

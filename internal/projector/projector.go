@@ -52,9 +52,10 @@ type Service struct {
 //     Only the same shift pattern: care by night differs from care by day,
 //     and scaling one to the other by hours would hide that;
 //   - bands: one, at two-sided level = the cover level;
-//   - the ratio floors configured for this shift: a ward-wide floor pools
-//     the tiers without their own; the nurse in charge counts towards the
-//     floor only if every floor of the shift says so;
+//   - the ratio floors configured for this shift (stats.FloorFor): a
+//     ward-wide floor pools the tiers without their own; the nurse in
+//     charge counts towards the floor only if every floor of the shift
+//     says so;
 //   - the seed Seed(ward, date, shift) and Service.Draws draws.
 //
 // Errors name the field: ENOTFOUND "ward"; EINVALID "date" (missing, or
