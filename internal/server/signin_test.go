@@ -253,3 +253,17 @@ func TestSessionLimitsAndDisabling(t *testing.T) {
 		t.Errorf("disabled user's session: %d, want 303", got)
 	}
 }
+
+// TestOversizedSignInBody: the sign-in form has its own small limit; a
+// bigger body is a plain 413 and is never looked at.
+func TestOversizedSignInBody(t *testing.T) {
+	f := newFixture(t)
+	big := url.Values{"name": {"a.admin"}, "password": {strings.Repeat("p", 9<<10)}}
+	res, body := f.do(t, post("/signin", big))
+	if res.StatusCode != 413 || len(byTestID(t, body, "error-message")) != 1 {
+		t.Errorf("status %d, want the 413 page", res.StatusCode)
+	}
+	if n := len(f.audit(t, "signin.fail")) + len(f.audit(t, "signin.ok")); n != 0 || f.sessionCookie(res) != nil {
+		t.Errorf("oversized sign-in was processed: %d audit rows", n)
+	}
+}
