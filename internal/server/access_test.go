@@ -53,6 +53,23 @@ var routeExpectations = map[string][]string{
 	// API routes: token principals. A token of ward B may list its own
 	// wards; ward-scoped API routes would refuse it for ward A.
 	"api.wards": {tValid, tOtherW},
+
+	// Ward settings and the projections API (settings_test.go, api_test.go).
+	"settings":              wardAMgrs,
+	"settings.save":         wardAMgrs,
+	"settings.floors":       wardAMgrs,
+	"settings.shift.create": wardAMgrs,
+	"settings.shift.update": wardAMgrs,
+	"settings.tier.create":  wardAMgrs,
+	"settings.tier.update":  wardAMgrs,
+	"api.projections":       {tValid}, // ward=w-a in routeQuery: ward B's token is refused
+	"api.openapi":           everyone,
+}
+
+// routeQuery is appended to the path of routes that read their subject
+// from the query rather than the pattern.
+var routeQuery = map[string]string{
+	"api.projections": "?ward=w-a&from=2026-03-01&to=2026-03-07",
 }
 
 // TestEveryRouteByEveryPrincipal walks every route of the table as every
@@ -79,7 +96,7 @@ func TestEveryRouteByEveryPrincipal(t *testing.T) {
 		}
 		seen[rt.Name] = true
 		path := strings.NewReplacer("{ward}", f.wardA.Code, "*", "wardload.css").Replace(rt.Pattern)
-		path = strings.ReplaceAll(path, "{id}", fmt.Sprint(idFor(rt, f, target)))
+		path = strings.ReplaceAll(path, "{id}", fmt.Sprint(idFor(rt, f, target))) + routeQuery[rt.Name]
 		if strings.Contains(path, "{") {
 			t.Errorf("route %s: test cannot fill %s", rt.Name, path)
 			continue

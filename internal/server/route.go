@@ -74,6 +74,18 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/admin/users/{id}", Name: "user.update", Access: admins, Handler: s.handleUserUpdate, MaxBodyBytes: 64 << 10},
 
 		{Method: http.MethodGet, Pattern: "/api/v1/wards", Name: "api.wards", Access: api, Handler: s.handleAPIWards},
+
+		// Ward settings (managers) and the projections API with its
+		// OpenAPI document (settings.go, api_projection.go, openapi.go).
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/settings", Name: "settings", Access: wardManagers, Handler: s.handleSettings},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings", Name: "settings.save", Access: wardManagers, Handler: s.handleSettingsSave, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/floors", Name: "settings.floors", Access: wardManagers, Handler: s.handleFloorsSave, MaxBodyBytes: 64 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/shifts", Name: "settings.shift.create", Access: wardManagers, Handler: s.handleShiftCreate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/shifts/{id}", Name: "settings.shift.update", Access: wardManagers, Handler: s.handleShiftUpdate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers", Name: "settings.tier.create", Access: wardManagers, Handler: s.handleTierCreate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers/{id}", Name: "settings.tier.update", Access: wardManagers, Handler: s.handleTierUpdate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodGet, Pattern: "/api/v1/projections", Name: "api.projections", Access: api, Handler: s.handleAPIProjections},
+		{Method: http.MethodGet, Pattern: "/api/v1/openapi.json", Name: "api.openapi", Access: public, Handler: s.handleOpenAPI},
 	}
 }
 

@@ -1,0 +1,190 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"strconv"
+
+	"wardload/internal/export"
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// quartileOptions explains each convention in one line, in the order the
+// page lists them. The default is wardload.DefaultSettings's.
+var quartileOptions = []web.QuartileOptionVM{
+	{Value: wardload.QuartilesHinges, Label: "Tukey's hinges",
+		Explanation: "medians of the lower and upper halves, the middle value counted in both when n is odd (as R's fivenum and boxplot)."},
+	{Value: wardload.QuartilesHF6, Label: "Hyndman & Fan type 6",
+		Explanation: "interpolated at position p(n+1), the rule of the NIST/SEMATECH e-Handbook."},
+	{Value: wardload.QuartilesHF7, Label: "Hyndman & Fan type 7",
+		Explanation: "interpolated at position 1+p(n−1), the default of R's quantile and of NumPy."},
+	{Value: wardload.QuartilesHalves, Label: "Medians of halves",
+		Explanation: "median of each half with the middle value left out when n is odd (a common textbook method)."},
+}
+
+// settingsData is what the settings page shows from the store.
+type settingsData struct {
+	ward     *wardload.Ward
+	settings *wardload.Settings
+	shifts   []*wardload.ShiftPattern
+	tiers    []*wardload.Tier
+}
+
+// loadSettings reads the ward's settings, shift patterns and tiers.
+func (s *Server) loadSettings(r *http.Request) (*settingsData, error) {
+	ward := principalFrom(r.Context()).Ward
+	d := &settingsData{ward: ward}
+	var err error
+	if d.settings, err = s.store.FindSettings(r.Context(), ward.ID); err != nil {
+		return nil, fmt.Errorf("settings: %w", err)
+	}
+	if d.shifts, err = s.store.FindShiftPatterns(r.Context(), ward.ID); err != nil {
+		return nil, fmt.Errorf("settings: shifts: %w", err)
+	}
+	if d.tiers, err = s.store.FindTiers(r.Context(), ward.ID); err != nil {
+		return nil, fmt.Errorf("settings: tiers: %w", err)
+	}
+	return d, nil
+}
+
+// settingsURL is the page's address; the forms post below it.
+func settingsURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/settings" }
+
+// settingsVM shows every form with what is stored. A failed post then
+// replaces its own form with the input as typed.
+func (s *Server) settingsVM(r *http.Request, d *settingsData) (web.SettingsVM, error) {
+	base := settingsURL(d.ward)
+	st := d.settings
+	vm := web.SettingsVM{
+		WardCode: d.ward.Code, WardName: d.ward.Name,
+		GeneralURL: base, FloorsURL: base + "/floors",
+		NewShiftURL: base + "/shifts", NewTierURL: base + "/tiers",
+		General: web.GeneralFormVM{
+			DirectCareFraction: export.FormatLevel(st.DirectCareFraction),
+			CoverLevel:         export.FormatLevel(st.CoverLevel),
+			LookbackWeeks:      strconv.Itoa(st.LookbackWeeks),
+			Quartiles:          st.Quartiles,
+			Beds:               strconv.Itoa(st.Beds),
+		},
+		FloorShifts: floorShiftsVM(d, nil, nil),
+		NewShift:    web.ShiftFormVM{URL: base + "/shifts", ID: "new"},
+		NewTier:     web.TierFormVM{URL: base + "/tiers", ID: "new", New: true},
+	}
+	def := wardload.DefaultSettings(0).Quartiles
+	for _, q := range quartileOptions {
+		q.Default = q.Value == def
+		vm.Quartiles = append(vm.Quartiles, q)
+	}
+	if !st.UpdatedAt.IsZero() {
+		vm.Updated = "Last saved " + formatAt(st.UpdatedAt)
+		if st.UpdatedBy != 0 {
+			if u, err := s.store.FindUserByID(r.Context(), st.UpdatedBy); err == nil {
+				vm.Updated += " by " + u.Name
+			} else if wardload.ErrorCode(err) != wardload.ENOTFOUND {
+				return vm, fmt.Errorf("settings: %w", err)
+			}
+		}
+		vm.Updated += "."
+	}
+	for _, p := range d.shifts {
+		id := strconv.FormatInt(p.ID, 10)
+		vm.Shifts = append(vm.Shifts, web.ShiftFormVM{ID: id, URL: base + "/shifts/" + id,
+			Name: p.Name, Start: p.StartClock(), Hours: formatDecimal(p.NominalHours)})
+	}
+	for _, t := range d.tiers {
+		id := strconv.FormatInt(t.ID, 10)
+		vm.Tiers = append(vm.Tiers, web.TierFormVM{ID: id, URL: base + "/tiers/" + id,
+			Code: t.Code, Label: t.Label, Description: t.Description, Order: strconv.Itoa(t.DisplayOrder)})
+	}
+	return vm, nil
+}
+
+func (s *Server) renderSettings(w http.ResponseWriter, r *http.Request, status int, vm web.SettingsVM) error {
+	return s.render(w, r, status, web.SettingsPage(s.layout(r, "Settings · "+vm.WardName), vm))
+}
+
+// handleSettings shows the settings page.
+func (s *Server) handleSettings(w http.ResponseWriter, r *http.Request) error {
+	d, err := s.loadSettings(r)
+	if err != nil {
+		return err
+	}
+	vm, err := s.settingsVM(r, d)
+	if err != nil {
+		return err
+	}
+	vm.Notice = s.sessions.PopString(r.Context(), sessFlash)
+	return s.renderSettings(w, r, http.StatusOK, vm)
+}
+
+// settingsSaved ends a successful settings post: flash and 303 back to
+// the part of the page that was saved.
+func (s *Server) settingsSaved(w http.ResponseWriter, r *http.Request, what, anchor string) error {
+	s.sessions.Put(r.Context(), sessFlash, "Saved: "+what+".")
+	return seeOther(w, r, settingsURL(principalFrom(r.Context()).Ward)+"#"+anchor)
+}
+
+// handleSettingsSave saves the staffing settings; the ratio floors stay
+// as stored.
+func (s *Server) handleSettingsSave(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	d, err := s.loadSettings(r)
+	if err != nil {
+		return err
+	}
+	f := r.PostForm
+	form := web.GeneralFormVM{
+		DirectCareFraction: clip(f.Get("direct_care_fraction"), 40),
+		CoverLevel:         clip(f.Get("cover_level"), 40),
+		LookbackWeeks:      clip(f.Get("lookback_weeks"), 40),
+		Quartiles:          clip(f.Get("quartiles"), 40),
+		Beds:               clip(f.Get("beds"), 40),
+		Errors:             map[string]string{},
+	}
+	next := *d.settings
+	next.WardID = d.ward.ID
+	next.UpdatedBy = principalFrom(r.Context()).User.ID
+	p := formParser{errs: form.Errors}
+	next.DirectCareFraction = p.decimal("direct_care_fraction", form.DirectCareFraction, false)
+	next.CoverLevel = p.decimal("cover_level", form.CoverLevel, false)
+	next.LookbackWeeks = p.whole("lookback_weeks", form.LookbackWeeks, false)
+	next.Beds = p.whole("beds", form.Beds, true)
+	next.Quartiles = form.Quartiles
+	if !wardload.ValidQuartiles(next.Quartiles) {
+		form.Errors["quartiles"] = "Choose one of the quartile conventions."
+	}
+	invalid := func() error {
+		vm, err := s.settingsVM(r, d)
+		if err != nil {
+			return err
+		}
+		vm.General = form
+		return s.renderSettings(w, r, http.StatusBadRequest, vm)
+	}
+	if len(form.Errors) > 0 {
+		return invalid()
+	}
+	if err := next.Validate(); err != nil {
+		form.Errors[fieldOr(err, "direct_care_fraction")] = wardload.ErrorMessage(err)
+		return invalid()
+	}
+	if err := s.store.SaveSettings(r.Context(), &next); err != nil {
+		if wardload.ErrorCode(err) == wardload.EINVALID {
+			form.Errors[fieldOr(err, "direct_care_fraction")] = wardload.ErrorMessage(err)
+			return invalid()
+		}
+		return fmt.Errorf("settings save: %w", err)
+	}
+	return s.settingsSaved(w, r, "staffing settings", "staffing")
+}
+
+// fieldOr returns the field err names, or def when it names none.
+func fieldOr(err error, def string) string {
+	if f := wardload.ErrorField(err); f != "" {
+		return f
+	}
+	return def
+}

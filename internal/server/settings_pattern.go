@@ -1,0 +1,255 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"strconv"
+	"strings"
+
+	"github.com/go-chi/chi/v5"
+
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// shiftInput reads a shift pattern form: name, start "HH:MM" and nominal
+// hours. The form as typed and any messages by field come back with it.
+func shiftInput(r *http.Request) (web.ShiftFormVM, string, int, float64) {
+	f := r.PostForm
+	form := web.ShiftFormVM{Name: clip(strings.TrimSpace(f.Get("name")), 60), Start: clip(f.Get("start"), 20),
+		Hours: clip(f.Get("hours"), 20), Errors: map[string]string{}}
+	p := formParser{errs: form.Errors}
+	start, err := wardload.ParseClock(form.Start)
+	if err != nil {
+		form.Errors["start"] = "Enter the start as HH:MM, 24-hour (e.g. 07:30 or 19:30)."
+	}
+	hours := p.decimal("hours", form.Hours, false)
+	return form, form.Name, start, hours
+}
+
+// renderShiftError re-renders the page with form (the add form when id is
+// "", else the edit form of pattern id) as typed and its messages.
+func (s *Server) renderShiftError(w http.ResponseWriter, r *http.Request, d *settingsData, form web.ShiftFormVM, id string) error {
+	vm, err := s.settingsVM(r, d)
+	if err != nil {
+		return err
+	}
+	if id == "" {
+		form.ID, form.URL = vm.NewShift.ID, vm.NewShift.URL
+		vm.NewShift = form
+	}
+	for i := range vm.Shifts {
+		if vm.Shifts[i].ID == id {
+			form.ID, form.URL = vm.Shifts[i].ID, vm.Shifts[i].URL
+			vm.Shifts[i] = form
+		}
+	}
+	return s.renderSettings(w, r, http.StatusBadRequest, vm)
+}
+
+// shiftStoreError puts a store's refusal next to its field; anything else
+// is returned as it is.
+func shiftStoreError(err error, form web.ShiftFormVM) (bool, error) {
+	switch wardload.ErrorCode(err) {
+	case wardload.ECONFLICT:
+		form.Errors["name"] = "This ward already has a shift pattern with that name."
+		return true, nil
+	case wardload.EINVALID:
+		form.Errors[fieldOr(err, "name")] = wardload.ErrorMessage(err)
+		return true, nil
+	}
+	return false, err
+}
+
+// handleShiftCreate adds a shift pattern to the ward.
+func (s *Server) handleShiftCreate(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	d, err := s.loadSettings(r)
+	if err != nil {
+		return err
+	}
+	form, name, start, hours := shiftInput(r)
+	if len(form.Errors) > 0 {
+		return s.renderShiftError(w, r, d, form, "")
+	}
+	p := &wardload.ShiftPattern{WardID: d.ward.ID, Name: name, StartMinute: start, NominalHours: hours}
+	err = p.Validate()
+	if err == nil {
+		err = s.store.CreateShiftPattern(r.Context(), p)
+	}
+	if err != nil {
+		if shown, err := shiftStoreError(err, form); !shown {
+			return fmt.Errorf("shift create: %w", err)
+		}
+		return s.renderShiftError(w, r, d, form, "")
+	}
+	return s.settingsSaved(w, r, "shift pattern "+p.Name, "shifts")
+}
+
+// handleShiftUpdate changes a shift pattern of the ward. Stored
+// projections keep the name and window they were made with.
+func (s *Server) handleShiftUpdate(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	d, err := s.loadSettings(r)
+	if err != nil {
+		return err
+	}
+	id, err := idParam(chi.URLParam(r, "id"), "shift pattern")
+	if err != nil {
+		return err
+	}
+	var cur *wardload.ShiftPattern
+	for _, p := range d.shifts {
+		if p.ID == id {
+			cur = p
+		}
+	}
+	if cur == nil {
+		return wardload.Errorf(wardload.ENOTFOUND, "This ward has no such shift pattern.")
+	}
+	idText := strconv.FormatInt(id, 10)
+	form, name, start, hours := shiftInput(r)
+	if len(form.Errors) > 0 {
+		return s.renderShiftError(w, r, d, form, idText)
+	}
+	next := *cur
+	next.Name, next.StartMinute, next.NominalHours = name, start, hours
+	err = next.Validate()
+	if err == nil {
+		_, err = s.store.UpdateShiftPattern(r.Context(), id, wardload.ShiftPatternUpdate{Name: &name, StartMinute: &start, NominalHours: &hours})
+	}
+	if err != nil {
+		if shown, err := shiftStoreError(err, form); !shown {
+			return fmt.Errorf("shift update: %w", err)
+		}
+		return s.renderShiftError(w, r, d, form, idText)
+	}
+	return s.settingsSaved(w, r, "shift pattern "+name, "shifts")
+}
+
+// tierInput reads a tier form. Code is read only when adding.
+func tierInput(r *http.Request, d *settingsData, adding bool) (web.TierFormVM, int) {
+	f := r.PostForm
+	form := web.TierFormVM{Label: clip(strings.TrimSpace(f.Get("label")), 80), Description: clip(strings.TrimSpace(f.Get("description")), 600),
+		Order: clip(f.Get("order"), 20), Errors: map[string]string{}}
+	if adding {
+		form.Code = clip(strings.TrimSpace(f.Get("code")), 40)
+	}
+	order := formParser{errs: form.Errors}.whole("order", form.Order, true)
+	if strings.TrimSpace(form.Order) == "" {
+		// Empty: after the last tier.
+		order = 0
+		for _, t := range d.tiers {
+			order = max(order, t.DisplayOrder+1)
+		}
+	}
+	return form, order
+}
+
+// renderTierError re-renders the page with a tier form as typed.
+func (s *Server) renderTierError(w http.ResponseWriter, r *http.Request, d *settingsData, form web.TierFormVM, id string) error {
+	vm, err := s.settingsVM(r, d)
+	if err != nil {
+		return err
+	}
+	if id == "" {
+		form.ID, form.URL, form.New = vm.NewTier.ID, vm.NewTier.URL, true
+		vm.NewTier = form
+	}
+	for i := range vm.Tiers {
+		if vm.Tiers[i].ID == id {
+			form.ID, form.URL, form.Code = vm.Tiers[i].ID, vm.Tiers[i].URL, vm.Tiers[i].Code
+			vm.Tiers[i] = form
+		}
+	}
+	return s.renderSettings(w, r, http.StatusBadRequest, vm)
+}
+
+func tierStoreError(err error, form web.TierFormVM) (bool, error) {
+	switch wardload.ErrorCode(err) {
+	case wardload.ECONFLICT:
+		form.Errors["code"] = "This ward already has a tier with that code."
+		return true, nil
+	case wardload.EINVALID:
+		form.Errors[fieldOr(err, "label")] = wardload.ErrorMessage(err)
+		return true, nil
+	}
+	return false, err
+}
+
+// handleTierCreate adds an acuity tier to the ward.
+func (s *Server) handleTierCreate(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	d, err := s.loadSettings(r)
+	if err != nil {
+		return err
+	}
+	form, order := tierInput(r, d, true)
+	if len(form.Errors) > 0 {
+		return s.renderTierError(w, r, d, form, "")
+	}
+	t := &wardload.Tier{WardID: d.ward.ID, Code: form.Code, Label: form.Label, Description: form.Description, DisplayOrder: order}
+	err = t.Validate()
+	if err == nil {
+		err = s.store.CreateTier(r.Context(), t)
+	}
+	if err != nil {
+		if shown, err := tierStoreError(err, form); !shown {
+			return fmt.Errorf("tier create: %w", err)
+		}
+		return s.renderTierError(w, r, d, form, "")
+	}
+	return s.settingsSaved(w, r, "tier "+t.Code, "tiers")
+}
+
+// handleTierUpdate changes a tier's label, description and order; its
+// code stays, since census and observations refer to it.
+func (s *Server) handleTierUpdate(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	d, err := s.loadSettings(r)
+	if err != nil {
+		return err
+	}
+	id, err := idParam(chi.URLParam(r, "id"), "tier")
+	if err != nil {
+		return err
+	}
+	var cur *wardload.Tier
+	for _, t := range d.tiers {
+		if t.ID == id {
+			cur = t
+		}
+	}
+	if cur == nil {
+		return wardload.Errorf(wardload.ENOTFOUND, "This ward has no such tier.")
+	}
+	idText := strconv.FormatInt(id, 10)
+	form, order := tierInput(r, d, false)
+	if strings.TrimSpace(form.Order) == "" {
+		order = cur.DisplayOrder // empty keeps the tier where it is
+	}
+	if len(form.Errors) > 0 {
+		return s.renderTierError(w, r, d, form, idText)
+	}
+	next := *cur
+	next.Label, next.Description, next.DisplayOrder = form.Label, form.Description, order
+	err = next.Validate()
+	if err == nil {
+		_, err = s.store.UpdateTier(r.Context(), id, wardload.TierUpdate{Label: &form.Label, Description: &form.Description, DisplayOrder: &order})
+	}
+	if err != nil {
+		if shown, err := tierStoreError(err, form); !shown {
+			return fmt.Errorf("tier update: %w", err)
+		}
+		return s.renderTierError(w, r, d, form, idText)
+	}
+	return s.settingsSaved(w, r, "tier "+cur.Code, "tiers")
+}
