@@ -64,6 +64,15 @@ var routeExpectations = map[string][]string{
 	"settings.tier.update":  wardAMgrs,
 	"api.projections":       {tValid}, // ward=w-a in routeQuery: ward B's token is refused
 	"api.openapi":           everyone,
+
+	// Census and projections (census_test.go, projection_test.go): every
+	// member of ward A; the downloads only its manager and the admin.
+	"census.form":      {pNurseA, pManagerA, pAdmin},
+	"census.create":    {pNurseA, pManagerA, pAdmin},
+	"projections":      {pNurseA, pManagerA, pAdmin},
+	"projection":       {pNurseA, pManagerA, pAdmin},
+	"projections.csv":  wardAMgrs,
+	"projections.json": wardAMgrs,
 }
 
 // routeQuery is appended to the path of routes that read their subject

@@ -86,6 +86,17 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers/{id}", Name: "settings.tier.update", Access: wardManagers, Handler: s.handleTierUpdate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodGet, Pattern: "/api/v1/projections", Name: "api.projections", Access: api, Handler: s.handleAPIProjections},
 		{Method: http.MethodGet, Pattern: "/api/v1/openapi.json", Name: "api.openapi", Access: public, Handler: s.handleOpenAPI},
+
+		// Census entry, projection pages and the shift list with its
+		// downloads (census.go, projection.go, projection_list.go). Any
+		// member of the ward enters census and reads projections; exports
+		// are the managers'.
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/census", Name: "census.form", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleCensusForm},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/census", Name: "census.create", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleCensusCreate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections", Name: "projections", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjections},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections/{id}", Name: "projection", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjection},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.csv", Name: "projections.csv", Access: wardManagers, Handler: s.handleProjectionsCSV},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.json", Name: "projections.json", Access: wardManagers, Handler: s.handleProjectionsJSON},
 	}
 }
 

@@ -16,6 +16,7 @@ import (
 
 	"github.com/alexedwards/scs/v2"
 
+	"wardload/internal/projector"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -55,6 +56,10 @@ type Config struct {
 	// normally none.
 	TrustedOrigins []string
 
+	// Draws is the number of bootstrap draws of each projection a census
+	// makes; 0 means projector.DefaultDraws. Tests lower it for speed.
+	Draws int
+
 	// MaxBodyBytes caps every request body; larger bodies fail with 413.
 	MaxBodyBytes int64
 	// ReadyTimeout bounds the database ping of /readyz.
@@ -76,6 +81,7 @@ func DefaultConfig() Config {
 		Addr:              "127.0.0.1:8080",
 		Now:               time.Now,
 		MaxBodyBytes:      1 << 20,
+		Draws:             projector.DefaultDraws,
 		ReadyTimeout:      2 * time.Second,
 		ReadHeaderTimeout: 5 * time.Second,
 		ReadTimeout:       15 * time.Second,
@@ -108,6 +114,9 @@ type Server struct {
 	sealKey      []byte // seals one-time token secrets kept in the session
 	dummyOnce    sync.Once
 	dummy        string
+
+	// projector turns a posted census into a stored projection.
+	projector *projector.Service
 }
 
 // New checks cfg, fills zero limits from DefaultConfig and builds the
@@ -150,6 +159,7 @@ func New(cfg Config) (*Server, error) {
 		addrThrottle: newThrottle(20, 15*time.Minute),
 		sealKey:      newSealKey(),
 	}
+	s.projector = &projector.Service{Store: cfg.Store, Now: cfg.Now, Draws: cfg.Draws}
 	s.sessions.ErrorFunc = func(w http.ResponseWriter, r *http.Request, err error) {
 		s.renderError(w, r, fmt.Errorf("session: %w", err))
 	}

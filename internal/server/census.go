@@ -1,0 +1,274 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"net/url"
+	"strconv"
+	"strings"
+	"time"
+
+	"wardload/internal/projector"
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// censusData is what the census page needs from the store.
+type censusData struct {
+	ward   *wardload.Ward
+	shifts []*wardload.ShiftPattern
+	tiers  []*wardload.Tier
+	today  wardload.Date
+}
+
+func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
+	ward := principalFrom(r.Context()).Ward
+	loc, err := ward.Location()
+	if err != nil {
+		return nil, err
+	}
+	d := &censusData{ward: ward, today: projector.Today(s.now(), loc)}
+	if d.shifts, err = s.store.FindShiftPatterns(r.Context(), ward.ID); err != nil {
+		return nil, fmt.Errorf("census: shifts: %w", err)
+	}
+	if d.tiers, err = s.store.FindTiers(r.Context(), ward.ID); err != nil {
+		return nil, fmt.Errorf("census: tiers: %w", err)
+	}
+	return d, nil
+}
+
+func censusURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/census" }
+
+func projectionURL(ward *wardload.Ward, id int64) string {
+	return fmt.Sprintf("/wards/%s/projections/%d", ward.Code, id)
+}
+
+// handleCensusForm shows the census form. Without query parameters it
+// preselects the shift running now in the ward's time zone (or the next
+// one); ?date=&shift= chooses another dated shift. The counts start from
+// the newest census of the chosen shift, if there is one.
+func (s *Server) handleCensusForm(w http.ResponseWriter, r *http.Request) error {
+	d, err := s.loadCensusData(r)
+	if err != nil {
+		return err
+	}
+	q := r.URL.Query()
+	date, shift := q.Get("date"), q.Get("shift")
+	if date == "" && shift == "" && len(d.shifts) > 0 {
+		cd, cs, err := projector.CurrentShift(d.ward, d.shifts, s.now())
+		if err != nil {
+			return err
+		}
+		// The current shift can be the next one to start, which may lie
+		// beyond the window in an odd configuration; the chooser then
+		// shows the problem like any other.
+		date, shift = cd.String(), strconv.FormatInt(cs.ID, 10)
+	}
+	vm, err := s.censusVM(r, d, date, shift, nil, nil)
+	if err != nil {
+		return err
+	}
+	status := http.StatusOK
+	if len(vm.Errors) > 0 {
+		status = http.StatusBadRequest
+	}
+	return s.render(w, r, status, web.CensusPage(s.layout(r, "Census"), vm))
+}
+
+// handleCensusCreate stores a census with its projection and shows the
+// projection. Any problem re-renders the form with what was typed, status
+// 400, and nothing is stored: parseCensusForm checks the fields,
+// projector.Save the rest (date window, beds, enough observations).
+func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	d, err := s.loadCensusData(r)
+	if err != nil {
+		return err
+	}
+	form := r.PostForm
+	date, shift := strings.TrimSpace(form.Get("date")), strings.TrimSpace(form.Get("shift"))
+	rerender := func(errs map[string]string) error {
+		vm, err := s.censusVM(r, d, date, shift, form, errs)
+		if err != nil {
+			return err
+		}
+		return s.render(w, r, http.StatusBadRequest, web.CensusPage(s.layout(r, "Census"), vm))
+	}
+	day, shiftID, errs := parseShiftChoice(d, date, shift)
+	counts, countErrs := parseCensusForm(form, d.tiers)
+	for k, v := range countErrs {
+		errs[k] = v
+	}
+	if len(errs) > 0 {
+		return rerender(errs)
+	}
+	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts)
+	if wardload.ErrorCode(err) == wardload.EINVALID {
+		field := wardload.ErrorField(err)
+		if field == "" {
+			field = "patients"
+		}
+		return rerender(map[string]string{field: wardload.ErrorMessage(err)})
+	} else if err != nil {
+		return fmt.Errorf("census create: %w", err)
+	}
+	return seeOther(w, r, projectionURL(d.ward, p.ID))
+}
+
+// parseShiftChoice reads the date and shift of the chooser. The date
+// window itself is the projector's to check (it says so with EINVALID
+// "date"); here only the form is checked.
+func parseShiftChoice(d *censusData, date, shift string) (wardload.Date, int64, map[string]string) {
+	errs := map[string]string{}
+	day, err := wardload.ParseDate(date)
+	if date == "" {
+		errs["date"] = "Enter the date of the shift."
+	} else if err != nil {
+		errs["date"] = "Enter a date such as " + d.today.String() + "."
+	}
+	id, err := strconv.ParseInt(shift, 10, 64)
+	found := false
+	for _, p := range d.shifts {
+		found = found || (err == nil && p.ID == id)
+	}
+	if !found {
+		errs["shift"] = "Choose one of this ward's shifts."
+	}
+	return day, id, errs
+}
+
+// censusVM builds the page. form is the posted form (nil on a GET): its
+// counts are shown again as typed. errs maps field names (date, shift,
+// tier_<code>, patients, tier) to messages.
+func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, form url.Values, errs map[string]string) (web.CensusVM, error) {
+	vm := web.CensusVM{
+		WardCode: d.ward.Code, WardName: d.ward.Name, TimeZone: d.ward.TimeZone,
+		Today:   d.today.String(),
+		PageURL: censusURL(d.ward), ActionURL: censusURL(d.ward),
+		Date: clip(date, 10), ShiftID: clip(shift, 20),
+		MinDate:  d.today.AddDays(-projector.MaxDaysBack).String(),
+		MaxDate:  d.today.AddDays(projector.MaxDaysAhead).String(),
+		NoShifts: len(d.shifts) == 0, NoTiers: len(d.tiers) == 0,
+	}
+	if vm.NoShifts || vm.NoTiers {
+		return vm, nil
+	}
+	if errs == nil {
+		errs = map[string]string{}
+		// On a GET the choice is checked here, window included, so that
+		// a date out of range is explained before anything is typed.
+		day, _, choiceErrs := parseShiftChoice(d, date, shift)
+		errs = choiceErrs
+		if _, ok := errs["date"]; !ok && (day.Before(d.today.AddDays(-projector.MaxDaysBack)) || day.After(d.today.AddDays(projector.MaxDaysAhead))) {
+			errs["date"] = fmt.Sprintf("A census can be entered from %s to %s.", vm.MinDate, vm.MaxDate)
+		}
+	}
+	var chosen *wardload.ShiftPattern
+	for _, p := range d.shifts {
+		id := strconv.FormatInt(p.ID, 10)
+		sel := id == shift
+		if sel {
+			chosen = p
+		}
+		vm.Shifts = append(vm.Shifts, web.ShiftOptionVM{ID: id, Label: shiftLabel(p), Selected: sel})
+	}
+	vm.DateError, vm.ShiftError = errs["date"], errs["shift"]
+	if vm.DateError != "" {
+		vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#census-date", Message: vm.DateError})
+	}
+	if vm.ShiftError != "" {
+		vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#census-shift", Message: vm.ShiftError})
+	}
+	// The counts form is for one dated shift: shown when the choice is
+	// valid, or after a post (whose counts must not be lost).
+	vm.Chosen = chosen != nil && (vm.DateError == "" || form != nil)
+	if !vm.Chosen {
+		return vm, nil
+	}
+	vm.ShiftLabel = shiftLabel(chosen)
+	latest, err := s.latestCensus(r, d, date, chosen.ID)
+	if err != nil {
+		return vm, err
+	}
+	prefill := map[int64]int{}
+	vm.NextRevision = 1
+	if latest != nil {
+		vm.Latest = &web.LatestCensusVM{Revision: latest.census.Revision, EnteredAt: formatLocal(latest.census.EnteredAt, d.ward), Total: latest.census.Total()}
+		if latest.projectionID != 0 {
+			vm.Latest.ProjectionURL = projectionURL(d.ward, latest.projectionID)
+		}
+		vm.NextRevision = latest.census.Revision + 1
+		for _, tc := range latest.census.Counts {
+			prefill[tc.TierID] = tc.Patients
+		}
+	}
+	for _, t := range d.tiers {
+		f := web.TierFieldVM{Name: censusField(t), InputID: "tier-" + t.Code, Label: t.Label, Description: t.Description, Error: errs[censusField(t)]}
+		switch {
+		case form != nil:
+			f.Value = clip(strings.TrimSpace(form.Get(f.Name)), 12)
+		case latest != nil:
+			f.Value = strconv.Itoa(prefill[t.ID])
+		}
+		if f.Error != "" {
+			vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#" + f.InputID, Message: t.Label + ": " + f.Error})
+		}
+		vm.Tiers = append(vm.Tiers, f)
+	}
+	for _, k := range []string{"patients", "tier"} {
+		if msg := errs[k]; msg != "" {
+			vm.CountError = msg
+			vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#" + vm.Tiers[0].InputID, Message: msg})
+		}
+	}
+	return vm, nil
+}
+
+// latestCensusOf is the newest census of a dated shift and the ID of its
+// projection (0 when it has none).
+type latestCensusOf struct {
+	census       *wardload.Census
+	projectionID int64
+}
+
+func (s *Server) latestCensus(r *http.Request, d *censusData, date string, shiftID int64) (*latestCensusOf, error) {
+	day, err := wardload.ParseDate(date)
+	if err != nil {
+		return nil, nil
+	}
+	cs, _, err := s.store.FindCensus(r.Context(), wardload.CensusFilter{WardID: &d.ward.ID, ShiftID: &shiftID, From: &day, To: &day, LatestOnly: true, Limit: 1})
+	if err != nil {
+		return nil, fmt.Errorf("census: latest: %w", err)
+	}
+	if len(cs) == 0 {
+		return nil, nil
+	}
+	l := &latestCensusOf{census: cs[0]}
+	ps, _, err := s.store.FindProjections(r.Context(), wardload.ProjectionFilter{WardID: &d.ward.ID, ShiftID: &shiftID, From: &day, To: &day})
+	if err != nil {
+		return nil, fmt.Errorf("census: projections: %w", err)
+	}
+	for _, p := range ps {
+		if p.CensusID == l.census.ID {
+			l.projectionID = p.ID
+		}
+	}
+	return l, nil
+}
+
+// shiftLabel names a shift pattern in the chooser, e.g. "Night, from
+// 19:30, 12 hours".
+func shiftLabel(p *wardload.ShiftPattern) string {
+	return fmt.Sprintf("%s, from %s, %s hours", p.Name, p.StartClock(), strconv.FormatFloat(p.NominalHours, 'f', -1, 64))
+}
+
+// formatLocal shows an instant in the ward's time zone to the minute,
+// naming the zone.
+func formatLocal(t time.Time, ward *wardload.Ward) string {
+	if loc, err := ward.Location(); err == nil {
+		t = t.In(loc)
+	}
+	return t.Format("2006-01-02 15:04") + " (" + ward.TimeZone + ")"
+}

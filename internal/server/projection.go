@@ -1,0 +1,213 @@
+package server
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"net/http"
+	"strconv"
+
+	"github.com/go-chi/chi/v5"
+
+	"wardload/internal/export"
+	"wardload/internal/projector"
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// handleProjection shows one stored projection of the ward. A projection
+// of another ward is "not found", as if it did not exist.
+func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error {
+	ward := principalFrom(r.Context()).Ward
+	notFound := wardload.Errorf(wardload.ENOTFOUND, "There is no such projection on this ward.")
+	id, err := strconv.ParseInt(chi.URLParam(r, "id"), 10, 64)
+	if err != nil || id <= 0 {
+		return notFound
+	}
+	p, err := s.store.FindProjectionByID(r.Context(), id)
+	if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && p.WardID != ward.ID) {
+		return notFound
+	} else if err != nil {
+		return fmt.Errorf("projection %d: %w", id, err)
+	}
+	vm, err := s.projectionVM(r, ward, p)
+	if err != nil {
+		return err
+	}
+	title := fmt.Sprintf("%s shift %s", p.ShiftName, p.Date)
+	return s.render(w, r, http.StatusOK, web.ProjectionPage(s.layout(r, title), vm))
+}
+
+// decidedText says in words which of the cover need and the floor decided
+// the recommendation.
+func decidedText(p *wardload.Projection) string {
+	level := export.FormatLevel(p.CoverLevel)
+	switch {
+	case p.Floor == nil:
+		return fmt.Sprintf("Set by the workload at the ward's cover level of %s; no ratio floor is configured for this shift.", level)
+	case p.DecidedBy == stats.DecidedByFloor:
+		return fmt.Sprintf("Set by the ratio floor of %d nurses; the workload at the cover level of %s needs %d.", *p.Floor, level, p.NursesCover)
+	case p.DecidedBy == stats.DecidedByBoth:
+		return fmt.Sprintf("The ratio floor and the workload at the cover level of %s both ask for %d nurses.", level, p.Recommended)
+	}
+	return fmt.Sprintf("Set by the workload at the cover level of %s; the ratio floor asks for %d.", level, *p.Floor)
+}
+
+// projectionVM builds the page from the stored projection: the figures the
+// export carries come from the projection's columns, formatted with the
+// export's helpers; the detail comes from the stored Result and Input.
+func (s *Server) projectionVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection) (web.ProjectionVM, error) {
+	var res stats.Projection
+	var in projector.Input
+	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
+		return web.ProjectionVM{}, fmt.Errorf("projection %d: result: %w", p.ID, err)
+	}
+	if err := json.Unmarshal([]byte(p.Input), &in); err != nil {
+		return web.ProjectionVM{}, fmt.Errorf("projection %d: input: %w", p.ID, err)
+	}
+	loc, err := ward.Location()
+	if err != nil {
+		return web.ProjectionVM{}, err
+	}
+	f := res.DirectCareFraction
+	nh := func(minutes float64) float64 { return minutes / 60 / f }
+	vm := web.ProjectionVM{
+		WardCode: ward.Code, WardName: ward.Name, Date: p.Date.String(), ShiftName: p.ShiftName,
+		ShiftTimes:  fmt.Sprintf("%s to %s (%s)", p.Start.In(loc).Format("Mon 2 Jan 15:04"), p.End.In(loc).Format("Mon 2 Jan 15:04"), ward.TimeZone),
+		ShiftHours:  export.FormatHours(p.ShiftHours),
+		Revision:    p.CensusRevision,
+		GeneratedAt: formatLocal(p.CreatedAt, ward),
+
+		Recommended: strconv.Itoa(p.Recommended),
+		NursesCover: strconv.Itoa(p.NursesCover),
+		DecidedBy:   p.DecidedBy,
+		DecidedText: decidedText(p),
+		FloorRule:   export.NoFloor,
+
+		CoverLevel:         export.FormatLevel(p.CoverLevel),
+		CoverPercent:       strconv.FormatFloat(100*p.CoverLevel, 'f', -1, 64) + "%",
+		TotalPatients:      strconv.Itoa(p.TotalPatients),
+		ExpectedCareHours:  export.FormatHours(res.ExpectedMinutes / 60),
+		ExpectedNurseHours: export.FormatHours(p.ExpectedNurseHours),
+		CoverNurseHours:    export.FormatHours(p.CoverNurseHours),
+		BandLow:            export.FormatHours(p.BandLowNurseHours),
+		BandHigh:           export.FormatHours(p.BandHighNurseHours),
+		DirectCareFraction: export.FormatLevel(f),
+		LowerBound:         p.BandLowNurseHours < 0,
+
+		LookbackFrom: in.Settings.LookbackFrom, LookbackTo: in.Settings.LookbackTo,
+		LookbackWeeks:    strconv.Itoa(in.Settings.LookbackWeeks),
+		ObservationShift: in.Settings.ObservationShift,
+		Warnings:         res.Warnings,
+
+		MethodVersion:  p.MethodVersion,
+		Seed:           strconv.FormatUint(p.Seed, 10),
+		Draws:          strconv.Itoa(p.Draws),
+		QuantileMethod: res.Simulation.QuantileMethod,
+		Quartiles:      in.Settings.Quartiles,
+		Caution:        stats.Caution,
+
+		CensusURL: fmt.Sprintf("%s?date=%s&shift=%d", censusURL(ward), p.Date, p.ShiftID),
+		ListURL:   projectionsURL(ward),
+	}
+	if p.Floor != nil {
+		vm.Floor = strconv.Itoa(*p.Floor)
+	}
+	if res.Floor != nil {
+		vm.FloorRule = res.Floor.Description
+	}
+	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
+		vm.SettingsURL = "/wards/" + ward.Code + "/settings"
+	}
+
+	// Chart: the normal model and the simulated quantiles in nurse-hours,
+	// with the recommended headcount and its neighbours.
+	chart := web.ChartInput{Mean: p.ExpectedNurseHours, SD: nh(res.SDMinutes),
+		P10: nh(res.Simulation.P10), P50: nh(res.Simulation.P50), P90: nh(res.Simulation.P90)}
+	for n := max(1, p.Recommended-1); n <= p.Recommended+1; n++ {
+		chart.Capacities = append(chart.Capacities, web.ChartCapacity{Nurses: n, NurseHours: float64(n) * p.ShiftHours, Recommended: n == p.Recommended})
+	}
+	vm.Chart = web.NewChart(chart)
+
+	for _, sf := range res.Shortfall {
+		vm.Shortfall = append(vm.Shortfall, web.ShortfallRowVM{
+			Nurses: strconv.Itoa(sf.Nurses), Capacity: export.FormatHours(nh(sf.CapacityMinutes)),
+			Analytic: percent(sf.Probability), Simulated: percent(sf.SimulatedProbability),
+			SimulatedSE: percent(sf.SimulatedSE), Recommended: sf.Nurses == p.Recommended,
+		})
+	}
+
+	observations := 0
+	for k, t := range res.Tiers {
+		label := t.Code
+		if k < len(in.Tiers) && in.Tiers[k].Code == t.Code {
+			label = in.Tiers[k].Label
+		}
+		observations += t.Observations
+		share := "–"
+		if res.ExpectedMinutes > 0 {
+			share = percent(t.ExpectedMinutes / res.ExpectedMinutes)
+		}
+		vm.Tiers = append(vm.Tiers, web.TierShareVM{
+			Label: label, Code: t.Code, Patients: strconv.Itoa(t.Patients), Observations: strconv.Itoa(t.Observations),
+			Mean: minutes(t.MeanMinutes), SD: minutes(t.SDMinutes), Expected: strconv.FormatFloat(t.ExpectedMinutes, 'f', 1, 64), Share: share,
+		})
+	}
+	vm.Observations = strconv.Itoa(observations)
+
+	if err := s.revisionsVM(r, ward, p, &vm); err != nil {
+		return vm, err
+	}
+	return vm, nil
+}
+
+// revisionsVM lists every census revision of the projection's dated shift,
+// linking those with a projection.
+func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection, vm *web.ProjectionVM) error {
+	cs, _, err := s.store.FindCensus(r.Context(), wardload.CensusFilter{WardID: &ward.ID, ShiftID: &p.ShiftID, From: &p.Date, To: &p.Date})
+	if err != nil {
+		return fmt.Errorf("projection %d: revisions: %w", p.ID, err)
+	}
+	ps, _, err := s.store.FindProjections(r.Context(), wardload.ProjectionFilter{WardID: &ward.ID, ShiftID: &p.ShiftID, From: &p.Date, To: &p.Date})
+	if err != nil {
+		return fmt.Errorf("projection %d: revisions: %w", p.ID, err)
+	}
+	byCensus := map[int64]*wardload.Projection{}
+	for _, q := range ps {
+		byCensus[q.CensusID] = q
+	}
+	for _, c := range cs { // newest revision first
+		rv := web.RevisionVM{Revision: c.Revision, EnteredAt: formatLocal(c.EnteredAt, ward), Total: strconv.Itoa(c.Total()), Current: c.ID == p.CensusID}
+		if q := byCensus[c.ID]; q != nil {
+			rv.URL, rv.Recommended = projectionURL(ward, q.ID), strconv.Itoa(q.Recommended)
+			if vm.NewerURL == "" && c.Revision > p.CensusRevision {
+				vm.NewerURL, vm.NewerRevision = rv.URL, c.Revision
+			}
+		}
+		vm.Revisions = append(vm.Revisions, rv)
+	}
+	return nil
+}
+
+// percent formats a probability for people: one decimal, with "< 0.1%"
+// rather than a misleading 0.0% for a small non-zero chance.
+func percent(p float64) string {
+	switch {
+	case p == 0:
+		return "0%"
+	case p < 0.0005:
+		return "< 0.1%"
+	case p > 0.9995 && p < 1:
+		return "> 99.9%"
+	}
+	return strconv.FormatFloat(100*p, 'f', 1, 64) + "%"
+}
+
+// minutes formats a tier's mean or SD, "–" when undefined.
+func minutes(n stats.Number) string {
+	if !n.Defined || math.IsNaN(n.Value) {
+		return "–"
+	}
+	return strconv.FormatFloat(n.Value, 'f', 1, 64)
+}

@@ -1,0 +1,89 @@
+package web
+
+// CensusVM is the census entry page: a small form that chooses the dated
+// shift, and the form of patient counts per tier for that shift.
+type CensusVM struct {
+	WardCode string
+	WardName string
+	TimeZone string
+	Today    string // the ward's calendar date, YYYY-MM-DD
+	// PageURL is where the shift chooser sends its GET; ActionURL is where
+	// the counts are posted (the same address).
+	PageURL   string
+	ActionURL string
+
+	// The chooser, as typed or preselected.
+	Date    string
+	MinDate string // the projector's window of allowed dates
+	MaxDate string
+	Shifts  []ShiftOptionVM
+
+	// Chosen is set when Date and the selected shift are valid: the tier
+	// form is shown only then.
+	Chosen       bool
+	ShiftLabel   string // e.g. "Night, 19:30, 12 hours"
+	ShiftID      string
+	Tiers        []TierFieldVM
+	Latest       *LatestCensusVM // nil when the shift has no census yet
+	NextRevision int
+
+	// Errors lists every problem at the top of the page, each linking to
+	// its field; DateError and ShiftError are shown beside those fields.
+	Errors     []FormErrorVM
+	DateError  string
+	ShiftError string
+	CountError string // a problem of the counts as a whole (the total above the beds)
+
+	NoShifts bool // the ward has no shift patterns yet
+	NoTiers  bool // the ward has no acuity tiers yet
+}
+
+// ShiftOptionVM is one shift pattern in the chooser.
+type ShiftOptionVM struct {
+	ID       string
+	Label    string
+	Selected bool
+}
+
+// TierFieldVM is the count field of one acuity tier.
+type TierFieldVM struct {
+	Name        string // form field, "tier_<code>"
+	InputID     string // HTML id of the input
+	Label       string
+	Description string
+	Value       string // as typed, or from the latest census
+	Error       string
+}
+
+// DescID is the id of the tier's description, for aria-describedby.
+func (t TierFieldVM) DescID() string { return t.InputID + "-desc" }
+
+// ErrorID is the id of the tier's error message, for aria-describedby.
+func (t TierFieldVM) ErrorID() string { return t.InputID + "-error" }
+
+// DescribedBy lists the ids that describe the input: its error first.
+func (t TierFieldVM) DescribedBy() string {
+	ids := ""
+	if t.Error != "" {
+		ids = t.ErrorID() + " "
+	}
+	if t.Description != "" {
+		ids += t.DescID()
+	}
+	return ids
+}
+
+// LatestCensusVM is the newest census of the chosen shift, which a
+// correction starts from.
+type LatestCensusVM struct {
+	Revision      int
+	EnteredAt     string
+	Total         int
+	ProjectionURL string // "" when that revision has no projection
+}
+
+// FormErrorVM is one entry of an error summary.
+type FormErrorVM struct {
+	Href    string // "#<input id>"
+	Message string
+}

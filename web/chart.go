@@ -1,0 +1,167 @@
+package web
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// ChartInput is what the workload chart draws, all in nurse-hours: the
+// normal model of the shift's workload (Mean, SD), the simulated P10, P50
+// and P90, and the capacity of some headcounts.
+type ChartInput struct {
+	Mean, SD      float64
+	P10, P50, P90 float64
+	Capacities    []ChartCapacity
+}
+
+// ChartCapacity is the nurse-hours a headcount gives on the shift.
+type ChartCapacity struct {
+	Nurses      int
+	NurseHours  float64
+	Recommended bool
+}
+
+// ChartVM is the geometry of the workload chart, in the coordinates of
+// ViewBox, ready for the template: no arithmetic is left to it.
+type ChartVM struct {
+	ViewBox string
+	Empty   bool   // nothing to draw: no variation in the workload
+	Curve   string // SVG path of the normal density
+	Tail    string // filled area beyond the recommended capacity
+	AxisY   string
+	AxisX1  string
+	AxisX2  string
+	Ticks   []ChartTick
+	Lines   []ChartLine
+	// The simulated P10–P90 bar under the axis, with a dot at P50.
+	RangeX1, RangeX2, RangeMid, RangeY string
+	LabelY                             string // y of the axis title
+	Describe                           string // the chart in words, for screen readers
+}
+
+// ChartTick is one labelled tick of the nurse-hours axis.
+type ChartTick struct {
+	X, Y1, Y2, LabelY string
+	Label             string
+}
+
+// ChartLine is a vertical line: a headcount's capacity.
+type ChartLine struct {
+	X1, Y1, X2, Y2 string
+	LabelX, LabelY string
+	Label          string
+	Class          string
+}
+
+// The chart's frame, in viewBox units.
+const (
+	chartW      = 640.0
+	chartH      = 300.0
+	chartLeft   = 24.0
+	chartRight  = 616.0
+	chartTop    = 48.0 // room for the capacity labels above the curve
+	chartBase   = 220.0
+	chartPoints = 161
+)
+
+// NewChart lays out the chart: x from a little below the lowest of
+// mean − 4·SD and the capacities to a little above the highest, never
+// below 0 nurse-hours; the density scaled to the frame's height.
+func NewChart(in ChartInput) ChartVM {
+	c := ChartVM{ViewBox: fmt.Sprintf("0 0 %g %g", chartW, chartH)}
+	if !(in.SD > 0) || math.IsInf(in.SD, 0) || math.IsNaN(in.Mean) {
+		c.Empty = true
+		return c
+	}
+	lo, hi := in.Mean-4*in.SD, in.Mean+4*in.SD
+	for _, cp := range in.Capacities {
+		lo, hi = math.Min(lo, cp.NurseHours), math.Max(hi, cp.NurseHours)
+	}
+	for _, q := range []float64{in.P10, in.P90} {
+		lo, hi = math.Min(lo, q), math.Max(hi, q)
+	}
+	pad := (hi - lo) * 0.04
+	lo, hi = math.Max(0, lo-pad), hi+pad
+	x := func(v float64) float64 { return chartLeft + (v-lo)/(hi-lo)*(chartRight-chartLeft) }
+	y := func(v float64) float64 {
+		z := (v - in.Mean) / in.SD
+		return chartBase - math.Exp(-z*z/2)*(chartBase-chartTop-8)
+	}
+
+	var curve strings.Builder
+	rec := math.NaN()
+	for _, cp := range in.Capacities {
+		if cp.Recommended {
+			rec = cp.NurseHours
+		}
+	}
+	var tail strings.Builder
+	for i := range chartPoints {
+		v := lo + (hi-lo)*float64(i)/(chartPoints-1)
+		cmd := "L"
+		if i == 0 {
+			cmd = "M"
+		}
+		fmt.Fprintf(&curve, "%s%s,%s ", cmd, num(x(v)), num(y(v)))
+		if !math.IsNaN(rec) && v >= rec {
+			if tail.Len() == 0 {
+				fmt.Fprintf(&tail, "M%s,%s L%s,%s ", num(x(rec)), num(chartBase), num(x(rec)), num(y(rec)))
+			}
+			fmt.Fprintf(&tail, "L%s,%s ", num(x(v)), num(y(v)))
+		}
+	}
+	c.Curve = strings.TrimSpace(curve.String())
+	if tail.Len() > 0 {
+		fmt.Fprintf(&tail, "L%s,%s Z", num(x(hi)), num(chartBase))
+		c.Tail = tail.String()
+	}
+	c.AxisY, c.AxisX1, c.AxisX2 = num(chartBase), num(chartLeft), num(chartRight)
+	step := niceStep((hi - lo) / 6)
+	for t := math.Ceil(lo/step) * step; t <= hi; t += step {
+		c.Ticks = append(c.Ticks, ChartTick{
+			X: num(x(t)), Y1: num(chartBase), Y2: num(chartBase + 6), LabelY: num(chartBase + 22),
+			Label: strconv.FormatFloat(math.Round(t/step)*step, 'f', -1, 64),
+		})
+	}
+	for i, cp := range in.Capacities {
+		l := ChartLine{
+			X1: num(x(cp.NurseHours)), X2: num(x(cp.NurseHours)), Y1: num(chartTop - 6), Y2: num(chartBase),
+			LabelX: num(x(cp.NurseHours)), LabelY: num(chartTop - 28 + float64(i%2)*14),
+			Label: fmt.Sprintf("%d nurses", cp.Nurses), Class: "chart-cap",
+		}
+		if cp.Recommended {
+			l.Class, l.Label = "chart-cap chart-cap-rec", fmt.Sprintf("%d recommended", cp.Nurses)
+		}
+		c.Lines = append(c.Lines, l)
+	}
+	c.RangeX1, c.RangeX2, c.RangeMid, c.RangeY = num(x(in.P10)), num(x(in.P90)), num(x(in.P50)), num(chartBase+46)
+	c.LabelY = num(chartH - 4)
+	c.Describe = fmt.Sprintf("Normal curve of the shift's workload centred on %s nurse-hours with a standard deviation of %s; "+
+		"the simulation's middle 80%% runs from %s to %s nurse-hours (median %s).",
+		hours(in.Mean), hours(in.SD), hours(in.P10), hours(in.P90), hours(in.P50))
+	for _, cp := range in.Capacities {
+		c.Describe += fmt.Sprintf(" %d nurses give %s nurse-hours.", cp.Nurses, hours(cp.NurseHours))
+	}
+	return c
+}
+
+// niceStep rounds a raw tick step up to 1, 2 or 5 times a power of ten.
+func niceStep(raw float64) float64 {
+	if !(raw > 0) {
+		return 1
+	}
+	mag := math.Pow(10, math.Floor(math.Log10(raw)))
+	for _, m := range []float64{1, 2, 5, 10} {
+		if raw <= m*mag {
+			return m * mag
+		}
+	}
+	return 10 * mag
+}
+
+// num writes a coordinate with one decimal, enough for a 640-unit frame.
+func num(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
+
+func hours(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
