@@ -71,15 +71,12 @@ func (s *Server) handleShiftCreate(w http.ResponseWriter, r *http.Request) error
 		return err
 	}
 	form, name, start, hours := shiftInput(r)
+	p := &wardload.ShiftPattern{WardID: d.ward.ID, Name: name, StartMinute: start, NominalHours: hours}
+	addInvalid(form.Errors, p.Validate(), "name")
 	if len(form.Errors) > 0 {
 		return s.renderShiftError(w, r, d, form, "")
 	}
-	p := &wardload.ShiftPattern{WardID: d.ward.ID, Name: name, StartMinute: start, NominalHours: hours}
-	err = p.Validate()
-	if err == nil {
-		err = s.store.CreateShiftPattern(r.Context(), p)
-	}
-	if err != nil {
+	if err := s.store.CreateShiftPattern(r.Context(), p); err != nil {
 		if shown, err := shiftStoreError(err, form); !shown {
 			return fmt.Errorf("shift create: %w", err)
 		}
@@ -113,22 +110,32 @@ func (s *Server) handleShiftUpdate(w http.ResponseWriter, r *http.Request) error
 	}
 	idText := strconv.FormatInt(id, 10)
 	form, name, start, hours := shiftInput(r)
+	next := *cur
+	next.Name, next.StartMinute, next.NominalHours = name, start, hours
+	addInvalid(form.Errors, next.Validate(), "name")
 	if len(form.Errors) > 0 {
 		return s.renderShiftError(w, r, d, form, idText)
 	}
-	next := *cur
-	next.Name, next.StartMinute, next.NominalHours = name, start, hours
-	err = next.Validate()
-	if err == nil {
-		_, err = s.store.UpdateShiftPattern(r.Context(), id, wardload.ShiftPatternUpdate{Name: &name, StartMinute: &start, NominalHours: &hours})
-	}
-	if err != nil {
+	upd := wardload.ShiftPatternUpdate{Name: &name, StartMinute: &start, NominalHours: &hours}
+	if _, err := s.store.UpdateShiftPattern(r.Context(), id, upd); err != nil {
 		if shown, err := shiftStoreError(err, form); !shown {
 			return fmt.Errorf("shift update: %w", err)
 		}
 		return s.renderShiftError(w, r, d, form, idText)
 	}
 	return s.settingsSaved(w, r, "shift pattern "+name, "shifts")
+}
+
+// addInvalid adds a Validate error to errs under its field (def when it
+// names none), unless that field already has a message from parsing.
+func addInvalid(errs map[string]string, err error, def string) {
+	if err == nil {
+		return
+	}
+	f := fieldOr(err, def)
+	if _, ok := errs[f]; !ok {
+		errs[f] = wardload.ErrorMessage(err)
+	}
 }
 
 // tierInput reads a tier form. Code is read only when adding.
@@ -191,15 +198,12 @@ func (s *Server) handleTierCreate(w http.ResponseWriter, r *http.Request) error 
 		return err
 	}
 	form, order := tierInput(r, d, true)
+	t := &wardload.Tier{WardID: d.ward.ID, Code: form.Code, Label: form.Label, Description: form.Description, DisplayOrder: order}
+	addInvalid(form.Errors, t.Validate(), "label")
 	if len(form.Errors) > 0 {
 		return s.renderTierError(w, r, d, form, "")
 	}
-	t := &wardload.Tier{WardID: d.ward.ID, Code: form.Code, Label: form.Label, Description: form.Description, DisplayOrder: order}
-	err = t.Validate()
-	if err == nil {
-		err = s.store.CreateTier(r.Context(), t)
-	}
-	if err != nil {
+	if err := s.store.CreateTier(r.Context(), t); err != nil {
 		if shown, err := tierStoreError(err, form); !shown {
 			return fmt.Errorf("tier create: %w", err)
 		}
@@ -236,16 +240,14 @@ func (s *Server) handleTierUpdate(w http.ResponseWriter, r *http.Request) error 
 	if strings.TrimSpace(form.Order) == "" {
 		order = cur.DisplayOrder // empty keeps the tier where it is
 	}
+	next := *cur
+	next.Label, next.Description, next.DisplayOrder = form.Label, form.Description, order
+	addInvalid(form.Errors, next.Validate(), "label")
 	if len(form.Errors) > 0 {
 		return s.renderTierError(w, r, d, form, idText)
 	}
-	next := *cur
-	next.Label, next.Description, next.DisplayOrder = form.Label, form.Description, order
-	err = next.Validate()
-	if err == nil {
-		_, err = s.store.UpdateTier(r.Context(), id, wardload.TierUpdate{Label: &form.Label, Description: &form.Description, DisplayOrder: &order})
-	}
-	if err != nil {
+	upd := wardload.TierUpdate{Label: &form.Label, Description: &form.Description, DisplayOrder: &order}
+	if _, err := s.store.UpdateTier(r.Context(), id, upd); err != nil {
 		if shown, err := tierStoreError(err, form); !shown {
 			return fmt.Errorf("tier update: %w", err)
 		}
