@@ -142,10 +142,10 @@ func TestSettingsPageShowsStoredValues(t *testing.T) {
 	}
 	def := wardload.DefaultSettings(f.wardA.ID)
 	for id, want := range map[string]string{
-		"s-dcf":      "0.75",
-		"s-cover":    "0.9",
-		"s-lookback": fmt.Sprint(def.LookbackWeeks),
-		"s-beds":     "0",
+		"s-dcf":                                "0.75",
+		"s-cover":                              "0.9",
+		"s-lookback":                           fmt.Sprint(def.LookbackWeeks),
+		"s-beds":                               "0",
 		fmt.Sprintf("sh-%d-name", f.night.ID):  "Night",
 		fmt.Sprintf("sh-%d-start", f.night.ID): "19:30",
 		fmt.Sprintf("sh-%d-hours", f.night.ID): "12",
@@ -202,10 +202,10 @@ func TestSettingsSaveHappyPaths(t *testing.T) {
 	t.Run("floors", func(t *testing.T) {
 		f := newSettingsFixture(t)
 		form := url.Values{
-			fmt.Sprintf("floor_%d", f.night.ID):            {"8"},
+			fmt.Sprintf("floor_%d", f.night.ID):             {"8"},
 			fmt.Sprintf("floor_%d_%d", f.night.ID, f.t2.ID): {"2.5"},
 			fmt.Sprintf("floor_%d_%d", f.night.ID, f.t1.ID): {""},
-			fmt.Sprintf("charge_%d", f.night.ID):           {"1"},
+			fmt.Sprintf("charge_%d", f.night.ID):            {"1"},
 		}
 		res, _, page := f.postSettings(t, "/wards/w-a/settings/floors", form)
 		if res.StatusCode != 303 || !strings.HasSuffix(res.Header.Get("Location"), "#floors") {
