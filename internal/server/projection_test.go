@@ -1,0 +1,255 @@
+package server
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"net/http/httptest"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+
+	"wardload/internal/export"
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+)
+
+// mustProject posts a census for ward cw as principal p and returns the
+// stored projection.
+func (f *censusFixture) mustProject(tb testing.TB, p string, cw *censusWard, date string, shift *wardload.ShiftPattern, counts ...int) *wardload.Projection {
+	tb.Helper()
+	form := map[string][]string{"date": {date}, "shift": {strconv.FormatInt(shift.ID, 10)}}
+	for i, t := range cw.tiers {
+		form["tier_"+t.Code] = []string{strconv.Itoa(counts[i])}
+	}
+	res, body := f.do(tb, f.as(tb, p, post("/wards/"+cw.ward.Code+"/census", form)))
+	loc := res.Header.Get("Location")
+	if res.StatusCode != 303 {
+		tb.Fatalf("census post: %d\n%s", res.StatusCode, body)
+	}
+	id, err := strconv.ParseInt(loc[strings.LastIndex(loc, "/")+1:], 10, 64)
+	if err != nil {
+		tb.Fatalf("Location %q", loc)
+	}
+	pr, err := f.st.FindProjectionByID(context.Background(), id)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return pr
+}
+
+// TestProjectionPageShowsTheExportsFigures: every figure the roster
+// export carries appears on the page with exactly the export's digits.
+func TestProjectionPageShowsTheExportsFigures(t *testing.T) {
+	f := newCensusFixture(t)
+	withFloor := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
+	noFloor := f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.night, 5, 5, 2, 0)
+	from, to := wardload.Date{Year: 2026, Month: 3, Day: 1}, wardload.Date{Year: 2026, Month: 3, Day: 2}
+	_, rows, err := export.Rows(context.Background(), f.st, f.wardA, from, to)
+	if err != nil || len(rows) != 2 {
+		t.Fatalf("export rows %d, %v", len(rows), err)
+	}
+	for i, p := range []*wardload.Projection{noFloor, withFloor} { // rows are oldest first
+		row := rows[i]
+		_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-a/projections/%d", p.ID), nil)))
+		floor := "none"
+		if row.Floor != nil {
+			floor = strconv.Itoa(*row.Floor)
+		}
+		for id, want := range map[string]string{
+			"recommended":          strconv.Itoa(row.Recommended),
+			"nurses-cover":         strconv.Itoa(row.NursesCover),
+			"floor-nurses":         floor,
+			"floor-rule":           row.FloorRule,
+			"decided-by":           row.DecidedBy,
+			"expected-nurse-hours": export.FormatHours(row.ExpectedNurseHours),
+			"band-low":             export.FormatHours(row.BandLowNurseHours),
+			"band-high":            export.FormatHours(row.BandHighNurseHours),
+			"cover-level":          export.FormatLevel(row.CoverLevel),
+			"shift-hours":          export.FormatHours(row.ShiftHours),
+			"census-total":         strconv.Itoa(row.TotalPatients),
+			"revision":             strconv.Itoa(row.CensusRevision),
+			"method-version":       row.MethodVersion,
+			"projection-caution":   row.Caution,
+		} {
+			if got := byTestID(t, body, id); !slices.Equal(got, []string{want}) {
+				t.Errorf("%s %s: page %q, export %q", row.Shift, id, got, want)
+			}
+		}
+		// And the stored projection agrees with both.
+		if row.Recommended != p.Recommended {
+			t.Errorf("export recommended %d, stored %d", row.Recommended, p.Recommended)
+		}
+	}
+	if withFloor.Floor == nil || noFloor.Floor != nil {
+		t.Fatalf("fixture: Day should have a floor and Night none (%v, %v)", withFloor.Floor, noFloor.Floor)
+	}
+}
+
+func TestProjectionPageContent(t *testing.T) {
+	f := newCensusFixture(t)
+	p := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
+	var res stats.Projection
+	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
+		t.Fatal(err)
+	}
+	_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-a/projections/%d", p.ID), nil)))
+	if got := byTestID(t, body, "recommended"); !slices.Equal(got, []string{strconv.Itoa(p.Recommended)}) {
+		t.Errorf("recommended %q, stored %d", got, p.Recommended)
+	}
+	// 13 patients at 5 per nurse, plus the nurse in charge: 3 + 1.
+	if got := byTestID(t, body, "floor-nurses"); !slices.Equal(got, []string{"4"}) {
+		t.Errorf("floor %q, want 4", got)
+	}
+	if got := byTestID(t, body, "floor-rule"); len(got) != 1 || !strings.Contains(got[0], "at most 5 patients per nurse") || !strings.Contains(got[0], "nurse in charge") {
+		t.Errorf("floor rule %q", got)
+	}
+	if !strings.Contains(body, `<svg xmlns="http://www.w3.org/2000/svg"`) || !strings.Contains(body, `class="chart-curve"`) || strings.Count(body, `class="chart-cap`) != 3 {
+		t.Error("no chart with a curve and three capacity lines")
+	}
+	if got := byTestID(t, body, "shortfall-nurses"); len(got) != len(res.Shortfall) || len(got) == 0 {
+		t.Errorf("shortfall rows %d, result has %d", len(got), len(res.Shortfall))
+	}
+	for i, sf := range res.Shortfall {
+		if got := byTestID(t, body, "shortfall-analytic"); i < len(got) && got[i] != percent(sf.Probability) {
+			t.Errorf("shortfall %d nurses analytic %q, want %q", sf.Nurses, got[i], percent(sf.Probability))
+		}
+	}
+	if got := byTestID(t, body, "tier-patients"); !slices.Equal(got, []string{"4", "6", "3", "0"}) {
+		t.Errorf("tier patients %q", got)
+	}
+	if got := byTestID(t, body, "draws"); !slices.Equal(got, []string{strconv.Itoa(p.Draws)}) {
+		t.Errorf("draws %q", got)
+	}
+	if got := byTestID(t, body, "seed"); !slices.Equal(got, []string{strconv.FormatUint(p.Seed, 10)}) {
+		t.Errorf("seed %q", got)
+	}
+	if got := byTestID(t, body, "caution"); len(got) != 1 {
+		t.Errorf("layout caution %q", got)
+	}
+	// The fixture's data has 4-hour windows: the scaling warning shows.
+	if w := strings.Join(byTestID(t, body, "warning"), " "); !strings.Contains(w, "scaled to the shift") {
+		t.Errorf("warnings %q lack the scaled-window warning", w)
+	}
+	for _, bad := range []string{"<script", "<style", "style=", "onclick="} {
+		if strings.Contains(body, bad) {
+			t.Errorf("page contains %q (the CSP forbids it)", bad)
+		}
+	}
+}
+
+func TestProjectionOfAnotherWardIsNotFound(t *testing.T) {
+	f := newCensusFixture(t)
+	onB := f.mustProject(t, pAdmin, f.b, "2026-03-02", f.b.day, 2, 2, 2, 0)
+	for _, p := range []string{pNurseA, pManagerA, pAdmin} {
+		res, _ := f.do(t, f.as(t, p, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-a/projections/%d", onB.ID), nil)))
+		if res.StatusCode != 404 {
+			t.Errorf("%s: ward B's projection via ward A = %d, want 404", p, res.StatusCode)
+		}
+	}
+	for _, id := range []string{"0", "abc", "99999"} {
+		if res, _ := f.do(t, f.as(t, pAdmin, httptest.NewRequest("GET", "/wards/w-a/projections/"+id, nil))); res.StatusCode != 404 {
+			t.Errorf("id %s = %d, want 404", id, res.StatusCode)
+		}
+	}
+	if res, _ := f.do(t, f.as(t, pAdmin, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-b/projections/%d", onB.ID), nil))); res.StatusCode != 200 {
+		t.Errorf("ward B's own page = %d", res.StatusCode)
+	}
+}
+
+func TestShiftListAndDownloads(t *testing.T) {
+	f := newCensusFixture(t)
+	// Entered out of order; the list is newest first (date, then start).
+	f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.day, 3, 3, 1, 0)
+	f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
+	f.mustProject(t, pNurseA, f.a, "2026-02-20", f.a.night, 2, 2, 2, 0)
+	f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.night, 5, 5, 2, 0)
+	latest := f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.day, 3, 4, 1, 0) // revision 2
+	f.mustProject(t, pAdmin, f.b, "2026-03-01", f.b.day, 9, 1, 1, 0)          // another ward
+
+	_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", "/wards/w-a/projections", nil)))
+	want := []string{"2026-03-02 Day", "2026-03-01 Night", "2026-03-01 Day", "2026-02-20 Night"}
+	if got := byTestID(t, body, "projection-link"); !slices.Equal(got, want) {
+		t.Errorf("list %q, want %q", got, want)
+	}
+	if got := byTestID(t, body, "row-total"); !slices.Equal(got, []string{"13", "12", "8", "6"}) {
+		t.Errorf("totals %q (the Day of 1 March shows revision 2's 8)", got)
+	}
+	if !strings.Contains(body, fmt.Sprintf(`href="/wards/w-a/projections/%d"`, latest.ID)) {
+		t.Error("no link to revision 2 of 1 March Day")
+	}
+	if len(byTestID(t, body, "download-csv")) != 0 {
+		t.Error("a charge nurse sees the download links")
+	}
+	// A narrower range.
+	_, body = f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", "/wards/w-a/projections?from=2026-03-01&to=2026-03-01", nil)))
+	if got := byTestID(t, body, "projection-link"); !slices.Equal(got, want[1:3]) {
+		t.Errorf("1 March only: %q", got)
+	}
+	res, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", "/wards/w-a/projections?from=2026-03-05&to=2026-03-01", nil)))
+	if res.StatusCode != 400 || len(byTestID(t, body, "range-error")) != 1 {
+		t.Errorf("reversed range: %d %q", res.StatusCode, byTestID(t, body, "range-error"))
+	}
+
+	// Managers get the downloads: byte for byte the export's output.
+	_, body = f.do(t, f.as(t, pManagerA, httptest.NewRequest("GET", "/wards/w-a/projections?from=2026-02-20&to=2026-03-02", nil)))
+	csvURL := byTestIDAttr(t, body, "download-csv")
+	if csvURL != "/wards/w-a/projections.csv?from=2026-02-20&to=2026-03-02" {
+		t.Fatalf("CSV link %q", csvURL)
+	}
+	from, to := wardload.Date{Year: 2026, Month: 2, Day: 20}, wardload.Date{Year: 2026, Month: 3, Day: 2}
+	tiers, rows, err := export.Rows(context.Background(), f.st, f.wardA, from, to)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var wantCSV, wantJSON bytes.Buffer
+	if err := export.WriteCSV(&wantCSV, tiers, rows); err != nil {
+		t.Fatal(err)
+	}
+	if err := export.WriteJSON(&wantJSON, f.wardA, from, to, tiers, rows); err != nil {
+		t.Fatal(err)
+	}
+	for _, d := range []struct {
+		url, ctype, name string
+		want             []byte
+	}{
+		{csvURL, "text/csv; charset=utf-8", "wardload-w-a-2026-02-20-2026-03-02.csv", wantCSV.Bytes()},
+		{byTestIDAttr(t, body, "download-json"), "application/json; charset=utf-8", "wardload-w-a-2026-02-20-2026-03-02.json", wantJSON.Bytes()},
+	} {
+		res, got := f.do(t, f.as(t, pManagerA, httptest.NewRequest("GET", d.url, nil)))
+		if res.StatusCode != 200 || res.Header.Get("Content-Type") != d.ctype {
+			t.Errorf("%s: %d %q", d.url, res.StatusCode, res.Header.Get("Content-Type"))
+		}
+		if cd := res.Header.Get("Content-Disposition"); cd != `attachment; filename="`+d.name+`"` {
+			t.Errorf("%s: Content-Disposition %q", d.url, cd)
+		}
+		if got != string(d.want) {
+			t.Errorf("%s differs from the export:\n%s\nwant\n%s", d.url, got, d.want)
+		}
+		if len(rows) != 4 {
+			t.Errorf("export has %d rows, want 4", len(rows))
+		}
+	}
+	if res, _ := f.do(t, f.as(t, pManagerA, httptest.NewRequest("GET", "/wards/w-a/projections.csv?from=nonsense", nil))); res.StatusCode != 400 {
+		t.Errorf("bad range download = %d, want 400", res.StatusCode)
+	}
+}
+
+// byTestIDAttr returns the href of the first element with data-testid=id.
+func byTestIDAttr(tb testing.TB, page, id string) string {
+	tb.Helper()
+	i := strings.Index(page, `data-testid="`+id+`"`)
+	if i < 0 {
+		tb.Fatalf("no %s", id)
+	}
+	start := strings.LastIndex(page[:i], "<")
+	tag := page[start:i]
+	j := strings.Index(tag, `href="`)
+	if j < 0 {
+		tb.Fatalf("%s has no href", id)
+	}
+	href := tag[j+6:]
+	return strings.ReplaceAll(href[:strings.Index(href, `"`)], "&amp;", "&")
+}
