@@ -167,7 +167,7 @@ func TestShiftListAndDownloads(t *testing.T) {
 	f.mustProject(t, pNurseA, f.a, "2026-02-20", f.a.night, 2, 2, 2, 0)
 	f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.night, 5, 5, 2, 0)
 	latest := f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.day, 3, 4, 1, 0) // revision 2
-	f.mustProject(t, pAdmin, f.b, "2026-03-01", f.b.day, 9, 1, 1, 0)          // another ward
+	f.mustProject(t, pAdmin, f.b, "2026-03-01", f.b.day, 9, 1, 1, 0)            // another ward
 
 	_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", "/wards/w-a/projections", nil)))
 	want := []string{"2026-03-02 Day", "2026-03-01 Night", "2026-03-01 Day", "2026-02-20 Night"}
