@@ -39,6 +39,12 @@ type WardRowVM struct {
 	// TokensURL links to the ward's API tokens; "" for roles that may
 	// not manage them.
 	TokensURL string
+	// CensusURL and ProjectionsURL link to census entry and the shift
+	// list, which every member of the ward may use.
+	CensusURL      string
+	ProjectionsURL string
+	// SettingsURL links to the ward's settings; "" for charge nurses.
+	SettingsURL string
 }
 
 // ErrorVM is the error page. Message is already safe to show (it comes from

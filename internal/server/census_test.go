@@ -208,3 +208,19 @@ func TestCensusChooseOtherShift(t *testing.T) {
 		t.Errorf("out of window: %d, form %d, errors %q", res.StatusCode, len(byTestID(t, body, "census-form")), byTestID(t, body, "error-link"))
 	}
 }
+
+func TestHomeLinksToCensusAndShiftList(t *testing.T) {
+	f := newFixture(t)
+	for _, tc := range []struct {
+		p        string
+		settings int
+	}{{pNurseA, 0}, {pManagerA, 1}} {
+		_, body := f.do(t, f.as(t, tc.p, httptest.NewRequest("GET", "/", nil)))
+		if !strings.Contains(body, `href="/wards/w-a/census"`) || !strings.Contains(body, `href="/wards/w-a/projections"`) {
+			t.Errorf("%s: home lacks the census or shift list link", tc.p)
+		}
+		if n := len(byTestID(t, body, "ward-settings")); n != tc.settings {
+			t.Errorf("%s: %d settings links, want %d", tc.p, n, tc.settings)
+		}
+	}
+}

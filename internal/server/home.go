@@ -21,9 +21,11 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 	}
 	vm := web.HomeVM{Wards: make([]web.WardRowVM, 0, len(wards))}
 	for _, wd := range wards {
-		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone}
+		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone,
+			CensusURL: censusURL(wd), ProjectionsURL: projectionsURL(wd)}
 		if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
 			row.TokensURL = "/wards/" + wd.Code + "/tokens"
+			row.SettingsURL = "/wards/" + wd.Code + "/settings"
 		}
 		vm.Wards = append(vm.Wards, row)
 	}
