@@ -1,0 +1,170 @@
+package main
+
+import (
+	"context"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
+
+	"wardload/internal/demo"
+)
+
+const chromiumPath = "/usr/bin/chromium"
+
+// newBrowser starts headless Chromium with a fresh profile. Without
+// Chromium the test is skipped, except under CI=true, where it must run.
+func newBrowser(t *testing.T) context.Context {
+	t.Helper()
+	if _, err := os.Stat(chromiumPath); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("CI=true but %s is missing: %v", chromiumPath, err)
+		}
+		t.Skipf("%s not installed; browser test skipped", chromiumPath)
+	}
+	opts := []chromedp.ExecAllocatorOption{
+		chromedp.ExecPath(chromiumPath),
+		chromedp.Headless,
+		chromedp.NoSandbox,
+		chromedp.DisableGPU,
+		chromedp.NoFirstRun,
+		chromedp.Flag("disable-quic", true),
+		chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-sync", true),
+		chromedp.UserDataDir(t.TempDir()),
+		chromedp.WindowSize(1280, 900),
+	}
+	actx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), opts...)
+	ctx, cancelCtx := chromedp.NewContext(actx)
+	ctx, cancelTimeout := context.WithTimeout(ctx, 90*time.Second)
+	t.Cleanup(func() { cancelTimeout(); cancelCtx(); cancelAlloc() })
+	return ctx
+}
+
+// TestBrowserCensusToProjection runs the real wiring with the demo ward,
+// signs in as a demo charge nurse, enters a census by keyboard alone and
+// reads the recommended headcount off the projection page.
+func TestBrowserCensusToProjection(t *testing.T) {
+	ctx := newBrowser(t)
+	dir := t.TempDir()
+	s := MustServe(t, "--demo", "--addr", "127.0.0.1:0", "--data-dir", dir)
+	m := regexp.MustCompile(`demo\.charge1\s+charge_nurse\s+(\S+)`).FindStringSubmatch(s.stdout.String())
+	if m == nil {
+		t.Fatalf("no demo.charge1 password in:\n%s", s.stdout)
+	}
+	do := func(what string, steps ...chromedp.Action[chromedp.Void]) {
+		t.Helper()
+		if err := chromedp.Do(ctx, steps...); err != nil {
+			t.Fatalf("%s: %v", what, err)
+		}
+	}
+	do("sign in",
+		chromedp.Navigate(s.URL+"/signin"),
+		chromedp.SendKeys(chromedp.CSS("#signin-name"), "demo.charge1"),
+		chromedp.SendKeys(chromedp.CSS("#signin-password"), m[1]+kb.Enter),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid="wards"]`)),
+	)
+	do("open the census page",
+		chromedp.Navigate(s.URL+"/wards/"+demo.WardCode+"/census"),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid="census-form"]`)),
+	)
+	tierIDs, err := chromedp.Run(ctx, chromedp.Evaluate[[]string](`Array.from(document.querySelectorAll('[data-testid="tier-field"] input')).map(e => e.id)`))
+	if err != nil || len(tierIDs) < 2 {
+		t.Fatalf("tier inputs %q: %v", tierIDs, err)
+	}
+	saveScreenshots(t, ctx, "census")
+
+	// Keyboard only: focus the first count, then for each tier select
+	// what is there, type the count and Tab to the next field; Enter in
+	// the last field submits the form with its first button, Save.
+	counts := []string{"3", "5", "2", "1", "1", "1"}
+	do("focus the first tier", chromedp.Focus(chromedp.CSS("#"+tierIDs[0])))
+	for i, id := range tierIDs {
+		active, err := chromedp.Run(ctx, chromedp.Evaluate[string](`document.activeElement.id`))
+		if err != nil || active != id {
+			t.Fatalf("tab order: focus on %q, want %q (%v)", active, id, err)
+		}
+		last := kb.Tab
+		if i == len(tierIDs)-1 {
+			last = kb.Enter
+		}
+		do("type tier "+id,
+			chromedp.KeyEvent("a", chromedp.KeyModifiers(chromedp.ModifierCtrl)),
+			chromedp.KeyEvent(kb.Delete),
+			chromedp.KeyEvent(counts[i%len(counts)]),
+			chromedp.KeyEvent(last),
+		)
+	}
+	do("wait for the projection", chromedp.WaitVisible(chromedp.CSS("#recommended")))
+	recommended, err := chromedp.Run(ctx, chromedp.Text(chromedp.CSS("#recommended")))
+	if err != nil {
+		t.Fatal(err)
+	}
+	location, err := chromedp.Run(ctx, chromedp.Location())
+	if err != nil {
+		t.Fatal(err)
+	}
+	idm := regexp.MustCompile(`/wards/` + demo.WardCode + `/projections/([0-9]+)$`).FindStringSubmatch(location)
+	if idm == nil {
+		t.Fatalf("after saving, at %s", location)
+	}
+	saveScreenshots(t, ctx, "projection")
+
+	st, err := openStore(context.Background(), &storeOptions{DataDir: dir}, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	id, _ := strconv.ParseInt(idm[1], 10, 64)
+	p, err := st.Store.FindProjectionByID(context.Background(), id)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.TrimSpace(recommended) != strconv.Itoa(p.Recommended) {
+		t.Errorf("page recommends %q, stored projection %d", recommended, p.Recommended)
+	}
+	want := 0
+	for i := range tierIDs {
+		n, _ := strconv.Atoi(counts[i%len(counts)])
+		want += n
+	}
+	if p.TotalPatients != want || p.CreatedBy == 0 {
+		t.Errorf("stored census total %d by user %d, want %d typed by the nurse", p.TotalPatients, p.CreatedBy, want)
+	}
+}
+
+// saveScreenshots writes full-page screenshots at desktop and phone width
+// to $WARDLOAD_SCREENSHOTS, when set, for a person to look at.
+func saveScreenshots(t *testing.T, ctx context.Context, name string) {
+	t.Helper()
+	dir := os.Getenv("WARDLOAD_SCREENSHOTS")
+	if dir == "" {
+		return
+	}
+	for _, size := range []struct {
+		label string
+		w, h  int64
+		opts  []chromedp.EmulateViewportOption
+	}{{"desktop", 1280, 900, nil}, {"phone", 390, 844, []chromedp.EmulateViewportOption{chromedp.EmulateMobile, chromedp.EmulateTouch, chromedp.EmulatePortrait}}} {
+		if err := chromedp.Do(ctx, chromedp.EmulateViewport(size.w, size.h, size.opts...)); err != nil {
+			t.Fatalf("viewport %s: %v", size.label, err)
+		}
+		png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100)) // quality 100 gives a PNG
+		if err != nil {
+			t.Fatalf("screenshot %s %s: %v", name, size.label, err)
+		}
+		if err := os.WriteFile(filepath.Join(dir, "wardload-"+name+"-"+size.label+".png"), png, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := chromedp.Do(ctx, chromedp.ResetViewport()); err != nil {
+		t.Fatal(err)
+	}
+}
