@@ -61,7 +61,7 @@ const (
 	chartH      = 300.0
 	chartLeft   = 24.0
 	chartRight  = 616.0
-	chartTop    = 48.0 // room for the capacity labels above the curve
+	chartTop    = 56.0 // room for two rows of capacity labels above the curve
 	chartBase   = 220.0
 	chartPoints = 161
 )
@@ -128,7 +128,9 @@ func NewChart(in ChartInput) ChartVM {
 	for i, cp := range in.Capacities {
 		l := ChartLine{
 			X1: num(x(cp.NurseHours)), X2: num(x(cp.NurseHours)), Y1: num(chartTop - 6), Y2: num(chartBase),
-			LabelX: num(x(cp.NurseHours)), LabelY: num(chartTop - 28 + float64(i%2)*14),
+			// Neighbouring labels alternate between two rows so that
+			// they cannot overlap even where the lines are close.
+			LabelX: num(x(cp.NurseHours)), LabelY: num(chartTop - 36 + float64(i%2)*24),
 			Label: fmt.Sprintf("%d nurses", cp.Nurses), Class: "chart-cap",
 		}
 		if cp.Recommended {

@@ -116,6 +116,11 @@ func TestBrowserCensusToProjection(t *testing.T) {
 		t.Fatalf("after saving, at %s", location)
 	}
 	saveScreenshots(t, ctx, "projection")
+	do("open the shift list",
+		chromedp.Navigate(s.URL+"/wards/"+demo.WardCode+"/projections"),
+		chromedp.WaitVisible(chromedp.CSS(`a[href$="/projections/`+idm[1]+`"]`)),
+	)
+	saveScreenshots(t, ctx, "shift-list")
 
 	st, err := openStore(context.Background(), &storeOptions{DataDir: dir}, false)
 	if err != nil {
