@@ -104,33 +104,33 @@ func NewChart(in ChartInput) ChartVM {
 		if i == 0 {
 			cmd = "M"
 		}
-		fmt.Fprintf(&curve, "%s%s,%s ", cmd, num(x(v)), num(y(v)))
+		fmt.Fprintf(&curve, "%s%s,%s ", cmd, chartNum(x(v)), chartNum(y(v)))
 		if !math.IsNaN(rec) && v >= rec {
 			if tail.Len() == 0 {
-				fmt.Fprintf(&tail, "M%s,%s L%s,%s ", num(x(rec)), num(chartBase), num(x(rec)), num(y(rec)))
+				fmt.Fprintf(&tail, "M%s,%s L%s,%s ", chartNum(x(rec)), chartNum(chartBase), chartNum(x(rec)), chartNum(y(rec)))
 			}
-			fmt.Fprintf(&tail, "L%s,%s ", num(x(v)), num(y(v)))
+			fmt.Fprintf(&tail, "L%s,%s ", chartNum(x(v)), chartNum(y(v)))
 		}
 	}
 	c.Curve = strings.TrimSpace(curve.String())
 	if tail.Len() > 0 {
-		fmt.Fprintf(&tail, "L%s,%s Z", num(x(hi)), num(chartBase))
+		fmt.Fprintf(&tail, "L%s,%s Z", chartNum(x(hi)), chartNum(chartBase))
 		c.Tail = tail.String()
 	}
-	c.AxisY, c.AxisX1, c.AxisX2 = num(chartBase), num(chartLeft), num(chartRight)
-	step := niceStep((hi - lo) / 6)
+	c.AxisY, c.AxisX1, c.AxisX2 = chartNum(chartBase), chartNum(chartLeft), chartNum(chartRight)
+	step := chartTickStep((hi - lo) / 6)
 	for t := math.Ceil(lo/step) * step; t <= hi; t += step {
 		c.Ticks = append(c.Ticks, ChartTick{
-			X: num(x(t)), Y1: num(chartBase), Y2: num(chartBase + 6), LabelY: num(chartBase + 22),
+			X: chartNum(x(t)), Y1: chartNum(chartBase), Y2: chartNum(chartBase + 6), LabelY: chartNum(chartBase + 22),
 			Label: strconv.FormatFloat(math.Round(t/step)*step, 'f', -1, 64),
 		})
 	}
 	for i, cp := range in.Capacities {
 		l := ChartLine{
-			X1: num(x(cp.NurseHours)), X2: num(x(cp.NurseHours)), Y1: num(chartTop - 6), Y2: num(chartBase),
+			X1: chartNum(x(cp.NurseHours)), X2: chartNum(x(cp.NurseHours)), Y1: chartNum(chartTop - 6), Y2: chartNum(chartBase),
 			// Neighbouring labels alternate between two rows so that
 			// they cannot overlap even where the lines are close.
-			LabelX: num(x(cp.NurseHours)), LabelY: num(chartTop - 36 + float64(i%2)*24),
+			LabelX: chartNum(x(cp.NurseHours)), LabelY: chartNum(chartTop - 36 + float64(i%2)*24),
 			Label: fmt.Sprintf("%d nurses", cp.Nurses), Class: "chart-cap",
 		}
 		if cp.Recommended {
@@ -138,19 +138,19 @@ func NewChart(in ChartInput) ChartVM {
 		}
 		c.Lines = append(c.Lines, l)
 	}
-	c.RangeX1, c.RangeX2, c.RangeMid, c.RangeY = num(x(in.P10)), num(x(in.P90)), num(x(in.P50)), num(chartBase+46)
-	c.LabelY = num(chartH - 4)
+	c.RangeX1, c.RangeX2, c.RangeMid, c.RangeY = chartNum(x(in.P10)), chartNum(x(in.P90)), chartNum(x(in.P50)), chartNum(chartBase+46)
+	c.LabelY = chartNum(chartH - 4)
 	c.Describe = fmt.Sprintf("Normal curve of the shift's workload centred on %s nurse-hours with a standard deviation of %s; "+
 		"the simulation's middle 80%% runs from %s to %s nurse-hours (median %s).",
-		hours(in.Mean), hours(in.SD), hours(in.P10), hours(in.P90), hours(in.P50))
+		chartHours(in.Mean), chartHours(in.SD), chartHours(in.P10), chartHours(in.P90), chartHours(in.P50))
 	for _, cp := range in.Capacities {
-		c.Describe += fmt.Sprintf(" %d nurses give %s nurse-hours.", cp.Nurses, hours(cp.NurseHours))
+		c.Describe += fmt.Sprintf(" %d nurses give %s nurse-hours.", cp.Nurses, chartHours(cp.NurseHours))
 	}
 	return c
 }
 
-// niceStep rounds a raw tick step up to 1, 2 or 5 times a power of ten.
-func niceStep(raw float64) float64 {
+// chartTickStep rounds a raw tick step up to 1, 2 or 5 times a power of ten.
+func chartTickStep(raw float64) float64 {
 	if !(raw > 0) {
 		return 1
 	}
@@ -163,7 +163,8 @@ func niceStep(raw float64) float64 {
 	return 10 * mag
 }
 
-// num writes a coordinate with one decimal, enough for a 640-unit frame.
-func num(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
+// chartNum writes a coordinate with one decimal, enough for a 640-unit frame.
+func chartNum(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
 
-func hours(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
+// chartHours writes nurse-hours for the chart's description.
+func chartHours(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }

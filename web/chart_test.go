@@ -6,12 +6,12 @@ import (
 	"testing"
 )
 
-func TestNiceStep(t *testing.T) {
+func TestChartTickStep(t *testing.T) {
 	for _, tc := range []struct{ raw, want float64 }{
 		{0.7, 1}, {1, 1}, {1.2, 2}, {3, 5}, {7, 10}, {12, 20}, {45, 50}, {0, 1},
 	} {
-		if got := niceStep(tc.raw); got != tc.want {
-			t.Errorf("niceStep(%g) = %g, want %g", tc.raw, got, tc.want)
+		if got := chartTickStep(tc.raw); got != tc.want {
+			t.Errorf("chartTickStep(%g) = %g, want %g", tc.raw, got, tc.want)
 		}
 	}
 }
