@@ -81,6 +81,21 @@ func TestBrowserCensusToProjection(t *testing.T) {
 	}
 	saveScreenshots(t, ctx, "census")
 
+	// A bad count first: the form comes back with the error summary
+	// focused, the field marked invalid and nothing stored.
+	do("submit a bad count",
+		chromedp.Focus(chromedp.CSS("#"+tierIDs[0])),
+		chromedp.KeyEvent("a", chromedp.KeyModifiers(chromedp.ModifierCtrl)),
+		chromedp.KeyEvent(kb.Delete),
+		chromedp.KeyEvent("x"+kb.Enter),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid="error-summary"]`)),
+	)
+	state, err := chromedp.Run(ctx, chromedp.Evaluate[[]string](`[document.activeElement.dataset.testid || "", document.getElementById("`+tierIDs[0]+`").getAttribute("aria-invalid") || "", document.getElementById("`+tierIDs[0]+`").value]`))
+	if err != nil || len(state) != 3 || state[0] != "error-summary" || state[1] != "true" || state[2] != "x" {
+		t.Errorf("after a bad count: focus, aria-invalid, value = %q (%v); want error-summary, true, x", state, err)
+	}
+	saveScreenshots(t, ctx, "census-error")
+
 	// Keyboard only: focus the first count, then for each tier select
 	// what is there, type the count and Tab to the next field; Enter in
 	// the last field submits the form with its first button, Save.
