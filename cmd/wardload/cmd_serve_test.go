@@ -270,6 +270,9 @@ func TestMigrateCommand(t *testing.T) {
 func TestServePostgres(t *testing.T) {
 	base := os.Getenv("WARDLOAD_TEST_DATABASE_URL")
 	if base == "" {
+		if os.Getenv("CI") == "true" {
+			t.Fatal("WARDLOAD_TEST_DATABASE_URL must be set when CI=true")
+		}
 		t.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL end-to-end test skipped")
 	}
 	dbURL := mustCreateDatabase(t, base)
