@@ -73,6 +73,15 @@ var routeExpectations = map[string][]string{
 	"projection":       {pNurseA, pManagerA, pAdmin},
 	"projections.csv":  wardAMgrs,
 	"projections.json": wardAMgrs,
+
+	// Weekly review, exclusions and import (review_test.go,
+	// observation_import_test.go): ward A's manager and the admin.
+	"review":                   wardAMgrs,
+	"observation.exclude":      wardAMgrs,
+	"observation.restore":      wardAMgrs,
+	"observations.import.form": wardAMgrs,
+	"observations.import":      wardAMgrs,
+	"observations.template":    wardAMgrs,
 }
 
 // routeQuery is appended to the path of routes that read their subject

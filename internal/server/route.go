@@ -97,6 +97,16 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections/{id}", Name: "projection", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjection},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.csv", Name: "projections.csv", Access: wardManagers, Handler: s.handleProjectionsCSV},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.json", Name: "projections.json", Access: wardManagers, Handler: s.handleProjectionsJSON},
+
+		// Weekly tier review, exclusions and observation import, managers
+		// only (review.go, review_page.go, review_exclusion.go,
+		// observation_import.go).
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/review", Name: "review", Access: wardManagers, Handler: s.handleReview},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/observations/{id}/exclude", Name: "observation.exclude", Access: wardManagers, Handler: s.handleObservationExclude, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/observations/{id}/restore", Name: "observation.restore", Access: wardManagers, Handler: s.handleObservationRestore, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/observations/import", Name: "observations.import.form", Access: wardManagers, Handler: s.handleImportForm},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/observations/import", Name: "observations.import", Access: wardManagers, Handler: s.handleImport, MaxBodyBytes: maxImportBytes + 64<<10},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/observations/template.csv", Name: "observations.template", Access: wardManagers, Handler: s.handleImportTemplate},
 	}
 }
 

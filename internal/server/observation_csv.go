@@ -1,0 +1,148 @@
+package server
+
+import (
+	"fmt"
+	"io"
+	"slices"
+	"strings"
+
+	"wardload/internal/csvfile"
+	"wardload/internal/wardload"
+)
+
+// The columns of an observation import. A ward's factor names may follow
+// as further numeric columns; nothing else is accepted.
+var observationColumns = []string{"date", "shift", "tier", "window_hours", "care_minutes"}
+
+// observationHeader is the header row of an import file for ward: the
+// fixed columns, then the ward's factors.
+func observationHeader(ward *wardload.Ward) []string {
+	return append(slices.Clone(observationColumns), ward.FactorNames...)
+}
+
+// parseObservationCSV reads an observation import file for ward. Shifts
+// are named by pattern name, tiers by code. A factor cell may be blank
+// (not recorded). Every problem is EINVALID with a message naming the file
+// line and column. lines[i] is the file line of obs[i], so that a store
+// error about "Row N" can be shown as a line of the file.
+//
+// Any column that is not a known column is refused: a file exported from
+// another system may carry a name, record number or birth date, and
+// wardload keeps no patient identifiers, so such a file must be cut down
+// before import rather than silently trimmed.
+func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
+	t, err := csvfile.Read(r)
+	if err != nil {
+		return nil, nil, err
+	}
+	allowed := observationHeader(ward)
+	for i, h := range t.Header {
+		if !slices.Contains(allowed, h) {
+			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
+				"line 1, column %d: column %q is not accepted. wardload stores no patient identifiers or free text, so a file may only have the columns %s. Remove the other columns and import again.",
+				i+1, clip(h, 40), strings.Join(allowed, ", "))
+		}
+	}
+	for _, c := range observationColumns {
+		if t.Index(c) < 0 {
+			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
+				"line 1: the column %q is missing. The header must have %s.", c, strings.Join(allowed, ", "))
+		}
+	}
+	tierByCode := map[string]*wardload.Tier{}
+	for _, tr := range tiers {
+		tierByCode[tr.Code] = tr
+	}
+	shiftByName := map[string]*wardload.ShiftPattern{}
+	for _, sp := range shifts {
+		shiftByName[strings.ToLower(sp.Name)] = sp
+	}
+
+	// Numbers first, column by column: csvfile names line and column.
+	window, err := t.Floats("window_hours")
+	if err != nil {
+		return nil, nil, err
+	}
+	care, err := t.Floats("care_minutes")
+	if err != nil {
+		return nil, nil, err
+	}
+	dates, _ := t.Strings("date")
+	shiftNames, _ := t.Strings("shift")
+	tierCodes, _ := t.Strings("tier")
+
+	obs = make([]*wardload.Observation, len(t.Records))
+	for i := range t.Records {
+		line := t.Lines[i]
+		cellErr := func(col, format string, args ...any) error {
+			return wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...))
+		}
+		d, err := wardload.ParseDate(dates[i])
+		if err != nil {
+			return nil, nil, cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(dates[i], 40))
+		}
+		sp, ok := shiftByName[strings.ToLower(shiftNames[i])]
+		if !ok {
+			return nil, nil, cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shiftNames[i], 40), shiftList(shifts))
+		}
+		tr, ok := tierByCode[tierCodes[i]]
+		if !ok {
+			return nil, nil, cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tierCodes[i], 40), tierList(tiers))
+		}
+		o := &wardload.Observation{WardID: ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
+			WindowHours: window.Values[i], CareMinutes: care.Values[i]}
+		for _, f := range ward.FactorNames {
+			c := t.Index(f)
+			if c < 0 || strings.TrimSpace(t.Records[i][c]) == "" {
+				continue
+			}
+			v, err := factorValue(t, f, i)
+			if err != nil {
+				return nil, nil, err
+			}
+			if o.Factors == nil {
+				o.Factors = map[string]float64{}
+			}
+			o.Factors[f] = v
+		}
+		if err := o.Validate(); err != nil {
+			return nil, nil, cellErr(fieldOr(err, "file"), "%s", wardload.ErrorMessage(err))
+		}
+		obs[i] = o
+	}
+	return obs, t.Lines, nil
+}
+
+// factorValue reads one factor cell through csvfile's number rules, so a
+// factor reads exactly as the other numeric columns do.
+func factorValue(t *csvfile.Table, name string, i int) (float64, error) {
+	one := &csvfile.Table{Header: []string{name}, Records: [][]string{{t.Records[i][t.Index(name)]}}, Lines: []int{t.Lines[i]}}
+	col, err := one.Floats(name)
+	if err != nil {
+		return 0, err
+	}
+	return col.Values[0], nil
+}
+
+func shiftList(shifts []*wardload.ShiftPattern) string {
+	names := make([]string, len(shifts))
+	for i, s := range shifts {
+		names[i] = s.Name
+	}
+	return listOrNone(names)
+}
+
+func tierList(tiers []*wardload.Tier) string {
+	codes := make([]string, len(tiers))
+	for i, t := range tiers {
+		codes[i] = t.Code
+	}
+	return listOrNone(codes)
+}
+
+func listOrNone(s []string) string {
+	if len(s) == 0 {
+		return "it has none yet"
+	}
+	return "it has " + strings.Join(s, ", ")
+}

@@ -1,0 +1,135 @@
+package server
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"net/http"
+	"regexp"
+	"strconv"
+
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// maxImportBytes is the import route's body limit: a ward's weekly sheet
+// is a few kilobytes; ten years of one ward fit well under it.
+const maxImportBytes = 4 << 20
+
+func importURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/observations/import" }
+
+// importVM describes the upload form for ward.
+func (s *Server) importVM(r *http.Request) (web.ImportVM, []*wardload.Tier, []*wardload.ShiftPattern, error) {
+	ward := principalFrom(r.Context()).Ward
+	vm := web.ImportVM{WardCode: ward.Code, WardName: ward.Name, URL: importURL(ward), ReviewURL: reviewURL(ward),
+		TemplateURL: "/wards/" + ward.Code + "/observations/template.csv",
+		Columns:     observationHeader(ward), Factors: ward.FactorNames}
+	tiers, err := s.store.FindTiers(r.Context(), ward.ID)
+	if err != nil {
+		return vm, nil, nil, fmt.Errorf("import: tiers: %w", err)
+	}
+	shifts, err := s.store.FindShiftPatterns(r.Context(), ward.ID)
+	if err != nil {
+		return vm, nil, nil, fmt.Errorf("import: shifts: %w", err)
+	}
+	for _, t := range tiers {
+		vm.Tiers = append(vm.Tiers, t.Code+" ("+t.Label+")")
+	}
+	for _, p := range shifts {
+		vm.Shifts = append(vm.Shifts, p.Name)
+	}
+	return vm, tiers, shifts, nil
+}
+
+func (s *Server) renderImport(w http.ResponseWriter, r *http.Request, status int, vm web.ImportVM) error {
+	return s.render(w, r, status, web.ImportPage(s.layout(r, "Import observations · "+vm.WardName), vm))
+}
+
+// handleImportForm shows the upload form.
+func (s *Server) handleImportForm(w http.ResponseWriter, r *http.Request) error {
+	vm, _, _, err := s.importVM(r)
+	if err != nil {
+		return err
+	}
+	return s.renderImport(w, r, http.StatusOK, vm)
+}
+
+// handleImport stores an uploaded file as one batch, all or nothing.
+func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
+	vm, tiers, shifts, err := s.importVM(r)
+	if err != nil {
+		return err
+	}
+	refuse := func(msg string) error {
+		vm.Error = msg
+		return s.renderImport(w, r, http.StatusBadRequest, vm)
+	}
+	if err := r.ParseMultipartForm(maxImportBytes); err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			return err
+		}
+		return refuse("The upload could not be read. Choose a CSV file and try again.")
+	}
+	defer r.MultipartForm.RemoveAll()
+	file, _, err := r.FormFile("file")
+	if err != nil {
+		return refuse("Choose a CSV file to import.")
+	}
+	defer file.Close()
+	ward, u := principalFrom(r.Context()).Ward, principalFrom(r.Context()).User
+	obs, lines, err := parseObservationCSV(file, ward, tiers, shifts)
+	if wardload.ErrorCode(err) == wardload.EINVALID {
+		return refuse(wardload.ErrorMessage(err))
+	} else if err != nil {
+		return fmt.Errorf("import: read: %w", err)
+	}
+	for _, o := range obs {
+		o.EnteredBy = u.ID
+	}
+	batch, err := s.store.CreateObservations(r.Context(), obs)
+	if wardload.ErrorCode(err) == wardload.EINVALID {
+		return refuse(rowToLine(wardload.ErrorMessage(err), lines))
+	} else if err != nil {
+		return fmt.Errorf("import: store: %w", err)
+	}
+	s.sessions.Put(r.Context(), sessFlash, fmt.Sprintf("Imported %d observations (batch %s).", len(obs), batch))
+	return seeOther(w, r, reviewURL(ward))
+}
+
+// rowPrefix is how CreateObservations names the row it refused.
+var rowPrefix = regexp.MustCompile(`^Row ([0-9]+): `)
+
+// rowToLine rewrites the store's "Row N: …" (N 1-based in the batch) as the
+// file line the person can find: "line L: …".
+func rowToLine(msg string, lines []int) string {
+	m := rowPrefix.FindStringSubmatch(msg)
+	if m == nil {
+		return msg
+	}
+	n, err := strconv.Atoi(m[1])
+	if err != nil || n < 1 || n > len(lines) {
+		return msg
+	}
+	return fmt.Sprintf("line %d: %s", lines[n-1], msg[len(m[0]):])
+}
+
+// handleImportTemplate downloads an import file with the header only.
+func (s *Server) handleImportTemplate(w http.ResponseWriter, r *http.Request) error {
+	ward := principalFrom(r.Context()).Ward
+	var buf bytes.Buffer
+	cw := csv.NewWriter(&buf)
+	if err := cw.Write(observationHeader(ward)); err != nil {
+		return fmt.Errorf("template: %w", err)
+	}
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return fmt.Errorf("template: %w", err)
+	}
+	w.Header().Set("Content-Type", "text/csv; charset=utf-8")
+	w.Header().Set("Content-Disposition", `attachment; filename="`+ward.Code+`-observations.csv"`)
+	w.Header().Set("Cache-Control", "no-store")
+	_, err := w.Write(buf.Bytes())
+	return err
+}

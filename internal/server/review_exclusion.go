@@ -1,0 +1,118 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"slices"
+	"strings"
+
+	"github.com/go-chi/chi/v5"
+
+	"wardload/internal/wardload"
+)
+
+// wardObservation returns the {id} observation if it belongs to the
+// request's ward; any other is ENOTFOUND, so that IDs of other wards'
+// observations cannot be probed.
+func (s *Server) wardObservation(r *http.Request) (*wardload.Observation, error) {
+	id, err := idParam(chi.URLParam(r, "id"), "observation")
+	if err != nil {
+		return nil, err
+	}
+	o, err := s.store.FindObservationByID(r.Context(), id)
+	if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && o.WardID != principalFrom(r.Context()).Ward.ID) {
+		return nil, wardload.Errorf(wardload.ENOTFOUND, "This ward has no such observation.")
+	}
+	return o, err
+}
+
+// exclusionReason builds the stored reason from the chosen reason and the
+// optional note: "hours entered as minutes: sheet 3 said 2.5". A reason
+// that is not one of the offered ones is refused, so the list stays a list
+// of data problems.
+func exclusionReason(choice, note string) (string, error) {
+	if !slices.Contains(exclusionReasons, choice) {
+		return "", wardload.FieldErrorf(wardload.EINVALID, "reason", "Choose one of the listed reasons.")
+	}
+	reason := choice
+	if n := strings.TrimSpace(note); n != "" {
+		reason += ": " + n
+	}
+	if err := wardload.ValidExclusionReason(reason); err != nil {
+		return "", err
+	}
+	return reason, nil
+}
+
+// handleObservationExclude excludes an observation from the model with a
+// reason. The store keeps it and audits the change.
+func (s *Server) handleObservationExclude(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	o, err := s.wardObservation(r)
+	if err != nil {
+		return err
+	}
+	f := r.PostForm
+	ward, u := principalFrom(r.Context()).Ward, principalFrom(r.Context()).User
+	choice, note := clip(f.Get("reason"), 60), clip(f.Get("note"), 200)
+	reason, err := exclusionReason(choice, note)
+	if err == nil {
+		_, err = s.store.ExcludeObservation(r.Context(), o.ID, reason, u.ID)
+	}
+	switch wardload.ErrorCode(err) {
+	case "":
+		s.sessions.Put(r.Context(), sessFlash, fmt.Sprintf("Observation of %s excluded (%s). It can be restored below.", o.Date, reason))
+		return seeOther(w, r, reviewQuery(ward, f.Get("shift"), f.Get("weeks")))
+	case wardload.EINVALID:
+		return s.reviewWithExcludeError(w, r, o, wardload.ErrorMessage(err), choice, note)
+	}
+	return err
+}
+
+// reviewWithExcludeError re-renders the review (same window and shift as
+// the form came from) with the message next to the observation's form.
+// If the observation is not listed in that view, the message goes to the
+// top of the page instead.
+func (s *Server) reviewWithExcludeError(w http.ResponseWriter, r *http.Request, o *wardload.Observation, msg, choice, note string) error {
+	d, err := s.loadReview(r, r.PostForm.Get("shift"), r.PostForm.Get("weeks"))
+	if wardload.ErrorCode(err) == wardload.EINVALID {
+		d, err = s.loadReview(r, "", "")
+	}
+	if err != nil {
+		return err
+	}
+	vm, err := s.reviewVM(r, d)
+	if err != nil {
+		return err
+	}
+	shown := false
+	for i := range vm.Flagged {
+		if vm.Flagged[i].ID == fmt.Sprint(o.ID) {
+			vm.Flagged[i].Error, vm.Flagged[i].Choice, vm.Flagged[i].Note = msg, choice, note
+			shown = true
+		}
+	}
+	if !shown {
+		vm.Notice = "Not excluded: " + msg
+	}
+	return s.renderReview(w, r, http.StatusBadRequest, vm)
+}
+
+// handleObservationRestore includes an excluded observation again.
+func (s *Server) handleObservationRestore(w http.ResponseWriter, r *http.Request) error {
+	if err := r.ParseForm(); err != nil {
+		return formError(err)
+	}
+	o, err := s.wardObservation(r)
+	if err != nil {
+		return err
+	}
+	p := principalFrom(r.Context())
+	if _, err := s.store.RestoreObservation(r.Context(), o.ID, p.User.ID); err != nil {
+		return err
+	}
+	s.sessions.Put(r.Context(), sessFlash, fmt.Sprintf("Observation of %s restored: the model uses it again.", o.Date))
+	return seeOther(w, r, reviewQuery(p.Ward, r.PostForm.Get("shift"), r.PostForm.Get("weeks")))
+}

@@ -1,0 +1,277 @@
+package server
+
+import (
+	"fmt"
+	"net/http"
+	"strconv"
+	"time"
+
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// exclusionReasons are the reasons offered for excluding an observation.
+// They name data problems only; the optional note is capped as well.
+var exclusionReasons = []string{
+	"extra zero typed",
+	"hours entered as minutes",
+	"wrong tier",
+	"duplicate entry",
+	"other (data problem)",
+}
+
+// reviewUnit is the unit every figure of the review is in.
+const reviewUnit = "care minutes per patient per shift"
+
+// conventionText names a quartile convention in words.
+func conventionText(name string) string {
+	for _, q := range quartileOptions {
+		if q.Value == name {
+			return q.Label + " (" + q.Explanation + ")"
+		}
+	}
+	return name
+}
+
+// reviewVM builds the page from d.
+func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) {
+	ward, p := d.ward, d.params
+	vm := web.ReviewVM{
+		WardCode: ward.Code, WardName: ward.Name,
+		URL:         reviewURL(ward),
+		ImportURL:   "/wards/" + ward.Code + "/observations/import",
+		TemplateURL: "/wards/" + ward.Code + "/observations/template.csv",
+		Weeks:       strconv.Itoa(p.weeks),
+		WindowText:  fmt.Sprintf("%d weeks, %s to %s", p.weeks, p.from, p.to),
+		ShiftText:   "all shifts",
+		Conventions: conventionText(d.settings.Quartiles),
+		Unit:        reviewUnit,
+		UnitNote: "Each observation's care minutes are scaled to its own shift pattern's nominal length: " +
+			"care minutes ÷ observed hours × the shift's nominal hours (so 60 minutes in a 4-hour window of a " +
+			"12-hour shift counts as 180). This assumes care is spread evenly over the shift, as the projections do. " +
+			"Only included observations are summarised; the window ends the day before today, like the projections' lookback.",
+		Reasons: exclusionReasons,
+	}
+	if p.shiftID != 0 {
+		vm.ShiftID = strconv.FormatInt(p.shiftID, 10)
+		vm.ShiftText = d.shifts[p.shiftID].Name + " shift only"
+	}
+	for _, sp := range d.order {
+		vm.Shifts = append(vm.Shifts, web.ReviewShiftVM{ID: strconv.FormatInt(sp.ID, 10), Name: sp.Name})
+	}
+	trs, err := d.reviewTiers()
+	if err != nil {
+		return vm, err
+	}
+	hi := 0.0
+	for _, tr := range trs {
+		if tr.summary != nil {
+			hi = max(hi, min(tr.summary.Max, tr.summary.OuterFences.Upper))
+		}
+	}
+	axis := web.NewBoxAxis(hi)
+	vm.Axis = axis
+	for _, tr := range trs {
+		vm.Tiers = append(vm.Tiers, tierVM(tr, axis, d.settings.Quartiles))
+	}
+	vm.Order = orderWarnings(trs, reviewUnit)
+	vm.OrderOK = len(vm.Order) == 0
+	vm.TrendWeeks, vm.TrendRanges, vm.Trend, err = trend(d, trs)
+	if err != nil {
+		return vm, err
+	}
+	for _, tr := range trs {
+		for i, o := range tr.obs {
+			kind := ""
+			if tr.summary != nil {
+				for _, out := range tr.summary.Outliers {
+					if out.Index == i {
+						kind = out.Kind
+					}
+				}
+			}
+			if kind == "" && tr.logKind[i] == "" {
+				continue
+			}
+			ov := d.observationVM(o, tr.tier)
+			ov.Kind, ov.LogKind = kind, tr.logKind[i]
+			vm.Flagged = append(vm.Flagged, ov)
+		}
+	}
+	sortByDate(vm.Flagged)
+	names := map[int64]string{}
+	tierByID := map[int64]*wardload.Tier{}
+	for _, t := range d.tiers {
+		tierByID[t.ID] = t
+	}
+	for _, o := range d.excluded {
+		ov := d.observationVM(o, tierByID[o.TierID])
+		ov.Reason, ov.At = o.ExcludedReason, formatAt(o.ExcludedAt)
+		if ov.By, err = s.userName(r, names, o.ExcludedBy); err != nil {
+			return vm, err
+		}
+		vm.Excluded = append(vm.Excluded, ov)
+	}
+	return vm, nil
+}
+
+// tierVM formats one tier's summary and lays out its box plot.
+func tierVM(tr *tierReview, axis web.BoxAxisVM, convention string) web.ReviewTierVM {
+	t := web.ReviewTierVM{Code: tr.tier.Code, Label: tr.tier.Label, N: "0"}
+	s := tr.summary
+	if s == nil {
+		return t
+	}
+	f := web.FormatValue
+	t.N = strconv.Itoa(s.N)
+	t.Min, t.Q1, t.Median, t.Q3, t.Max, t.IQR = f(s.Min), f(s.Q1), f(s.Median), f(s.Q3), f(s.Max), f(s.IQR)
+	t.Inner = f(s.InnerFences.Lower) + " to " + f(s.InnerFences.Upper)
+	t.Outer = f(s.OuterFences.Lower) + " to " + f(s.OuterFences.Upper)
+	t.Mean, t.SD = f(s.Mean), "—"
+	if s.SD.Defined {
+		t.SD = f(s.SD.Value)
+	}
+	lo, hi := whiskers(tr.values, s.InnerFences)
+	in := web.BoxInput{Label: tr.tier.Label, N: s.N, Min: s.Min, Q1: s.Q1, Median: s.Median, Q3: s.Q3, Max: s.Max,
+		WhiskerLo: lo, WhiskerHi: hi, Unit: reviewUnit, Convention: conventionName(convention)}
+	for _, o := range s.Outliers {
+		in.Outliers = append(in.Outliers, web.BoxPoint{Value: o.Value, Extreme: o.Kind == stats.OutlierExtreme})
+	}
+	t.Plot = web.NewBoxPlot(axis, in)
+	return t
+}
+
+func conventionName(name string) string {
+	for _, q := range quartileOptions {
+		if q.Value == name {
+			return q.Label
+		}
+	}
+	return name
+}
+
+// observationVM formats one observation for the outlier or excluded list.
+func (d *reviewData) observationVM(o *wardload.Observation, t *wardload.Tier) web.ReviewObservationVM {
+	id := strconv.FormatInt(o.ID, 10)
+	base := "/wards/" + d.ward.Code + "/observations/" + id
+	ov := web.ReviewObservationVM{ID: id, Date: o.Date.String(), Window: formatDecimal(o.WindowHours),
+		CareMinutes: formatDecimal(o.CareMinutes), Value: web.FormatValue(d.shiftValue(o)),
+		ExcludeURL: base + "/exclude", RestoreURL: base + "/restore", Choice: exclusionReasons[0]}
+	if p := d.shifts[o.ShiftID]; p != nil {
+		ov.Shift = p.Name
+	}
+	if t != nil {
+		ov.Tier = t.Label
+	}
+	return ov
+}
+
+// userName returns a user's name for the excluded list, caching by ID.
+func (s *Server) userName(r *http.Request, cache map[int64]string, id int64) (string, error) {
+	if id == 0 {
+		return "system", nil
+	}
+	if n, ok := cache[id]; ok {
+		return n, nil
+	}
+	u, err := s.store.FindUserByID(r.Context(), id)
+	if wardload.ErrorCode(err) == wardload.ENOTFOUND {
+		cache[id] = fmt.Sprintf("user %d (removed)", id)
+		return cache[id], nil
+	} else if err != nil {
+		return "", fmt.Errorf("review: user: %w", err)
+	}
+	cache[id] = u.Name
+	return u.Name, nil
+}
+
+// sortByDate orders observations by date, then ID (stable insertion sort:
+// the lists are short).
+func sortByDate(xs []web.ReviewObservationVM) {
+	less := func(a, b web.ReviewObservationVM) bool {
+		if a.Date != b.Date {
+			return a.Date < b.Date
+		}
+		ai, _ := strconv.ParseInt(a.ID, 10, 64)
+		bi, _ := strconv.ParseInt(b.ID, 10, 64)
+		return ai < bi
+	}
+	for i := 1; i < len(xs); i++ {
+		for j := i; j > 0 && less(xs[j], xs[j-1]); j-- {
+			xs[j], xs[j-1] = xs[j-1], xs[j]
+		}
+	}
+}
+
+// trend returns the ISO weeks of the window, oldest first, and each
+// tier's median per week (the median is the same under every quartile
+// convention).
+func trend(d *reviewData, trs []*tierReview) (weeks, ranges []string, rows []web.ReviewTrendRowVM, err error) {
+	type span struct{ first, last wardload.Date }
+	index := map[string]int{}
+	var spans []span
+	for day := d.params.from; !day.After(d.params.to); day = day.AddDays(1) {
+		k := isoWeek(day)
+		if i, ok := index[k]; ok {
+			spans[i].last = day
+			continue
+		}
+		index[k] = len(weeks)
+		weeks = append(weeks, k)
+		spans = append(spans, span{day, day})
+	}
+	for _, sp := range spans {
+		ranges = append(ranges, shortDate(sp.first)+"–"+shortDate(sp.last))
+	}
+	for _, tr := range trs {
+		byWeek := make([][]float64, len(weeks))
+		for i, o := range tr.obs {
+			w := index[isoWeek(o.Date)]
+			byWeek[w] = append(byWeek[w], tr.values[i])
+		}
+		row := web.ReviewTrendRowVM{Label: tr.tier.Label}
+		for _, xs := range byWeek {
+			row.Counts = append(row.Counts, strconv.Itoa(len(xs)))
+			if len(xs) == 0 {
+				row.Medians = append(row.Medians, "")
+				continue
+			}
+			q, err := stats.QuartilesOf(xs, d.settings.Quartiles)
+			if err != nil {
+				return nil, nil, nil, fmt.Errorf("review: trend: %w", err)
+			}
+			row.Medians = append(row.Medians, web.FormatValue(q.Median))
+		}
+		rows = append(rows, row)
+	}
+	return weeks, ranges, rows, nil
+}
+
+func isoWeek(d wardload.Date) string {
+	y, w := time.Date(d.Year, d.Month, d.Day, 12, 0, 0, 0, time.UTC).ISOWeek()
+	return fmt.Sprintf("%d-W%02d", y, w)
+}
+
+func shortDate(d wardload.Date) string {
+	return time.Date(d.Year, d.Month, d.Day, 12, 0, 0, 0, time.UTC).Format("2 Jan")
+}
+
+// handleReview shows the weekly review.
+func (s *Server) handleReview(w http.ResponseWriter, r *http.Request) error {
+	q := r.URL.Query()
+	d, err := s.loadReview(r, q.Get("shift"), q.Get("weeks"))
+	if err != nil {
+		return err
+	}
+	vm, err := s.reviewVM(r, d)
+	if err != nil {
+		return err
+	}
+	vm.Notice = s.sessions.PopString(r.Context(), sessFlash)
+	return s.renderReview(w, r, http.StatusOK, vm)
+}
+
+func (s *Server) renderReview(w http.ResponseWriter, r *http.Request, status int, vm web.ReviewVM) error {
+	return s.render(w, r, status, web.ReviewPage(s.layout(r, "Weekly review · "+vm.WardName), vm))
+}

@@ -1,0 +1,177 @@
+package web
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// BoxInput is one tier's box plot in data units: the five numbers, the
+// whisker ends (the most extreme values inside the inner fences, Tukey
+// 1977) and the values outside them.
+type BoxInput struct {
+	Label                   string
+	N                       int
+	Min, Q1, Median, Q3     float64
+	Max                     float64
+	WhiskerLo, WhiskerHi    float64
+	Outliers                []BoxPoint
+	Unit                    string // for the description, e.g. "minutes per shift"
+	Convention, Description string // Description: extra words for screen readers
+}
+
+// BoxPoint is a value outside the inner fences.
+type BoxPoint struct {
+	Value   float64
+	Extreme bool
+}
+
+// BoxAxisVM is the common axis of a page's box plots: every plot maps the
+// same values to the same x so that tiers can be compared by eye.
+type BoxAxisVM struct {
+	Lo, Hi float64
+	Ticks  []float64
+	Empty  bool
+}
+
+// BoxPlotVM is the geometry of one box plot in its viewBox, ready for the
+// template.
+type BoxPlotVM struct {
+	ViewBox              string
+	Title, Desc          string
+	BoxX, BoxW           string
+	MedianX              string
+	WhiskerLo, WhiskerHi string
+	Points               []BoxPointVM
+	OffScale             string // label of the values beyond the axis, "" if none
+	Ticks                []BoxTickVM
+}
+
+// BoxPointVM is one outlier mark.
+type BoxPointVM struct {
+	X       string
+	Extreme bool
+}
+
+// BoxTickVM is one labelled tick of the axis.
+type BoxTickVM struct {
+	X, Label string
+}
+
+// Frame of a box plot, in viewBox units; x beyond boxRight is the
+// "off scale" gutter for values past the axis. The template draws the box
+// from y 8 to 34, the axis at y 44 and the gutter label at x 530.
+const (
+	boxW     = 680.0
+	boxH     = 66.0
+	boxLeft  = 16.0
+	boxRight = 520.0
+)
+
+// NewBoxAxis returns an axis from 0 to a round number at or above hi:
+// care minutes are never negative, so 0 anchors every plot. hi ≤ 0 or not
+// finite gives an empty axis.
+func NewBoxAxis(hi float64) BoxAxisVM {
+	if !(hi > 0) || math.IsInf(hi, 0) {
+		return BoxAxisVM{Empty: true}
+	}
+	step := niceStep(hi / 5)
+	top := math.Ceil(hi/step) * step
+	a := BoxAxisVM{Lo: 0, Hi: top}
+	for v := 0.0; v <= top+step/2; v += step {
+		a.Ticks = append(a.Ticks, v)
+	}
+	return a
+}
+
+// niceStep rounds x up to 1, 2 or 5 times a power of ten.
+func niceStep(x float64) float64 {
+	p := math.Pow(10, math.Floor(math.Log10(x)))
+	for _, m := range []float64{1, 2, 5, 10} {
+		if m*p >= x {
+			return m * p
+		}
+	}
+	return 10 * p
+}
+
+func (a BoxAxisVM) x(v float64) float64 {
+	return boxLeft + (v-a.Lo)/(a.Hi-a.Lo)*(boxRight-boxLeft)
+}
+
+// NewBoxPlot lays out in on axis a. Values past the axis's top are drawn
+// as one arrow in the gutter with their count and largest value.
+func NewBoxPlot(a BoxAxisVM, in BoxInput) *BoxPlotVM {
+	if a.Empty || in.N == 0 {
+		return nil
+	}
+	clamp := func(v float64) string { return boxNum(a.x(math.Min(v, a.Hi))) }
+	p := &BoxPlotVM{
+		ViewBox:   fmt.Sprintf("0 0 %g %g", boxW, boxH),
+		Title:     "Box plot of " + in.Label,
+		BoxX:      clamp(in.Q1),
+		BoxW:      boxNum(a.x(math.Min(in.Q3, a.Hi)) - a.x(math.Min(in.Q1, a.Hi))),
+		MedianX:   clamp(in.Median),
+		WhiskerLo: clamp(in.WhiskerLo),
+		WhiskerHi: clamp(in.WhiskerHi),
+	}
+	var beyond []float64
+	mild, extreme := 0, 0
+	for _, o := range in.Outliers {
+		if o.Extreme {
+			extreme++
+		} else {
+			mild++
+		}
+		if o.Value > a.Hi {
+			beyond = append(beyond, o.Value)
+			continue
+		}
+		p.Points = append(p.Points, BoxPointVM{X: boxNum(a.x(o.Value)), Extreme: o.Extreme})
+	}
+	if len(beyond) == 1 {
+		p.OffScale = "→ " + FormatValue(beyond[0])
+	} else if len(beyond) > 1 {
+		p.OffScale = fmt.Sprintf("→ %d values up to %s", len(beyond), FormatValue(slicesMax(beyond)))
+	}
+	for _, t := range a.Ticks {
+		p.Ticks = append(p.Ticks, BoxTickVM{X: boxNum(a.x(t)), Label: FormatValue(t)})
+	}
+	var d strings.Builder
+	fmt.Fprintf(&d, "%s, %s, %d observations (quartiles: %s): minimum %s, Q1 %s, median %s, Q3 %s, maximum %s; whiskers %s to %s",
+		in.Label, in.Unit, in.N, in.Convention, FormatValue(in.Min), FormatValue(in.Q1), FormatValue(in.Median), FormatValue(in.Q3), FormatValue(in.Max),
+		FormatValue(in.WhiskerLo), FormatValue(in.WhiskerHi))
+	fmt.Fprintf(&d, "; %d mild and %d extreme outliers", mild, extreme)
+	if len(beyond) > 0 {
+		fmt.Fprintf(&d, ", %d beyond the axis end of %s", len(beyond), FormatValue(a.Hi))
+	}
+	d.WriteString(".")
+	if in.Description != "" {
+		d.WriteString(" " + in.Description)
+	}
+	p.Desc = d.String()
+	return p
+}
+
+func slicesMax(x []float64) float64 {
+	m := x[0]
+	for _, v := range x[1:] {
+		m = math.Max(m, v)
+	}
+	return m
+}
+
+// boxNum formats a coordinate.
+func boxNum(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
+
+// FormatValue shows a data value with at most one decimal, dropping a
+// trailing ".0": minutes are read by people, not compared bit for bit.
+func FormatValue(v float64) string {
+	s := strconv.FormatFloat(v, 'f', 1, 64)
+	s = strings.TrimSuffix(s, ".0")
+	if s == "-0" {
+		s = "0"
+	}
+	return s
+}

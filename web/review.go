@@ -1,0 +1,95 @@
+package web
+
+// ReviewVM is a ward's weekly tier review for its manager: per tier, the
+// spread of care minutes per shift over a window of weeks, the check that
+// tiers still separate care needs, the weekly medians, and the
+// observations outside the fences with forms to exclude or restore them.
+// Every number is already formatted; the template does no arithmetic.
+type ReviewVM struct {
+	WardCode, WardName string
+	Notice             string // one-time message after a post
+	URL                string // the page without a query
+	ImportURL          string
+	TemplateURL        string
+
+	// The filter form and what it selected.
+	Weeks       string // as typed or defaulted
+	ShiftID     string // "" for all shifts
+	Shifts      []ReviewShiftVM
+	WindowText  string // "8 weeks, 2026-01-05 to 2026-03-01"
+	ShiftText   string // "all shifts" or "Day shift"
+	Conventions string // quartile convention, named in words
+	Unit        string // "care minutes per patient per shift"
+	UnitNote    string // how the unit is computed
+
+	Tiers       []ReviewTierVM
+	Axis        BoxAxisVM
+	Order       []string // warnings: a higher tier's median not above the lower one's
+	OrderOK     bool     // every pair of neighbouring tiers with data is in order
+	TrendWeeks  []string // ISO week labels, oldest first
+	TrendRanges []string // their first and last day in the window
+	Trend       []ReviewTrendRowVM
+	Flagged     []ReviewObservationVM
+	Excluded    []ReviewObservationVM
+	Reasons     []string // the exclusion reasons offered
+}
+
+// ReviewShiftVM is one choice of the shift filter.
+type ReviewShiftVM struct {
+	ID, Name string
+}
+
+// ReviewTierVM is one tier's summary and box plot. With N "0" the numbers
+// are empty and Plot is nil.
+type ReviewTierVM struct {
+	Code, Label string
+	N           string
+	Min, Q1     string
+	Median, Q3  string
+	Max, IQR    string
+	Inner       string // "lower to upper"
+	Outer       string
+	Mean, SD    string
+	Plot        *BoxPlotVM
+}
+
+// ReviewTrendRowVM is one tier's median per ISO week; "" where the week has
+// no observations. Counts holds n for each week.
+type ReviewTrendRowVM struct {
+	Label   string
+	Medians []string
+	Counts  []string
+}
+
+// ReviewObservationVM is one observation in the outlier or excluded list.
+type ReviewObservationVM struct {
+	ID          string
+	Date        string
+	Shift       string
+	Tier        string
+	Window      string // hours
+	CareMinutes string
+	Value       string // per-shift minutes, the reviewed unit
+	Kind        string // "mild" or "extreme" on the minutes scale; "" if inside
+	LogKind     string // the same on the log scale; "" if inside or not defined
+	ExcludeURL  string
+	RestoreURL  string
+	// Excluded observations only.
+	Reason, By, At string
+	// A failed exclusion of this observation: its message and input.
+	Error, Choice, Note string
+}
+
+// ImportVM is the observation import page: a CSV upload form with the
+// columns the ward accepts.
+type ImportVM struct {
+	WardCode, WardName string
+	URL                string // where the form posts
+	ReviewURL          string
+	TemplateURL        string
+	Columns            []string // the accepted columns, in template order
+	Factors            []string // the ward's optional factor columns
+	Tiers              []string // "code (label)"
+	Shifts             []string // shift pattern names
+	Error              string   // why the last upload was refused; nothing was stored
+}
