@@ -60,7 +60,12 @@ func newSessions(cfg Config) *scs.SessionManager {
 		sm.Store = cfg.SessionStore
 	}
 	sm.Lifetime = cfg.SessionLifetime
-	sm.IdleTimeout = cfg.SessionIdle
+	// No scs IdleTimeout: scs would then mark every loaded session
+	// modified and write it back (a database write, and on SQLite a WAL
+	// sync, on every page view). sessionUser enforces cfg.SessionIdle
+	// itself from seen_at, by the injected clock, and refreshes seen_at at
+	// most once a minute; the store row still expires at Lifetime.
+	sm.IdleTimeout = 0
 	sm.Cookie.Name = "wardload_session"
 	sm.Cookie.HttpOnly = true
 	sm.Cookie.SameSite = http.SameSiteLaxMode
