@@ -224,13 +224,14 @@ func TestReviewExcludeAndRestore(t *testing.T) {
 
 	// The page shows the flash, the excluded row with reason and name, and
 	// no longer lists it among the outliers.
-	cookie := res.Cookies()
 	req := httptest.NewRequest("GET", base+"/review?weeks=10", nil)
-	for _, c := range cookie {
+	for _, c := range res.Cookies() { // the session the form was posted with
 		req.AddCookie(c)
 	}
-	req = f.as(t, pAdmin, req)
 	_, body := f.do(t, req)
+	if n := byTestID(t, body, "notice"); len(n) != 1 || !strings.Contains(n[0], "excluded (extra zero typed: sheet says 45)") {
+		t.Errorf("notice %q", n)
+	}
 	if r := byTestID(t, body, "excluded-reason"); !slices.Equal(r, []string{"extra zero typed: sheet says 45"}) {
 		t.Errorf("excluded reasons %q", r)
 	}
