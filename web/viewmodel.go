@@ -45,6 +45,9 @@ type WardRowVM struct {
 	ProjectionsURL string
 	// SettingsURL links to the ward's settings; "" for charge nurses.
 	SettingsURL string
+	// ReviewURL links to the ward's weekly tier review; "" for charge
+	// nurses.
+	ReviewURL string
 }
 
 // ErrorVM is the error page. Message is already safe to show (it comes from

@@ -26,6 +26,7 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 		if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
 			row.TokensURL = "/wards/" + wd.Code + "/tokens"
 			row.SettingsURL = "/wards/" + wd.Code + "/settings"
+			row.ReviewURL = reviewURL(wd)
 		}
 		vm.Wards = append(vm.Wards, row)
 	}

@@ -371,3 +371,21 @@ func TestReviewOrderWarning(t *testing.T) {
 		t.Error("order-ok shown with a warning")
 	}
 }
+
+// TestHomeLinksReviewForManagers: the home page links each ward's review
+// for managers and admins, not for charge nurses (who may not open it).
+func TestHomeLinksReviewForManagers(t *testing.T) {
+	f := newFixture(t)
+	for _, tc := range []struct {
+		p    string
+		want int
+	}{{pNurseA, 0}, {pManagerA, 1}, {pAdmin, 2}} {
+		_, body := f.do(t, f.as(t, tc.p, httptest.NewRequest("GET", "/", nil)))
+		if n := len(byTestID(t, body, "ward-review")); n != tc.want {
+			t.Errorf("%s: %d review links, want %d", tc.p, n, tc.want)
+		}
+		if tc.want > 0 && !strings.Contains(body, `href="/wards/w-a/review"`) {
+			t.Errorf("%s: no link to /wards/w-a/review", tc.p)
+		}
+	}
+}
