@@ -163,24 +163,18 @@ func (s *Server) projectionVM(r *http.Request, ward *wardload.Ward, p *wardload.
 }
 
 // revisionsVM lists every census revision of the projection's dated shift,
-// linking those with a projection.
+// linking those with a projection. It reads the list with one light query
+// on every request: a revision saved a moment ago, perhaps by another
+// server process, must show at once.
 func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection, vm *web.ProjectionVM) error {
-	cs, _, err := s.store.FindCensus(r.Context(), wardload.CensusFilter{WardID: &ward.ID, ShiftID: &p.ShiftID, From: &p.Date, To: &p.Date})
+	rs, err := s.store.FindShiftRevisions(r.Context(), ward.ID, p.Date, p.ShiftID)
 	if err != nil {
 		return fmt.Errorf("projection %d: revisions: %w", p.ID, err)
 	}
-	ps, _, err := s.store.FindProjections(r.Context(), wardload.ProjectionFilter{WardID: &ward.ID, ShiftID: &p.ShiftID, From: &p.Date, To: &p.Date})
-	if err != nil {
-		return fmt.Errorf("projection %d: revisions: %w", p.ID, err)
-	}
-	byCensus := map[int64]*wardload.Projection{}
-	for _, q := range ps {
-		byCensus[q.CensusID] = q
-	}
-	for _, c := range cs { // newest revision first
-		rv := web.RevisionVM{Revision: c.Revision, EnteredAt: formatLocal(c.EnteredAt, ward), Total: strconv.Itoa(c.Total()), Current: c.ID == p.CensusID}
-		if q := byCensus[c.ID]; q != nil {
-			rv.URL, rv.Recommended = projectionURL(ward, q.ID), strconv.Itoa(q.Recommended)
+	for _, c := range rs { // newest revision first
+		rv := web.RevisionVM{Revision: c.Revision, EnteredAt: formatLocal(c.EnteredAt, ward), Total: strconv.Itoa(c.TotalPatients), Current: c.CensusID == p.CensusID}
+		if c.ProjectionID != 0 {
+			rv.URL, rv.Recommended = projectionURL(ward, c.ProjectionID), strconv.Itoa(c.Recommended)
 			if vm.NewerURL == "" && c.Revision > p.CensusRevision {
 				vm.NewerURL, vm.NewerRevision = rv.URL, c.Revision
 			}

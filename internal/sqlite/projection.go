@@ -195,3 +195,32 @@ func scanProjection(r scanner) (*wardload.Projection, error) {
 	}
 	return &p, nil
 }
+
+// FindShiftRevisions returns the census revisions of one dated shift,
+// newest first, with their projections' IDs and recommendations, in one
+// query.
+func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload.Date, shiftID int64) ([]*wardload.ShiftRevision, error) {
+	rows, err := s.r.QueryContext(ctx, `SELECT c.id, c.revision, c.entered_at,
+			COALESCE((SELECT SUM(n.patients) FROM census_counts n WHERE n.census_id = c.id), 0),
+			COALESCE(p.id, 0), COALESCE(p.recommended, 0)
+		FROM census c LEFT JOIN projections p ON p.census_id = c.id
+		WHERE c.ward_id = ? AND c.date = ? AND c.shift_id = ?
+		ORDER BY c.revision DESC`, wardID, d.String(), shiftID)
+	if err != nil {
+		return nil, formatError(err)
+	}
+	defer rows.Close()
+	var rs []*wardload.ShiftRevision
+	for rows.Next() {
+		var r wardload.ShiftRevision
+		var entered string
+		if err := rows.Scan(&r.CensusID, &r.Revision, &entered, &r.TotalPatients, &r.ProjectionID, &r.Recommended); err != nil {
+			return nil, formatError(err)
+		}
+		if r.EnteredAt, err = parseTime(entered); err != nil {
+			return nil, err
+		}
+		rs = append(rs, &r)
+	}
+	return rs, formatError(rows.Err())
+}

@@ -158,6 +158,61 @@ func projectionCases() []testCase {
 				t.Fatalf("all projections = %d, want 5", total)
 			}
 		}},
+		{"Projection/ShiftRevisions", func(t *testing.T, f *fixture) {
+			sw := f.seedWard("w1")
+			other := f.seedWard("w2")
+			d := date(2026, 3, 2)
+			// Revision 1 has no projection; 2 and 3 have one. The night
+			// shift, the next day and the other ward must not show.
+			c1 := &wardload.Census{WardID: sw.ward.ID, Date: d, ShiftID: sw.day.ID, Counts: []wardload.TierCount{{TierID: sw.tiers[0].ID, Patients: 2}, {TierID: sw.tiers[2].ID, Patients: 1}}}
+			noErr(t, f.store.CreateCensus(f.ctx, c1))
+			save := func(sw *seededWard, d wardload.Date, sp *wardload.ShiftPattern, counts ...int) (*wardload.Census, *wardload.Projection) {
+				t.Helper()
+				f.clock.Advance(time.Minute)
+				c, p := sw.projectionOf(d, sp, counts...)
+				p.Recommended = 10 + len(counts) + counts[0]
+				noErr(t, f.store.CreateCensusProjection(f.ctx, c, p))
+				return c, p
+			}
+			c2, p2 := save(sw, d, sw.day, 5, 4)
+			c3, p3 := save(sw, d, sw.day, 6, 1, 2)
+			save(sw, d, sw.night, 7)
+			save(sw, d.AddDays(1), sw.day, 8)
+			save(other, d, other.day, 9)
+			want := []wardload.ShiftRevision{
+				{CensusID: c3.ID, Revision: 3, EnteredAt: c3.EnteredAt, TotalPatients: 9, ProjectionID: p3.ID, Recommended: 19},
+				{CensusID: c2.ID, Revision: 2, EnteredAt: c2.EnteredAt, TotalPatients: 9, ProjectionID: p2.ID, Recommended: 17},
+				{CensusID: c1.ID, Revision: 1, EnteredAt: c1.EnteredAt, TotalPatients: 3},
+			}
+			got, err := f.store.FindShiftRevisions(f.ctx, sw.ward.ID, d, sw.day.ID)
+			noErr(t, err)
+			if len(got) != len(want) {
+				t.Fatalf("got %d revisions, want %d: %+v", len(got), len(want), got)
+			}
+			for i, g := range got {
+				sameTime(t, "EnteredAt", g.EnteredAt, want[i].EnteredAt)
+				g2 := *g
+				g2.EnteredAt = want[i].EnteredAt
+				if g2 != want[i] {
+					t.Errorf("revision %d = %+v, want %+v", i, g2, want[i])
+				}
+			}
+			for _, tc := range []struct {
+				name        string
+				ward, shift int64
+				d           wardload.Date
+			}{
+				{"no census that day", sw.ward.ID, sw.day.ID, d.AddDays(2)},
+				{"shift of another ward", sw.ward.ID, other.day.ID, d},
+				{"unknown ward", 9999, sw.day.ID, d},
+			} {
+				got, err := f.store.FindShiftRevisions(f.ctx, tc.ward, tc.d, tc.shift)
+				noErr(t, err)
+				if len(got) != 0 {
+					t.Errorf("%s: got %+v, want none", tc.name, got)
+				}
+			}
+		}},
 		{"Projection/Errors", func(t *testing.T, f *fixture) {
 			sw := f.seedWard("w1")
 			other := f.seedWard("w2")

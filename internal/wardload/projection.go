@@ -98,6 +98,19 @@ type ProjectionFilter struct {
 	Limit      int
 }
 
+// ShiftRevision is one census revision of a dated shift with, when it has
+// one, its projection's ID and recommendation: the list a projection page
+// shows, without loading every census's counts or every projection's
+// Input and Result.
+type ShiftRevision struct {
+	CensusID      int64
+	Revision      int
+	EnteredAt     time.Time // UTC
+	TotalPatients int       // Σ of the revision's counts (Census.Total)
+	ProjectionID  int64     // 0 when the revision has no projection
+	Recommended   int       // the projection's Recommended; 0 without one
+}
+
 // ProjectionService stores projections together with their census.
 type ProjectionService interface {
 	// CreateCensusProjection stores c as the next census revision of its
@@ -118,4 +131,8 @@ type ProjectionService interface {
 	// shift Start descending, then CensusRevision descending; and the total
 	// count ignoring Offset and Limit. Start and End are in UTC.
 	FindProjections(ctx context.Context, f ProjectionFilter) ([]*Projection, int, error)
+	// FindShiftRevisions returns every census revision of the ward's
+	// dated shift, newest revision first, each with its projection if it
+	// has one. An unknown ward, date or shift gives an empty list.
+	FindShiftRevisions(ctx context.Context, wardID int64, d Date, shiftID int64) ([]*ShiftRevision, error)
 }
