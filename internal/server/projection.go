@@ -17,7 +17,9 @@ import (
 )
 
 // handleProjection shows one stored projection of the ward. A projection
-// of another ward is "not found", as if it did not exist.
+// of another ward is "not found", as if it did not exist. The projection's
+// own part of the page comes from s.projections when cached; the user's
+// links and the shift's revisions are made for every request.
 func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error {
 	ward := principalFrom(r.Context()).Ward
 	notFound := wardload.Errorf(wardload.ENOTFOUND, "There is no such projection on this ward.")
@@ -25,18 +27,28 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	if err != nil || id <= 0 {
 		return notFound
 	}
-	p, err := s.store.FindProjectionByID(r.Context(), id)
-	if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && p.WardID != ward.ID) {
-		return notFound
-	} else if err != nil {
-		return fmt.Errorf("projection %d: %w", id, err)
+	key := projectionKey{ID: id, WardID: ward.ID, WardCode: ward.Code, WardName: ward.Name, TimeZone: ward.TimeZone}
+	pg, ok := s.projections.get(key)
+	if !ok {
+		p, err := s.store.FindProjectionByID(r.Context(), id)
+		if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && p.WardID != ward.ID) {
+			return notFound
+		} else if err != nil {
+			return fmt.Errorf("projection %d: %w", id, err)
+		}
+		if pg, err = newProjectionPage(ward, p); err != nil {
+			return err
+		}
+		s.projections.add(key, pg)
 	}
-	vm, err := s.projectionVM(r, ward, p)
-	if err != nil {
+	vm := pg.vm
+	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
+		vm.SettingsURL = "/wards/" + ward.Code + "/settings"
+	}
+	if err := s.revisionsVM(r, ward, pg.p, &vm); err != nil {
 		return err
 	}
-	title := fmt.Sprintf("%s shift %s", p.ShiftName, p.Date)
-	return s.render(w, r, http.StatusOK, web.ProjectionPage(s.layout(r, title), vm))
+	return s.render(w, r, http.StatusOK, web.ProjectionPage(s.layout(r, pg.title), vm))
 }
 
 // decidedText says in words which of the cover need and the floor decided
@@ -54,21 +66,22 @@ func decidedText(p *wardload.Projection) string {
 	return fmt.Sprintf("Set by the workload at the cover level of %s; the ratio floor asks for %d.", level, *p.Floor)
 }
 
-// projectionVM builds the page from the stored projection: the figures the
-// export carries come from the projection's columns, formatted with the
-// export's helpers; the detail comes from the stored Result and Input.
-func (s *Server) projectionVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection) (web.ProjectionVM, error) {
+// newProjectionPage builds the projection's part of the page from the
+// stored projection: the figures the export carries come from the
+// projection's columns, formatted with the export's helpers; the detail
+// comes from the stored Result and Input, which the page keeps no copy of.
+func newProjectionPage(ward *wardload.Ward, p *wardload.Projection) (*projectionPage, error) {
 	var res stats.Projection
 	var in projector.Input
 	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
-		return web.ProjectionVM{}, fmt.Errorf("projection %d: result: %w", p.ID, err)
+		return nil, fmt.Errorf("projection %d: result: %w", p.ID, err)
 	}
 	if err := json.Unmarshal([]byte(p.Input), &in); err != nil {
-		return web.ProjectionVM{}, fmt.Errorf("projection %d: input: %w", p.ID, err)
+		return nil, fmt.Errorf("projection %d: input: %w", p.ID, err)
 	}
 	loc, err := ward.Location()
 	if err != nil {
-		return web.ProjectionVM{}, err
+		return nil, err
 	}
 	f := res.DirectCareFraction
 	nh := func(minutes float64) float64 { return minutes / 60 / f }
@@ -117,9 +130,6 @@ func (s *Server) projectionVM(r *http.Request, ward *wardload.Ward, p *wardload.
 	if res.Floor != nil {
 		vm.FloorRule = res.Floor.Description
 	}
-	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
-		vm.SettingsURL = "/wards/" + ward.Code + "/settings"
-	}
 
 	// Chart: the normal model and the simulated quantiles in nurse-hours,
 	// with the recommended headcount and its neighbours.
@@ -156,10 +166,9 @@ func (s *Server) projectionVM(r *http.Request, ward *wardload.Ward, p *wardload.
 	}
 	vm.Observations = strconv.Itoa(observations)
 
-	if err := s.revisionsVM(r, ward, p, &vm); err != nil {
-		return vm, err
-	}
-	return vm, nil
+	lite := *p
+	lite.Input, lite.Result = "", ""
+	return &projectionPage{p: &lite, title: fmt.Sprintf("%s shift %s", p.ShiftName, p.Date), vm: vm}, nil
 }
 
 // revisionsVM lists every census revision of the projection's dated shift,

@@ -117,6 +117,9 @@ type Server struct {
 
 	// projector turns a posted census into a stored projection.
 	projector *projector.Service
+	// projections caches the projection-specific part of projection
+	// pages; stored projections never change.
+	projections *projectionCache
 }
 
 // New checks cfg, fills zero limits from DefaultConfig and builds the
@@ -158,6 +161,7 @@ func New(cfg Config) (*Server, error) {
 		acctThrottle: newThrottle(3, 15*time.Minute),
 		addrThrottle: newThrottle(20, 15*time.Minute),
 		sealKey:      newSealKey(),
+		projections:  newProjectionCache(projectionCacheSize),
 	}
 	s.projector = &projector.Service{Store: cfg.Store, Now: cfg.Now, Draws: cfg.Draws}
 	s.sessions.ErrorFunc = func(w http.ResponseWriter, r *http.Request, err error) {

@@ -1,0 +1,97 @@
+package server
+
+import (
+	"context"
+	"fmt"
+	"net/http/httptest"
+	"slices"
+	"strings"
+	"testing"
+
+	"wardload/internal/wardload"
+)
+
+// TestProjectionPageCache: a cached page still refuses another ward,
+// shows a ward renamed or moved to another zone after it was cached, lists
+// a revision saved after it was cached, and gives each role its own links.
+func TestProjectionPageCache(t *testing.T) {
+	f := newCensusFixture(t)
+	first := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
+	path := fmt.Sprintf("/wards/w-a/projections/%d", first.ID)
+	get := func(p, path string) (int, string) {
+		t.Helper()
+		res, body := f.do(t, f.as(t, p, httptest.NewRequest("GET", path, nil)))
+		return res.StatusCode, body
+	}
+	if code, _ := get(pNurseA, path); code != 200 {
+		t.Fatalf("first view = %d", code)
+	}
+	if n := f.s.projections.len(); n != 1 {
+		t.Fatalf("cached pages = %d, want 1", n)
+	}
+
+	// Ward B's path with ward A's cached projection is still not found.
+	if code, _ := get(pAdmin, fmt.Sprintf("/wards/w-b/projections/%d", first.ID)); code != 404 {
+		t.Errorf("ward A's cached projection via ward B = %d, want 404", code)
+	}
+
+	// The link to set a floor (shown when the shift has none) is per
+	// user, not cached with the page.
+	noFloor := f.mustProject(t, pNurseA, f.a, "2026-03-01", f.a.night, 5, 5, 2, 0)
+	noFloorPath := fmt.Sprintf("/wards/w-a/projections/%d", noFloor.ID)
+	_, nurse := get(pNurseA, noFloorPath)
+	_, manager := get(pManagerA, noFloorPath)
+	if strings.Contains(nurse, "/wards/w-a/settings") || !strings.Contains(manager, "/wards/w-a/settings") {
+		t.Errorf("settings link: nurse has %v, manager has %v; want false, true",
+			strings.Contains(nurse, "/wards/w-a/settings"), strings.Contains(manager, "/wards/w-a/settings"))
+	}
+
+	// A correction saved after the page was cached shows at once.
+	second := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 5, 6, 3, 0)
+	_, body := get(pNurseA, path)
+	if got := byTestID(t, body, "revision-item"); len(got) != 2 {
+		t.Errorf("revisions after a correction = %q, want 2", got)
+	}
+	if len(byTestID(t, body, "newer-revision")) != 1 || !strings.Contains(body, fmt.Sprintf("/wards/w-a/projections/%d", second.ID)) {
+		t.Error("the cached page does not link to the newer revision")
+	}
+
+	// A ward renamed and moved to another zone (as another process
+	// could) shows on the next view.
+	name, tz := "Ward A renamed", "America/New_York"
+	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
+	if _, err := f.st.UpdateWard(ctx, f.wardA.ID, wardload.WardUpdate{Name: &name, TimeZone: &tz}); err != nil {
+		t.Fatal(err)
+	}
+	_, body = get(pNurseA, path)
+	if !strings.Contains(body, name) || !strings.Contains(body, "(America/New_York)") || strings.Contains(body, "Europe/Dublin") {
+		t.Errorf("page after rename does not show the new name and zone only")
+	}
+}
+
+// TestProjectionCacheEvicts: the cache keeps at most its size, dropping
+// the least recently used page.
+func TestProjectionCacheEvicts(t *testing.T) {
+	c := newProjectionCache(2)
+	k := func(id int64) projectionKey { return projectionKey{ID: id, WardID: 1} }
+	for id := int64(1); id <= 2; id++ {
+		c.add(k(id), &projectionPage{title: fmt.Sprint(id)})
+	}
+	c.get(k(1)) // 2 is now the least recently used
+	c.add(k(3), &projectionPage{title: "3"})
+	var kept []int64
+	for id := int64(1); id <= 3; id++ {
+		if pg, ok := c.get(k(id)); ok {
+			if pg.title != fmt.Sprint(id) {
+				t.Errorf("page %d has title %q", id, pg.title)
+			}
+			kept = append(kept, id)
+		}
+	}
+	if !slices.Equal(kept, []int64{1, 3}) || c.len() != 2 {
+		t.Errorf("kept %v (len %d), want [1 3]", kept, c.len())
+	}
+	if _, ok := c.get(projectionKey{ID: 1, WardID: 2}); ok {
+		t.Error("a page of ward 1 found under ward 2")
+	}
+}
