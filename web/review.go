@@ -13,14 +13,15 @@ type ReviewVM struct {
 	TemplateURL        string
 
 	// The filter form and what it selected.
-	Weeks       string // as typed or defaulted
-	ShiftID     string // "" for all shifts
-	Shifts      []ReviewShiftVM
-	WindowText  string // "8 weeks, 2026-01-05 to 2026-03-01"
-	ShiftText   string // "all shifts" or "Day shift"
-	Conventions string // quartile convention, named in words
-	Unit        string // "care minutes per patient per shift"
-	UnitNote    string // how the unit is computed
+	Weeks          string // as typed or defaulted
+	ShiftID        string // "" for all shifts
+	Shifts         []ReviewShiftVM
+	WindowText     string // "8 weeks, 2026-01-05 to 2026-03-01"
+	ShiftText      string // "all shifts" or "Day shift"
+	Conventions    string // quartile convention, named
+	ConventionNote string // what the convention does, in words
+	Unit           string // "care minutes per patient per shift"
+	UnitNote       string // how the unit is computed
 
 	Tiers       []ReviewTierVM
 	Axis        BoxAxisVM
@@ -42,15 +43,15 @@ type ReviewShiftVM struct {
 // ReviewTierVM is one tier's summary and box plot. With N "0" the numbers
 // are empty and Plot is nil.
 type ReviewTierVM struct {
-	Code, Label string
-	N           string
-	Min, Q1     string
-	Median, Q3  string
-	Max, IQR    string
-	Inner       string // "lower to upper"
-	Outer       string
-	Mean, SD    string
-	Plot        *BoxPlotVM
+	Code, Label      string
+	N                string
+	Min, Q1          string
+	Median, Q3       string
+	Max, IQR         string
+	InnerLo, InnerHi string // inner fences
+	OuterLo, OuterHi string // outer fences
+	Mean, SD         string
+	Plot             *BoxPlotVM
 }
 
 // ReviewTrendRowVM is one tier's median per ISO week; "" where the week has

@@ -28,7 +28,7 @@ const reviewUnit = "care minutes per patient per shift"
 func conventionText(name string) string {
 	for _, q := range quartileOptions {
 		if q.Value == name {
-			return q.Label + " (" + q.Explanation + ")"
+			return "Quartiles by " + q.Label + ", the ward's setting: " + q.Explanation
 		}
 	}
 	return name
@@ -45,7 +45,8 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 		Weeks:       strconv.Itoa(p.weeks),
 		WindowText:  fmt.Sprintf("%d weeks, %s to %s", p.weeks, p.from, p.to),
 		ShiftText:   "all shifts",
-		Conventions: conventionText(d.settings.Quartiles),
+		Conventions:    conventionName(d.settings.Quartiles),
+		ConventionNote: conventionText(d.settings.Quartiles),
 		Unit:        reviewUnit,
 		UnitNote: "Each observation's care minutes are scaled to its own shift pattern's nominal length: " +
 			"care minutes ÷ observed hours × the shift's nominal hours (so 60 minutes in a 4-hour window of a " +
@@ -82,15 +83,14 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 		return vm, err
 	}
 	for _, tr := range trs {
-		for i, o := range tr.obs {
-			kind := ""
-			if tr.summary != nil {
-				for _, out := range tr.summary.Outliers {
-					if out.Index == i {
-						kind = out.Kind
-					}
-				}
+		kinds := map[int]string{}
+		if tr.summary != nil {
+			for _, out := range tr.summary.Outliers {
+				kinds[out.Index] = out.Kind
 			}
+		}
+		for i, o := range tr.obs {
+			kind := kinds[i]
 			if kind == "" && tr.logKind[i] == "" {
 				continue
 			}
@@ -99,7 +99,7 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 			vm.Flagged = append(vm.Flagged, ov)
 		}
 	}
-	sortByDate(vm.Flagged)
+	sortFlagged(vm.Flagged)
 	names := map[int64]string{}
 	tierByID := map[int64]*wardload.Tier{}
 	for _, t := range d.tiers {
@@ -126,8 +126,8 @@ func tierVM(tr *tierReview, axis web.BoxAxisVM, convention string) web.ReviewTie
 	f := web.FormatValue
 	t.N = strconv.Itoa(s.N)
 	t.Min, t.Q1, t.Median, t.Q3, t.Max, t.IQR = f(s.Min), f(s.Q1), f(s.Median), f(s.Q3), f(s.Max), f(s.IQR)
-	t.Inner = f(s.InnerFences.Lower) + " to " + f(s.InnerFences.Upper)
-	t.Outer = f(s.OuterFences.Lower) + " to " + f(s.OuterFences.Upper)
+	t.InnerLo, t.InnerHi = f(s.InnerFences.Lower), f(s.InnerFences.Upper)
+	t.OuterLo, t.OuterHi = f(s.OuterFences.Lower), f(s.OuterFences.Upper)
 	t.Mean, t.SD = f(s.Mean), "—"
 	if s.SD.Defined {
 		t.SD = f(s.SD.Value)
@@ -157,7 +157,7 @@ func (d *reviewData) observationVM(o *wardload.Observation, t *wardload.Tier) we
 	base := "/wards/" + d.ward.Code + "/observations/" + id
 	ov := web.ReviewObservationVM{ID: id, Date: o.Date.String(), Window: formatDecimal(o.WindowHours),
 		CareMinutes: formatDecimal(o.CareMinutes), Value: web.FormatValue(d.shiftValue(o)),
-		ExcludeURL: base + "/exclude", RestoreURL: base + "/restore", Choice: exclusionReasons[0]}
+		ExcludeURL: base + "/exclude", RestoreURL: base + "/restore"}
 	if p := d.shifts[o.ShiftID]; p != nil {
 		ov.Shift = p.Name
 	}
@@ -186,10 +186,19 @@ func (s *Server) userName(r *http.Request, cache map[int64]string, id int64) (st
 	return u.Name, nil
 }
 
-// sortByDate orders observations by date, then ID (stable insertion sort:
-// the lists are short).
-func sortByDate(xs []web.ReviewObservationVM) {
+// sortFlagged puts observations outside an outer fence (on either scale)
+// first, then orders by date and ID (insertion sort: the lists are short).
+func sortFlagged(xs []web.ReviewObservationVM) {
+	rank := func(o web.ReviewObservationVM) int {
+		if o.Kind == stats.OutlierExtreme || o.LogKind == stats.OutlierExtreme {
+			return 0
+		}
+		return 1
+	}
 	less := func(a, b web.ReviewObservationVM) bool {
+		if ra, rb := rank(a), rank(b); ra != rb {
+			return ra < rb
+		}
 		if a.Date != b.Date {
 			return a.Date < b.Date
 		}
