@@ -39,15 +39,15 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 	ward, p := d.ward, d.params
 	vm := web.ReviewVM{
 		WardCode: ward.Code, WardName: ward.Name,
-		URL:         reviewURL(ward),
-		ImportURL:   "/wards/" + ward.Code + "/observations/import",
-		TemplateURL: "/wards/" + ward.Code + "/observations/template.csv",
-		Weeks:       strconv.Itoa(p.weeks),
-		WindowText:  fmt.Sprintf("%d weeks, %s to %s", p.weeks, p.from, p.to),
-		ShiftText:   "all shifts",
+		URL:            reviewURL(ward),
+		ImportURL:      "/wards/" + ward.Code + "/observations/import",
+		TemplateURL:    "/wards/" + ward.Code + "/observations/template.csv",
+		Weeks:          strconv.Itoa(p.weeks),
+		WindowText:     fmt.Sprintf("%d weeks, %s to %s", p.weeks, p.from, p.to),
+		ShiftText:      "all shifts",
 		Conventions:    conventionName(d.settings.Quartiles),
 		ConventionNote: conventionText(d.settings.Quartiles),
-		Unit:        reviewUnit,
+		Unit:           reviewUnit,
 		UnitNote: "Each observation's care minutes are scaled to its own shift pattern's nominal length: " +
 			"care minutes ÷ observed hours × the shift's nominal hours (so 60 minutes in a 4-hour window of a " +
 			"12-hour shift counts as 180). This assumes care is spread evenly over the shift, as the projections do. " +
