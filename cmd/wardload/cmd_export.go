@@ -59,7 +59,7 @@ func runExportProjections(ctx context.Context, e *env, args []string) int {
 	}
 	from, to := dates[0], dates[1]
 
-	st, err := openStore(ctx, so, false)
+	st, err := openExistingStore(ctx, so)
 	if err != nil {
 		fmt.Fprintf(e.stderr, "wardload %s: %v\n", name, err)
 		return exitFailure

@@ -384,7 +384,8 @@ func writeProjection(out io.Writer, p *stats.Projection) error {
 	if p.Floor != nil {
 		fmt.Fprintf(out, "\n%s\n", p.Floor.Description)
 	} else {
-		fmt.Fprintf(out, "\nNo ratio floor was given (--patients-per-nurse); check the floor that applies to your ward.\n")
+		// The model's warnings say no floor was applied; name the flag here.
+		fmt.Fprintf(out, "\nNo ratio floor was given (--patients-per-nurse).\n")
 	}
 	if len(p.Warnings) > 0 {
 		fmt.Fprintln(out, "\nWarnings:")

@@ -25,9 +25,9 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "serve", "", "Migrate the database, then serve the web interface and API until interrupted.")
 	addr := fs.String("addr", envOr(e, "WARDLOAD_ADDR", "127.0.0.1:8080"), "address to listen on; port 0 picks a free port (env WARDLOAD_ADDR)")
 	so := addStoreFlags(fs, e)
-	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once")
+	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once (env WARDLOAD_DEMO)")
 	secure := fs.Bool("secure-cookies", false, "mark cookies Secure; use when served over HTTPS (env WARDLOAD_SECURE_COOKIES)")
-	trustXFF := fs.Bool("trust-proxy", false, "count failed sign-ins by the X-Forwarded-For address; only behind a proxy that sets it")
+	trustXFF := fs.Bool("trust-proxy", false, "count failed sign-ins by the X-Forwarded-For address; only behind a proxy that sets it (env WARDLOAD_TRUST_PROXY)")
 	if code, ok := parseFlags(fs, args); !ok {
 		return code
 	}
@@ -35,13 +35,19 @@ func runServe(ctx context.Context, e *env, args []string) int {
 		fmt.Fprintf(e.stderr, "wardload: serve takes no arguments\n")
 		return exitUsage
 	}
-	if v := e.getenv("WARDLOAD_SECURE_COOKIES"); v != "" && !flagSet(fs, "secure-cookies") {
-		b, err := strconv.ParseBool(v)
-		if err != nil {
-			fmt.Fprintf(e.stderr, "wardload: WARDLOAD_SECURE_COOKIES must be true or false\n")
-			return exitUsage
+	// Boolean flags fall back to their environment variables like the others.
+	for _, b := range []struct {
+		flag, env string
+		v         *bool
+	}{{"secure-cookies", "WARDLOAD_SECURE_COOKIES", secure}, {"trust-proxy", "WARDLOAD_TRUST_PROXY", trustXFF}, {"demo", "WARDLOAD_DEMO", seed}} {
+		if v := e.getenv(b.env); v != "" && !flagSet(fs, b.flag) {
+			parsed, err := strconv.ParseBool(v)
+			if err != nil {
+				fmt.Fprintf(e.stderr, "wardload: %s must be true or false\n", b.env)
+				return exitUsage
+			}
+			*b.v = parsed
 		}
-		*secure = b
 	}
 	if _, err := so.kind(); err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)

@@ -170,8 +170,12 @@ type tierJSON struct {
 }
 
 func tierJSONOf(g csvfile.Group, s *stats.Summary, tab *csvfile.Table) tierJSON {
+	name := g.Tier
+	if name == "" {
+		name = "all" // a file without a tier column is one group, named as in project
+	}
 	t := tierJSON{
-		Tier: g.Tier, N: s.N, Min: s.Min, Q1: s.Q1, Median: s.Median, Q3: s.Q3, Max: s.Max, IQR: s.IQR,
+		Tier: name, N: s.N, Min: s.Min, Q1: s.Q1, Median: s.Median, Q3: s.Q3, Max: s.Max, IQR: s.IQR,
 		InnerFences: fencesJSON(s.InnerFences), OuterFences: fencesJSON(s.OuterFences),
 		Outliers: []outlierJSON{}, Mean: s.Mean, SD: s.SD, SE: s.SE,
 		Bins: binsJSON{Rule: s.Bins.Rule, Count: s.Bins.Bins, Width: s.Bins.Width, Start: s.Bins.Start},

@@ -148,3 +148,17 @@ func TestSummarizeBadInput(t *testing.T) {
 		})
 	}
 }
+
+// A file without a tier column is one group, named "all" as in project.
+func TestSummarizeWithoutTierColumn(t *testing.T) {
+	code, out, errOut := runCSVCommand(t, "care_minutes\n1\n2\n3\n", "summarize", "FILE", "--json")
+	if code != 0 || errOut != "" {
+		t.Fatalf("code %d, stderr %q", code, errOut)
+	}
+	var got struct {
+		Tiers []struct{ Tier string }
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil || len(got.Tiers) != 1 || got.Tiers[0].Tier != "all" {
+		t.Errorf("tiers %+v (%v), want one named all", got.Tiers, err)
+	}
+}

@@ -181,3 +181,16 @@ func TestWardList(t *testing.T) {
 		t.Errorf("ward list extra = %d, %q; want exit 2", code, errs)
 	}
 }
+
+// ward list reads an existing database: a wrong --data-dir is reported in one
+// line and leaves no empty database behind.
+func TestWardListNeedsDatabase(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := runCLI(t, dir, "", "ward", "list")
+	if code != exitFailure || out != "" || strings.Count(errs, "\n") != 1 || !strings.Contains(errs, "wardload migrate") {
+		t.Errorf("ward list on an empty dir: %d %q %q", code, out, errs)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "wardload.db")); !os.IsNotExist(err) {
+		t.Errorf("ward list created a database file: %v", err)
+	}
+}

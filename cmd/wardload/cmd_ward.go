@@ -23,7 +23,7 @@ func runWardList(ctx context.Context, e *env, args []string) int {
 		fmt.Fprintln(e.stderr, "wardload ward list: takes no arguments (see --help)")
 		return exitUsage
 	}
-	st, err := openStore(ctx, so, false)
+	st, err := openExistingStore(ctx, so)
 	if err != nil {
 		fmt.Fprintf(e.stderr, "wardload ward list: %v\n", err)
 		return exitFailure

@@ -103,6 +103,32 @@ func openStore(ctx context.Context, o *storeOptions, migrate bool) (*openedStore
 	return st, nil
 }
 
+// openExistingStore opens a database that must already hold wardload's
+// schema, for commands that only read or add to it (ward list, export). It
+// never creates an SQLite file, so a mistyped --data-dir is reported
+// instead of leaving an empty database behind.
+func openExistingStore(ctx context.Context, o *storeOptions) (*openedStore, error) {
+	kind, err := o.kind()
+	if err != nil {
+		return nil, err
+	}
+	if kind == "sqlite" {
+		if _, err := os.Stat(o.sqlitePath()); err != nil {
+			return nil, fmt.Errorf("no wardload database at %s; run 'wardload migrate' (or 'wardload serve') first", o.sqlitePath())
+		}
+	}
+	st, err := openStore(ctx, o, false)
+	if err != nil {
+		return nil, err
+	}
+	v, err := st.schemaVersion(ctx)
+	if err != nil || v == 0 {
+		st.Close()
+		return nil, fmt.Errorf("the database at %s has no wardload schema yet; run 'wardload migrate' first", st.Where)
+	}
+	return st, nil
+}
+
 // migrate applies pending migrations of whichever store is open.
 func (st *openedStore) migrate(ctx context.Context) error {
 	m, ok := st.Store.(interface{ Migrate(context.Context) error })

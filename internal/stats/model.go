@@ -24,7 +24,7 @@ const (
 	MaxNursesInRange    = 1000       // headcounts in the shortfall table
 	MaxNurses           = 100_000    // largest headcount the shortfall table takes
 	MaxShiftMinutes     = 1e7        // largest per-patient shift minutes after scaling; keeps every sum finite
-	LowObservations     = 30         // fewer observations in a used tier gives a low-confidence warning
+	LowObservations     = 30         // fewer observations in a used tier gives a low-confidence warning (the n ≥ 30 rule of thumb: common practice, no source)
 	minTierObservations = 2          // a used tier needs a sample SD
 )
 

@@ -234,7 +234,9 @@ func Project(in ProjectionInput) (*Projection, error) {
 	n.CoverSimulatedUnrounded = p.NurseHours.CoverSimulated / in.ShiftHours
 	n.CoverSimulated = ceilNurses(n.CoverSimulatedUnrounded)
 	n.Recommended, n.DecidedBy = n.CoverSimulated, DecidedByCover
-	if in.Floor != nil {
+	if in.Floor == nil {
+		p.Warnings = append(p.Warnings, "No ratio floor was configured: the recommendation rests on care time alone; check the minimum staffing that applies to this ward.")
+	} else {
 		p.Floor = ratioFloor(in.Floor, in.Tiers, &p.Warnings)
 		floor := p.Floor.Nurses
 		n.Floor = &floor

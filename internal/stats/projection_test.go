@@ -219,6 +219,10 @@ func TestProjectFloorVariants(t *testing.T) {
 	if p.Floor != nil || p.Nurses.Floor != nil || p.Nurses.DecidedBy != DecidedByCover || p.Nurses.Recommended != p.Nurses.CoverSimulated {
 		t.Errorf("no floor: %+v %+v", p.Floor, p.Nurses)
 	}
+	// The JSON result must say, not only omit, that no floor was applied.
+	if !slices.ContainsFunc(p.Warnings, func(w string) bool { return strings.HasPrefix(w, "No ratio floor was configured") }) {
+		t.Errorf("no floor but no warning: %q", p.Warnings)
+	}
 }
 
 func TestProjectInvalid(t *testing.T) {

@@ -51,7 +51,13 @@ type Settings struct {
 }
 
 // DefaultSettings returns the settings a new ward starts with. The values
-// are a starting point for the manager to change, not a recommendation.
+// are a starting point for the manager to change, not a recommendation:
+// a direct-care fraction of 0.75 (breaks, handover and indirect work take
+// the rest; common practice, no source), cover at 0.9 (staff for 90% of
+// shifts, one of the levels a UK modelling study compared — domain brief
+// §1.5), 8 weeks of lookback (enough observations for weekly review while
+// tracking changes in the case mix; common practice, no source) and Tukey's
+// hinges (they match R's fivenum and boxplot fences).
 func DefaultSettings(wardID int64) *Settings {
 	return &Settings{
 		WardID:             wardID,
