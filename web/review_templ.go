@@ -1308,7 +1308,7 @@ func reviewFlagged(p ReviewVM) templ.Component {
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
-				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 114, "</td><td><details")
+				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 114, "</td><td><details class=\"exclude\"")
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
