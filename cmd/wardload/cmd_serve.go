@@ -15,6 +15,7 @@ import (
 
 	"wardload/internal/demo"
 	"wardload/internal/server"
+	"wardload/internal/sqlite"
 )
 
 func init() {
@@ -122,13 +123,18 @@ func printDemo(e *env, res *demo.Result) {
 
 // sessionStore keeps sign-in sessions in the same database as everything
 // else, in the sessions table both migrations create; expired rows are
-// removed every five minutes.
+// removed every five minutes. On SQLite it is the store's own session
+// store, which reads on the read pool rather than queueing every page's
+// session lookup behind the single writer.
 func sessionStore(st *openedStore) interface {
 	scs.Store
 	StopCleanup()
 } {
 	if st.PGPool != nil {
 		return pgxstore.NewWithCleanupInterval(st.PGPool, 5*time.Minute)
+	}
+	if db, ok := st.Store.(*sqlite.Store); ok {
+		return sqlite.NewSessionStore(db, 5*time.Minute)
 	}
 	return sqlite3store.NewWithCleanupInterval(st.SQLDB, 5*time.Minute)
 }

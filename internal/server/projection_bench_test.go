@@ -10,14 +10,13 @@ import (
 	"testing"
 	"time"
 
-	"github.com/alexedwards/scs/sqlite3store"
-
 	"wardload/internal/demo"
+	"wardload/internal/sqlite"
 	"wardload/internal/wardload"
 )
 
 // benchPage is a server on a SQLite file holding the demo data, wired as
-// cmd/wardload serve wires it (database-backed sessions, text request log),
+// cmd/wardload serve wires it (the SQLite session store, text request log),
 // with a signed-in demo charge nurse and the newest projection's page.
 type benchPage struct {
 	h      http.Handler
@@ -37,8 +36,7 @@ func newBenchPage(b *testing.B) *benchPage {
 	cfg.Store = st
 	cfg.Logger = slog.New(slog.NewTextHandler(io.Discard, nil))
 	cfg.Now = func() time.Time { return now }
-	sessions := sqlite3store.NewWithCleanupInterval(st.DB(), 0)
-	cfg.SessionStore = sessions
+	cfg.SessionStore = sqlite.NewSessionStore(st, 0)
 	s, err := New(cfg)
 	if err != nil {
 		b.Fatal(err)

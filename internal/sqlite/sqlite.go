@@ -37,8 +37,9 @@ type Config struct {
 // to upgrade its lock). Reads use r, a separate pool that WAL lets run
 // alongside the writer.
 type Store struct {
-	w, r *sql.DB
-	now  wardload.Clock
+	w   *sql.DB
+	r   *readDB
+	now wardload.Clock
 }
 
 var _ wardload.Store = (*Store)(nil)
@@ -69,7 +70,7 @@ func Open(ctx context.Context, cfg Config) (*Store, error) {
 		db.SetMaxIdleConns(1)
 		db.SetConnMaxLifetime(0)
 		db.SetConnMaxIdleTime(0)
-		s.w, s.r = db, db
+		s.w, s.r = db, newReadDB(db)
 	} else {
 		q.Add("_pragma", "journal_mode(WAL)")
 		wq := url.Values{"_pragma": q["_pragma"], "_txlock": {"immediate"}}
@@ -83,8 +84,11 @@ func Open(ctx context.Context, cfg Config) (*Store, error) {
 			w.Close()
 			return nil, fmt.Errorf("sqlite: open %s: %w", cfg.Path, err)
 		}
-		r.SetMaxOpenConns(max(4, runtime.NumCPU()))
-		s.w, s.r = w, r
+		// Keep every reader open: each holds its prepared statements.
+		n := max(4, runtime.NumCPU())
+		r.SetMaxOpenConns(n)
+		r.SetMaxIdleConns(n)
+		s.w, s.r = w, newReadDB(r)
 	}
 	// sql.Open is lazy: connect now so that a bad path fails here, cleanly,
 	// rather than on the first request. The writer goes first so that it
@@ -121,11 +125,10 @@ func (s *Store) Ping(ctx context.Context) error {
 	return s.r.PingContext(ctx)
 }
 
-// Close closes both pools.
+// Close closes both pools (one, for :memory:), statements first.
 func (s *Store) Close() error {
-	err := s.w.Close()
-	if s.r != s.w {
-		err = errors.Join(err, s.r.Close())
+	if s.r.DB == s.w {
+		return s.r.Close()
 	}
-	return err
+	return errors.Join(s.w.Close(), s.r.Close())
 }
