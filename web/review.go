@@ -78,7 +78,7 @@ type ReviewObservationVM struct {
 	// Excluded observations only.
 	Reason, By, At string
 	// A failed exclusion of this observation: its message and input.
-	Error, Choice, Note string
+	Error, Choice string
 }
 
 // ImportVM is the observation import page: a CSV upload form with the

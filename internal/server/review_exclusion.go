@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"net/http"
 	"slices"
-	"strings"
 
 	"github.com/go-chi/chi/v5"
 
@@ -26,22 +25,18 @@ func (s *Server) wardObservation(r *http.Request) (*wardload.Observation, error)
 	return o, err
 }
 
-// exclusionReason builds the stored reason from the chosen reason and the
-// optional note: "hours entered as minutes: sheet 3 said 2.5". A reason
-// that is not one of the offered ones is refused, so the list stays a list
-// of data problems.
-func exclusionReason(choice, note string) (string, error) {
+// exclusionReason checks the chosen reason. Only the offered reasons are
+// stored: a free-text note would invite clinical details about a patient,
+// which wardload never stores, so the form has none and the server reads
+// no other field.
+func exclusionReason(choice string) (string, error) {
 	if !slices.Contains(exclusionReasons, choice) {
 		return "", wardload.FieldErrorf(wardload.EINVALID, "reason", "Choose one of the listed reasons.")
 	}
-	reason := choice
-	if n := strings.TrimSpace(note); n != "" {
-		reason += ": " + n
-	}
-	if err := wardload.ValidExclusionReason(reason); err != nil {
+	if err := wardload.ValidExclusionReason(choice); err != nil {
 		return "", err
 	}
-	return reason, nil
+	return choice, nil
 }
 
 // handleObservationExclude excludes an observation from the model with a
@@ -56,8 +51,8 @@ func (s *Server) handleObservationExclude(w http.ResponseWriter, r *http.Request
 	}
 	f := r.PostForm
 	ward, u := principalFrom(r.Context()).Ward, principalFrom(r.Context()).User
-	choice, note := clip(f.Get("reason"), 60), clip(f.Get("note"), 200)
-	reason, err := exclusionReason(choice, note)
+	choice := clip(f.Get("reason"), 60)
+	reason, err := exclusionReason(choice)
 	if err == nil {
 		_, err = s.store.ExcludeObservation(r.Context(), o.ID, reason, u.ID)
 	}
@@ -66,7 +61,7 @@ func (s *Server) handleObservationExclude(w http.ResponseWriter, r *http.Request
 		s.sessions.Put(r.Context(), sessFlash, fmt.Sprintf("Observation of %s excluded (%s). It can be restored below.", o.Date, reason))
 		return seeOther(w, r, reviewQuery(ward, f.Get("shift"), f.Get("weeks")))
 	case wardload.EINVALID:
-		return s.reviewWithExcludeError(w, r, o, wardload.ErrorMessage(err), choice, note)
+		return s.reviewWithExcludeError(w, r, o, wardload.ErrorMessage(err), choice)
 	}
 	return err
 }
@@ -75,7 +70,7 @@ func (s *Server) handleObservationExclude(w http.ResponseWriter, r *http.Request
 // the form came from) with the message next to the observation's form.
 // If the observation is not listed in that view, the message goes to the
 // top of the page instead.
-func (s *Server) reviewWithExcludeError(w http.ResponseWriter, r *http.Request, o *wardload.Observation, msg, choice, note string) error {
+func (s *Server) reviewWithExcludeError(w http.ResponseWriter, r *http.Request, o *wardload.Observation, msg, choice string) error {
 	d, err := s.loadReview(r, r.PostForm.Get("shift"), r.PostForm.Get("weeks"))
 	if wardload.ErrorCode(err) == wardload.EINVALID {
 		d, err = s.loadReview(r, "", "")
@@ -90,7 +85,7 @@ func (s *Server) reviewWithExcludeError(w http.ResponseWriter, r *http.Request, 
 	shown := false
 	for i := range vm.Flagged {
 		if vm.Flagged[i].ID == fmt.Sprint(o.ID) {
-			vm.Flagged[i].Error, vm.Flagged[i].Choice, vm.Flagged[i].Note = msg, choice, note
+			vm.Flagged[i].Error, vm.Flagged[i].Choice = msg, choice
 			shown = true
 		}
 	}
