@@ -149,9 +149,13 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter) ([]*wardlo
 		add("id IN (SELECT user_id FROM user_wards WHERE ward_id = ?)", *f.WardID)
 	}
 	cond := strings.Join(where, " AND ")
-	var total int
-	if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM users WHERE `+cond, args...).Scan(&total); err != nil {
-		return nil, 0, err
+	// Without a page the total is the number of rows: spare the count
+	// query (single lookups run on every request).
+	total := -1
+	if f.Offset > 0 || f.Limit > 0 {
+		if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM users WHERE `+cond, args...).Scan(&total); err != nil {
+			return nil, 0, err
+		}
 	}
 	rows, err := q.QueryContext(ctx, page(`SELECT id, name, role, password_hash, disabled, created_at FROM users WHERE `+cond+` ORDER BY name`, f.Offset, f.Limit), args...)
 	if err != nil {
@@ -174,6 +178,9 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter) ([]*wardlo
 		return nil, 0, err
 	}
 	rows.Close()
+	if total < 0 {
+		total = len(us)
+	}
 	for _, u := range us {
 		if u.WardIDs, err = idList(ctx, q, `SELECT ward_id FROM user_wards WHERE user_id = ? ORDER BY ward_id`, u.ID); err != nil {
 			return nil, 0, err

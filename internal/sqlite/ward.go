@@ -127,9 +127,13 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 		where, args = append(where, "id IN (SELECT ward_id FROM user_wards WHERE user_id = ?)"), append(args, *f.UserID)
 	}
 	cond := strings.Join(where, " AND ")
-	var total int
-	if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM wards WHERE `+cond, args...).Scan(&total); err != nil {
-		return nil, 0, err
+	// Without a page the total is the number of rows: spare the count
+	// query (single lookups run on every request).
+	total := -1
+	if f.Offset > 0 || f.Limit > 0 {
+		if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM wards WHERE `+cond, args...).Scan(&total); err != nil {
+			return nil, 0, err
+		}
 	}
 	rows, err := q.QueryContext(ctx, page(`SELECT id, code, name, time_zone, created_at FROM wards WHERE `+cond+` ORDER BY code`, f.Offset, f.Limit), args...)
 	if err != nil {
@@ -152,6 +156,9 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 		return nil, 0, err
 	}
 	rows.Close()
+	if total < 0 {
+		total = len(ws)
+	}
 	for _, w := range ws {
 		if w.FactorNames, err = wardFactors(ctx, q, w.ID); err != nil {
 			return nil, 0, err

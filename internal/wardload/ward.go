@@ -4,6 +4,7 @@ import (
 	"context"
 	"regexp"
 	"strings"
+	"sync"
 	"time"
 )
 
@@ -58,12 +59,22 @@ func (w *Ward) Location() (*time.Location, error) {
 	if w.TimeZone == "" || w.TimeZone == "Local" {
 		return nil, FieldErrorf(EINVALID, "time_zone", "Time zone is required (an IANA name such as Europe/Dublin).")
 	}
+	if loc, ok := locations.Load(w.TimeZone); ok {
+		return loc.(*time.Location), nil
+	}
 	loc, err := time.LoadLocation(w.TimeZone)
 	if err != nil {
 		return nil, FieldErrorf(EINVALID, "time_zone", "Unknown time zone %q.", w.TimeZone)
 	}
+	locations.Store(w.TimeZone, loc)
 	return loc, nil
 }
+
+// locations caches time.LoadLocation by IANA name: loading reads and
+// parses the zone file each time, and pages format several times per
+// request. A *time.Location is immutable, and the cache holds at most one
+// entry per zone name that loaded successfully, so it stays small.
+var locations sync.Map // string → *time.Location
 
 // WardFilter selects wards. Zero fields do not filter.
 type WardFilter struct {
