@@ -59,6 +59,7 @@ func newSessions(cfg Config) *scs.SessionManager {
 	if cfg.SessionStore != nil {
 		sm.Store = cfg.SessionStore
 	}
+	sm.Codec = sessionCodec{}
 	sm.Lifetime = cfg.SessionLifetime
 	// No scs IdleTimeout: scs would then mark every loaded session
 	// modified and write it back (a database write, and on SQLite a WAL
