@@ -1,12 +1,15 @@
 package server
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"math"
 	"net/http"
 	"strconv"
+	"strings"
 
+	"github.com/a-h/templ"
 	"github.com/go-chi/chi/v5"
 
 	"wardload/internal/export"
@@ -36,19 +39,30 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 		} else if err != nil {
 			return fmt.Errorf("projection %d: %w", id, err)
 		}
-		if pg, err = newProjectionPage(ward, p); err != nil {
+		if pg, err = newProjectionPage(r.Context(), ward, p); err != nil {
 			return err
 		}
 		s.projections.add(key, pg)
 	}
 	vm := pg.vm
+	body := pg.bodyHTML[0]
 	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
-		vm.SettingsURL = "/wards/" + ward.Code + "/settings"
+		vm.SettingsURL = settingsURL(ward)
+		body = pg.bodyHTML[1]
 	}
 	if err := s.revisionsVM(r, ward, pg.p, &vm); err != nil {
 		return err
 	}
-	return s.render(w, r, http.StatusOK, web.ProjectionPage(s.layout(r, pg.title), vm))
+	return s.render(w, r, http.StatusOK, web.ProjectionPageParts(s.layout(r, pg.title), vm, templ.Raw(pg.titleHTML), templ.Raw(body)))
+}
+
+// renderHTML renders c to a string, for the parts of a page kept in a cache.
+func renderHTML(ctx context.Context, c templ.Component) (string, error) {
+	var b strings.Builder
+	if err := c.Render(ctx, &b); err != nil {
+		return "", err
+	}
+	return b.String(), nil
 }
 
 // decidedText says in words which of the cover need and the floor decided
@@ -70,7 +84,7 @@ func decidedText(p *wardload.Projection) string {
 // stored projection: the figures the export carries come from the
 // projection's columns, formatted with the export's helpers; the detail
 // comes from the stored Result and Input, which the page keeps no copy of.
-func newProjectionPage(ward *wardload.Ward, p *wardload.Projection) (*projectionPage, error) {
+func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Projection) (*projectionPage, error) {
 	var res stats.Projection
 	var in projector.Input
 	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
@@ -168,7 +182,17 @@ func newProjectionPage(ward *wardload.Ward, p *wardload.Projection) (*projection
 
 	lite := *p
 	lite.Input, lite.Result = "", ""
-	return &projectionPage{p: &lite, title: fmt.Sprintf("%s shift %s", p.ShiftName, p.Date), vm: vm}, nil
+	pg := &projectionPage{p: &lite, title: fmt.Sprintf("%s shift %s", p.ShiftName, p.Date), vm: vm}
+	if pg.titleHTML, err = renderHTML(ctx, web.ProjectionTitle(vm)); err != nil {
+		return nil, fmt.Errorf("projection %d: render: %w", p.ID, err)
+	}
+	for i, settings := range []string{"", settingsURL(ward)} {
+		vm.SettingsURL = settings
+		if pg.bodyHTML[i], err = renderHTML(ctx, web.ProjectionBody(vm)); err != nil {
+			return nil, fmt.Errorf("projection %d: render: %w", p.ID, err)
+		}
+	}
+	return pg, nil
 }
 
 // revisionsVM lists every census revision of the projection's dated shift,

@@ -33,6 +33,10 @@ type projectionPage struct {
 	p     *wardload.Projection // without Input and Result
 	title string
 	vm    web.ProjectionVM // SettingsURL, Revisions, NewerURL unset
+	// Rendered HTML of web.ProjectionTitle and web.ProjectionBody; the
+	// body once without and once with the link to the ward settings.
+	titleHTML string
+	bodyHTML  [2]string
 }
 
 // projectionCache is a bounded LRU of projection pages. Caching is safe

@@ -23,11 +23,15 @@ func TestProjectionPageCache(t *testing.T) {
 		res, body := f.do(t, f.as(t, p, httptest.NewRequest("GET", path, nil)))
 		return res.StatusCode, body
 	}
-	if code, _ := get(pNurseA, path); code != 200 {
+	code, miss := get(pNurseA, path)
+	if code != 200 {
 		t.Fatalf("first view = %d", code)
 	}
 	if n := f.s.projections.len(); n != 1 {
 		t.Fatalf("cached pages = %d, want 1", n)
+	}
+	if _, hit := get(pNurseA, path); hit != miss {
+		t.Error("the page from the cache differs from the page built from the store")
 	}
 
 	// Ward B's path with ward A's cached projection is still not found.
