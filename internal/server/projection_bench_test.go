@@ -19,6 +19,7 @@ import (
 // cmd/wardload serve wires it (the SQLite session store, text request log),
 // with a signed-in demo charge nurse and the newest projection's page.
 type benchPage struct {
+	s      *Server
 	h      http.Handler
 	cookie *http.Cookie
 	path   string
@@ -53,7 +54,7 @@ func newBenchPage(b *testing.B) *benchPage {
 	if err != nil || len(ps) == 0 {
 		b.Fatalf("no demo projection: %v", err)
 	}
-	return &benchPage{h: s.Handler(), cookie: MustSession(b, s, u.ID),
+	return &benchPage{s: s, h: s.Handler(), cookie: MustSession(b, s, u.ID),
 		path: fmt.Sprintf("/wards/%s/projections/%d", ward.Code, ps[0].ID)}
 }
 
@@ -77,6 +78,15 @@ func BenchmarkProjectionPage(b *testing.B) {
 	b.Run("serial", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
+			p.get(b, p.path, p.cookie)
+		}
+	})
+	// A projection's first view builds its page from the stored Input and
+	// Result; every later view takes it from the cache.
+	b.Run("uncached", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			p.s.projections = newProjectionCache(projectionCacheSize)
 			p.get(b, p.path, p.cookie)
 		}
 	})
