@@ -35,8 +35,9 @@ func TestTokenCreateAndRevoke(t *testing.T) {
 		t.Errorf("stored token = %+v; want the hash of the printed secret, two wards, active", tok)
 	}
 	es, _, err := st.FindAudit(ctx, wardload.AuditFilter{Action: ptr("token.create")})
-	if err != nil || len(es) != 1 || es[0].Actor != "cli" {
-		t.Fatalf("audit of token.create = %+v, %v; want one row by cli", es, err)
+	// One row per ward of the token (w2 and w3), each by cli.
+	if err != nil || len(es) != 2 || es[0].Actor != "cli" || es[1].Actor != "cli" || es[0].WardID == es[1].WardID {
+		t.Fatalf("audit of token.create = %+v, %v; want one row by cli for each ward", es, err)
 	}
 
 	// The same name again is refused as bad input.

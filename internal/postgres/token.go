@@ -38,7 +38,13 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 			return err
 		}
 		t.WardIDs, t.CreatedAt, t.LastUsedAt, t.RevokedAt = wards, now, time.Time{}, time.Time{}
-		return audit(ctx, tx, now, "token.create", "token", t.ID, 0, nil, auditToken(t))
+		// One row per ward, so each ward's managers see the token in their audit log.
+		for _, w := range wards {
+			if err := audit(ctx, tx, now, "token.create", "token", t.ID, w, nil, auditToken(t)); err != nil {
+				return err
+			}
+		}
+		return nil
 	})
 }
 
@@ -107,7 +113,12 @@ func (s *Store) RevokeToken(ctx context.Context, id int64) error {
 		}
 		after := *before
 		after.RevokedAt = now
-		return audit(ctx, tx, now, "token.revoke", "token", id, 0, auditToken(before), auditToken(&after))
+		for _, w := range before.WardIDs {
+			if err := audit(ctx, tx, now, "token.revoke", "token", id, w, auditToken(before), auditToken(&after)); err != nil {
+				return err
+			}
+		}
+		return nil
 	})
 }
 

@@ -54,6 +54,11 @@ func TestTokenPages(t *testing.T) {
 	if tok, _ := f.st.FindTokenByName(context.Background(), "planner-b"); !tok.Active() {
 		t.Error("ward B's token was revoked")
 	}
+	// The ward's manager finds the token's changes in their audit log.
+	_, body = f.do(t, withCookie(httptest.NewRequest("GET", "/audit?entity=token", nil), f, c.Value))
+	if acts := byTestID(t, body, "audit-action"); !slices.Contains(acts, "token.revoke") || !slices.Contains(acts, "token.create") {
+		t.Errorf("manager of A sees token actions %q, want create and revoke of planner-a", acts)
+	}
 }
 
 func TestAPIRevokedTokenIsAudited(t *testing.T) {

@@ -48,7 +48,13 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 			}
 		}
 		t.ID, t.CreatedAt, t.WardIDs = id, tx.now, wards
-		return tx.audit("token.create", "token", id, 0, nil, auditToken(t))
+		// One row per ward, so each ward's managers see the token in their audit log.
+		for _, w := range wards {
+			if err := tx.audit("token.create", "token", id, w, nil, auditToken(t)); err != nil {
+				return err
+			}
+		}
+		return nil
 	})
 }
 
@@ -85,7 +91,12 @@ func (s *Store) RevokeToken(ctx context.Context, id int64) error {
 		}
 		after := *before
 		after.RevokedAt = tx.now
-		return tx.audit("token.revoke", "token", id, 0, auditToken(before), auditToken(&after))
+		for _, w := range before.WardIDs {
+			if err := tx.audit("token.revoke", "token", id, w, auditToken(before), auditToken(&after)); err != nil {
+				return err
+			}
+		}
+		return nil
 	})
 }
 

@@ -5,7 +5,9 @@
 package storetest
 
 import (
+	"cmp"
 	"context"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -132,6 +134,15 @@ func (f *fixture) auditCount(action string) int {
 	_, n, err := f.store.FindAudit(f.ctx, wardload.AuditFilter{Action: &action})
 	noErr(f.t, err)
 	return n
+}
+
+// auditFor returns every audit row with the given action, by ward ID.
+func (f *fixture) auditFor(action string) []*wardload.AuditEntry {
+	f.t.Helper()
+	es, _, err := f.store.FindAudit(f.ctx, wardload.AuditFilter{Action: &action})
+	noErr(f.t, err)
+	slices.SortFunc(es, func(a, b *wardload.AuditEntry) int { return cmp.Compare(a.WardID, b.WardID) })
+	return es
 }
 
 // totalAudit returns the number of audit rows of any kind.

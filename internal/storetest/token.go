@@ -22,9 +22,18 @@ func tokenCases() []testCase {
 				t.Fatal("ID not set")
 			}
 			sameTime(t, "CreatedAt", tok.CreatedAt, f.clock.Now())
-			e := f.checkAudit("token.create", "token", tok.ID, 0)
-			if strings.Contains(e.After, hashOf("a")) || !strings.Contains(e.After, "roster-planner") {
-				t.Fatalf("token.create audit %q: must name the token and never hold its hash", e.After)
+			// One audit row per ward of the token, so each ward's managers see it.
+			creates := f.auditFor("token.create")
+			if len(creates) != 2 || !reflect.DeepEqual([]int64{creates[0].WardID, creates[1].WardID}, []int64{w1.ward.ID, w2.ward.ID}) {
+				t.Fatalf("token.create audit rows %+v, want one for each of wards %d and %d", creates, w1.ward.ID, w2.ward.ID)
+			}
+			for _, e := range creates {
+				if e.Entity != "token" || e.EntityID != tok.ID || e.UserID != testActor.UserID {
+					t.Fatalf("token.create audit %+v", e)
+				}
+				if strings.Contains(e.After, hashOf("a")) || !strings.Contains(e.After, "roster-planner") {
+					t.Fatalf("token.create audit %q: must name the token and never hold its hash", e.After)
+				}
 			}
 			for _, get := range []func() (*wardload.APIToken, error){
 				func() (*wardload.APIToken, error) { return f.store.FindTokenByHash(f.ctx, hashOf("a")) },
@@ -57,11 +66,10 @@ func tokenCases() []testCase {
 				t.Fatal("revoked token still active")
 			}
 			sameTime(t, "RevokedAt", got.RevokedAt, f.clock.Now())
-			f.checkAudit("token.revoke", "token", tok.ID, 0)
 			wantErr(t, f.store.RevokeToken(f.ctx, tok.ID), wardload.ECONFLICT, "")
 			wantErr(t, f.store.RevokeToken(f.ctx, 9999), wardload.ENOTFOUND, "")
-			if n := f.auditCount("token.revoke"); n != 1 {
-				t.Fatalf("token.revoke rows = %d, want 1", n)
+			if revokes := f.auditFor("token.revoke"); len(revokes) != 2 || revokes[0].EntityID != tok.ID || revokes[0].WardID == revokes[1].WardID {
+				t.Fatalf("token.revoke rows = %+v, want one per ward", revokes)
 			}
 		}},
 		{"Token/Errors", func(t *testing.T, f *fixture) {
