@@ -51,10 +51,32 @@ func newBrowser(t *testing.T) context.Context {
 // TestBrowserCensusToProjection runs the real wiring with the demo ward,
 // signs in as a demo charge nurse, enters a census by keyboard alone and
 // reads the recommended headcount off the projection page.
+//
+// It runs once per store: on the embedded SQLite store, and on PostgreSQL
+// when WARDLOAD_TEST_DATABASE_URL is set (required under CI=true).
 func TestBrowserCensusToProjection(t *testing.T) {
+	t.Run("sqlite", func(t *testing.T) {
+		dir := t.TempDir()
+		browserJourney(t, &storeOptions{DataDir: dir}, "--data-dir", dir)
+	})
+	t.Run("postgres", func(t *testing.T) {
+		base := os.Getenv("WARDLOAD_TEST_DATABASE_URL")
+		if base == "" {
+			if os.Getenv("CI") == "true" {
+				t.Fatal("WARDLOAD_TEST_DATABASE_URL must be set when CI=true")
+			}
+			t.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL browser journey skipped")
+		}
+		dbURL := mustCreateDatabase(t, base)
+		browserJourney(t, &storeOptions{DB: dbURL}, "--db", dbURL, "--data-dir", t.TempDir())
+	})
+}
+
+// browserJourney is the charge nurse's journey against one store: so
+// selects the store for reading back, storeArgs for serve.
+func browserJourney(t *testing.T, so *storeOptions, storeArgs ...string) {
 	ctx := newBrowser(t)
-	dir := t.TempDir()
-	s := MustServe(t, "--demo", "--addr", "127.0.0.1:0", "--data-dir", dir)
+	s := MustServe(t, append([]string{"--demo", "--addr", "127.0.0.1:0"}, storeArgs...)...)
 	m := regexp.MustCompile(`demo\.charge1\s+charge_nurse\s+(\S+)`).FindStringSubmatch(s.stdout.String())
 	if m == nil {
 		t.Fatalf("no demo.charge1 password in:\n%s", s.stdout)
@@ -137,7 +159,7 @@ func TestBrowserCensusToProjection(t *testing.T) {
 	)
 	saveScreenshots(t, ctx, "shift-list")
 
-	st, err := openStore(context.Background(), &storeOptions{DataDir: dir}, false)
+	st, err := openStore(context.Background(), so, false)
 	if err != nil {
 		t.Fatal(err)
 	}
