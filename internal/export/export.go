@@ -6,6 +6,9 @@
 // Every export carries the caution that its figures are estimates which
 // defer to local staffing law, collective agreements and licensed clinical
 // judgement, and the ratio floor used for each row.
+//
+// Free-text CSV cells that start like a spreadsheet formula get a leading
+// single quote (see TextCell); number cells and the JSON are never changed.
 package export
 
 import (

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 
 	"wardload/internal/stats"
 	"wardload/internal/wardload"
@@ -26,9 +27,10 @@ func Columns(tiers []*wardload.Tier) []string {
 
 // fields returns the row's values as the export writes them, in Columns
 // order: hours with FormatHours, levels with FormatLevel, instants with
-// FormatTime, a missing floor as "".
+// FormatTime, a missing floor as "", and every free-text cell through
+// TextCell. Number cells are never changed, so "-0.50" stays a number.
 func (r *Row) fields() []string {
-	f := []string{r.Ward, r.Date.String(), r.Shift, FormatTime(r.Start), FormatTime(r.End), FormatHours(r.ShiftHours),
+	f := []string{TextCell(r.Ward), r.Date.String(), TextCell(r.Shift), FormatTime(r.Start), FormatTime(r.End), FormatHours(r.ShiftHours),
 		strconv.Itoa(r.CensusRevision), strconv.Itoa(r.TotalPatients)}
 	for _, n := range r.Census {
 		f = append(f, strconv.Itoa(n))
@@ -38,8 +40,30 @@ func (r *Row) fields() []string {
 		floor = strconv.Itoa(*r.Floor)
 	}
 	return append(f, FormatLevel(r.CoverLevel), FormatHours(r.ExpectedNurseHours), FormatHours(r.BandLowNurseHours),
-		FormatHours(r.BandHighNurseHours), strconv.Itoa(r.NursesCover), floor, r.FloorRule, strconv.Itoa(r.Recommended),
-		r.DecidedBy, r.MethodVersion, FormatTime(r.GeneratedAt), r.Caution)
+		FormatHours(r.BandHighNurseHours), strconv.Itoa(r.NursesCover), floor, TextCell(r.FloorRule), strconv.Itoa(r.Recommended),
+		TextCell(r.DecidedBy), TextCell(r.MethodVersion), FormatTime(r.GeneratedAt), TextCell(r.Caution))
+}
+
+// TextCell neutralises a free-text CSV cell that a spreadsheet would read
+// as a formula (CSV or formula injection): a cell starting with '=', '+',
+// '-', '@', a tab, a carriage return, a line feed or NUL gets a leading
+// single quote, which spreadsheets show as text and do not evaluate. This
+// is the mitigation of the OWASP "CSV Injection" page
+// (owasp.org/www-community/attacks/CSV_Injection: = + - @ tab CR) and of
+// OWASP ASVS 5.0 requirement 1.2.10 (= + - @ tab NUL); LF is added
+// because it is as invisible as CR. RFC 4180 quoting is encoding/csv's.
+// A shift name is free text a manager types (e.g. "=cmd|' /C calc'!A0"
+// passes ShiftPattern.Validate), so the export cannot rely on validation.
+//
+// Only the CSV is changed; the JSON export carries the text as stored,
+// since JSON is not opened by spreadsheets as formulas. Number, date and
+// time cells never pass through here: a negative number must stay a
+// number.
+func TextCell(s string) string {
+	if s != "" && strings.IndexByte("=+-@\t\r\n\x00", s[0]) >= 0 {
+		return "'" + s
+	}
+	return s
 }
 
 // WriteCSV writes a header row and one record per row, per RFC 4180

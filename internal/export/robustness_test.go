@@ -1,0 +1,105 @@
+package export_test
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"testing"
+	"time"
+
+	"wardload/internal/export"
+	"wardload/internal/wardload"
+)
+
+// Formula injection: OWASP "CSV Injection"
+// (owasp.org/www-community/attacks/CSV_Injection) lists = + - @ tab CR as
+// leading characters a spreadsheet may evaluate; OWASP ASVS 5.0 1.2.10
+// adds NUL. The payloads are the usual proofs of concept.
+func TestTextCell(t *testing.T) {
+	for in, want := range map[string]string{
+		"=cmd|' /C calc'!A0":                 "'=cmd|' /C calc'!A0",
+		"+1+2":                               "'+1+2",
+		"-2+3":                               "'-2+3",
+		"@SUM(A1:A9)":                        "'@SUM(A1:A9)",
+		"\t=1":                               "'\t=1",
+		"\r=1":                               "'\r=1",
+		"\n=1":                               "'\n=1",
+		"\x00=1":                             "'\x00=1",
+		"=HYPERLINK(\"http://example.test\")": "'=HYPERLINK(\"http://example.test\")",
+		"Day":                                "Day",
+		"Night =1":                           "Night =1", // only the first character counts
+		" =1":                                " =1",
+		"'=1":                                "'=1", // already text; not quoted twice
+		"":                                   "",
+	} {
+		if got := export.TextCell(in); got != want {
+			t.Errorf("TextCell(%q) = %q, want %q", in, got, want)
+		}
+	}
+}
+
+// A shift name is free text that passes ShiftPattern.Validate, so a
+// manager can name a shift "=cmd|…". The CSV must carry it as text, while
+// number cells keep their sign: a negative band limit is still a number.
+func TestWriteCSVNeutralisesFormulas(t *testing.T) {
+	sp := &wardload.ShiftPattern{WardID: 1, Name: "=cmd|' /C calc'!A0", StartMinute: 420, NominalHours: 12}
+	if err := sp.Validate(); err != nil {
+		t.Fatalf("the payload is not a valid shift name any more (%v); keep the export check anyway", err)
+	}
+	tiers := []*wardload.Tier{{ID: 1, Code: "t1", Label: "=1+1"}}
+	floor := 3
+	at := time.Date(2026, 3, 28, 7, 30, 0, 0, time.UTC)
+	rows := []export.Row{{
+		Ward: "w1", Date: wardload.Date{Year: 2026, Month: 3, Day: 28}, Shift: sp.Name,
+		Start: at, End: at.Add(12 * time.Hour), ShiftHours: 12, CensusRevision: 1, TotalPatients: 2,
+		Census: []int{2}, CoverLevel: 0.9, ExpectedNurseHours: 1.5, BandLowNurseHours: -0.5, BandHighNurseHours: 3.5,
+		NursesCover: 1, Floor: &floor, FloorRule: "-1 nurse", Recommended: 3, DecidedBy: "@floor",
+		MethodVersion: "+v", GeneratedAt: at, Caution: "\tcaution",
+	}}
+	var b bytes.Buffer
+	if err := export.WriteCSV(&b, tiers, rows); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]string{}
+	for i, c := range recs[0] {
+		col[c] = recs[1][i]
+	}
+	for c, want := range map[string]string{
+		"shift": "'=cmd|' /C calc'!A0", "ratio_floor_rule": "'-1 nurse", "decided_by": "'@floor",
+		"method_version": "'+v", "caution": "'\tcaution",
+		// Numbers are untouched.
+		"band_low_nurse_hours": "-0.50", "expected_nurse_hours": "1.50", "census_t1": "2", "ratio_floor_nurses": "3",
+	} {
+		if col[c] != want {
+			t.Errorf("%s = %q, want %q", c, col[c], want)
+		}
+	}
+	for c, v := range col {
+		if v != "" && bytes.IndexByte([]byte("=+@\t\r\n\x00"), v[0]) >= 0 {
+			t.Errorf("cell %s = %q starts with a formula character", c, v)
+		}
+		if v != "" && v[0] == '-' && c != "band_low_nurse_hours" {
+			t.Errorf("cell %s = %q starts with '-'", c, v)
+		}
+	}
+
+	// JSON is not read as formulas: it keeps the stored text.
+	var j bytes.Buffer
+	ward := &wardload.Ward{Code: "w1"}
+	if err := export.WriteJSON(&j, ward, rows[0].Date, rows[0].Date, tiers, rows); err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Rows []map[string]any `json:"rows"`
+	}
+	if err := json.Unmarshal(j.Bytes(), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if got := doc.Rows[0]["shift"]; got != sp.Name {
+		t.Errorf("JSON shift = %q, want the stored %q", got, sp.Name)
+	}
+}
