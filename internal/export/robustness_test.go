@@ -17,20 +17,20 @@ import (
 // adds NUL. The payloads are the usual proofs of concept.
 func TestTextCell(t *testing.T) {
 	for in, want := range map[string]string{
-		"=cmd|' /C calc'!A0":                 "'=cmd|' /C calc'!A0",
-		"+1+2":                               "'+1+2",
-		"-2+3":                               "'-2+3",
-		"@SUM(A1:A9)":                        "'@SUM(A1:A9)",
-		"\t=1":                               "'\t=1",
-		"\r=1":                               "'\r=1",
-		"\n=1":                               "'\n=1",
-		"\x00=1":                             "'\x00=1",
+		"=cmd|' /C calc'!A0":                  "'=cmd|' /C calc'!A0",
+		"+1+2":                                "'+1+2",
+		"-2+3":                                "'-2+3",
+		"@SUM(A1:A9)":                         "'@SUM(A1:A9)",
+		"\t=1":                                "'\t=1",
+		"\r=1":                                "'\r=1",
+		"\n=1":                                "'\n=1",
+		"\x00=1":                              "'\x00=1",
 		"=HYPERLINK(\"http://example.test\")": "'=HYPERLINK(\"http://example.test\")",
-		"Day":                                "Day",
-		"Night =1":                           "Night =1", // only the first character counts
-		" =1":                                " =1",
-		"'=1":                                "'=1", // already text; not quoted twice
-		"":                                   "",
+		"Day":                                 "Day",
+		"Night =1":                            "Night =1", // only the first character counts
+		" =1":                                 " =1",
+		"'=1":                                 "'=1", // already text; not quoted twice
+		"":                                    "",
 	} {
 		if got := export.TextCell(in); got != want {
 			t.Errorf("TextCell(%q) = %q, want %q", in, got, want)
