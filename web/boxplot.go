@@ -78,6 +78,13 @@ func NewBoxAxis(hi float64) BoxAxisVM {
 	}
 	step := niceStep(hi / 5)
 	top := math.Ceil(hi/step) * step
+	// Near the float64 limits the rounding overflows (hi 1.7e308 gives top
+	// +Inf, and the tick loop below would then never end) or underflows
+	// (a subnormal hi gives step 0). Such values are entry errors the
+	// review lists; they get no plot rather than a runaway loop.
+	if !(step > 0) || math.IsInf(top, 0) || math.IsNaN(top) {
+		return BoxAxisVM{Empty: true}
+	}
 	a := BoxAxisVM{Lo: 0, Hi: top}
 	for v := 0.0; v <= top+step/2; v += step {
 		a.Ticks = append(a.Ticks, v)
