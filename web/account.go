@@ -84,3 +84,18 @@ type WardOptionVM struct {
 	Code    string
 	Checked bool
 }
+
+// RoleLabel is a role as people say it ("Charge nurse"), for display; forms
+// still send the stored value (charge_nurse). An unknown role is shown as
+// stored rather than hidden.
+func RoleLabel(role string) string {
+	switch role {
+	case "charge_nurse":
+		return "Charge nurse"
+	case "manager":
+		return "Manager"
+	case "admin":
+		return "Admin"
+	}
+	return role
+}

@@ -52,6 +52,10 @@ type ChartLine struct {
 	X1, Y1, X2, Y2 string
 	LabelX, LabelY string
 	Label          string
+	// LabelNum and LabelWord are Label in two parts ("8", "nurses"), so
+	// that a narrow screen can drop the word of the neighbours' labels.
+	LabelNum, LabelWord string
+	Recommended         bool
 	Class          string
 }
 
@@ -132,9 +136,11 @@ func NewChart(in ChartInput) ChartVM {
 			// they cannot overlap even where the lines are close.
 			LabelX: chartNum(x(cp.NurseHours)), LabelY: chartNum(chartTop - 36 + float64(i%2)*24),
 			Label: fmt.Sprintf("%d nurses", cp.Nurses), Class: "chart-cap",
+			LabelNum: strconv.Itoa(cp.Nurses), LabelWord: "nurses",
 		}
 		if cp.Recommended {
 			l.Class, l.Label = "chart-cap chart-cap-rec", fmt.Sprintf("%d recommended", cp.Nurses)
+			l.LabelWord, l.Recommended = "recommended", true
 		}
 		c.Lines = append(c.Lines, l)
 	}

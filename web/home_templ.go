@@ -49,7 +49,7 @@ func HomePage(l LayoutVM, p HomeVM) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			} else {
-				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 3, "<div class=\"table-wrap\"><table data-testid=\"wards\"><caption>Wards you can see, by code</caption> <thead><tr><th scope=\"col\">Code</th><th scope=\"col\">Name</th><th scope=\"col\">Time zone</th><th scope=\"col\">Pages</th></tr></thead> <tbody>")
+				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 3, "<div class=\"table-wrap\"><table class=\"wards-list\" data-testid=\"wards\"><caption>Wards you can see, by code</caption> <thead><tr><th scope=\"col\">Code</th><th scope=\"col\">Name</th><th scope=\"col\">Time zone</th><th scope=\"col\">Pages</th></tr></thead> <tbody>")
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
