@@ -106,15 +106,30 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	}
 	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts)
 	if wardload.ErrorCode(err) == wardload.EINVALID {
-		field := wardload.ErrorField(err)
-		if field == "" {
-			field = "patients"
-		}
-		return rerender(map[string]string{field: wardload.ErrorMessage(err)})
+		return rerender(map[string]string{censusErrorField(d, wardload.ErrorField(err)): wardload.ErrorMessage(err)})
 	} else if err != nil {
 		return fmt.Errorf("census create: %w", err)
 	}
 	return seeOther(w, r, projectionURL(d.ward, p.ID))
+}
+
+// censusErrorField is the form field that shows a projector refusal. The
+// form shows date, shift, one field per tier and the counts as a whole
+// ("patients", "tier"); a refusal about anything else (care minutes or
+// windows of the stored observations, settings such as draws or the cover
+// level) would otherwise be a 400 page with no message, so it is shown
+// with the counts.
+func censusErrorField(d *censusData, field string) string {
+	switch field {
+	case "date", "shift", "patients", "tier":
+		return field
+	}
+	for _, t := range d.tiers {
+		if field == censusField(t) {
+			return field
+		}
+	}
+	return "patients"
 }
 
 // parseShiftChoice reads the date and shift of the chooser. The date

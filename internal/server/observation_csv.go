@@ -7,12 +7,17 @@ import (
 	"strings"
 
 	"wardload/internal/csvfile"
+	"wardload/internal/stats"
 	"wardload/internal/wardload"
 )
 
 // The columns of an observation import. A ward's factor names may follow
 // as further numeric columns; nothing else is accepted.
 var observationColumns = []string{"date", "shift", "tier", "window_hours", "care_minutes"}
+
+// maxRealShiftHours is the longest real shift the model takes (a 24-hour
+// pattern over the autumn clock change).
+const maxRealShiftHours = 25
 
 // observationHeader is the header row of an import file for ward: the
 // fixed columns, then the ward's factors.
@@ -107,6 +112,14 @@ func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tie
 		}
 		if err := o.Validate(); err != nil {
 			return nil, nil, cellErr(fieldOr(err, "file"), "%s", wardload.ErrorMessage(err))
+		}
+		// The model refuses an observation that scales past
+		// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
+		// values near the float64 limit overflow the review's sums; such a
+		// cell is an entry error, refused here rather than stored.
+		if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
+			return nil, nil, cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
+				o.CareMinutes, o.WindowHours, stats.MaxShiftMinutes/maxRealShiftHours)
 		}
 		obs[i] = o
 	}
