@@ -63,7 +63,7 @@ func UsersPage(l LayoutVM, p UsersVM) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 4, " <p>Staff accounts only. A charge nurse enters census for their wards; a manager runs their wards; an admin runs everything.</p><div class=\"table-wrap\"><table data-testid=\"users\"><thead><tr><th scope=\"col\">Name</th><th scope=\"col\">Role, wards and status</th><th scope=\"col\">Created</th></tr></thead> <tbody>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 4, " <p>Staff accounts only. A charge nurse enters census for their wards; a manager runs their wards; an admin runs everything and sees every ward, whichever wards are ticked.</p><div class=\"table-wrap\"><table data-testid=\"users\"><thead><tr><th scope=\"col\">Name</th><th scope=\"col\">Role, wards and status</th><th scope=\"col\">Created</th></tr></thead> <tbody>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
