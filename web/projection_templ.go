@@ -1222,7 +1222,7 @@ func ProjectionBody(p ProjectionVM) templ.Component {
 				return templ_7745c5c3_Err
 			}
 		}
-		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 97, "</tbody></table></div></section><section aria-labelledby=\"tiers-title\"><h2 id=\"tiers-title\">What each tier contributes</h2><div class=\"table-wrap\" role=\"region\" aria-labelledby=\"tiers-caption\" tabindex=\"0\"><table class=\"data\" data-testid=\"tiers\"><caption id=\"tiers-caption\">Care minutes per patient per shift (mean and SD) from the lookback's observations, and each tier's share of the expected total</caption> <thead><tr><th scope=\"col\">Tier</th><th scope=\"col\" class=\"num\">Patients</th><th scope=\"col\" class=\"num\"><abbr title=\"observations\">Obs.</abbr></th><th scope=\"col\" class=\"num\">Mean (SD)</th><th scope=\"col\" class=\"num wide-only\">Expected</th><th scope=\"col\" class=\"num\">Share</th></tr></thead> <tbody>")
+		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 97, "</tbody></table></div></section><section aria-labelledby=\"tiers-title\"><h2 id=\"tiers-title\">What each tier contributes</h2><div class=\"table-wrap\" role=\"region\" aria-labelledby=\"tiers-caption\" tabindex=\"0\"><table class=\"data\" data-testid=\"tiers\"><caption id=\"tiers-caption\">Care minutes per patient per shift from the lookback's observations: mean, and SD (standard deviation, how much patients of the tier differ), and each tier's share of the expected total</caption> <thead><tr><th scope=\"col\">Tier</th><th scope=\"col\" class=\"num\">Patients</th><th scope=\"col\" class=\"num\"><abbr title=\"observations\">Obs.</abbr></th><th scope=\"col\" class=\"num\">Mean (SD)</th><th scope=\"col\" class=\"num wide-only\">Expected</th><th scope=\"col\" class=\"num\">Share</th></tr></thead> <tbody>")
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
@@ -1460,27 +1460,27 @@ func ProjectionBody(p ProjectionVM) templ.Component {
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
-		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 119, "</span> draws; simulated quantiles are ")
+		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 119, "</span> draws; simulated quantiles (percentiles read off the sorted simulated shifts) are ")
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
 		var templ_7745c5c3_Var94 string
 		templ_7745c5c3_Var94, templ_7745c5c3_Err = templ.JoinStringErrs(p.QuantileMethod)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/projection.templ`, Line: 230, Col: 25}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/projection.templ`, Line: 230, Col: 76}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var94))
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
-		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 120, " (a standard way to read a percentile off sorted values). The ward's quartile convention (")
+		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 120, ". The ward's quartile convention (")
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
 		var templ_7745c5c3_Var95 string
 		templ_7745c5c3_Var95, templ_7745c5c3_Err = templ.JoinStringErrs(p.Quartiles)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/projection.templ`, Line: 230, Col: 130}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/projection.templ`, Line: 230, Col: 125}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var95))
 		if templ_7745c5c3_Err != nil {
