@@ -95,6 +95,12 @@ func (s *Server) handleAudit(w http.ResponseWriter, r *http.Request) error {
 // be used, and a nil filter (no entries) when nothing could match.
 func (s *Server) auditFilter(r *http.Request, vm web.AuditVM, u *wardload.User, visible map[int64]string) (*wardload.AuditFilter, string, error) {
 	f := &wardload.AuditFilter{}
+	for _, typed := range []string{vm.Action, vm.Entity, vm.User} {
+		if !wardload.StorableText(typed) {
+			// PostgreSQL refuses NUL and invalid UTF-8 even in a search.
+			return nil, "A filter contains characters that cannot be searched for.", nil
+		}
+	}
 	if vm.Ward != "" {
 		var id int64
 		for wid, c := range visible {

@@ -90,6 +90,12 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 // account is enabled; otherwise a reason for the audit log. An unknown name
 // still costs one hash, so timing does not tell which names exist.
 func (s *Server) checkPassword(r *http.Request, name, pw string) (*wardload.User, string, error) {
+	if !wardload.StorableText(name) {
+		// No user has such a name, and PostgreSQL refuses to look it up
+		// (NUL, invalid UTF-8): answer as for any unknown name.
+		password.Verify(pw, s.dummyHash())
+		return nil, "unknown_name", nil
+	}
 	u, err := s.store.FindUserByName(r.Context(), name)
 	if wardload.ErrorCode(err) == wardload.ENOTFOUND {
 		password.Verify(pw, s.dummyHash())

@@ -26,6 +26,9 @@ func (p *ShiftPattern) Validate() error {
 	if n := strings.TrimSpace(p.Name); n == "" || len(n) > 40 {
 		return FieldErrorf(EINVALID, "name", "Shift name is required (at most 40 characters).")
 	}
+	if !plainText(p.Name, "") {
+		return FieldErrorf(EINVALID, "name", "Shift name must be one line of text, without control characters.")
+	}
 	if p.StartMinute < 0 || p.StartMinute >= 24*60 {
 		return FieldErrorf(EINVALID, "start", "Shift start must be a time of day between 00:00 and 23:59.")
 	}

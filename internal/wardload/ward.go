@@ -37,6 +37,9 @@ func (w *Ward) Validate() error {
 	if strings.TrimSpace(w.Name) == "" || len(w.Name) > 120 {
 		return FieldErrorf(EINVALID, "name", "Ward name is required (at most 120 characters).")
 	}
+	if !plainText(w.Name, "") {
+		return FieldErrorf(EINVALID, "name", "Ward name must be one line of text, without control characters.")
+	}
 	if _, err := w.Location(); err != nil {
 		return err
 	}
@@ -133,6 +136,12 @@ func (t *Tier) Validate() error {
 	}
 	if len(t.Description) > 500 {
 		return FieldErrorf(EINVALID, "description", "Tier description is at most 500 characters.")
+	}
+	if !plainText(t.Label, "") {
+		return FieldErrorf(EINVALID, "label", "Tier label must be one line of text, without control characters.")
+	}
+	if !plainText(t.Description, "\n\r\t") {
+		return FieldErrorf(EINVALID, "description", "Tier description must be text without control characters.")
 	}
 	return nil
 }

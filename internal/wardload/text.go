@@ -1,0 +1,32 @@
+package wardload
+
+import (
+	"strings"
+	"unicode"
+	"unicode/utf8"
+)
+
+// StorableText reports whether s can be stored and searched for on every
+// backend: valid UTF-8 without NUL. PostgreSQL refuses both in text
+// values (SQLSTATE 22021), so a lookup or save with them failed as an
+// internal error instead of a plain refusal. Check typed text that goes to
+// the store with it.
+func StorableText(s string) bool {
+	return utf8.ValidString(s) && !strings.ContainsRune(s, 0)
+}
+
+// plainText reports whether s is storable and has no control characters
+// (C0, DEL, C1) other than those in allow. Names are one line of text
+// shown on pages, in the census chooser and in exports, where a tab or a
+// carriage return is invisible and a newline breaks the line.
+func plainText(s, allow string) bool {
+	if !StorableText(s) {
+		return false
+	}
+	for _, r := range s {
+		if unicode.IsControl(r) && !strings.ContainsRune(allow, r) {
+			return false
+		}
+	}
+	return true
+}
