@@ -225,12 +225,25 @@ func (in *ProjectionInput) validate() error {
 			(f.PatientsPerNurse == 0 && len(f.TierPatientsPerNurse) == 0) {
 			return bad("patients_per_nurse", "Patients per nurse must be more than 0 and at most 50.")
 		}
+		total := 0
+		for _, t := range in.Tiers {
+			total += t.Patients
+		}
+		// A tiny ratio (1e-320 passes "more than 0") makes the floor huge
+		// or +Inf, and int(+Inf) is not defined in Go (it came out as 0 or
+		// as a count no database column holds).
+		if r := f.PatientsPerNurse; r > 0 && !(float64(total)/r <= MaxNurses) {
+			return bad("patients_per_nurse", "At %g patients per nurse, %d patients need more than %d nurses; check the ratio floor.", r, total, MaxNurses)
+		}
 		for code, r := range f.TierPatientsPerNurse {
 			if !seen[code] {
 				return bad("patients_per_nurse", "A ratio floor names tier %s, which is not in the projection.", code)
 			}
 			if math.IsNaN(r) || !(r > 0 && r <= 50) {
 				return bad("patients_per_nurse", "Patients per nurse for tier %s must be more than 0 and at most 50.", code)
+			}
+			if !(float64(total)/r <= MaxNurses) {
+				return bad("patients_per_nurse", "At %g patients per nurse in tier %s, the floor needs more than %d nurses; check the ratio floor.", r, code, MaxNurses)
 			}
 		}
 	}
