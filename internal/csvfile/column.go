@@ -110,7 +110,18 @@ func (t *Table) parse(i int, name, cell string) (float64, error) {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, notNumber(t.Lines[i], name, s)
 	}
+	if math.Abs(v) > MaxAbs {
+		return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is too large to be a number wardload can use (at most %g in size).", t.Lines[i], name, clipCell(s), MaxAbs)
+	}
 	return v, nil
+}
+
+// clipCell shortens a cell quoted in a message.
+func clipCell(s string) string {
+	if len(s) > 40 {
+		return s[:40] + "…"
+	}
+	return s
 }
 
 func notNumber(line int, name, s string) error {

@@ -24,6 +24,12 @@ const (
 	MaxLineBytes = 1 << 20 // bytes on one physical line
 	MaxFields    = 1000    // columns in the header
 	MaxRecords   = 20_000_000
+	// MaxAbs bounds the size of a number cell. Care minutes, windows and
+	// factors are hand-entered quantities far below it, and it keeps every
+	// sum of squares over MaxRecords values finite (2e7 × (1e15)² = 2e37):
+	// 1.7e308 is a finite float64, but two of them overflowed the mean,
+	// SD and fences to Inf and NaN, and the JSON output then failed.
+	MaxAbs = 1e15
 )
 
 // TierColumn is the column that groups rows by acuity tier.
