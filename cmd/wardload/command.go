@@ -90,12 +90,22 @@ func newFlagSet(e *env, name, argsUsage, summary string) *flag.FlagSet {
 }
 
 // parseFlags parses args; it returns (code, false) when the command should
-// stop: 0 after --help, 2 after a flag error.
+// stop: 0 after --help (which prints the usage), 2 after a flag error,
+// reported in one line as parseInterleaved does (the flag package would
+// print its message and then the whole usage).
 func parseFlags(fs *flag.FlagSet, args []string) (int, bool) {
-	if err := fs.Parse(args); err != nil {
-		if err == flag.ErrHelp {
-			return exitOK, false
-		}
+	out, help := fs.Output(), fs.Usage
+	fs.SetOutput(io.Discard)
+	fs.Usage = func() {}
+	err := fs.Parse(args)
+	fs.SetOutput(out)
+	fs.Usage = help
+	if err == flag.ErrHelp {
+		help()
+		return exitOK, false
+	}
+	if err != nil {
+		fmt.Fprintf(out, "wardload %s: %v (see wardload %s --help)\n", fs.Name(), err, fs.Name())
 		return exitUsage, false
 	}
 	return 0, true
