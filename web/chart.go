@@ -56,7 +56,7 @@ type ChartLine struct {
 	// that a narrow screen can drop the word of the neighbours' labels.
 	LabelNum, LabelWord string
 	Recommended         bool
-	Class          string
+	Class               string
 }
 
 // The chart's frame, in viewBox units.
