@@ -299,14 +299,14 @@ func reviewSummaries(p ReviewVM) templ.Component {
 		}
 		ctx = templ.InitializeContext(ctx)
 		ctx = templ.ClearChildren(ctx)
-		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 23, "<h2 id=\"summaries\">Tier summaries</h2><div class=\"table-wrap\" tabindex=\"0\" role=\"region\" aria-label=\"Tier summaries\"><table data-testid=\"review-summaries\"><caption>Five-number summary, mean and SD per tier, in ")
+		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 23, "<h2 id=\"summaries\">Tier summaries</h2><div class=\"table-wrap\" tabindex=\"0\" role=\"region\" aria-label=\"Tier summaries\"><table data-testid=\"review-summaries\"><caption>Five-number summary (smallest, lower quartile Q1, median, upper quartile Q3, largest), mean and SD (standard deviation) per tier, in ")
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
 		var templ_7745c5c3_Var17 string
 		templ_7745c5c3_Var17, templ_7745c5c3_Err = templ.JoinStringErrs(p.Unit)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/review.templ`, Line: 75, Col: 66}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/review.templ`, Line: 75, Col: 153}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var17))
 		if templ_7745c5c3_Err != nil {
@@ -439,14 +439,14 @@ func reviewSummaries(p ReviewVM) templ.Component {
 				return templ_7745c5c3_Err
 			}
 		}
-		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 35, "</tbody></table></div><div class=\"table-wrap\" tabindex=\"0\" role=\"region\" aria-label=\"Fences\"><table data-testid=\"review-fences\"><caption>IQR and fences per tier, in ")
+		templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 35, "</tbody></table></div><div class=\"table-wrap\" tabindex=\"0\" role=\"region\" aria-label=\"Fences\"><table data-testid=\"review-fences\"><caption>IQR (interquartile range, Q3 − Q1: the spread of the middle half) and fences per tier, in ")
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
 		var templ_7745c5c3_Var27 string
 		templ_7745c5c3_Var27, templ_7745c5c3_Err = templ.JoinStringErrs(p.Unit)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/review.templ`, Line: 108, Col: 48}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/review.templ`, Line: 108, Col: 112}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var27))
 		if templ_7745c5c3_Err != nil {
