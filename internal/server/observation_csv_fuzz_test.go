@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"wardload/internal/stats"
 	"wardload/internal/wardload"
 )
 
@@ -13,9 +14,10 @@ import (
 // reader. Properties: it never panics; a failure is an EINVALID
 // *wardload.Error whose message names a line (or says the file is empty or
 // has no rows); a success returns one observation per line number, each
-// passing Validate, of this ward and of one of its tiers and shifts, with
-// only the ward's factors. Seeds are in testdata/fuzz/FuzzParseObservationCSV
-// and run with go test.
+// passing Validate and usable by the model (within stats.MaxShiftMinutes),
+// of this ward and of one of its tiers and shifts, with only the ward's
+// factors. Seeds are in testdata/fuzz/FuzzParseObservationCSV and run with
+// go test.
 func FuzzParseObservationCSV(f *testing.F) {
 	ward := &wardload.Ward{ID: 7, Code: "w7", Name: "W7", TimeZone: "Europe/London", FactorNames: []string{"dependency_score"}}
 	tiers := []*wardload.Tier{{ID: 11, WardID: 7, Code: "t1", Label: "T1"}, {ID: 12, WardID: 7, Code: "t2", Label: "T2"}}
@@ -42,6 +44,11 @@ func FuzzParseObservationCSV(f *testing.F) {
 		for i, o := range obs {
 			if err := o.Validate(); err != nil {
 				t.Fatalf("row %d fails Validate: %v", i+1, err)
+			}
+			// Every stored observation must be usable by the model on a
+			// shift of up to 25 real hours.
+			if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
+				t.Fatalf("row %d: %g minutes in %g hours passed", i+1, o.CareMinutes, o.WindowHours)
 			}
 			if o.WardID != ward.ID || (o.TierID != 11 && o.TierID != 12) || (o.ShiftID != 21 && o.ShiftID != 22) {
 				t.Fatalf("row %d: ward %d tier %d shift %d", i+1, o.WardID, o.TierID, o.ShiftID)

@@ -74,7 +74,8 @@ func TestImportRefusesHostileNumbers(t *testing.T) {
 	header := "date,shift,tier,window_hours,care_minutes\n"
 	good := "2026-03-01,Day,t1,12.5,55\n"
 	for _, tc := range []struct{ name, row, want string }{
-		{"huge minutes", "2026-03-01,Day,t1,12,1.7e308\n", `line 3, column "care_minutes": 1.7e+308 minutes in 12 hours is more than wardload can use`},
+		{"huge minutes", "2026-03-01,Day,t1,12,1.7e308\n", `line 3, column "care_minutes": "1.7e308" is too large`},
+		{"largest cell", "2026-03-01,Day,t1,12,1e15\n", `line 3, column "care_minutes": 1e+15 minutes in 12 hours is more than wardload can use`},
 		{"minutes past the model", "2026-03-01,Day,t1,1,500000\n", `line 3, column "care_minutes": 500000 minutes in 1 hours`},
 		{"tiny window", "2026-03-01,Day,t1,1e-300,60\n", `line 3, column "care_minutes"`},
 		{"NaN", "2026-03-01,Day,t1,12,NaN\n", `line 3, column "care_minutes"`},
