@@ -2,9 +2,11 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"log/slog"
+	"net"
 	"strconv"
 	"text/tabwriter"
 	"time"
@@ -20,6 +22,19 @@ import (
 
 func init() {
 	register(command{name: "serve", summary: "run the web interface and API", run: runServe})
+}
+
+// checkAddr checks that addr is HOST:PORT with a port number from 0 to
+// 65535 (0: any free port).
+func checkAddr(addr string) error {
+	_, port, err := net.SplitHostPort(addr)
+	if err != nil {
+		return errors.New("must be HOST:PORT, e.g. 127.0.0.1:8080")
+	}
+	if _, err := strconv.ParseUint(port, 10, 16); err != nil {
+		return errors.New("needs a port number from 0 to 65535")
+	}
+	return nil
 }
 
 func runServe(ctx context.Context, e *env, args []string) int {
@@ -52,6 +67,12 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	}
 	if _, err := so.kind(); err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
+		return exitUsage
+	}
+	// A mistyped address is bad usage, found before the database is
+	// opened (and created); a port that is taken is still a failure.
+	if err := checkAddr(*addr); err != nil {
+		fmt.Fprintf(e.stderr, "wardload: --addr %q %v\n", *addr, err)
 		return exitUsage
 	}
 	log := slog.New(slog.NewTextHandler(e.stderr, nil))

@@ -17,6 +17,10 @@ func runVersion(_ context.Context, e *env, args []string) int {
 	if code, ok := parseFlags(fs, args); !ok {
 		return code
 	}
+	if fs.NArg() > 0 {
+		fmt.Fprintln(e.stderr, "wardload version: takes no arguments (see --help)")
+		return exitUsage
+	}
 	fmt.Fprintln(e.stdout, "wardload", version)
 	return exitOK
 }

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -107,4 +109,30 @@ func TestCLIHostileInputs(t *testing.T) {
 			t.Errorf("%s: exit %d %q %q", name, code, out, errOut)
 		}
 	}
+}
+
+// serve --addr with an impossible port opened (and created) the database,
+// logged, and then failed with exit 1; it is bad usage, exit 2, refused
+// before anything is created.
+func TestServeRefusesBadAddrFirst(t *testing.T) {
+	for _, addr := range []string{"0.0.0.0:99999", "nonsense", "127.0.0.1:-1", "127.0.0.1:http-alt", ":"} {
+		dir := t.TempDir()
+		code, out, errOut := runCLI(t, dir, "", "serve", "--addr", addr)
+		oneLineRefusal(t, "serve --addr "+addr, code, out, errOut)
+		if _, err := os.Stat(filepath.Join(dir, "wardload.db")); err == nil {
+			t.Errorf("serve --addr %s created the database before refusing", addr)
+		}
+	}
+	if err := checkAddr("127.0.0.1:0"); err != nil {
+		t.Errorf("port 0: %v", err)
+	}
+	if err := checkAddr("[::1]:8080"); err != nil {
+		t.Errorf("IPv6: %v", err)
+	}
+}
+
+// version ignored extra arguments.
+func TestVersionRefusesArguments(t *testing.T) {
+	code, out, errOut := runCSVCommand(t, "", "version", "extra")
+	oneLineRefusal(t, "version extra", code, out, errOut)
 }
