@@ -164,7 +164,7 @@ func generalForm(p SettingsVM) templ.Component {
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
-		templ_7745c5c3_Err = textField("direct_care_fraction", "s-dcf", "Direct-care fraction (share of a nurse's shift spent on direct care, more than 0 and at most 1, e.g. 0.75)", p.General.DirectCareFraction, "decimal", p.General.Errors).Render(ctx, templ_7745c5c3_Buffer)
+		templ_7745c5c3_Err = textField("direct_care_fraction", "s-dcf", "Direct-care fraction (share of a nurse's shift spent on direct care, between 0.1 and 1, e.g. 0.75)", p.General.DirectCareFraction, "decimal", p.General.Errors).Render(ctx, templ_7745c5c3_Buffer)
 		if templ_7745c5c3_Err != nil {
 			return templ_7745c5c3_Err
 		}
@@ -368,7 +368,7 @@ func floorsForm(p SettingsVM) templ.Component {
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
-				templ_7745c5c3_Err = textField(s.WardField, "f-"+s.WardField, "At most this many patients per nurse, all patients (empty = no ward-wide floor)", s.WardValue, "decimal", s.Errors).Render(ctx, templ_7745c5c3_Buffer)
+				templ_7745c5c3_Err = textField(s.WardField, "f-"+s.WardField, "At most this many patients per nurse, all patients (0.5 to 50; empty = no ward-wide floor)", s.WardValue, "decimal", s.Errors).Render(ctx, templ_7745c5c3_Buffer)
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}

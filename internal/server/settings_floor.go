@@ -82,8 +82,8 @@ func (s *Server) handleFloorsSave(w http.ResponseWriter, r *http.Request) error 
 		if _, bad := errs[field]; bad {
 			return
 		}
-		if !(v > 0 && v <= 50) {
-			errs[field] = "Patients per nurse must be more than 0 and at most 50."
+		if !(v >= wardload.MinPatientsPerNurse && v <= 50) {
+			errs[field] = "Patients per nurse must be between 0.5 (two nurses per patient) and 50."
 			return
 		}
 		floors = append(floors, wardload.RatioFloor{ShiftID: shiftID, TierID: tierID, PatientsPerNurse: v, ChargeNurseCounts: counts})

@@ -23,6 +23,12 @@ func ValidQuartiles(name string) bool {
 	return false
 }
 
+// Lower bounds of the settings a ward may save (see Settings.Validate).
+const (
+	MinDirectCareFraction = 0.1
+	MinPatientsPerNurse   = 0.5
+)
+
 // RatioFloor is a minimum nurse-to-patient ratio for one shift pattern:
 // at most PatientsPerNurse patients per nurse. When TierID is not 0 the
 // floor applies to that tier's patients only; the ward floor is then the
@@ -73,8 +79,12 @@ func (s *Settings) Validate() error {
 	if s.WardID == 0 {
 		return FieldErrorf(EINVALID, "ward", "Ward is required.")
 	}
-	if math.IsNaN(s.DirectCareFraction) || !(s.DirectCareFraction > 0 && s.DirectCareFraction <= 1) {
-		return FieldErrorf(EINVALID, "direct_care_fraction", "Direct-care fraction must be more than 0 and at most 1.")
+	// The lower bounds below keep typing errors (0.0075 for 0.75) from
+	// turning into absurd headcounts; a nurse with under a tenth of the
+	// shift for direct care, or more than two nurses per patient as a
+	// floor, is outside ward practice (common practice, no source).
+	if math.IsNaN(s.DirectCareFraction) || !(s.DirectCareFraction >= MinDirectCareFraction && s.DirectCareFraction <= 1) {
+		return FieldErrorf(EINVALID, "direct_care_fraction", "Direct-care fraction must be between 0.1 and 1.")
 	}
 	if math.IsNaN(s.CoverLevel) || !(s.CoverLevel > 0 && s.CoverLevel < 1) {
 		return FieldErrorf(EINVALID, "cover_level", "Cover level must be between 0 and 1 (for example 0.9).")
@@ -94,8 +104,8 @@ func (s *Settings) Validate() error {
 		if f.ShiftID == 0 {
 			return FieldErrorf(EINVALID, "floors", "Each ratio floor needs a shift.")
 		}
-		if math.IsNaN(f.PatientsPerNurse) || !(f.PatientsPerNurse > 0 && f.PatientsPerNurse <= 50) {
-			return FieldErrorf(EINVALID, "floors", "Patients per nurse must be more than 0 and at most 50.")
+		if math.IsNaN(f.PatientsPerNurse) || !(f.PatientsPerNurse >= MinPatientsPerNurse && f.PatientsPerNurse <= 50) {
+			return FieldErrorf(EINVALID, "floors", "Patients per nurse must be between 0.5 (two nurses per patient) and 50.")
 		}
 		k := key{f.ShiftID, f.TierID}
 		if seen[k] {

@@ -27,6 +27,11 @@ func plainText(s, allow string) bool {
 		if unicode.IsControl(r) && !strings.ContainsRune(allow, r) {
 			return false
 		}
+		// Bidirectional overrides and isolates (U+202A–U+202E, U+2066–U+2069)
+		// can make a name display as something else, e.g. in the audit log.
+		if (r >= 0x202A && r <= 0x202E) || (r >= 0x2066 && r <= 0x2069) {
+			return false
+		}
 	}
 	return true
 }

@@ -134,3 +134,40 @@ func TestDate(t *testing.T) {
 		t.Error("ordering")
 	}
 }
+
+// Typing errors such as 0.0075 for 0.75 must not reach the model, where they
+// would turn into absurd headcounts.
+func TestSettingsLowerBounds(t *testing.T) {
+	s := wardload.DefaultSettings(1)
+	s.DirectCareFraction = 0.0075
+	if err := s.Validate(); wardload.ErrorField(err) != "direct_care_fraction" {
+		t.Errorf("direct-care 0.0075: %v", err)
+	}
+	s.DirectCareFraction = wardload.MinDirectCareFraction
+	s.Floors = []wardload.RatioFloor{{ShiftID: 1, PatientsPerNurse: 0.4}}
+	if err := s.Validate(); wardload.ErrorField(err) != "floors" {
+		t.Errorf("0.4 patients per nurse: %v", err)
+	}
+	s.Floors[0].PatientsPerNurse = wardload.MinPatientsPerNurse
+	if err := s.Validate(); err != nil {
+		t.Errorf("the bounds themselves are allowed: %v", err)
+	}
+}
+
+// A right-to-left override would make a name display as something else.
+func TestNamesRefuseBidiControls(t *testing.T) {
+	for _, name := range []string{"Ward \u202Etsae 7", "Night \u2066x\u2069"} {
+		w := wardload.Ward{Code: "w7", Name: name, TimeZone: "Europe/London"}
+		if err := w.Validate(); wardload.ErrorField(err) != "name" {
+			t.Errorf("ward name %q: %v", name, err)
+		}
+		p := wardload.ShiftPattern{WardID: 1, Name: name, StartMinute: 0, NominalHours: 8}
+		if err := p.Validate(); wardload.ErrorField(err) != "name" {
+			t.Errorf("shift name %q: %v", name, err)
+		}
+	}
+	w := wardload.Ward{Code: "w7", Name: "Station 7 — Innere Medizin (العناية)", TimeZone: "Europe/Berlin"}
+	if err := w.Validate(); err != nil {
+		t.Errorf("ordinary non-Latin name refused: %v", err)
+	}
+}
