@@ -137,35 +137,47 @@ func (s *Server) optionalUser(next http.Handler) http.Handler {
 
 // requireUser is the guard of page routes.
 func (s *Server) requireUser(rt Route, next http.Handler) http.Handler {
-	return s.handle(func(w http.ResponseWriter, r *http.Request) error {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		u, err := s.sessionUser(r)
-		if err != nil {
+		if err == nil && u != nil {
+			// A refusal (wrong role or ward) renders with the person
+			// attached, so the error page still shows who is signed in.
+			r = r.WithContext(withPrincipal(r.Context(), &principal{User: u}))
+		}
+		s.handle(func(w http.ResponseWriter, r *http.Request) error {
+			return s.admit(rt, next, w, r, u, err)
+		})(w, r)
+	})
+}
+
+// admit is the decision of requireUser once the session has been read.
+func (s *Server) admit(rt Route, next http.Handler, w http.ResponseWriter, r *http.Request, u *wardload.User, err error) error {
+	if err != nil {
+		return err
+	}
+	if u == nil {
+		// Only a GET can be repeated after signing in; a form post
+		// is lost and the person starts again from the home page.
+		dest := "/"
+		if r.Method == http.MethodGet {
+			dest = localPath(r.URL.RequestURI())
+		}
+		return seeOther(w, r, "/signin?next="+url.QueryEscape(dest))
+	}
+	if !slices.Contains(rt.Access.Roles, u.Role) {
+		return wardload.Errorf(wardload.EFORBIDDEN, "Your role does not allow this page.")
+	}
+	p := &principal{User: u}
+	if rt.Access.WardScoped {
+		if p.Ward, err = s.scopedWard(r); err != nil {
 			return err
 		}
-		if u == nil {
-			// Only a GET can be repeated after signing in; a form post
-			// is lost and the person starts again from the home page.
-			dest := "/"
-			if r.Method == http.MethodGet {
-				dest = localPath(r.URL.RequestURI())
-			}
-			return seeOther(w, r, "/signin?next="+url.QueryEscape(dest))
+		if !u.MemberOf(p.Ward.ID) {
+			return wardload.Errorf(wardload.EFORBIDDEN, "You are not a member of this ward.")
 		}
-		if !slices.Contains(rt.Access.Roles, u.Role) {
-			return wardload.Errorf(wardload.EFORBIDDEN, "Your role does not allow this page.")
-		}
-		p := &principal{User: u}
-		if rt.Access.WardScoped {
-			if p.Ward, err = s.scopedWard(r); err != nil {
-				return err
-			}
-			if !u.MemberOf(p.Ward.ID) {
-				return wardload.Errorf(wardload.EFORBIDDEN, "You are not a member of this ward.")
-			}
-		}
-		next.ServeHTTP(w, r.WithContext(withActor(withPrincipal(r.Context(), p), u)))
-		return nil
-	})
+	}
+	next.ServeHTTP(w, r.WithContext(withActor(withPrincipal(r.Context(), p), u)))
+	return nil
 }
 
 // sessionUser returns the signed-in user, or nil when there is none: no

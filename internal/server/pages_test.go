@@ -251,3 +251,31 @@ func TestNavByRole(t *testing.T) {
 		t.Errorf("admin sees wards %q", got)
 	}
 }
+
+// Refusals and unknown addresses still show who is signed in, so a person
+// is not told "Sign in" while signed in.
+func TestErrorPagesKeepTheSignedInHeader(t *testing.T) {
+	f := newFixture(t)
+	for _, tc := range []struct {
+		path   string
+		status int
+	}{
+		{"/audit", 403},             // wrong role
+		{"/wards/w-b/census", 403},  // another ward
+		{"/no/such/page", 404},      // unknown address
+		{"/wards/nope/census", 404}, // unknown ward
+	} {
+		res, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", tc.path, nil)))
+		if res.StatusCode != tc.status {
+			t.Errorf("%s: status %d, want %d", tc.path, res.StatusCode, tc.status)
+		}
+		if got := byTestID(t, body, "user-name"); !slices.Equal(got, []string{"Signed in as n.nurse"}) {
+			t.Errorf("%s: header %q, want the nurse's name", tc.path, got)
+		}
+	}
+	// Signed out, an unknown address is still a plain 404 with the sign-in link.
+	res, body := f.do(t, httptest.NewRequest("GET", "/no/such/page", nil))
+	if res.StatusCode != 404 || len(byTestID(t, body, "user-name")) != 0 {
+		t.Errorf("signed out 404: %d, header %q", res.StatusCode, byTestID(t, body, "user-name"))
+	}
+}

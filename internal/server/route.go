@@ -133,9 +133,11 @@ func (s *Server) router(routes []Route) http.Handler {
 	// HEAD is answered by the GET route (monitoring tools and link
 	// checkers send HEAD).
 	r.Use(middleware.GetHead)
-	r.NotFound(s.handle(func(http.ResponseWriter, *http.Request) error {
+	// The 404 page reads the session (never requires it) so a signed-in
+	// person still sees their name and navigation.
+	r.NotFound(s.sessions.LoadAndSave(s.optionalUser(s.handle(func(http.ResponseWriter, *http.Request) error {
 		return wardload.Errorf(wardload.ENOTFOUND, "There is no page at this address.")
-	}))
+	}))).ServeHTTP)
 	r.MethodNotAllowed(s.handle(func(w http.ResponseWriter, r *http.Request) error {
 		allowMethods(w, r, routes)
 		return &wardload.Error{Code: eMethod, Message: "This address does not accept that kind of request."}
