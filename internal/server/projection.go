@@ -68,16 +68,19 @@ func renderHTML(ctx context.Context, c templ.Component) (string, error) {
 // decidedText says in words which of the cover need and the floor decided
 // the recommendation.
 func decidedText(p *wardload.Projection) string {
-	level := export.FormatLevel(p.CoverLevel)
+	// Say the cover level in words: "enough for the workload on 90% of such
+	// shifts" reads at a glance where "cover level 0.9" needs explaining.
+	pct := strconv.FormatFloat(math.Round(p.CoverLevel*1e6)/1e4, 'f', -1, 64) // 0.9 → "90", not 90.00000000000001
+	cover := fmt.Sprintf("the workload on %s%% of such shifts", pct)
 	switch {
 	case p.Floor == nil:
-		return fmt.Sprintf("Set by the workload at the ward's cover level of %s; no ratio floor is configured for this shift.", level)
+		return fmt.Sprintf("Set by %s; no ratio floor is configured for this shift.", cover)
 	case p.DecidedBy == stats.DecidedByFloor:
-		return fmt.Sprintf("Set by the ratio floor of %d nurses; the workload at the cover level of %s needs %d.", *p.Floor, level, p.NursesCover)
+		return fmt.Sprintf("Set by the ratio floor of %d nurses; %s needs %d.", *p.Floor, cover, p.NursesCover)
 	case p.DecidedBy == stats.DecidedByBoth:
-		return fmt.Sprintf("The ratio floor and the workload at the cover level of %s both ask for %d nurses.", level, p.Recommended)
+		return fmt.Sprintf("The ratio floor and %s both ask for %d nurses.", cover, p.Recommended)
 	}
-	return fmt.Sprintf("Set by the workload at the cover level of %s; the ratio floor asks for %d.", level, *p.Floor)
+	return fmt.Sprintf("Set by %s; the ratio floor asks for %d.", cover, *p.Floor)
 }
 
 // newProjectionPage builds the projection's part of the page from the

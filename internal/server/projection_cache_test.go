@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"wardload/internal/stats"
 	"wardload/internal/wardload"
 )
 
@@ -97,5 +98,23 @@ func TestProjectionCacheEvicts(t *testing.T) {
 	}
 	if _, ok := c.get(projectionKey{ID: 1, WardID: 2}); ok {
 		t.Error("a page of ward 1 found under ward 2")
+	}
+}
+
+// The sentence under the headcount says the cover level as a share of
+// shifts, without float noise (0.9 × 100 is 90.00000000000001 in float64).
+func TestDecidedTextNamesCoverAsShareOfShifts(t *testing.T) {
+	floor := 4
+	for _, tc := range []struct {
+		p    wardload.Projection
+		want string
+	}{
+		{wardload.Projection{CoverLevel: 0.9}, "Set by the workload on 90% of such shifts; no ratio floor is configured for this shift."},
+		{wardload.Projection{CoverLevel: 0.925, Floor: &floor, DecidedBy: stats.DecidedByFloor, NursesCover: 3}, "Set by the ratio floor of 4 nurses; the workload on 92.5% of such shifts needs 3."},
+		{wardload.Projection{CoverLevel: 0.8, Floor: &floor, DecidedBy: stats.DecidedByCover}, "Set by the workload on 80% of such shifts; the ratio floor asks for 4."},
+	} {
+		if got := decidedText(&tc.p); got != tc.want {
+			t.Errorf("got %q\nwant %q", got, tc.want)
+		}
 	}
 }
