@@ -8,7 +8,9 @@ import (
 	"net/http"
 	"regexp"
 	"strconv"
+	"time"
 
+	"wardload/internal/projector"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -85,6 +87,9 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 	} else if err != nil {
 		return fmt.Errorf("import: read: %w", err)
 	}
+	if err := checkObservationDates(obs, lines, ward, s.now()); err != nil {
+		return refuse(wardload.ErrorMessage(err))
+	}
 	for _, o := range obs {
 		o.EnteredBy = u.ID
 	}
@@ -132,4 +137,29 @@ func (s *Server) handleImportTemplate(w http.ResponseWriter, r *http.Request) er
 	w.Header().Set("Cache-Control", "no-store")
 	_, err := w.Write(buf.Bytes())
 	return err
+}
+
+// earliestObservation is the oldest date an import accepts: older records
+// are almost certainly a mistyped year, and the model never looks back
+// that far (lookback is at most 104 weeks).
+var earliestObservation = wardload.Date{Year: 2000, Month: time.January, Day: 1}
+
+// checkObservationDates refuses observations dated after today in the
+// ward's time zone (care not yet given: a mistyped year) or before
+// earliestObservation, naming the file line.
+func checkObservationDates(obs []*wardload.Observation, lines []int, ward *wardload.Ward, now time.Time) error {
+	loc, err := ward.Location()
+	if err != nil {
+		return err
+	}
+	today := projector.Today(now, loc)
+	for i, o := range obs {
+		if o.Date.After(today) {
+			return wardload.FieldErrorf(wardload.EINVALID, "date", "line %d, column \"date\": %s is after today (%s); care not yet given cannot be observed.", lines[i], o.Date, today)
+		}
+		if o.Date.Before(earliestObservation) {
+			return wardload.FieldErrorf(wardload.EINVALID, "date", "line %d, column \"date\": %s is before %s; check the year.", lines[i], o.Date, earliestObservation)
+		}
+	}
+	return nil
 }

@@ -108,6 +108,10 @@ func TestImportRefused(t *testing.T) {
 		{"name column", "patient_name,date,shift,tier,window_hours,care_minutes\nX,2026-03-01,Day,t1,12,40\n", `column "patient_name" is not accepted`},
 		{"missing column", "date,shift,tier,care_minutes\n2026-03-01,Day,t1,40\n", `the column "window_hours" is missing`},
 		{"header only", header, "no data rows"},
+		// The fixture's clock is 2026-03-02 09:00 UTC (Europe/London: same date).
+		{"dated tomorrow on line 3", header + good + "2026-03-03,Day,t1,12.5,55\n", `line 3, column "date": 2026-03-03 is after today (2026-03-02)`},
+		{"year mistyped far ahead", header + "9999-11-20,Day,t1,12.5,55\n", `line 2, column "date": 9999-11-20 is after today`},
+		{"year mistyped far back", header + "1926-03-01,Day,t1,12.5,55\n", `line 2, column "date": 1926-03-01 is before 2000-01-01`},
 		{"ragged row", header + "2026-03-01,Day,t1,12\n", "line 2: the row does not have the same number of fields"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
