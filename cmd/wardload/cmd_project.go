@@ -189,14 +189,15 @@ func parseInterleaved(e *env, fs *flag.FlagSet, args []string) (positional []str
 	}
 }
 
-// readProjectFile reads FILE or, for "-", standard input. A file that
-// cannot be opened is a failure (1); a malformed one is bad input (2).
+// readProjectFile reads FILE or, for "-", standard input. A file
+// that cannot be opened is bad input (2), as in summarize and correlate:
+// the argument names no readable file.
 func readProjectFile(e *env, name string) (*csvfile.Table, int, error) {
 	var r io.Reader = e.stdin
 	if name != "-" {
 		f, err := os.Open(name)
 		if err != nil {
-			return nil, exitFailure, errors.New("cannot open the file")
+			return nil, exitUsage, errors.New("cannot open the file")
 		}
 		defer f.Close()
 		r = f

@@ -193,7 +193,7 @@ func TestProjectCommandBadInput(t *testing.T) {
 		{"no column", handCSV, append([]string{"-", "--census", "a=1", "--column", "minutes"}, base...), exitUsage, `no column "minutes"`},
 		{"draws not a number", handCSV, append([]string{"-", "--census", "a=1", "--draws", "many"}, base...), exitUsage, "-draws"},
 		{"unknown flag", handCSV, append([]string{"-", "--census", "a=1", "--beds", "3"}, base...), exitUsage, "-beds"},
-		{"missing file", "", append([]string{filepath.Join(t.TempDir(), "nope.csv"), "--census", "a=1"}, base...), exitFailure, "cannot open the file"},
+		{"missing file", "", append([]string{filepath.Join(t.TempDir(), "nope.csv"), "--census", "a=1"}, base...), exitUsage, "cannot open the file"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
