@@ -28,7 +28,9 @@ type NavItem struct {
 
 // HomeVM is the home page: the wards the visitor may see.
 type HomeVM struct {
-	Wards []WardRowVM
+	// SignedOut: the visitor sees ward names only and is asked to sign in.
+	SignedOut bool
+	Wards     []WardRowVM
 }
 
 // WardRowVM is one ward in a list of wards.

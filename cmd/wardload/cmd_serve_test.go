@@ -154,9 +154,13 @@ func TestServeEndToEnd(t *testing.T) {
 			t.Errorf("GET %s = %d\n%s", p, code, body)
 		}
 	}
-	// Signed out, the home page sends people to sign in.
-	if _, body := get(t, s.URL+"/"); !strings.Contains(body, `data-testid="signin-form"`) {
-		t.Errorf("signed-out home did not end at the sign-in form:\n%s", body)
+	// Signed out, the home page offers sign-in, and a signed-in page
+	// sends people to the sign-in form.
+	if _, body := get(t, s.URL+"/"); !strings.Contains(body, `data-testid="home-signin-link"`) {
+		t.Errorf("signed-out home has no sign-in link:\n%s", body)
+	}
+	if _, body := get(t, s.URL+"/audit"); !strings.Contains(body, `data-testid="signin-form"`) {
+		t.Errorf("signed-out audit page did not end at the sign-in form:\n%s", body)
 	}
 	c := signIn(t, s.URL, "ada.admin", "first admin pw")
 	_, home := getWith(t, c, s.URL+"/")
@@ -169,8 +173,8 @@ func TestServeEndToEnd(t *testing.T) {
 		t.Fatal(err)
 	}
 	res.Body.Close()
-	if _, body := getWith(t, c, s.URL+"/"); !strings.Contains(body, `data-testid="signin-form"`) {
-		t.Errorf("after sign-out, home did not end at the sign-in form")
+	if _, body := getWith(t, c, s.URL+"/audit"); !strings.Contains(body, `data-testid="signin-form"`) {
+		t.Errorf("after sign-out, the audit page did not end at the sign-in form")
 	}
 	if code := s.Stop(t); code != exitOK {
 		t.Errorf("exit %d after cancel, want 0\nstderr: %s", code, s.stderr)

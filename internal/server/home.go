@@ -8,22 +8,27 @@ import (
 	"wardload/web"
 )
 
-// handleHome lists the wards.
+// handleHome lists the wards. Signed out, it lists every ward's code and
+// name (organisational names, no staffing figures) with a sign-in link, so
+// staff can see they have reached the right service; signed in, everyone
+// but an admin sees only the wards they belong to, with links by role.
 func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
-	// Everyone but an admin sees only the wards they belong to.
+	u := principalFrom(r.Context()).User
 	var f wardload.WardFilter
-	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleAdmin {
+	if u != nil && u.Role != wardload.RoleAdmin {
 		f.UserID = &u.ID
 	}
 	wards, _, err := s.store.FindWards(r.Context(), f)
 	if err != nil {
 		return fmt.Errorf("home: find wards: %w", err)
 	}
-	vm := web.HomeVM{Wards: make([]web.WardRowVM, 0, len(wards))}
+	vm := web.HomeVM{SignedOut: u == nil, Wards: make([]web.WardRowVM, 0, len(wards))}
 	for _, wd := range wards {
-		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone,
-			CensusURL: censusURL(wd), ProjectionsURL: projectionsURL(wd)}
-		if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
+		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone}
+		if u != nil {
+			row.CensusURL, row.ProjectionsURL = censusURL(wd), projectionsURL(wd)
+		}
+		if u != nil && u.Role != wardload.RoleChargeNurse {
 			row.TokensURL = "/wards/" + wd.Code + "/tokens"
 			row.SettingsURL = "/wards/" + wd.Code + "/settings"
 			row.ReviewURL = reviewURL(wd)

@@ -86,3 +86,24 @@ func TestHomeStoreFailureIsInternal(t *testing.T) {
 		t.Errorf("log lacks the internal error with its request id:\n%s", l)
 	}
 }
+
+// Signed out, the home page answers 200 with the wards' codes and names and
+// a sign-in link, and no links into ward pages or any figures.
+func TestHomeSignedOut(t *testing.T) {
+	f := newFixture(t)
+	res, body := f.do(t, httptest.NewRequest("GET", "/", nil))
+	if res.StatusCode != 200 {
+		t.Fatalf("status %d, want 200", res.StatusCode)
+	}
+	if got := byTestID(t, body, "ward-code"); !slices.Equal(got, []string{"w-a", "w-b"}) {
+		t.Errorf("ward codes %q", got)
+	}
+	if len(byTestID(t, body, "home-signin-link")) != 1 || len(byTestID(t, body, "user-name")) != 0 {
+		t.Error("no sign-in link, or a user shown")
+	}
+	for _, id := range []string{"ward-census", "ward-projections", "ward-review", "ward-settings", "ward-tokens"} {
+		if n := len(byTestID(t, body, id)); n != 0 {
+			t.Errorf("signed-out page links %s (%d)", id, n)
+		}
+	}
+}

@@ -199,7 +199,7 @@ func TestUserPages(t *testing.T) {
 	if res.StatusCode != 303 {
 		t.Fatalf("disable = %d", res.StatusCode)
 	}
-	if res, _ := f.do(t, withCookie(httptest.NewRequest("GET", "/", nil), f, live.Value)); res.StatusCode != 303 {
+	if res, _ := f.do(t, withCookie(httptest.NewRequest("GET", "/wards/w-a/census", nil), f, live.Value)); res.StatusCode != 303 {
 		t.Errorf("disabled user's session: %d, want 303", res.StatusCode)
 	}
 	if es := f.audit(t, "user.update"); len(es) == 0 || es[0].Actor != "a.admin" || !strings.Contains(es[0].After, `"Disabled":true`) {

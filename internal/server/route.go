@@ -54,7 +54,10 @@ func (s *Server) routeTable() []Route {
 	admins := Access{Roles: []string{wardload.RoleAdmin}}
 	api := Access{API: true}
 	return []Route{
-		{Method: http.MethodGet, Pattern: "/", Name: "home", Access: signedIn, Handler: s.handleHome},
+		// Public: signed out, it names the wards this installation serves
+		// (code and name, no figures) beside the sign-in link; signed in,
+		// each person sees only their own wards with their pages.
+		{Method: http.MethodGet, Pattern: "/", Name: "home", Access: public, Handler: s.handleHome},
 		{Method: http.MethodGet, Pattern: "/healthz", Name: "healthz", Access: public, Handler: s.handleHealthz},
 		{Method: http.MethodGet, Pattern: "/readyz", Name: "readyz", Access: public, Handler: s.handleReadyz},
 		{Method: http.MethodGet, Pattern: "/static/*", Name: "static", Access: public, Handler: s.handleStatic},

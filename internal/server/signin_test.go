@@ -44,7 +44,9 @@ func TestSignInSuccess(t *testing.T) {
 		t.Errorf("cookie flags: HttpOnly %v SameSite %v Secure %v Path %q", c.HttpOnly, c.SameSite, c.Secure, c.Path)
 	}
 	// The old ID is dead; the new one works and the page names the user.
-	res, _ = f.do(t, withCookie(httptest.NewRequest("GET", "/", nil), f, before))
+	// (Ward A's census page is the probe: "/" is public and answers 200
+	// either way.)
+	res, _ = f.do(t, withCookie(httptest.NewRequest("GET", "/wards/w-a/census", nil), f, before))
 	if res.StatusCode != 303 {
 		t.Errorf("old session ID still signed in: %d", res.StatusCode)
 	}
@@ -61,7 +63,7 @@ func TestSignInSuccess(t *testing.T) {
 	if res.StatusCode != 303 || res.Header.Get("Location") != "/signin" {
 		t.Errorf("sign-out = %d %q", res.StatusCode, res.Header.Get("Location"))
 	}
-	if res, _ = f.do(t, withCookie(httptest.NewRequest("GET", "/", nil), f, c.Value)); res.StatusCode != 303 {
+	if res, _ = f.do(t, withCookie(httptest.NewRequest("GET", "/wards/w-a/census", nil), f, c.Value)); res.StatusCode != 303 {
 		t.Errorf("session still valid after sign-out: %d", res.StatusCode)
 	}
 }
@@ -219,8 +221,8 @@ func TestClientAddr(t *testing.T) {
 
 func TestSessionLimitsAndDisabling(t *testing.T) {
 	f := newFixture(t)
-	home := func(c *http.Cookie) int {
-		req := httptest.NewRequest("GET", "/", nil)
+	home := func(c *http.Cookie) int { // a signed-in page every principal here may use
+		req := httptest.NewRequest("GET", "/wards/w-a/census", nil)
 		req.AddCookie(c)
 		res, _ := f.do(t, req)
 		return res.StatusCode
