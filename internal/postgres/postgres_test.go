@@ -5,6 +5,7 @@ import (
 	"crypto/rand"
 	"encoding/hex"
 	"io/fs"
+	neturl "net/url"
 	"os"
 	"strings"
 	"testing"
@@ -123,7 +124,7 @@ func TestDateRoundTrip(t *testing.T) {
 	ctx := context.Background()
 	for _, tz := range []string{"Pacific/Kiritimati", "Pacific/Pago_Pago"} { // UTC+14 and UTC-11
 		t.Run(tz, func(t *testing.T) {
-			s, _ := MustOpenStore(t, url+"&timezone="+tz, time.Now)
+			s, _ := MustOpenStore(t, withParam(t, url, "timezone", tz), time.Now)
 			w := &wardload.Ward{Code: "w1", Name: "W", TimeZone: "UTC"}
 			if err := s.CreateWard(ctx, w); err != nil {
 				t.Fatal(err)
@@ -284,4 +285,18 @@ func TestConcurrentMigrate(t *testing.T) {
 	if err := s.Pool().QueryRow(ctx, `SELECT count(*) FROM goose_db_version WHERE version_id > 0`).Scan(&applied); err != nil || applied != migrationCount(t) {
 		t.Fatalf("applied %d (%v), want %d", applied, err, migrationCount(t))
 	}
+}
+
+// withParam adds a query parameter to a database URL, whether or not it
+// already has a query string.
+func withParam(t *testing.T, raw, key, value string) string {
+	t.Helper()
+	u, err := neturl.Parse(raw)
+	if err != nil {
+		t.Fatalf("WARDLOAD_TEST_DATABASE_URL is not a URL: %v", err)
+	}
+	q := u.Query()
+	q.Set(key, value)
+	u.RawQuery = q.Encode()
+	return u.String()
 }
