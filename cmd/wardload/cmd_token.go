@@ -54,10 +54,11 @@ func runTokenCreate(ctx context.Context, e *env, args []string) int {
 func runTokenRevoke(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "token revoke", "NAME", "Revoke the API token called NAME; the API refuses it from now on.")
 	so := addStoreFlags(fs, e)
-	if code, ok := parseFlags(fs, args); !ok {
+	names, code, ok := parseInterleaved(e, fs, args) // flags may follow NAME
+	if !ok {
 		return code
 	}
-	if fs.NArg() != 1 {
+	if len(names) != 1 {
 		fmt.Fprintln(e.stderr, "wardload token revoke: give exactly one token NAME (see --help)")
 		return exitUsage
 	}
@@ -67,10 +68,10 @@ func runTokenRevoke(ctx context.Context, e *env, args []string) int {
 		return exitFailure
 	}
 	defer st.Close()
-	t, err := st.FindTokenByName(ctx, fs.Arg(0))
+	t, err := st.FindTokenByName(ctx, names[0])
 	if err != nil {
 		if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-			err = wardload.Errorf(wardload.ENOTFOUND, "There is no token called %q.", fs.Arg(0))
+			err = wardload.Errorf(wardload.ENOTFOUND, "There is no token called %q.", names[0])
 		}
 		return reportError(e, "token revoke", err)
 	}

@@ -29,16 +29,17 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 	role := fs.String("role", wardload.RoleChargeNurse, "role: charge_nurse, manager or admin")
 	wards := fs.String("ward", "", "comma-separated codes of the wards the user belongs to")
 	so := addStoreFlags(fs, e)
-	if code, ok := parseFlags(fs, args); !ok {
+	names, code, ok := parseInterleaved(e, fs, args) // flags may follow NAME
+	if !ok {
 		return code
 	}
-	if fs.NArg() != 1 {
+	if len(names) != 1 {
 		fmt.Fprintln(e.stderr, "wardload user add: give exactly one user NAME (see --help)")
 		return exitUsage
 	}
 	// Check name and role before asking for a password; the placeholder
 	// hash only gets past Validate's own check and is replaced below.
-	u := &wardload.User{Name: fs.Arg(0), Role: *role, PasswordHash: "pending"}
+	u := &wardload.User{Name: names[0], Role: *role, PasswordHash: "pending"}
 	if err := u.Validate(); err != nil {
 		return reportError(e, "user add", err)
 	}

@@ -194,3 +194,37 @@ func TestWardListNeedsDatabase(t *testing.T) {
 		t.Errorf("ward list created a database file: %v", err)
 	}
 }
+
+// Flags may follow NAME, as they may follow FILE in the CSV commands.
+func TestUserAddFlagsAfterName(t *testing.T) {
+	dir := t.TempDir()
+	var out, errb bytes.Buffer
+	e := &env{stdin: strings.NewReader("a long password 1\n"), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+	if code := run(context.Background(), []string{"user", "add", "ada.admin", "--role", "admin", "--data-dir", dir}, e); code != exitOK {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	if !strings.Contains(out.String(), "created user ada.admin (admin)") {
+		t.Errorf("stdout %q", out.String())
+	}
+}
+
+// A command group answers --help with its sub-commands; bare, it is a
+// usage error that still lists them.
+func TestGroupHelp(t *testing.T) {
+	for _, tc := range []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"user", "--help"}, exitOK, "user add"},
+		{[]string{"token", "-h"}, exitOK, "token revoke"},
+		{[]string{"export"}, exitUsage, "export projections"},
+		{[]string{"ward", "help"}, exitOK, "ward list"},
+	} {
+		var out, errb bytes.Buffer
+		e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+		if code := run(context.Background(), tc.args, e); code != tc.code || !strings.Contains(errb.String(), tc.want) {
+			t.Errorf("%q: exit %d, stderr %q; want %d listing %q", tc.args, code, errb.String(), tc.code, tc.want)
+		}
+	}
+}

@@ -59,8 +59,33 @@ func run(ctx context.Context, args []string, e *env) int {
 	if c, ok := commands[args[0]]; ok {
 		return c.run(ctx, e, args[1:])
 	}
+	if sub := groupCommands(args[0]); len(sub) > 0 {
+		// "wardload user --help" (or a bare "wardload user") lists the
+		// group's sub-commands.
+		fmt.Fprintf(e.stderr, "Usage: wardload %s COMMAND [flags]   (each has --help)\n\nCommands:\n", args[0])
+		for _, n := range sub {
+			fmt.Fprintf(e.stderr, "  %-20s %s\n", n, commands[n].summary)
+		}
+		if len(args) >= 2 && (args[1] == "-h" || args[1] == "--help" || args[1] == "help") {
+			return exitOK
+		}
+		return exitUsage
+	}
 	fmt.Fprintf(e.stderr, "wardload: unknown command %q (try wardload --help)\n", strings.Join(args[:min(2, len(args))], " "))
 	return exitUsage
+}
+
+// groupCommands returns the two-word commands whose first word is group,
+// sorted.
+func groupCommands(group string) []string {
+	var names []string
+	for n := range commands {
+		if strings.HasPrefix(n, group+" ") {
+			names = append(names, n)
+		}
+	}
+	sort.Strings(names)
+	return names
 }
 
 func usage(w io.Writer) {
