@@ -32,3 +32,7 @@ go_s=$(awk '/^BenchmarkSummary10M/ {print $3 / 1e9}' "$tmp/go.txt" | sort -g | a
 r_s=$(cat "$tmp/r.txt")
 awk -v g="$go_s" -v r="$r_s" 'BEGIN {
   printf "median Go Summarize: %.4f s\nmedian R quantile:   %.4f s\nratio Go/R: %.3f (target <= 0.5)\n", g, r, g / r }'
+# Memory: bytes allocated per summary against the input's size (at most one
+# extra copy of the input is allowed).
+awk '/^BenchmarkSummary10M/ { for (i = 1; i < NF; i++) { if ($(i+1) == "B/op") b = $i; if ($(i+1) == "input-bytes") n = $i } }
+  END { printf "allocated per summary: %.1f MB; input: %.1f MB; copies: %.2f (target <= 1)\n", b / 1e6, n / 1e6, b / n }' "$tmp/go.txt"
