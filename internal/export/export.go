@@ -144,5 +144,9 @@ func FormatHours(v float64) string {
 // shortest form that reads back exactly (0.9, not 0.90).
 func FormatLevel(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-// FormatTime formats an instant as RFC 3339 with its offset, to the second.
-func FormatTime(t time.Time) string { return t.Format(time.RFC3339) }
+// FormatTime formats an instant as ISO 8601 / RFC 3339 with a numeric
+// offset, to the second: "+00:00" rather than "Z" in UTC, so a planner
+// reading the columns always finds an offset of the same shape.
+func FormatTime(t time.Time) string { return t.Format(timeLayout) }
+
+const timeLayout = "2006-01-02T15:04:05-07:00"
