@@ -30,7 +30,7 @@ func runExportProjections(ctx context.Context, e *env, args []string) int {
 	toFlag := fs.String("to", "", "last shift date, YYYY-MM-DD (required)")
 	format := fs.String("format", "csv", "csv or json")
 	so := addStoreFlags(fs, e)
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	usageErr := func(format string, args ...any) int {

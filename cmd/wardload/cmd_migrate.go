@@ -12,7 +12,7 @@ func init() {
 func runMigrate(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "migrate", "", "Apply pending database migrations and report the schema version.")
 	so := addStoreFlags(fs, e)
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() > 0 {

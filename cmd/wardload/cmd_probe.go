@@ -17,7 +17,7 @@ func runProbe(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "probe", "", "GET a wardload health URL; exit 0 when it answers 200 OK, 1 otherwise.")
 	url := fs.String("url", envOr(e, "WARDLOAD_PROBE_URL", "http://127.0.0.1:8080/readyz"), "URL to check (env WARDLOAD_PROBE_URL)")
 	timeout := fs.Duration("timeout", 3*time.Second, "give up after this long")
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() > 0 {

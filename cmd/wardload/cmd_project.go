@@ -167,6 +167,9 @@ func runProject(_ context.Context, e *env, args []string) int {
 // message) instead of the whole usage, so that a script sees one clear
 // line; --help still prints the usage.
 func parseInterleaved(e *env, fs *flag.FlagSet, args []string) (positional []string, code int, ok bool) {
+	if code, ok := applyEnv(e, fs); !ok {
+		return nil, code, false
+	}
 	help := fs.Usage
 	fs.Usage = func() {}
 	fs.SetOutput(io.Discard)

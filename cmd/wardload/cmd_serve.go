@@ -44,7 +44,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once (env WARDLOAD_DEMO)")
 	secure := fs.Bool("secure-cookies", false, "mark cookies Secure; use when served over HTTPS (env WARDLOAD_SECURE_COOKIES)")
 	trustXFF := fs.Bool("trust-proxy", false, "count failed sign-ins by the X-Forwarded-For address; only behind a proxy that sets it (env WARDLOAD_TRUST_PROXY)")
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() > 0 {

@@ -69,7 +69,7 @@ func runSummarize(_ context.Context, e *env, args []string) int {
 func parseWithFile(e *env, fs *flag.FlagSet, args []string) (string, int, bool) {
 	var pos []string
 	for {
-		if code, ok := parseFlags(fs, args); !ok {
+		if code, ok := parseFlags(e, fs, args); !ok {
 			return "", code, false
 		}
 		if fs.NArg() == 0 {

@@ -162,3 +162,33 @@ func TestSummarizeWithoutTierColumn(t *testing.T) {
 		t.Errorf("tiers %+v (%v), want one named all", got.Tiers, err)
 	}
 }
+
+// Every flag falls back to WARDLOAD_<FLAG>; the command line wins, and a
+// value the flag refuses names the variable.
+func TestFlagsFallBackToEnvironment(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "obs.csv")
+	if err := os.WriteFile(path, []byte("care_minutes\n1\n2\n3\n4\n"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	runWith := func(vars map[string]string, args ...string) (int, string, string) {
+		var stdout, stderr bytes.Buffer
+		e := &env{stdin: strings.NewReader(""), stdout: &stdout, stderr: &stderr, getenv: func(k string) string { return vars[k] }}
+		return run(context.Background(), args, e), stdout.String(), stderr.String()
+	}
+	quartiles := func(out string) string {
+		var got struct{ Quartiles string }
+		_ = json.Unmarshal([]byte(out), &got)
+		return got.Quartiles
+	}
+	env := map[string]string{"WARDLOAD_QUARTILES": "hf7", "WARDLOAD_JSON": "true"}
+	if code, out, errs := runWith(env, "summarize", path); code != 0 || quartiles(out) != "hf7" {
+		t.Errorf("from the environment: %d %q %q, want hf7 as JSON", code, out, errs)
+	}
+	if code, out, _ := runWith(env, "summarize", path, "--quartiles", "hf6"); code != 0 || quartiles(out) != "hf6" {
+		t.Errorf("the command line must win: %d %q", code, out)
+	}
+	code, out, errs := runWith(map[string]string{"WARDLOAD_JSON": "maybe"}, "summarize", path)
+	if code != exitUsage || out != "" || !strings.Contains(errs, "WARDLOAD_JSON") || strings.Count(errs, "\n") != 1 {
+		t.Errorf("bad environment value: %d %q %q", code, out, errs)
+	}
+}

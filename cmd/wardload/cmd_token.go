@@ -22,7 +22,7 @@ func runTokenCreate(ctx context.Context, e *env, args []string) int {
 	wards := fs.String("ward", "", "comma-separated codes of the wards the token may read (required)")
 	name := fs.String("name", "", "unique token name, e.g. roster-planner (required)")
 	so := addStoreFlags(fs, e)
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() > 0 || *wards == "" || *name == "" {

@@ -14,7 +14,7 @@ func init() {
 
 func runVersion(_ context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "version", "", "Print the wardload version.")
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() > 0 {

@@ -16,7 +16,7 @@ func init() {
 func runWardList(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "ward list", "", "List the wards: code and name, tab-separated, one per line.")
 	so := addStoreFlags(fs, e)
-	if code, ok := parseFlags(fs, args); !ok {
+	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() != 0 {

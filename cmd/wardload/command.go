@@ -108,7 +108,8 @@ func newFlagSet(e *env, name, argsUsage, summary string) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(e.stderr)
 	fs.Usage = func() {
-		fmt.Fprintf(e.stderr, "Usage: wardload %s [flags] %s\n\n%s\n\nFlags:\n", name, argsUsage, summary)
+		fmt.Fprintf(e.stderr, "Usage: wardload %s [flags] %s\n\n%s\n\n", name, argsUsage, summary)
+		fmt.Fprintf(e.stderr, "Every flag may also be set in the environment as WARDLOAD_<FLAG> (--data-dir: WARDLOAD_DATA_DIR);\na flag on the command line wins.\n\nFlags:\n")
 		fs.PrintDefaults()
 	}
 	return fs
@@ -118,7 +119,12 @@ func newFlagSet(e *env, name, argsUsage, summary string) *flag.FlagSet {
 // stop: 0 after --help (which prints the usage), 2 after a flag error,
 // reported in one line as parseInterleaved does (the flag package would
 // print its message and then the whole usage).
-func parseFlags(fs *flag.FlagSet, args []string) (int, bool) {
+func parseFlags(e *env, fs *flag.FlagSet, args []string) (int, bool) {
+	if !fs.Parsed() { // callers that loop over positional arguments parse again
+		if code, ok := applyEnv(e, fs); !ok {
+			return code, false
+		}
+	}
 	out, help := fs.Output(), fs.Usage
 	fs.SetOutput(io.Discard)
 	fs.Usage = func() {}
@@ -131,6 +137,37 @@ func parseFlags(fs *flag.FlagSet, args []string) (int, bool) {
 	}
 	if err != nil {
 		fmt.Fprintf(out, "wardload %s: %v (see wardload %s --help)\n", fs.Name(), err, fs.Name())
+		return exitUsage, false
+	}
+	return 0, true
+}
+
+// envName is the environment variable a flag falls back to:
+// --data-dir → WARDLOAD_DATA_DIR.
+func envName(flagName string) string {
+	return "WARDLOAD_" + strings.ToUpper(strings.ReplaceAll(flagName, "-", "_"))
+}
+
+// applyEnv sets every flag of fs whose WARDLOAD_* variable is set, before
+// the command line is parsed, so the command line wins. A value the flag
+// refuses is a usage error naming the variable.
+func applyEnv(e *env, fs *flag.FlagSet) (int, bool) {
+	if e.getenv == nil {
+		return 0, true
+	}
+	var bad error
+	fs.VisitAll(func(f *flag.Flag) {
+		if bad != nil {
+			return
+		}
+		if v := e.getenv(envName(f.Name)); v != "" {
+			if err := fs.Set(f.Name, v); err != nil {
+				bad = fmt.Errorf("%s=%q: %v", envName(f.Name), v, err)
+			}
+		}
+	})
+	if bad != nil {
+		fmt.Fprintf(fs.Output(), "wardload %s: %v\n", fs.Name(), bad)
 		return exitUsage, false
 	}
 	return 0, true
