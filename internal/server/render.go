@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"net/http"
 	"slices"
+	"sync"
 
 	"github.com/a-h/templ"
 
@@ -16,8 +17,14 @@ import (
 // render writes c with status, rendering into a buffer first so that a
 // failing component yields an error page instead of half a page.
 func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c templ.Component) error {
-	var buf bytes.Buffer
-	if err := c.Render(r.Context(), &buf); err != nil {
+	buf := renderBuffers.Get().(*bytes.Buffer)
+	defer func() {
+		if buf.Cap() <= maxPooledBuffer { // let an unusually large page go
+			buf.Reset()
+			renderBuffers.Put(buf)
+		}
+	}()
+	if err := c.Render(r.Context(), buf); err != nil {
 		return fmt.Errorf("render %s: %w", r.URL.Path, err)
 	}
 	w.Header().Set("Content-Type", "text/html; charset=utf-8")
@@ -28,6 +35,13 @@ func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c te
 	_, err := w.Write(buf.Bytes())
 	return err
 }
+
+// renderBuffers recycles page buffers: pages are rendered whole before a
+// byte is sent, and growing a fresh buffer to a page's size on every
+// request was a measurable share of a page view.
+var renderBuffers = sync.Pool{New: func() any { return bytes.NewBuffer(make([]byte, 0, 64<<10)) }}
+
+const maxPooledBuffer = 1 << 20
 
 // navItem is a header link and the roles that see it.
 type navItem struct {

@@ -135,7 +135,12 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 			return nil, 0, err
 		}
 	}
-	rows, err := q.QueryContext(ctx, page(`SELECT id, code, name, time_zone, created_at FROM wards WHERE `+cond+` ORDER BY code`, f.Offset, f.Limit), args...)
+	// The factor names come in the same query (one round trip per ward
+	// lookup, which every ward page makes): codes joined by U+001F, which
+	// a code cannot contain.
+	rows, err := q.QueryContext(ctx, page(`SELECT id, code, name, time_zone, created_at,
+		(SELECT group_concat(name, char(31) ORDER BY position) FROM ward_factors WHERE ward_id = wards.id)
+		FROM wards WHERE `+cond+` ORDER BY code`, f.Offset, f.Limit), args...)
 	if err != nil {
 		return nil, 0, err
 	}
@@ -144,8 +149,12 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 	for rows.Next() {
 		var w wardload.Ward
 		var created string
-		if err := rows.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &created); err != nil {
+		var factors sql.NullString
+		if err := rows.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &created, &factors); err != nil {
 			return nil, 0, err
+		}
+		if factors.Valid && factors.String != "" {
+			w.FactorNames = strings.Split(factors.String, "\x1f")
 		}
 		if w.CreatedAt, err = parseTime(created); err != nil {
 			return nil, 0, err
@@ -158,11 +167,6 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 	rows.Close()
 	if total < 0 {
 		total = len(ws)
-	}
-	for _, w := range ws {
-		if w.FactorNames, err = wardFactors(ctx, q, w.ID); err != nil {
-			return nil, 0, err
-		}
 	}
 	return ws, total, nil
 }
