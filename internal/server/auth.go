@@ -79,7 +79,8 @@ func newSessions(cfg Config) *scs.SessionManager {
 	return sm
 }
 
-// guard enforces a route's Access. Public routes pass. Pages need a
+// guard enforces a route's Access. Public routes pass, without touching
+// the session when they are NoSession. Pages need a
 // signed-in, enabled user and otherwise redirect to sign-in; API routes
 // need a bearer token and otherwise answer 401. A wrong role is 403; on
 // WardScoped routes a ward that does not exist is 404 and one the user or
@@ -88,6 +89,8 @@ func newSessions(cfg Config) *scs.SessionManager {
 func (s *Server) guard(rt Route, next http.Handler) http.Handler {
 	a := rt.Access
 	switch {
+	case a.Public && a.NoSession:
+		return next
 	case a.Public:
 		return s.sessions.LoadAndSave(s.optionalUser(next))
 	case a.API:
@@ -110,7 +113,7 @@ func checkAccess(rt Route) bool {
 			n++
 		}
 	}
-	if n != 1 {
+	if n != 1 || (a.NoSession && !a.Public) {
 		return false
 	}
 	for _, r := range a.Roles {
@@ -135,26 +138,27 @@ func (s *Server) optionalUser(next http.Handler) http.Handler {
 	})
 }
 
-// requireUser is the guard of page routes.
+// requireUser is the guard of page routes. The request carries one
+// principal from the start, so a refusal (wrong role or ward) renders with
+// the person attached and the error page still shows who is signed in.
 func (s *Server) requireUser(rt Route, next http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		u, err := s.sessionUser(r)
-		if err == nil && u != nil {
-			// A refusal (wrong role or ward) renders with the person
-			// attached, so the error page still shows who is signed in.
-			r = r.WithContext(withPrincipal(r.Context(), &principal{User: u}))
+		p := &principal{User: u}
+		r = r.WithContext(withPrincipal(r.Context(), p))
+		if err == nil {
+			err = s.admit(rt, next, w, r, p)
 		}
-		s.handle(func(w http.ResponseWriter, r *http.Request) error {
-			return s.admit(rt, next, w, r, u, err)
-		})(w, r)
+		if err != nil {
+			s.renderError(w, r, err)
+		}
 	})
 }
 
-// admit is the decision of requireUser once the session has been read.
-func (s *Server) admit(rt Route, next http.Handler, w http.ResponseWriter, r *http.Request, u *wardload.User, err error) error {
-	if err != nil {
-		return err
-	}
+// admit is the decision of requireUser once the session has been read;
+// it completes p with the route's ward before serving next.
+func (s *Server) admit(rt Route, next http.Handler, w http.ResponseWriter, r *http.Request, p *principal) error {
+	u := p.User
 	if u == nil {
 		// Only a GET can be repeated after signing in; a form post
 		// is lost and the person starts again from the home page.
@@ -167,16 +171,17 @@ func (s *Server) admit(rt Route, next http.Handler, w http.ResponseWriter, r *ht
 	if !slices.Contains(rt.Access.Roles, u.Role) {
 		return wardload.Errorf(wardload.EFORBIDDEN, "Your role does not allow this page.")
 	}
-	p := &principal{User: u}
 	if rt.Access.WardScoped {
-		if p.Ward, err = s.scopedWard(r); err != nil {
+		ward, err := s.scopedWard(r)
+		if err != nil {
 			return err
 		}
-		if !u.MemberOf(p.Ward.ID) {
+		if !u.MemberOf(ward.ID) {
 			return wardload.Errorf(wardload.EFORBIDDEN, "You are not a member of this ward.")
 		}
+		p.Ward = ward
 	}
-	next.ServeHTTP(w, r.WithContext(withActor(withPrincipal(r.Context(), p), u)))
+	next.ServeHTTP(w, r.WithContext(withActor(r.Context(), u)))
 	return nil
 }
 

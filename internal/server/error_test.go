@@ -16,7 +16,14 @@ import (
 
 // withRoutes returns the server's full handler with extra routes added to
 // its table, so adapter and middleware tests go through the real chain.
+// Extra routes must pass the same checkAccess as New, so a test cannot
+// exercise a declaration the server would refuse.
 func withRoutes(s *Server, extra ...Route) http.Handler {
+	for _, rt := range extra {
+		if !checkAccess(rt) {
+			panic(fmt.Sprintf("withRoutes: route %s %s has no valid Access declaration", rt.Method, rt.Pattern))
+		}
+	}
 	return s.router(append(s.Routes(), extra...))
 }
 
@@ -86,7 +93,7 @@ func TestErrorAdapterJSON(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			s, _ := MustNew(t, newFakeStore())
-			h := withRoutes(s, Route{Method: "GET", Pattern: "/api/test/fail", Name: "t", Access: Access{Public: true, API: true}, Handler: failing(tc.err)})
+			h := withRoutes(s, Route{Method: "GET", Pattern: "/api/test/fail", Name: "t", Access: Access{Public: true}, Handler: failing(tc.err)})
 			res, body := do(t, h, httptest.NewRequest("GET", "/api/test/fail", nil))
 			if res.StatusCode != tc.wantStatus {
 				t.Errorf("status = %d, want %d", res.StatusCode, tc.wantStatus)

@@ -46,11 +46,11 @@ func (halfPage) Render(ctx context.Context, w io.Writer) error {
 func TestWriteJSONAndSeeOther(t *testing.T) {
 	s, _ := MustNew(t, newFakeStore())
 	h := withRoutes(s,
-		Route{Method: "GET", Pattern: "/api/test/ok", Name: "j", Access: Access{Public: true, API: true},
+		Route{Method: "GET", Pattern: "/api/test/ok", Name: "j", Access: Access{Public: true},
 			Handler: func(w http.ResponseWriter, r *http.Request) error {
 				return writeJSON(w, http.StatusOK, map[string]int{"wards": 2})
 			}},
-		Route{Method: "GET", Pattern: "/api/test/nan", Name: "n", Access: Access{Public: true, API: true},
+		Route{Method: "GET", Pattern: "/api/test/nan", Name: "n", Access: Access{Public: true},
 			Handler: func(w http.ResponseWriter, r *http.Request) error {
 				return writeJSON(w, http.StatusOK, map[string]float64{"x": math.NaN()})
 			}},

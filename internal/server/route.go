@@ -20,6 +20,10 @@ type handlerFunc func(w http.ResponseWriter, r *http.Request) error
 type Access struct {
 	// Public routes are open to anybody, signed in or not.
 	Public bool
+	// NoSession marks a Public route that never shows who is signed in
+	// (assets, probes, the OpenAPI document): it skips the session read,
+	// the user lookup and the Vary: Cookie that loading a session adds.
+	NoSession bool
 	// Roles that may use the page (wardload.Role*); allRoles for any
 	// signed-in user. Signed-out visitors are sent to the sign-in page.
 	Roles []string
@@ -48,6 +52,7 @@ type Route struct {
 // entry here with its Access; nothing else registers routes.
 func (s *Server) routeTable() []Route {
 	public := Access{Public: true}
+	sessionless := Access{Public: true, NoSession: true}
 	signedIn := Access{Roles: allRoles}
 	managers := Access{Roles: []string{wardload.RoleManager, wardload.RoleAdmin}}
 	wardManagers := Access{Roles: managers.Roles, WardScoped: true}
@@ -58,9 +63,9 @@ func (s *Server) routeTable() []Route {
 		// (code and name, no figures) beside the sign-in link; signed in,
 		// each person sees only their own wards with their pages.
 		{Method: http.MethodGet, Pattern: "/", Name: "home", Access: public, Handler: s.handleHome},
-		{Method: http.MethodGet, Pattern: "/healthz", Name: "healthz", Access: public, Handler: s.handleHealthz},
-		{Method: http.MethodGet, Pattern: "/readyz", Name: "readyz", Access: public, Handler: s.handleReadyz},
-		{Method: http.MethodGet, Pattern: "/static/*", Name: "static", Access: public, Handler: s.handleStatic},
+		{Method: http.MethodGet, Pattern: "/healthz", Name: "healthz", Access: sessionless, Handler: s.handleHealthz},
+		{Method: http.MethodGet, Pattern: "/readyz", Name: "readyz", Access: sessionless, Handler: s.handleReadyz},
+		{Method: http.MethodGet, Pattern: "/static/*", Name: "static", Access: sessionless, Handler: s.handleStatic},
 
 		{Method: http.MethodGet, Pattern: "/signin", Name: "signin.form", Access: public, Handler: s.handleSignInForm},
 		{Method: http.MethodPost, Pattern: "/signin", Name: "signin", Access: public, Handler: s.handleSignIn, MaxBodyBytes: 8 << 10},
@@ -88,7 +93,7 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers", Name: "settings.tier.create", Access: wardManagers, Handler: s.handleTierCreate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers/{id}", Name: "settings.tier.update", Access: wardManagers, Handler: s.handleTierUpdate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodGet, Pattern: "/api/v1/projections", Name: "api.projections", Access: api, Handler: s.handleAPIProjections},
-		{Method: http.MethodGet, Pattern: "/api/v1/openapi.json", Name: "api.openapi", Access: public, Handler: s.handleOpenAPI},
+		{Method: http.MethodGet, Pattern: "/api/v1/openapi.json", Name: "api.openapi", Access: sessionless, Handler: s.handleOpenAPI},
 
 		// Census entry, projection pages and the shift list with its
 		// downloads (census.go, projection.go, projection_list.go). Any

@@ -209,7 +209,8 @@ func TestRoutesTableIsWhatIsServed(t *testing.T) {
 
 func TestNewRefusesUndeclaredRoute(t *testing.T) {
 	for _, a := range []Access{{}, {WardScoped: true}, {Public: true, API: true}, {Roles: []string{"nurse"}},
-		{API: true, Roles: allRoles}, {Roles: allRoles, WardScoped: true}} {
+		{API: true, Roles: allRoles}, {Roles: allRoles, WardScoped: true},
+		{NoSession: true}, {API: true, NoSession: true}, {Roles: allRoles, NoSession: true}} {
 		if checkAccess(Route{Method: "GET", Pattern: "/x", Access: a}) {
 			t.Errorf("checkAccess(%+v) = true, want false", a)
 		}

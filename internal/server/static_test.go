@@ -1,11 +1,14 @@
 package server
 
 import (
+	"context"
 	"net/http"
 	"net/http/httptest"
+	"slices"
 	"strings"
 	"testing"
 
+	"wardload/internal/wardload"
 	"wardload/web"
 )
 
@@ -67,5 +70,38 @@ func TestPagesLinkVersionedAssets(t *testing.T) {
 		if !strings.Contains(body, `href="`+s.assets.URL(name)+`"`) {
 			t.Errorf("page does not link %s", s.assets.URL(name))
 		}
+	}
+}
+
+// TestSessionlessRoutesSkipTheSession checks that assets, probes and the
+// OpenAPI document neither read the session nor look up its user, even
+// with a valid session cookie, and so carry no Vary: Cookie that would
+// split caches; the home page, by contrast, still reads it.
+func TestSessionlessRoutesSkipTheSession(t *testing.T) {
+	st := newFakeStore()
+	lookups := 0
+	find := st.FindUserByIDFn
+	st.FindUserByIDFn = func(ctx context.Context, id int64) (*wardload.User, error) {
+		lookups++
+		return find(ctx, id)
+	}
+	s, _ := MustNew(t, st)
+	for _, path := range []string{s.assets.URL("wardload.css"), "/static/wardload.css", "/healthz", "/readyz", "/api/v1/openapi.json"} {
+		lookups = 0
+		res, _ := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", path, nil)))
+		if res.StatusCode != http.StatusOK {
+			t.Errorf("%s: status %d", path, res.StatusCode)
+		}
+		if lookups != 0 {
+			t.Errorf("%s: %d user lookups with a session cookie, want 0", path, lookups)
+		}
+		if v := res.Header.Values("Vary"); slices.Contains(v, "Cookie") {
+			t.Errorf("%s: Vary = %q, want no Cookie", path, v)
+		}
+	}
+	lookups = 0
+	res, _ := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", "/", nil)))
+	if res.StatusCode != http.StatusOK || lookups != 1 || !slices.Contains(res.Header.Values("Vary"), "Cookie") {
+		t.Errorf("home: status %d, %d lookups, Vary %q; want 200, 1, Cookie", res.StatusCode, lookups, res.Header.Values("Vary"))
 	}
 }
