@@ -50,7 +50,7 @@ const streamKey = 0x9e3779b97f4a7c15
 // integers, with the same distribution as materialising every r_j.
 //
 // Randomness: draws are split into fixed chunks of 4096; chunk c uses
-// math/rand/v2's PCG-DXSM generator (copied below as pcg) seeded with
+// math/rand/v2's PCG-DXSM generator (copied below as pcgNext) seeded with
 // (seed, splitmix64(c ⊕ 0x9e3779b97f4a7c15)), and bounded integers use
 // Lemire's multiply-shift method with rejection. Totals are plain sums in
 // a fixed order (no multiply-add that a compiler could fuse), so the same
@@ -188,7 +188,8 @@ func splitmix64(x uint64) uint64 {
 // QuantileMethodSimulated names how Simulation quantiles are computed.
 const QuantileMethodSimulated = "Hyndman-Fan type 7; Monte Carlo SE of a quantile = half the distance between the order statistics at ranks N·p ∓ √(N·p·(1−p)); of the mean = sd/√N"
 
-// simQuantiles are the probabilities Simulation reports besides the cover level.
+// simQuantiles are the probabilities Simulation reports besides the cover
+// level, in the order of its fields P10, P50 and P90.
 var simQuantiles = [3]float64{0.1, 0.5, 0.9}
 
 // summariseTotals reads the simulation summary off the totals, which it
@@ -214,11 +215,14 @@ func summariseTotals(totals []float64, seed uint64, cover float64) Simulation {
 		}
 	}
 	slices.Sort(ks)
-	multiSelect(totals, 0, slices.Compact(ks), 2*bitsLen(len(totals)))
-	s.P10, s.P10SE = type7Selected(totals, 0.1), quantileSE(totals, 0.1)
-	s.P50, s.P50SE = type7Selected(totals, 0.5), quantileSE(totals, 0.5)
-	s.P90, s.P90SE = type7Selected(totals, 0.9), quantileSE(totals, 0.9)
-	s.Cover, s.CoverSE = type7Selected(totals, cover), quantileSE(totals, cover)
+	multiSelect(totals, 0, slices.Compact(ks), 2*bits.Len(uint(len(totals))))
+	dst := [len(simQuantiles) + 1]struct {
+		q  *float64
+		se *Number
+	}{{&s.P10, &s.P10SE}, {&s.P50, &s.P50SE}, {&s.P90, &s.P90SE}, {&s.Cover, &s.CoverSE}}
+	for i, p := range ps {
+		*dst[i].q, *dst[i].se = type7Selected(totals, p), quantileSE(totals, p)
+	}
 	return s
 }
 
@@ -276,29 +280,17 @@ func quantileSE(x []float64, p float64) Number {
 	return Defined((x[hi] - x[lo]) / 2)
 }
 
-// pcg is math/rand/v2's PCG (128-bit LCG with the DXSM output function),
-// copied as a value type so the hot bootstrap loop can keep its state in
-// registers instead of calling through *rand.PCG. It must produce exactly
-// the sequence of rand.NewPCG(seed1, seed2); TestPCGMatchesStdlib checks.
+// pcgNext is one step of math/rand/v2's PCG (128-bit LCG with the DXSM
+// output function) on a state held in two words: it returns the new state
+// and the output. The bootstrap loop keeps hi and lo in local variables,
+// which the compiler holds in registers; a generator value whose address
+// is taken would be reloaded from memory on every draw. From
+// rand.NewPCG(seed1, seed2) it must give exactly the same sequence;
+// TestPCGMatchesStdlib checks.
 //
 // Reference: O'Neill, M. E. (2014). PCG: A family of simple fast
 // space-efficient statistically good algorithms for random number
 // generation. HMC-CS-2014-0905; DXSM as in pcg-cpp and NumPy.
-type pcg struct{ hi, lo uint64 }
-
-func newPCG(seed1, seed2 uint64) pcg { return pcg{seed1, seed2} }
-
-// Uint64 advances the state and returns the next 64-bit output.
-func (p *pcg) Uint64() uint64 {
-	var out uint64
-	p.hi, p.lo, out = pcgNext(p.hi, p.lo)
-	return out
-}
-
-// pcgNext is one PCG-DXSM step on a state held in two words: it returns
-// the new state and the output. The bootstrap loop keeps hi and lo in
-// local variables, which the compiler holds in registers; a pcg value
-// whose address is taken would be reloaded from memory on every draw.
 func pcgNext(hi, lo uint64) (nhi, nlo, out uint64) {
 	const (
 		mulHi    = 2549297995355413924

@@ -230,19 +230,20 @@ func Project(in ProjectionInput) (*Projection, error) {
 	}
 	n := &p.Nurses
 	n.ExpectedUnrounded = p.NurseHours.Expected / in.ShiftHours
-	n.Expected = ceilNurses(n.ExpectedUnrounded)
 	n.CoverUnrounded = p.NurseHours.Cover / in.ShiftHours
-	n.Cover = ceilNurses(n.CoverUnrounded)
 	n.CoverSimulatedUnrounded = p.NurseHours.CoverSimulated / in.ShiftHours
 	// A tiny direct-care fraction (1e-320 passes "more than 0") makes the
 	// counts +Inf, and ceilNurses(+Inf) is int(+Inf), not defined in Go: it
-	// came out as 0 nurses recommended. Refuse counts past MaxNurses.
+	// came out as 0 nurses recommended. Refuse counts past MaxNurses before
+	// rounding any of them.
 	for _, v := range []float64{n.ExpectedUnrounded, n.CoverUnrounded, n.CoverSimulatedUnrounded} {
 		if !(v <= MaxNurses) {
 			return nil, wardload.FieldErrorf(wardload.EINVALID, "direct_care_fraction",
 				"The care time would need more than %d nurses at a direct-care fraction of %g; check the direct-care fraction.", MaxNurses, in.DirectCareFraction)
 		}
 	}
+	n.Expected = ceilNurses(n.ExpectedUnrounded)
+	n.Cover = ceilNurses(n.CoverUnrounded)
 	n.CoverSimulated = ceilNurses(n.CoverSimulatedUnrounded)
 	n.Recommended, n.DecidedBy = n.CoverSimulated, DecidedByCover
 	if in.Floor == nil {

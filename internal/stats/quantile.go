@@ -2,6 +2,7 @@ package stats
 
 import (
 	"math"
+	"math/bits"
 	"math/rand/v2"
 	"slices"
 
@@ -196,14 +197,6 @@ func quartilesScan(x []float64, convention string) (Quartiles, scan) {
 	return Quartiles{Convention: convention, Q1: q[0], Median: q[1], Q3: q[2]}, sc
 }
 
-func bitsLen(n int) int {
-	b := 0
-	for ; n > 0; n >>= 1 {
-		b++
-	}
-	return b
-}
-
 // multiSelect reorders a so that a[k−off] holds the (k+1)-th smallest
 // value for every k in ks (ascending, absolute indices; a starts at off).
 // It partitions once and recurses only into the sides that still hold a
@@ -281,6 +274,16 @@ type scan struct {
 	sum, min, max float64
 }
 
+// with returns the totals with v added. It panics if v is NaN or ±Inf
+// (v−v is then NaN, not 0). A value in and out, not a pointer, so that
+// once inlined the totals stay in registers in the callers' loops.
+func (sc scan) with(v float64) scan {
+	if v-v != 0 {
+		panic("stats: value is NaN or infinite")
+	}
+	return scan{sum: sc.sum + v, min: min(sc.min, v), max: max(sc.max, v)}
+}
+
 // bandMinN is the size from which orderStats samples first: below it a
 // copy and selection are fast enough and sampling does not pay.
 const bandMinN = 1 << 16
@@ -307,15 +310,10 @@ func orderStats(x []float64, ks []int) ([]float64, scan) {
 	work := make([]float64, len(x))
 	sc := scan{min: x[0], max: x[0]}
 	for i, v := range x {
-		if v-v != 0 {
-			panic("stats: value is NaN or infinite")
-		}
+		sc = sc.with(v)
 		work[i] = v
-		sc.sum += v
-		sc.min = min(sc.min, v)
-		sc.max = max(sc.max, v)
 	}
-	multiSelect(work, 0, ks, 2*bitsLen(len(work)))
+	multiSelect(work, 0, ks, 2*bits.Len(uint(len(work))))
 	vals := make([]float64, len(ks))
 	for i, k := range ks {
 		vals[i] = work[k]
@@ -371,12 +369,7 @@ func orderStatsSampled(x []float64, ks []int) ([]float64, scan, bool) {
 	var at0, at1, at2 int // values ≥ each bracket's lower end
 	sc := scan{min: x[0], max: x[0]}
 	for _, v := range x {
-		if v-v != 0 {
-			panic("stats: value is NaN or infinite")
-		}
-		sc.sum += v
-		sc.min = min(sc.min, v)
-		sc.max = max(sc.max, v)
+		sc = sc.with(v)
 		// Comparisons turned into counts rather than branches keep the
 		// CPU from mispredicting on every value; only the rare "inside a
 		// bracket" case branches. k brackets start at or below v, so v
@@ -402,7 +395,7 @@ func orderStatsSampled(x []float64, ks []int) ([]float64, scan, bool) {
 		if b.ks[0] < below || b.ks[len(b.ks)-1] >= below+len(b.keep) {
 			return nil, scan{}, false
 		}
-		multiSelect(b.keep, below, b.ks, 2*bitsLen(len(b.keep)))
+		multiSelect(b.keep, below, b.ks, 2*bits.Len(uint(len(b.keep))))
 		for _, k := range b.ks {
 			vals = append(vals, b.keep[k-below])
 		}

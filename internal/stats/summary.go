@@ -29,15 +29,6 @@ func Defined(v float64) Number { return Number{Value: v, Defined: true} }
 // Undefined is the undefined Number.
 var Undefined = Number{}
 
-// Ptr returns the value's address, or nil when undefined.
-func (n Number) Ptr() *float64 {
-	if !n.Defined {
-		return nil
-	}
-	v := n.Value
-	return &v
-}
-
 // MarshalJSON writes the number at full precision, or null.
 func (n Number) MarshalJSON() ([]byte, error) {
 	if !n.Defined {
@@ -95,26 +86,34 @@ func MeanSD(x []float64) (mean, sd float64) {
 		}
 		sum += v
 	}
-	mean, ss, _ := moments(x, sum)
+	mean, ss := moments(x, sum)
 	return mean, math.Sqrt(ss / float64(len(x)-1))
 }
 
 // moments is the second pass of MeanSD given the first pass's sum: it
 // returns the refined mean and Σ(xᵢ − mean)² with the correction applied.
-func moments(x []float64, sum float64) (mean, ss, comp float64) {
-	n := float64(len(x))
-	m := sum / n
+func moments(x []float64, sum float64) (mean, ss float64) {
+	m := sum / float64(len(x))
 	var s1, s2 float64
 	for _, v := range x {
 		d := v - m
 		s1 += d
 		s2 += float64(d * d) // explicit conversion forbids a fused multiply-add, so results are bit-identical on every platform
 	}
-	ss = s2 - s1*s1/n
+	return corrected(m, s1, s2, len(x))
+}
+
+// corrected is the final step of the corrected two-pass algorithm, shared
+// by moments and Summarize: from the first-pass mean m and the second
+// pass's s1 = Σ dᵢ and s2 = Σ dᵢ² over n values it returns the refined mean
+// m + s1/n and Σ(xᵢ − mean)² = s2 − s1²/n, never below 0.
+func corrected(m, s1, s2 float64, n int) (mean, ss float64) {
+	fn := float64(n)
+	ss = s2 - s1*s1/fn
 	if ss < 0 { // rounding on a constant column
 		ss = 0
 	}
-	return m + s1/n, ss, s1
+	return m + s1/fn, ss
 }
 
 // errNoValues is the user-data error for an empty column or tier.
@@ -226,9 +225,9 @@ func Summarize(x []float64, convention string) (*Summary, error) {
 			}
 		}
 	}
-	s.Mean = m + s1/float64(n)
+	mean, ss := corrected(m, s1, s2, n)
+	s.Mean = mean
 	if n > 1 {
-		ss := max(s2-s1*s1/float64(n), 0)
 		sd := math.Sqrt(ss / float64(n-1))
 		s.SD = Defined(sd)
 		s.SE = Defined(sd / math.Sqrt(float64(n)))
