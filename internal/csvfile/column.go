@@ -125,8 +125,5 @@ func clipCell(s string) string {
 }
 
 func notNumber(line int, name, s string) error {
-	if len(s) > 40 {
-		s = s[:40] + "…"
-	}
-	return wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is not a number.", line, name, s)
+	return wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is not a number.", line, name, clipCell(s))
 }

@@ -2,6 +2,7 @@ package csvfile
 
 import (
 	"errors"
+	"slices"
 	"strings"
 	"testing"
 
@@ -21,7 +22,7 @@ func TestReadGroups(t *testing.T) {
 	if got := strings.Join(tab.Header, "|"); got != "tier|care_minutes|window_hours" {
 		t.Fatalf("header = %q", got)
 	}
-	if got, want := tab.Lines, []int{2, 3, 4, 5}; !equalInts(got, want) {
+	if got, want := tab.Lines, []int{2, 3, 4, 5}; !slices.Equal(got, want) {
 		t.Fatalf("lines = %v, want %v", got, want)
 	}
 	groups, err := tab.Groups("care_minutes")
@@ -51,7 +52,7 @@ func TestReadGroups(t *testing.T) {
 		if len(g.Values) != len(tc.values) || g.Values[0] != tc.values[0] || g.Values[1] != tc.values[1] {
 			t.Errorf("tier %s values = %v, want %v", tc.tier, g.Values, tc.values)
 		}
-		if !equalInts(g.Rows, tc.rows) {
+		if !slices.Equal(g.Rows, tc.rows) {
 			t.Errorf("tier %s rows = %v, want %v", tc.tier, g.Rows, tc.rows)
 		}
 	}
@@ -69,7 +70,7 @@ func TestNoTierColumnIsOneGroup(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(groups) != 1 || groups[0].Tier != "" || len(groups[0].Values) != 3 || !equalInts(groups[0].Rows, []int{1, 2, 3}) {
+	if len(groups) != 1 || groups[0].Tier != "" || len(groups[0].Values) != 3 || !slices.Equal(groups[0].Rows, []int{1, 2, 3}) {
 		t.Fatalf("groups = %+v", groups)
 	}
 }
@@ -133,16 +134,4 @@ func wantErr(t *testing.T, err error, want string) {
 	if !strings.Contains(we.Message, want) {
 		t.Fatalf("message = %q, want it to contain %q", we.Message, want)
 	}
-}
-
-func equalInts(a, b []int) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }
