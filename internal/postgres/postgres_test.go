@@ -192,43 +192,6 @@ func TestInstantPrecision(t *testing.T) {
 	}
 }
 
-// TestConcurrentCensusRevisions checks that census entries saved at the
-// same moment for one shift get consecutive revisions, not a conflict.
-func TestConcurrentCensusRevisions(t *testing.T) {
-	url := testURL(t)
-	ctx := context.Background()
-	s, _ := MustOpenStore(t, url, time.Now)
-	w := &wardload.Ward{Code: "w1", Name: "W", TimeZone: "UTC"}
-	if err := s.CreateWard(ctx, w); err != nil {
-		t.Fatal(err)
-	}
-	sp := &wardload.ShiftPattern{WardID: w.ID, Name: "Day", StartMinute: 420, NominalHours: 12}
-	if err := s.CreateShiftPattern(ctx, sp); err != nil {
-		t.Fatal(err)
-	}
-	const n = 8
-	errs := make(chan error, n)
-	for range n {
-		go func() {
-			errs <- s.CreateCensus(ctx, &wardload.Census{WardID: w.ID, Date: wardload.Date{Year: 2026, Month: 3, Day: 2}, ShiftID: sp.ID})
-		}()
-	}
-	for range n {
-		if err := <-errs; err != nil {
-			t.Fatalf("concurrent CreateCensus: %v", err)
-		}
-	}
-	cs, total, err := s.FindCensus(ctx, wardload.CensusFilter{WardID: &w.ID})
-	if err != nil || total != n {
-		t.Fatalf("FindCensus = %d, %v", total, err)
-	}
-	for i, c := range cs { // revision descending
-		if c.Revision != n-i {
-			t.Fatalf("revisions not consecutive: position %d has %d", i, c.Revision)
-		}
-	}
-}
-
 // TestSessionStore runs scs's own pgxstore against the migrated table, so a
 // column the store expects but the migration lacks fails here, not at sign-in.
 func TestSessionStore(t *testing.T) {

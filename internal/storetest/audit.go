@@ -3,6 +3,7 @@ package storetest
 import (
 	"context"
 	"encoding/json"
+	"slices"
 	"testing"
 	"time"
 
@@ -28,7 +29,7 @@ func auditCases() []testCase {
 
 			es, n, err := f.store.FindAudit(f.ctx, wardload.AuditFilter{})
 			noErr(t, err)
-			if n != 3 || !sameIDs(auditIDs(es), []int64{e3.ID, e1.ID, e2.ID}) {
+			if n != 3 || !slices.Equal(auditIDs(es), []int64{e3.ID, e1.ID, e2.ID}) {
 				t.Fatalf("newest first = %d %v", n, auditIDs(es))
 			}
 			got := es[2]
@@ -55,7 +56,7 @@ func auditCases() []testCase {
 			} {
 				es, n, err := f.store.FindAudit(f.ctx, tc.f)
 				noErr(t, err)
-				if n != tc.tot || !sameIDs(auditIDs(es), tc.want) {
+				if n != tc.tot || !slices.Equal(auditIDs(es), tc.want) {
 					t.Errorf("%s: %d %v, want %d %v", tc.name, n, auditIDs(es), tc.tot, tc.want)
 				}
 			}

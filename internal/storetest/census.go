@@ -1,6 +1,7 @@
 package storetest
 
 import (
+	"slices"
 	"sync"
 	"testing"
 	"time"
@@ -28,7 +29,7 @@ func censusCases() []testCase {
 			noErr(t, err)
 			// Counts by tier DisplayOrder: t2 (1), t1 (2), t3 (3).
 			want := []wardload.TierCount{{TierID: sw.tiers[1].ID, Patients: 7}, {TierID: sw.tiers[0].ID, Patients: 4}, {TierID: sw.tiers[2].ID, Patients: 0}}
-			if !sameCounts(got.Counts, want) {
+			if !slices.Equal(got.Counts, want) {
 				t.Fatalf("counts = %+v, want %+v", got.Counts, want)
 			}
 			if got.WardID != sw.ward.ID || got.Date != d || got.ShiftID != sw.day.ID || got.Revision != 1 || got.EnteredBy != 5 || got.Total() != 11 {
@@ -155,7 +156,7 @@ func censusCases() []testCase {
 			cs, n, err := f.store.FindCensus(f.ctx, wardload.CensusFilter{WardID: &wid})
 			noErr(t, err)
 			// Date desc; within a date by shift start (Day 07:30 before Night 19:30); then revision desc.
-			if n != 4 || !sameIDs(censusIDs(cs), []int64{c.ID, b2.ID, b.ID, a.ID}) {
+			if n != 4 || !slices.Equal(censusIDs(cs), []int64{c.ID, b2.ID, b.ID, a.ID}) {
 				t.Fatalf("order = %d %v, want %v", n, censusIDs(cs), []int64{c.ID, b2.ID, b.ID, a.ID})
 			}
 			if cs[0].Counts == nil || cs[0].Total() != 3 {
@@ -163,12 +164,12 @@ func censusCases() []testCase {
 			}
 			cs, n, err = f.store.FindCensus(f.ctx, wardload.CensusFilter{WardID: &wid, LatestOnly: true})
 			noErr(t, err)
-			if n != 3 || !sameIDs(censusIDs(cs), []int64{c.ID, b2.ID, a.ID}) {
+			if n != 3 || !slices.Equal(censusIDs(cs), []int64{c.ID, b2.ID, a.ID}) {
 				t.Fatalf("latest = %d %v", n, censusIDs(cs))
 			}
 			cs, n, err = f.store.FindCensus(f.ctx, wardload.CensusFilter{WardID: &wid, ShiftID: &sw.night.ID, LatestOnly: true})
 			noErr(t, err)
-			if n != 2 || !sameIDs(censusIDs(cs), []int64{b2.ID, a.ID}) {
+			if n != 2 || !slices.Equal(censusIDs(cs), []int64{b2.ID, a.ID}) {
 				t.Fatalf("latest night = %d %v", n, censusIDs(cs))
 			}
 			cs, n, err = f.store.FindCensus(f.ctx, wardload.CensusFilter{From: &d2, To: &d2})
@@ -183,23 +184,11 @@ func censusCases() []testCase {
 			}
 			cs, n, err = f.store.FindCensus(f.ctx, wardload.CensusFilter{WardID: &wid, Offset: 1, Limit: 2})
 			noErr(t, err)
-			if n != 4 || !sameIDs(censusIDs(cs), []int64{b2.ID, b.ID}) {
+			if n != 4 || !slices.Equal(censusIDs(cs), []int64{b2.ID, b.ID}) {
 				t.Fatalf("page = %d %v", n, censusIDs(cs))
 			}
 		}},
 	}
-}
-
-func sameCounts(a, b []wardload.TierCount) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }
 
 func censusIDs(cs []*wardload.Census) []int64 {
@@ -208,16 +197,4 @@ func censusIDs(cs []*wardload.Census) []int64 {
 		ids = append(ids, c.ID)
 	}
 	return ids
-}
-
-func sameIDs(a, b []int64) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }

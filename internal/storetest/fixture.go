@@ -9,11 +9,10 @@ import (
 // seededWard is a ward with three tiers and two shifts, enough for every
 // observation, census and settings case.
 type seededWard struct {
-	ward   *wardload.Ward
-	tiers  []*wardload.Tier // in creation order: t1, t2, t3
-	day    *wardload.ShiftPattern
-	night  *wardload.ShiftPattern
-	shifts []*wardload.ShiftPattern
+	ward  *wardload.Ward
+	tiers []*wardload.Tier // in creation order: t1, t2, t3
+	day   *wardload.ShiftPattern
+	night *wardload.ShiftPattern
 }
 
 // seedWard creates a ward with code, factor "dependency", tiers t1..t3
@@ -34,7 +33,6 @@ func (f *fixture) seedWard(code string) *seededWard {
 	noErr(f.t, f.store.CreateShiftPattern(f.ctx, sw.night))
 	sw.day = &wardload.ShiftPattern{WardID: w.ID, Name: "Day", StartMinute: 7*60 + 30, NominalHours: 12}
 	noErr(f.t, f.store.CreateShiftPattern(f.ctx, sw.day))
-	sw.shifts = []*wardload.ShiftPattern{sw.day, sw.night}
 	return sw
 }
 
