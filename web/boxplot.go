@@ -3,7 +3,7 @@ package web
 import (
 	"fmt"
 	"math"
-	"strconv"
+	"slices"
 	"strings"
 )
 
@@ -76,13 +76,15 @@ func NewBoxAxis(hi float64) BoxAxisVM {
 	if !(hi > 0) || math.IsInf(hi, 0) {
 		return BoxAxisVM{Empty: true}
 	}
-	step := niceStep(hi / 5)
+	raw := hi / 5
+	step := niceStep(raw)
 	top := math.Ceil(hi/step) * step
 	// Near the float64 limits the rounding overflows (hi 1.7e308 gives top
 	// +Inf, and the tick loop below would then never end) or underflows
-	// (a subnormal hi gives step 0). Such values are entry errors the
-	// review lists; they get no plot rather than a runaway loop.
-	if !(step > 0) || math.IsInf(top, 0) || math.IsNaN(top) {
+	// (a subnormal hi gives a raw step of 0, which niceStep would turn
+	// into 1, or a step of 0). Such values are entry errors the review
+	// lists; they get no plot rather than a runaway loop.
+	if !(raw > 0) || !(step > 0) || math.IsInf(top, 0) || math.IsNaN(top) {
 		return BoxAxisVM{Empty: true}
 	}
 	a := BoxAxisVM{Lo: 0, Hi: top}
@@ -90,17 +92,6 @@ func NewBoxAxis(hi float64) BoxAxisVM {
 		a.Ticks = append(a.Ticks, v)
 	}
 	return a
-}
-
-// niceStep rounds x up to 1, 2 or 5 times a power of ten.
-func niceStep(x float64) float64 {
-	p := math.Pow(10, math.Floor(math.Log10(x)))
-	for _, m := range []float64{1, 2, 5, 10} {
-		if m*p >= x {
-			return m * p
-		}
-	}
-	return 10 * p
 }
 
 func (a BoxAxisVM) x(v float64) float64 {
@@ -113,12 +104,12 @@ func NewBoxPlot(a BoxAxisVM, in BoxInput) *BoxPlotVM {
 	if a.Empty || in.N == 0 {
 		return nil
 	}
-	clamp := func(v float64) string { return boxNum(a.x(math.Min(v, a.Hi))) }
+	clamp := func(v float64) string { return oneDecimal(a.x(math.Min(v, a.Hi))) }
 	p := &BoxPlotVM{
 		ViewBox:   fmt.Sprintf("0 0 %g %g", boxW, boxH),
 		Title:     "Box plot of " + in.Label,
 		BoxX:      clamp(in.Q1),
-		BoxW:      boxNum(a.x(math.Min(in.Q3, a.Hi)) - a.x(math.Min(in.Q1, a.Hi))),
+		BoxW:      oneDecimal(a.x(math.Min(in.Q3, a.Hi)) - a.x(math.Min(in.Q1, a.Hi))),
 		MedianX:   clamp(in.Median),
 		WhiskerLo: clamp(in.WhiskerLo),
 		WhiskerHi: clamp(in.WhiskerHi),
@@ -135,15 +126,15 @@ func NewBoxPlot(a BoxAxisVM, in BoxInput) *BoxPlotVM {
 			beyond = append(beyond, o.Value)
 			continue
 		}
-		p.Points = append(p.Points, BoxPointVM{X: boxNum(a.x(o.Value)), Extreme: o.Extreme})
+		p.Points = append(p.Points, BoxPointVM{X: oneDecimal(a.x(o.Value)), Extreme: o.Extreme})
 	}
 	if len(beyond) == 1 {
 		p.OffScale = "→ " + FormatValue(beyond[0])
 	} else if len(beyond) > 1 {
-		p.OffScale = fmt.Sprintf("→ %d values up to %s", len(beyond), FormatValue(slicesMax(beyond)))
+		p.OffScale = fmt.Sprintf("→ %d values up to %s", len(beyond), FormatValue(slices.Max(beyond)))
 	}
 	for _, t := range a.Ticks {
-		p.Ticks = append(p.Ticks, BoxTickVM{X: boxNum(a.x(t)), Label: FormatValue(t)})
+		p.Ticks = append(p.Ticks, BoxTickVM{X: oneDecimal(a.x(t)), Label: FormatValue(t)})
 	}
 	var d strings.Builder
 	fmt.Fprintf(&d, "%s, %s, %d observations (quartiles: %s): minimum %s, Q1 %s, median %s, Q3 %s, maximum %s; whiskers %s to %s",
@@ -161,22 +152,10 @@ func NewBoxPlot(a BoxAxisVM, in BoxInput) *BoxPlotVM {
 	return p
 }
 
-func slicesMax(x []float64) float64 {
-	m := x[0]
-	for _, v := range x[1:] {
-		m = math.Max(m, v)
-	}
-	return m
-}
-
-// boxNum formats a coordinate.
-func boxNum(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
-
 // FormatValue shows a data value with at most one decimal, dropping a
 // trailing ".0": minutes are read by people, not compared bit for bit.
 func FormatValue(v float64) string {
-	s := strconv.FormatFloat(v, 'f', 1, 64)
-	s = strings.TrimSuffix(s, ".0")
+	s := strings.TrimSuffix(oneDecimal(v), ".0")
 	if s == "-0" {
 		s = "0"
 	}

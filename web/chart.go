@@ -108,33 +108,33 @@ func NewChart(in ChartInput) ChartVM {
 		if i == 0 {
 			cmd = "M"
 		}
-		fmt.Fprintf(&curve, "%s%s,%s ", cmd, chartNum(x(v)), chartNum(y(v)))
+		fmt.Fprintf(&curve, "%s%s,%s ", cmd, oneDecimal(x(v)), oneDecimal(y(v)))
 		if !math.IsNaN(rec) && v >= rec {
 			if tail.Len() == 0 {
-				fmt.Fprintf(&tail, "M%s,%s L%s,%s ", chartNum(x(rec)), chartNum(chartBase), chartNum(x(rec)), chartNum(y(rec)))
+				fmt.Fprintf(&tail, "M%s,%s L%s,%s ", oneDecimal(x(rec)), oneDecimal(chartBase), oneDecimal(x(rec)), oneDecimal(y(rec)))
 			}
-			fmt.Fprintf(&tail, "L%s,%s ", chartNum(x(v)), chartNum(y(v)))
+			fmt.Fprintf(&tail, "L%s,%s ", oneDecimal(x(v)), oneDecimal(y(v)))
 		}
 	}
 	c.Curve = strings.TrimSpace(curve.String())
 	if tail.Len() > 0 {
-		fmt.Fprintf(&tail, "L%s,%s Z", chartNum(x(hi)), chartNum(chartBase))
+		fmt.Fprintf(&tail, "L%s,%s Z", oneDecimal(x(hi)), oneDecimal(chartBase))
 		c.Tail = tail.String()
 	}
-	c.AxisY, c.AxisX1, c.AxisX2 = chartNum(chartBase), chartNum(chartLeft), chartNum(chartRight)
-	step := chartTickStep((hi - lo) / 6)
+	c.AxisY, c.AxisX1, c.AxisX2 = oneDecimal(chartBase), oneDecimal(chartLeft), oneDecimal(chartRight)
+	step := niceStep((hi - lo) / 6)
 	for t := math.Ceil(lo/step) * step; t <= hi; t += step {
 		c.Ticks = append(c.Ticks, ChartTick{
-			X: chartNum(x(t)), Y1: chartNum(chartBase), Y2: chartNum(chartBase + 6), LabelY: chartNum(chartBase + 22),
+			X: oneDecimal(x(t)), Y1: oneDecimal(chartBase), Y2: oneDecimal(chartBase + 6), LabelY: oneDecimal(chartBase + 22),
 			Label: strconv.FormatFloat(math.Round(t/step)*step, 'f', -1, 64),
 		})
 	}
 	for i, cp := range in.Capacities {
 		l := ChartLine{
-			X1: chartNum(x(cp.NurseHours)), X2: chartNum(x(cp.NurseHours)), Y1: chartNum(chartTop - 6), Y2: chartNum(chartBase),
+			X1: oneDecimal(x(cp.NurseHours)), X2: oneDecimal(x(cp.NurseHours)), Y1: oneDecimal(chartTop - 6), Y2: oneDecimal(chartBase),
 			// Neighbouring labels alternate between two rows so that
 			// they cannot overlap even where the lines are close.
-			LabelX: chartNum(x(cp.NurseHours)), LabelY: chartNum(chartTop - 36 + float64(i%2)*24),
+			LabelX: oneDecimal(x(cp.NurseHours)), LabelY: oneDecimal(chartTop - 36 + float64(i%2)*24),
 			Label: fmt.Sprintf("%d nurses", cp.Nurses), Class: "chart-cap",
 			LabelNum: strconv.Itoa(cp.Nurses), LabelWord: "nurses",
 		}
@@ -144,19 +144,21 @@ func NewChart(in ChartInput) ChartVM {
 		}
 		c.Lines = append(c.Lines, l)
 	}
-	c.RangeX1, c.RangeX2, c.RangeMid, c.RangeY = chartNum(x(in.P10)), chartNum(x(in.P90)), chartNum(x(in.P50)), chartNum(chartBase+46)
-	c.LabelY = chartNum(chartH - 4)
+	c.RangeX1, c.RangeX2, c.RangeMid, c.RangeY = oneDecimal(x(in.P10)), oneDecimal(x(in.P90)), oneDecimal(x(in.P50)), oneDecimal(chartBase+46)
+	c.LabelY = oneDecimal(chartH - 4)
 	c.Describe = fmt.Sprintf("Normal curve of the shift's workload centred on %s nurse-hours with a standard deviation of %s; "+
 		"the simulation's middle 80%% runs from %s to %s nurse-hours (median %s).",
-		chartHours(in.Mean), chartHours(in.SD), chartHours(in.P10), chartHours(in.P90), chartHours(in.P50))
+		oneDecimal(in.Mean), oneDecimal(in.SD), oneDecimal(in.P10), oneDecimal(in.P90), oneDecimal(in.P50))
 	for _, cp := range in.Capacities {
-		c.Describe += fmt.Sprintf(" %d nurses give %s nurse-hours.", cp.Nurses, chartHours(cp.NurseHours))
+		c.Describe += fmt.Sprintf(" %d nurses give %s nurse-hours.", cp.Nurses, oneDecimal(cp.NurseHours))
 	}
 	return c
 }
 
-// chartTickStep rounds a raw tick step up to 1, 2 or 5 times a power of ten.
-func chartTickStep(raw float64) float64 {
+// niceStep rounds a raw tick step up to 1, 2 or 5 times a power of ten;
+// a raw step that is not positive (or NaN) gives 1. A positive raw step
+// so small that its power of ten underflows gives 0, which callers check.
+func niceStep(raw float64) float64 {
 	if !(raw > 0) {
 		return 1
 	}
@@ -169,8 +171,6 @@ func chartTickStep(raw float64) float64 {
 	return 10 * mag
 }
 
-// chartNum writes a coordinate with one decimal, enough for a 640-unit frame.
-func chartNum(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
-
-// chartHours writes nurse-hours for the chart's description.
-func chartHours(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
+// oneDecimal writes a number with one decimal: enough for a coordinate in
+// a frame some hundreds of units wide, and for nurse-hours read by people.
+func oneDecimal(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
