@@ -65,13 +65,19 @@ func renderHTML(ctx context.Context, c templ.Component) (string, error) {
 	return b.String(), nil
 }
 
+// coverPercent says a cover level as a percentage, rounded to four
+// decimals of the level so float noise does not show: 0.57 is "57%", where
+// 100*0.57 is 56.99999999999999 in float64.
+func coverPercent(level float64) string {
+	return strconv.FormatFloat(math.Round(level*1e6)/1e4, 'f', -1, 64) + "%"
+}
+
 // decidedText says in words which of the cover need and the floor decided
 // the recommendation.
 func decidedText(p *wardload.Projection) string {
 	// Say the cover level in words: "enough for the workload on 90% of such
 	// shifts" reads at a glance where "cover level 0.9" needs explaining.
-	pct := strconv.FormatFloat(math.Round(p.CoverLevel*1e6)/1e4, 'f', -1, 64) // 0.9 → "90", not 90.00000000000001
-	cover := fmt.Sprintf("the workload on %s%% of such shifts", pct)
+	cover := fmt.Sprintf("the workload on %s of such shifts", coverPercent(p.CoverLevel))
 	switch {
 	case p.Floor == nil:
 		return fmt.Sprintf("Set by %s; no ratio floor is configured for this shift.", cover)
@@ -116,7 +122,7 @@ func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Pro
 		FloorRule:   export.NoFloor,
 
 		CoverLevel:         export.FormatLevel(p.CoverLevel),
-		CoverPercent:       strconv.FormatFloat(100*p.CoverLevel, 'f', -1, 64) + "%",
+		CoverPercent:       coverPercent(p.CoverLevel),
 		TotalPatients:      strconv.Itoa(p.TotalPatients),
 		ExpectedCareHours:  export.FormatHours(res.ExpectedMinutes / 60),
 		ExpectedNurseHours: export.FormatHours(p.ExpectedNurseHours),

@@ -102,7 +102,7 @@ func TestProjectionCacheEvicts(t *testing.T) {
 }
 
 // The sentence under the headcount says the cover level as a share of
-// shifts, without float noise (0.9 × 100 is 90.00000000000001 in float64).
+// shifts, without float noise (100 × 0.57 is 56.99999999999999 in float64).
 func TestDecidedTextNamesCoverAsShareOfShifts(t *testing.T) {
 	floor := 4
 	for _, tc := range []struct {
@@ -112,9 +112,16 @@ func TestDecidedTextNamesCoverAsShareOfShifts(t *testing.T) {
 		{wardload.Projection{CoverLevel: 0.9}, "Set by the workload on 90% of such shifts; no ratio floor is configured for this shift."},
 		{wardload.Projection{CoverLevel: 0.925, Floor: &floor, DecidedBy: stats.DecidedByFloor, NursesCover: 3}, "Set by the ratio floor of 4 nurses; the workload on 92.5% of such shifts needs 3."},
 		{wardload.Projection{CoverLevel: 0.8, Floor: &floor, DecidedBy: stats.DecidedByCover}, "Set by the workload on 80% of such shifts; the ratio floor asks for 4."},
+		{wardload.Projection{CoverLevel: 0.57}, "Set by the workload on 57% of such shifts; no ratio floor is configured for this shift."},
 	} {
 		if got := decidedText(&tc.p); got != tc.want {
 			t.Errorf("got %q\nwant %q", got, tc.want)
+		}
+	}
+	// The page's cover percentage says the level the same way.
+	for level, want := range map[float64]string{0.57: "57%", 0.9: "90%", 0.925: "92.5%", 0.29: "29%"} {
+		if got := coverPercent(level); got != want {
+			t.Errorf("coverPercent(%v) = %q, want %q", level, got, want)
 		}
 	}
 }

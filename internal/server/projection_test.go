@@ -88,6 +88,26 @@ func TestProjectionPageShowsTheExportsFigures(t *testing.T) {
 	}
 }
 
+// TestProjectionPageSaysCoverWithoutFloatNoise: a cover level of 0.57 is
+// "57%" everywhere on the page (100*0.57 is 56.99999999999999 in float64).
+func TestProjectionPageSaysCoverWithoutFloatNoise(t *testing.T) {
+	f := newCensusFixture(t)
+	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
+	st, err := f.st.FindSettings(ctx, f.wardA.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st.CoverLevel = 0.57
+	if err := f.st.SaveSettings(ctx, st); err != nil {
+		t.Fatal(err)
+	}
+	p := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
+	_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-a/projections/%d", p.ID), nil)))
+	if strings.Contains(body, "56.99") || strings.Count(body, "57%") < 3 {
+		t.Errorf("cover level 0.57: page has %d × \"57%%\", 56.99 present: %v", strings.Count(body, "57%"), strings.Contains(body, "56.99"))
+	}
+}
+
 func TestProjectionPageContent(t *testing.T) {
 	f := newCensusFixture(t)
 	p := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
