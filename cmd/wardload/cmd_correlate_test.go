@@ -10,8 +10,10 @@ import (
 
 // Anscombe (1973) set III, from R's datasets::anscombe (x3, y3). Expected
 // values from R 4.2.2 (testdata/reference/relation.csv, case anscombe3):
-// cor(x, y) = 0.81628673948959818, coef(lm(y ~ x)) = 3.002454545454543,
-// 0.4997272727272728, summary(lm(y ~ x))$sigma = 1.2363113513899961.
+// cor(x, y) = 0.81628673948959818, cor(x, y, method = "spearman") =
+// 0.99090909090909096, coef(lm(y ~ x)) = 3.002454545454543,
+// 0.4997272727272728, summary(lm(y ~ x))$r.squared = 0.66632404106655907,
+// summary(lm(y ~ x))$sigma = 1.2363113513899961.
 func anscombe3CSV() string {
 	x := []float64{10, 8, 13, 9, 11, 14, 6, 4, 12, 7, 5}
 	y := []float64{7.46, 6.77, 12.74, 7.11, 7.81, 8.84, 6.08, 5.39, 8.15, 6.42, 5.73}
@@ -50,6 +52,8 @@ func TestCorrelateJSON(t *testing.T) {
 		t.Errorf("n = %d", got.N)
 	}
 	near("pearson_r", got.PearsonR, 0.81628673948959818)
+	near("spearman_rho", got.SpearmanRho, 0.99090909090909096)
+	near("r_squared", got.RSquared, 0.66632404106655907)
 	near("intercept", got.Intercept, 3.002454545454543)
 	near("slope", got.Slope, 0.4997272727272728)
 	near("residual_sd", got.ResidualSD, 1.2363113513899961)

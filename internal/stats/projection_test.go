@@ -81,7 +81,11 @@ func TestProjectHand(t *testing.T) {
 	for i, w := range wantP {
 		s := p.Shortfall[i]
 		near("capacity", s.CapacityMinutes, float64(s.Nurses)*240)
-		if !scalar.EqualWithinRel(s.Probability, w, 1e-10) {
+		// The tail probabilities come from math.Erfc here and pnorm in R,
+		// which differ in the last bits; relative error grows into the far
+		// tail, worst at N = 3 (8.3e-32): 4.4e-14, so 1e-13 leaves a
+		// factor of two.
+		if !scalar.EqualWithinRel(s.Probability, w, 1e-13) {
 			t.Errorf("shortfall N=%d = %.17g, R %.17g", s.Nurses, s.Probability, w)
 		}
 	}
