@@ -25,8 +25,19 @@ func ExampleProject() {
 		fmt.Println(err)
 		return
 	}
-	// μ = 6·60 + 2·240 = 840; variance_patient = 6·250 + 2·3600 = 8700;
-	// variance_estimate = 36·250/5 + 4·3600/3 = 1800 + 4800 = 6600.
+	// By hand: "high" scaled to 12 h is 180, 240, 300 (mean 240, variance
+	// 3600); "low" has mean 60, variance 250. μ = 6·60 + 2·240 = 840;
+	// variance_patient = 6·250 + 2·3600 = 8700; variance_estimate =
+	// 36·250/5 + 4·3600/3 = 1800 + 4800 = 6600; sd = √15300 = 123.69.
+	// Band and nurses from R 4.2.2 (R --version: 4.2.2 Patched (2022-11-10
+	// r83330)), v = 15300:
+	//   840 + c(-1, 1) * qnorm(0.95) * sqrt(v)   = 636.5428427 1043.4571573
+	//   840 / (60 * 0.75 * 12)                   = 1.555555556 → 2
+	//   (840 + qnorm(0.9) * sqrt(v)) / (60 * 0.75 * 12) = 1.849109582 → 2
+	// Floor by hand: ⌈8 / 8⌉ = 1, the charge nurse counting towards it. The
+	// recommendation is the simulated 90 % cover (seed 1: 960 min, 1.778
+	// nurses → 2), which beats the floor; that figure has no outside source,
+	// only this seed.
 	fmt.Printf("expected %.0f min, variance %.0f + %.0f, sd %.1f\n",
 		p.ExpectedMinutes, p.VariancePatient, p.VarianceEstimate, p.SDMinutes)
 	fmt.Printf("90%% band %.1f .. %.1f min\n", p.Bands[0].Low, p.Bands[0].High)
