@@ -15,7 +15,7 @@ func init() {
 // without a shell or curl in the image: exit 0 when the URL answers 200.
 func runProbe(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "probe", "", "GET a wardload health URL; exit 0 when it answers 200 OK, 1 otherwise.")
-	url := fs.String("url", envOr(e, "WARDLOAD_PROBE_URL", "http://127.0.0.1:8080/readyz"), "URL to check (env WARDLOAD_PROBE_URL)")
+	url := fs.String("url", "http://127.0.0.1:8080/readyz", "URL to check (env WARDLOAD_URL)")
 	timeout := fs.Duration("timeout", 3*time.Second, "give up after this long")
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code

@@ -33,3 +33,19 @@ func TestProbe(t *testing.T) {
 		t.Errorf("bad url: %d", code)
 	}
 }
+
+// The URL falls back to WARDLOAD_URL, the name every --url flag has.
+func TestProbeURLFromEnvironment(t *testing.T) {
+	srv := httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if r.URL.Path != "/from-env" {
+			w.WriteHeader(http.StatusNotFound)
+		}
+	}))
+	defer srv.Close()
+	var out, errb bytes.Buffer
+	vars := map[string]string{"WARDLOAD_URL": srv.URL + "/from-env"}
+	code := run(context.Background(), []string{"probe"}, &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, getenv: func(k string) string { return vars[k] }})
+	if code != exitOK || out.String() != "ready\n" {
+		t.Errorf("probe with WARDLOAD_URL: %d %q %q", code, out.String(), errb.String())
+	}
+}
