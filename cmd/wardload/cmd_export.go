@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"strconv"
 
 	"wardload/internal/export"
 	"wardload/internal/stats"
@@ -14,8 +15,8 @@ func init() {
 	register(command{name: "export projections", summary: "write a ward's shift projections for a roster planner (CSV or JSON)", run: runExportProjections})
 }
 
-const exportSummary = `Write the newest projection of each dated shift of a ward from --from to --to (inclusive,
-at most 366 days), oldest first, to standard output: CSV (RFC 4180, header row, one
+var exportSummary = `Write the newest projection of each dated shift of a ward from --from to --to (inclusive,
+at most ` + strconv.Itoa(export.MaxDays) + ` days), oldest first, to standard output: CSV (RFC 4180, header row, one
 census_<tier> column per tier) or JSON with the same rows and digits. Times are RFC 3339 in
 the ward's time zone; hours and nurse-hours have two decimals. The same content as the
 shift list download and GET /api/v1/projections.
@@ -29,7 +30,7 @@ func runExportProjections(ctx context.Context, e *env, args []string) int {
 	fromFlag := fs.String("from", "", "first shift date, YYYY-MM-DD (required)")
 	toFlag := fs.String("to", "", "last shift date, YYYY-MM-DD (required)")
 	format := fs.String("format", "csv", "csv or json")
-	so := addStoreFlags(fs, e)
+	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}

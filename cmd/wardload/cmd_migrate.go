@@ -11,7 +11,7 @@ func init() {
 
 func runMigrate(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "migrate", "", "Apply pending database migrations and report the schema version.")
-	so := addStoreFlags(fs, e)
+	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"context"
 	"errors"
-	"flag"
 	"fmt"
 	"log/slog"
 	"net"
@@ -12,7 +11,6 @@ import (
 	"time"
 
 	"github.com/alexedwards/scs/pgxstore"
-	"github.com/alexedwards/scs/sqlite3store"
 	"github.com/alexedwards/scs/v2"
 
 	"wardload/internal/demo"
@@ -39,8 +37,8 @@ func checkAddr(addr string) error {
 
 func runServe(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "serve", "", "Migrate the database, then serve the web interface and API until interrupted.")
-	addr := fs.String("addr", envOr(e, "WARDLOAD_ADDR", "127.0.0.1:8080"), "address to listen on; port 0 picks a free port (env WARDLOAD_ADDR)")
-	so := addStoreFlags(fs, e)
+	addr := fs.String("addr", "127.0.0.1:8080", "address to listen on; port 0 picks a free port (env WARDLOAD_ADDR)")
+	so := addStoreFlags(fs)
 	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once (env WARDLOAD_DEMO)")
 	secure := fs.Bool("secure-cookies", false, "mark cookies Secure; use when served over HTTPS (env WARDLOAD_SECURE_COOKIES)")
 	trustXFF := fs.Bool("trust-proxy", false, "count failed sign-ins by the X-Forwarded-For address; only behind a proxy that sets it (env WARDLOAD_TRUST_PROXY)")
@@ -50,20 +48,6 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	if fs.NArg() > 0 {
 		fmt.Fprintf(e.stderr, "wardload: serve takes no arguments\n")
 		return exitUsage
-	}
-	// Boolean flags fall back to their environment variables like the others.
-	for _, b := range []struct {
-		flag, env string
-		v         *bool
-	}{{"secure-cookies", "WARDLOAD_SECURE_COOKIES", secure}, {"trust-proxy", "WARDLOAD_TRUST_PROXY", trustXFF}, {"demo", "WARDLOAD_DEMO", seed}} {
-		if v := e.getenv(b.env); v != "" && !flagSet(fs, b.flag) {
-			parsed, err := strconv.ParseBool(v)
-			if err != nil {
-				fmt.Fprintf(e.stderr, "wardload: %s must be true or false\n", b.env)
-				return exitUsage
-			}
-			*b.v = parsed
-		}
 	}
 	if _, err := so.kind(); err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
@@ -154,20 +138,5 @@ func sessionStore(st *openedStore) interface {
 	if st.PGPool != nil {
 		return pgxstore.NewWithCleanupInterval(st.PGPool, 5*time.Minute)
 	}
-	if db, ok := st.Store.(*sqlite.Store); ok {
-		return sqlite.NewSessionStore(db, 5*time.Minute)
-	}
-	return sqlite3store.NewWithCleanupInterval(st.SQLDB, 5*time.Minute)
-}
-
-// flagSet reports whether the flag name was given on the command line, so
-// that an environment value does not override an explicit flag.
-func flagSet(fs *flag.FlagSet, name string) bool {
-	found := false
-	fs.Visit(func(f *flag.Flag) {
-		if f.Name == name {
-			found = true
-		}
-	})
-	return found
+	return sqlite.NewSessionStore(st.SQLite, 5*time.Minute)
 }

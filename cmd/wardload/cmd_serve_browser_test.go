@@ -60,14 +60,7 @@ func TestBrowserCensusToProjection(t *testing.T) {
 		browserJourney(t, &storeOptions{DataDir: dir}, "--data-dir", dir)
 	})
 	t.Run("postgres", func(t *testing.T) {
-		base := os.Getenv("WARDLOAD_TEST_DATABASE_URL")
-		if base == "" {
-			if os.Getenv("CI") == "true" {
-				t.Fatal("WARDLOAD_TEST_DATABASE_URL must be set when CI=true")
-			}
-			t.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL browser journey skipped")
-		}
-		dbURL := mustCreateDatabase(t, base)
+		dbURL := mustCreateDatabase(t)
 		browserJourney(t, &storeOptions{DB: dbURL}, "--db", dbURL, "--data-dir", t.TempDir())
 	})
 }

@@ -9,6 +9,7 @@ import (
 	"net/http/cookiejar"
 	"net/url"
 	"os"
+	"path/filepath"
 	"regexp"
 	"strings"
 	"sync"
@@ -270,16 +271,53 @@ func TestMigrateCommand(t *testing.T) {
 	}
 }
 
+// The store flags and serve's own flags fall back to the environment like
+// every other flag; a refused value names the variable and stops serve
+// before it opens (and creates) a database.
+func TestServeAndStoreFlagsFromEnvironment(t *testing.T) {
+	runWith := func(vars map[string]string, args ...string) (int, string, string) {
+		t.Helper()
+		var out, errb lockedBuffer
+		e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, getenv: func(k string) string { return vars[k] }}
+		ctx, cancel := context.WithTimeout(context.Background(), 30*time.Second)
+		defer cancel()
+		code := run(ctx, args, e)
+		return code, out.String(), errb.String()
+	}
+
+	dir := t.TempDir()
+	code, out, errs := runWith(map[string]string{"WARDLOAD_DATA_DIR": dir}, "migrate")
+	if code != exitOK || !strings.Contains(out, filepath.Join(dir, "wardload.db")) {
+		t.Errorf("migrate with WARDLOAD_DATA_DIR: %d %q %q, want the database in %s", code, out, errs, dir)
+	}
+	other := t.TempDir()
+	code, out, errs = runWith(map[string]string{"WARDLOAD_DATA_DIR": dir}, "migrate", "--data-dir", other)
+	if code != exitOK || !strings.Contains(out, filepath.Join(other, "wardload.db")) {
+		t.Errorf("--data-dir must win over WARDLOAD_DATA_DIR: %d %q %q", code, out, errs)
+	}
+	code, _, errs = runWith(map[string]string{"WARDLOAD_DB": "mysql://u:secret@h/db"}, "migrate", "--data-dir", dir)
+	if code != exitUsage || !strings.Contains(errs, "--db must be empty") || strings.Contains(errs, "secret") {
+		t.Errorf("migrate with a bad WARDLOAD_DB: %d %q", code, errs)
+	}
+
+	code, _, errs = runWith(map[string]string{"WARDLOAD_ADDR": "no-port"}, "serve", "--data-dir", t.TempDir())
+	if code != exitUsage || !strings.Contains(errs, `--addr "no-port"`) {
+		t.Errorf("serve with a bad WARDLOAD_ADDR: %d %q", code, errs)
+	}
+
+	empty := t.TempDir()
+	code, out, errs = runWith(map[string]string{"WARDLOAD_SECURE_COOKIES": "maybe"}, "serve", "--addr", "127.0.0.1:0", "--data-dir", empty)
+	if code != exitUsage || out != "" || !strings.HasPrefix(errs, "wardload serve: WARDLOAD_SECURE_COOKIES=") || strings.Count(errs, "\n") != 1 {
+		t.Errorf("serve with WARDLOAD_SECURE_COOKIES=maybe: %d %q %q, want exit 2 and one line naming the variable", code, out, errs)
+	}
+	if entries, err := os.ReadDir(empty); err != nil || len(entries) != 0 {
+		t.Errorf("serve refused its environment but left %v (%v) in the data directory", entries, err)
+	}
+}
+
 // TestServePostgres runs serve against a fresh database on the test server.
 func TestServePostgres(t *testing.T) {
-	base := os.Getenv("WARDLOAD_TEST_DATABASE_URL")
-	if base == "" {
-		if os.Getenv("CI") == "true" {
-			t.Fatal("WARDLOAD_TEST_DATABASE_URL must be set when CI=true")
-		}
-		t.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL end-to-end test skipped")
-	}
-	dbURL := mustCreateDatabase(t, base)
+	dbURL := mustCreateDatabase(t)
 	if code, _, errs := runCLI(t, t.TempDir(), "first admin pw\n", "user", "add", "--role", "admin", "--db", dbURL, "ada.admin"); code != exitOK {
 		t.Fatalf("user add: %d %s", code, errs)
 	}
@@ -302,10 +340,19 @@ func TestServePostgres(t *testing.T) {
 	}
 }
 
-// mustCreateDatabase creates wardload_e2e_<random> on the server of base
-// and returns its URL; the database is dropped when the test ends.
-func mustCreateDatabase(tb testing.TB, base string) string {
+// mustCreateDatabase creates wardload_e2e_<random> on the server of
+// WARDLOAD_TEST_DATABASE_URL and returns its URL; the database is dropped
+// when the test ends. Without the variable the test is skipped, or fails
+// under CI=true, where the PostgreSQL runs are part of the build.
+func mustCreateDatabase(tb testing.TB) string {
 	tb.Helper()
+	base := os.Getenv("WARDLOAD_TEST_DATABASE_URL")
+	if base == "" {
+		if os.Getenv("CI") == "true" {
+			tb.Fatal("WARDLOAD_TEST_DATABASE_URL must be set when CI=true")
+		}
+		tb.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL test skipped")
+	}
 	ctx := context.Background()
 	conn, err := pgx.Connect(ctx, base)
 	if err != nil {

@@ -21,7 +21,7 @@ func runTokenCreate(ctx context.Context, e *env, args []string) int {
 			"in the roster planner's configuration. wardload keeps only its hash.")
 	wards := fs.String("ward", "", "comma-separated codes of the wards the token may read (required)")
 	name := fs.String("name", "", "unique token name, e.g. roster-planner (required)")
-	so := addStoreFlags(fs, e)
+	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
@@ -53,7 +53,7 @@ func runTokenCreate(ctx context.Context, e *env, args []string) int {
 // runTokenRevoke revokes a token so the API refuses it from now on.
 func runTokenRevoke(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "token revoke", "NAME", "Revoke the API token called NAME; the API refuses it from now on.")
-	so := addStoreFlags(fs, e)
+	so := addStoreFlags(fs)
 	names, code, ok := parseInterleaved(e, fs, args) // flags may follow NAME
 	if !ok {
 		return code

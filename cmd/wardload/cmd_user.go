@@ -28,7 +28,7 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 			"line of stdin. On a new database, create the first admin with --role admin.")
 	role := fs.String("role", wardload.RoleChargeNurse, "role: charge_nurse, manager or admin")
 	wards := fs.String("ward", "", "comma-separated codes of the wards the user belongs to")
-	so := addStoreFlags(fs, e)
+	so := addStoreFlags(fs)
 	names, code, ok := parseInterleaved(e, fs, args) // flags may follow NAME
 	if !ok {
 		return code

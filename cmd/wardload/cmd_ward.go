@@ -15,7 +15,7 @@ func init() {
 // can be piped into cut or awk.
 func runWardList(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "ward list", "", "List the wards: code and name, tab-separated, one per line.")
-	so := addStoreFlags(fs, e)
+	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}

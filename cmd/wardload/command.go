@@ -172,12 +172,3 @@ func applyEnv(e *env, fs *flag.FlagSet) (int, bool) {
 	}
 	return 0, true
 }
-
-// envOr returns the WARDLOAD_* environment value for key, or def. Flags use
-// it as their default so that the environment is a fallback to the flag.
-func envOr(e *env, key, def string) string {
-	if v := e.getenv(key); v != "" {
-		return v
-	}
-	return def
-}

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"database/sql"
 	"errors"
 	"flag"
 	"fmt"
@@ -25,13 +24,13 @@ type storeOptions struct {
 	DataDir string
 }
 
-// addStoreFlags registers --db and --data-dir on fs, with the environment
-// (WARDLOAD_DB, WARDLOAD_DATA_DIR) as their defaults.
-func addStoreFlags(fs *flag.FlagSet, e *env) *storeOptions {
+// addStoreFlags registers --db and --data-dir on fs; like every flag they
+// fall back to WARDLOAD_DB and WARDLOAD_DATA_DIR (see applyEnv).
+func addStoreFlags(fs *flag.FlagSet) *storeOptions {
 	o := &storeOptions{}
-	fs.StringVar(&o.DB, "db", envOr(e, "WARDLOAD_DB", ""),
+	fs.StringVar(&o.DB, "db", "",
 		"PostgreSQL URL (postgres://…); empty uses the SQLite file in --data-dir (env WARDLOAD_DB)")
-	fs.StringVar(&o.DataDir, "data-dir", envOr(e, "WARDLOAD_DATA_DIR", "./wardload-data"),
+	fs.StringVar(&o.DataDir, "data-dir", "./wardload-data",
 		"directory for the SQLite database (env WARDLOAD_DATA_DIR)")
 	return o
 }
@@ -40,7 +39,7 @@ func addStoreFlags(fs *flag.FlagSet, e *env) *storeOptions {
 // session store needs (scs has one backend per database).
 type openedStore struct {
 	wardload.Store
-	SQLDB  *sql.DB       // SQLite's pool, nil for PostgreSQL
+	SQLite *sqlite.Store // nil for PostgreSQL
 	PGPool *pgxpool.Pool // PostgreSQL's pool, nil for SQLite
 	Kind   string        // "sqlite" or "postgres"
 	Where  string        // the SQLite file, or host/database of PostgreSQL (no password)
@@ -84,7 +83,7 @@ func openStore(ctx context.Context, o *storeOptions, migrate bool) (*openedStore
 		if err != nil {
 			return nil, fmt.Errorf("cannot open database: %s", oneLine(err))
 		}
-		st = &openedStore{Store: db, SQLDB: db.DB(), Kind: kind, Where: path}
+		st = &openedStore{Store: db, SQLite: db, Kind: kind, Where: path}
 	case "postgres":
 		db, err := postgres.Open(ctx, postgres.Config{URL: o.DB, Now: time.Now})
 		if err != nil {
@@ -148,8 +147,8 @@ func (st *openedStore) schemaVersion(ctx context.Context) (int64, error) {
 	var v int64
 	var err error
 	switch {
-	case st.SQLDB != nil:
-		err = st.SQLDB.QueryRowContext(ctx, q).Scan(&v)
+	case st.SQLite != nil:
+		err = st.SQLite.DB().QueryRowContext(ctx, q).Scan(&v)
 	case st.PGPool != nil:
 		err = st.PGPool.QueryRow(ctx, q).Scan(&v)
 	default:
