@@ -11,7 +11,6 @@ type SignInVM struct {
 // TokensVM is a ward's API token page. NewSecret is set only on the one
 // page view right after a token was created.
 type TokensVM struct {
-	WardCode   string
 	WardName   string
 	CreateURL  string
 	Tokens     []TokenRowVM
@@ -71,7 +70,6 @@ type UserRowVM struct {
 	Name      string
 	Role      string
 	Disabled  bool
-	Self      bool // the signed-in admin: may not disable or demote themself
 	Wards     []WardOptionVM
 	CreatedAt string
 	UpdateURL string

@@ -3,7 +3,6 @@ package web
 // CensusVM is the census entry page: a small form that chooses the dated
 // shift, and the form of patient counts per tier for that shift.
 type CensusVM struct {
-	WardCode string
 	WardName string
 	TimeZone string
 	Today    string // the ward's calendar date, YYYY-MM-DD

@@ -4,7 +4,6 @@ package web
 // roster export also carries are already formatted with the export's
 // helpers, so page and export agree to the last digit.
 type ProjectionVM struct {
-	WardCode   string
 	WardName   string
 	Date       string
 	ShiftName  string
@@ -96,7 +95,6 @@ type RevisionVM struct {
 // ProjectionListVM is a ward's shift list: the newest projection of each
 // dated shift in a date range, newest first.
 type ProjectionListVM struct {
-	WardCode  string
 	WardName  string
 	TimeZone  string
 	PageURL   string

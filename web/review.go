@@ -6,11 +6,11 @@ package web
 // observations outside the fences with forms to exclude or restore them.
 // Every number is already formatted; the template does no arithmetic.
 type ReviewVM struct {
-	WardCode, WardName string
-	Notice             string // one-time message after a post
-	URL                string // the page without a query
-	ImportURL          string
-	TemplateURL        string
+	WardName    string
+	Notice      string // one-time message after a post
+	URL         string // the page without a query
+	ImportURL   string
+	TemplateURL string
 
 	// The filter form and what it selected.
 	Weeks          string // as typed or defaulted
@@ -24,7 +24,6 @@ type ReviewVM struct {
 	UnitNote       string // how the unit is computed
 
 	Tiers       []ReviewTierVM
-	Axis        BoxAxisVM
 	Order       []string // warnings: a higher tier's median not above the lower one's
 	OrderOK     bool     // every pair of neighbouring tiers with data is in order
 	TrendWeeks  []string // ISO week labels, oldest first
@@ -84,13 +83,12 @@ type ReviewObservationVM struct {
 // ImportVM is the observation import page: a CSV upload form with the
 // columns the ward accepts.
 type ImportVM struct {
-	WardCode, WardName string
-	URL                string // where the form posts
-	ReviewURL          string
-	TemplateURL        string
-	Columns            []string // the accepted columns, in template order
-	Factors            []string // the ward's optional factor columns
-	Tiers              []string // "code (label)"
-	Shifts             []string // shift pattern names
-	Error              string   // why the last upload was refused; nothing was stored
+	WardName    string
+	URL         string // where the form posts
+	ReviewURL   string
+	TemplateURL string
+	Factors     []string // the ward's optional factor columns
+	Tiers       []string // "code (label)"
+	Shifts      []string // shift pattern names
+	Error       string   // why the last upload was refused; nothing was stored
 }

@@ -5,7 +5,6 @@ package web
 // each in its own form. A form that failed shows the input as typed and
 // its messages by field; the others show what is stored.
 type SettingsVM struct {
-	WardCode string
 	WardName string
 	Notice   string // one-time "Saved." after a successful post
 	Updated  string // when and by whom the settings were last saved; "" if never

@@ -159,7 +159,7 @@ func parseShiftChoice(d *censusData, date, shift string) (wardload.Date, int64, 
 // tier_<code>, patients, tier) to messages.
 func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, form url.Values, errs map[string]string) (web.CensusVM, error) {
 	vm := web.CensusVM{
-		WardCode: d.ward.Code, WardName: d.ward.Name, TimeZone: d.ward.TimeZone,
+		WardName: d.ward.Name, TimeZone: d.ward.TimeZone,
 		Today:   d.today.String(),
 		PageURL: censusURL(d.ward), ActionURL: censusURL(d.ward),
 		Date: clip(date, 10), ShiftID: clip(shift, 20),

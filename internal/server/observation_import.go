@@ -24,9 +24,9 @@ func importURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/ob
 // importVM describes the upload form for ward.
 func (s *Server) importVM(r *http.Request) (web.ImportVM, []*wardload.Tier, []*wardload.ShiftPattern, error) {
 	ward := principalFrom(r.Context()).Ward
-	vm := web.ImportVM{WardCode: ward.Code, WardName: ward.Name, URL: importURL(ward), ReviewURL: reviewURL(ward),
+	vm := web.ImportVM{WardName: ward.Name, URL: importURL(ward), ReviewURL: reviewURL(ward),
 		TemplateURL: "/wards/" + ward.Code + "/observations/template.csv",
-		Columns:     observationHeader(ward), Factors: ward.FactorNames}
+		Factors:     ward.FactorNames}
 	tiers, err := s.store.FindTiers(r.Context(), ward.ID)
 	if err != nil {
 		return vm, nil, nil, fmt.Errorf("import: tiers: %w", err)

@@ -109,7 +109,7 @@ func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Pro
 	f := res.DirectCareFraction
 	nh := func(minutes float64) float64 { return minutes / 60 / f }
 	vm := web.ProjectionVM{
-		WardCode: ward.Code, WardName: ward.Name, Date: p.Date.String(), ShiftName: p.ShiftName,
+		WardName: ward.Name, Date: p.Date.String(), ShiftName: p.ShiftName,
 		ShiftTimes:  fmt.Sprintf("%s to %s (%s)", p.Start.In(loc).Format("Mon 2 Jan 15:04"), p.End.In(loc).Format("Mon 2 Jan 15:04"), ward.TimeZone),
 		ShiftHours:  export.FormatHours(p.ShiftHours),
 		Revision:    p.CensusRevision,

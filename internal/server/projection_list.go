@@ -56,7 +56,7 @@ func (s *Server) listRange(r *http.Request, ward *wardload.Ward) (from, to wardl
 // downloads; a charge nurse sees the projections only.
 func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error {
 	ward := principalFrom(r.Context()).Ward
-	vm := web.ProjectionListVM{WardCode: ward.Code, WardName: ward.Name, TimeZone: ward.TimeZone,
+	vm := web.ProjectionListVM{WardName: ward.Name, TimeZone: ward.TimeZone,
 		PageURL: projectionsURL(ward), CensusURL: censusURL(ward)}
 	q := r.URL.Query()
 	vm.From, vm.To = clip(q.Get("from"), 10), clip(q.Get("to"), 10)

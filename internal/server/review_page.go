@@ -38,7 +38,7 @@ func conventionText(name string) string {
 func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) {
 	ward, p := d.ward, d.params
 	vm := web.ReviewVM{
-		WardCode: ward.Code, WardName: ward.Name,
+		WardName:       ward.Name,
 		URL:            reviewURL(ward),
 		ImportURL:      "/wards/" + ward.Code + "/observations/import",
 		TemplateURL:    "/wards/" + ward.Code + "/observations/template.csv",
@@ -72,7 +72,6 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 		}
 	}
 	axis := web.NewBoxAxis(hi)
-	vm.Axis = axis
 	for _, tr := range trs {
 		vm.Tiers = append(vm.Tiers, tierVM(tr, axis, d.settings.Quartiles))
 	}

@@ -57,9 +57,8 @@ func (s *Server) settingsVM(r *http.Request, d *settingsData) (web.SettingsVM, e
 	base := settingsURL(d.ward)
 	st := d.settings
 	vm := web.SettingsVM{
-		WardCode: d.ward.Code, WardName: d.ward.Name,
+		WardName:   d.ward.Name,
 		GeneralURL: base, FloorsURL: base + "/floors",
-		NewShiftURL: base + "/shifts", NewTierURL: base + "/tiers",
 		General: web.GeneralFormVM{
 			DirectCareFraction: export.FormatLevel(st.DirectCareFraction),
 			CoverLevel:         export.FormatLevel(st.CoverLevel),

@@ -41,7 +41,7 @@ func (s *Server) renderTokens(w http.ResponseWriter, r *http.Request, status int
 	if err != nil {
 		return err
 	}
-	vm.WardCode, vm.WardName = ward.Code, ward.Name
+	vm.WardName = ward.Name
 	vm.CreateURL = "/wards/" + ward.Code + "/tokens"
 	for _, t := range ts {
 		row := web.TokenRowVM{

@@ -40,12 +40,11 @@ func (s *Server) renderUsers(w http.ResponseWriter, r *http.Request, status int,
 		}
 		return out
 	}
-	me := principalFrom(r.Context()).User
 	vm.Roles = allRoles
 	vm.Wards = boxes(checked)
 	for _, u := range users {
 		row := web.UserRowVM{ID: strconv.FormatInt(u.ID, 10), Name: u.Name, Role: u.Role, Disabled: u.Disabled,
-			Self: u.ID == me.ID, Wards: boxes(u.WardIDs), CreatedAt: formatAt(u.CreatedAt),
+			Wards: boxes(u.WardIDs), CreatedAt: formatAt(u.CreatedAt),
 			UpdateURL: fmt.Sprintf("/admin/users/%d", u.ID)}
 		if u.ID == rowID {
 			row.Error = rowErr
