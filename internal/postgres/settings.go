@@ -104,6 +104,10 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			}
 		}
 		st.UpdatedAt = now
-		return audit(ctx, tx, now, "settings.save", "settings", st.WardID, st.WardID, before, st)
+		var b any
+		if !before.UpdatedAt.IsZero() { // defaults were never saved: nothing before
+			b = before
+		}
+		return audit(ctx, tx, now, "settings.save", "settings", st.WardID, st.WardID, b, st)
 	})
 }

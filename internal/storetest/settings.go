@@ -35,9 +35,10 @@ func settingsCases() []testCase {
 			if !reflect.DeepEqual(got, s) {
 				t.Fatalf("reread = %+v\nwant     %+v", got, s)
 			}
+			// Nothing was saved before: the audit row has no before, not the defaults.
 			e := f.checkAudit("settings.save", "settings", sw.ward.ID, sw.ward.ID)
-			if e.Before != "" && e.Before == e.After {
-				t.Fatalf("audit before == after: %q", e.Before)
+			if e.Before != "" {
+				t.Fatalf("first save audits before %q, want none", e.Before)
 			}
 
 			// Saving replaces the floors.
@@ -51,6 +52,9 @@ func settingsCases() []testCase {
 				t.Fatalf("after replace = %+v", got)
 			}
 			sameTime(t, "UpdatedAt second save", got.UpdatedAt, f.clock.Now())
+			if e := f.checkAudit("settings.save", "settings", sw.ward.ID, sw.ward.ID); e.Before == "" || e.Before == e.After {
+				t.Fatalf("second save audits before %q after %q: want the first save before", e.Before, e.After)
+			}
 			if n := f.auditCount("settings.save"); n != 2 {
 				t.Fatalf("settings.save rows = %d, want 2", n)
 			}
