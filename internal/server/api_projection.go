@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"net/http"
+	"slices"
 	"strings"
 
 	"wardload/internal/export"
@@ -34,7 +35,7 @@ func (s *Server) handleAPIProjections(w http.ResponseWriter, r *http.Request) er
 	} else if err != nil {
 		return fmt.Errorf("api projections: %w", err)
 	}
-	if !containsID(principalFrom(r.Context()).Token.WardIDs, ward.ID) {
+	if !slices.Contains(principalFrom(r.Context()).Token.WardIDs, ward.ID) {
 		return wardload.FieldErrorf(wardload.EFORBIDDEN, "ward", "This token may not read this ward.")
 	}
 	format := "json"

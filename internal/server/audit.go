@@ -26,7 +26,7 @@ func (s *Server) handleAudit(w http.ResponseWriter, r *http.Request) error {
 		Ward: clip(q.Get("ward"), 32), Action: clip(q.Get("action"), 64), Entity: clip(q.Get("entity"), 64),
 		User: clip(q.Get("user"), 40), From: clip(q.Get("from"), 10), To: clip(q.Get("to"), 10),
 	}
-	codes, err := s.wardCodes(r, nil)
+	codes, err := s.wardCodes(r)
 	if err != nil {
 		return err
 	}

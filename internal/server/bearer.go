@@ -6,6 +6,7 @@ import (
 	"encoding/base64"
 	"encoding/hex"
 	"net/http"
+	"slices"
 	"strings"
 
 	"wardload/internal/wardload"
@@ -64,7 +65,7 @@ func (s *Server) requireToken(rt Route, next http.Handler) http.Handler {
 			if p.Ward, err = s.scopedWard(r); err != nil {
 				return err
 			}
-			if !containsID(t.WardIDs, p.Ward.ID) {
+			if !slices.Contains(t.WardIDs, p.Ward.ID) {
 				return wardload.Errorf(wardload.EFORBIDDEN, "This token may not read this ward.")
 			}
 		}
@@ -75,13 +76,4 @@ func (s *Server) requireToken(rt Route, next http.Handler) http.Handler {
 		next.ServeHTTP(w, r.WithContext(ctx))
 		return nil
 	})
-}
-
-func containsID(ids []int64, id int64) bool {
-	for _, x := range ids {
-		if x == id {
-			return true
-		}
-	}
-	return false
 }

@@ -28,11 +28,8 @@ func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
 		return nil, err
 	}
 	d := &censusData{ward: ward, today: projector.Today(s.now(), loc)}
-	if d.shifts, err = s.store.FindShiftPatterns(r.Context(), ward.ID); err != nil {
-		return nil, fmt.Errorf("census: shifts: %w", err)
-	}
-	if d.tiers, err = s.store.FindTiers(r.Context(), ward.ID); err != nil {
-		return nil, fmt.Errorf("census: tiers: %w", err)
+	if d.shifts, d.tiers, err = s.shiftsAndTiers(r.Context(), ward, "census"); err != nil {
+		return nil, err
 	}
 	return d, nil
 }

@@ -29,8 +29,8 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 			row.CensusURL, row.ProjectionsURL = censusURL(wd), projectionsURL(wd)
 		}
 		if u != nil && u.Role != wardload.RoleChargeNurse {
-			row.TokensURL = "/wards/" + wd.Code + "/tokens"
-			row.SettingsURL = "/wards/" + wd.Code + "/settings"
+			row.TokensURL = tokensURL(wd)
+			row.SettingsURL = settingsURL(wd)
 			row.ReviewURL = reviewURL(wd)
 		}
 		vm.Wards = append(vm.Wards, row)

@@ -21,19 +21,20 @@ const maxImportBytes = 4 << 20
 
 func importURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/observations/import" }
 
+// templateURL is the address of the ward's blank import file.
+func templateURL(ward *wardload.Ward) string {
+	return "/wards/" + ward.Code + "/observations/template.csv"
+}
+
 // importVM describes the upload form for ward.
 func (s *Server) importVM(r *http.Request) (web.ImportVM, []*wardload.Tier, []*wardload.ShiftPattern, error) {
 	ward := principalFrom(r.Context()).Ward
 	vm := web.ImportVM{WardName: ward.Name, URL: importURL(ward), ReviewURL: reviewURL(ward),
-		TemplateURL: "/wards/" + ward.Code + "/observations/template.csv",
+		TemplateURL: templateURL(ward),
 		Factors:     ward.FactorNames}
-	tiers, err := s.store.FindTiers(r.Context(), ward.ID)
+	shifts, tiers, err := s.shiftsAndTiers(r.Context(), ward, "import")
 	if err != nil {
-		return vm, nil, nil, fmt.Errorf("import: tiers: %w", err)
-	}
-	shifts, err := s.store.FindShiftPatterns(r.Context(), ward.ID)
-	if err != nil {
-		return vm, nil, nil, fmt.Errorf("import: shifts: %w", err)
+		return vm, nil, nil, err
 	}
 	for _, t := range tiers {
 		vm.Tiers = append(vm.Tiers, t.Code+" ("+t.Label+")")

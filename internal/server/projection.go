@@ -26,8 +26,8 @@ import (
 func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error {
 	ward := principalFrom(r.Context()).Ward
 	notFound := wardload.Errorf(wardload.ENOTFOUND, "There is no such projection on this ward.")
-	id, err := strconv.ParseInt(chi.URLParam(r, "id"), 10, 64)
-	if err != nil || id <= 0 {
+	id, err := idParam(chi.URLParam(r, "id"), "projection")
+	if err != nil {
 		return notFound
 	}
 	key := projectionKey{ID: id, WardID: ward.ID, WardCode: ward.Code, WardName: ward.Name, TimeZone: ward.TimeZone}

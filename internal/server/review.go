@@ -62,11 +62,8 @@ func (s *Server) loadReview(r *http.Request, shift, weeks string) (*reviewData, 
 	if d.settings, err = s.store.FindSettings(ctx, ward.ID); err != nil {
 		return nil, fmt.Errorf("review: settings: %w", err)
 	}
-	if d.tiers, err = s.store.FindTiers(ctx, ward.ID); err != nil {
-		return nil, fmt.Errorf("review: tiers: %w", err)
-	}
-	if d.order, err = s.store.FindShiftPatterns(ctx, ward.ID); err != nil {
-		return nil, fmt.Errorf("review: shifts: %w", err)
+	if d.order, d.tiers, err = s.shiftsAndTiers(ctx, ward, "review"); err != nil {
+		return nil, err
 	}
 	for _, p := range d.order {
 		d.shifts[p.ID] = p

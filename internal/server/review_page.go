@@ -40,8 +40,8 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 	vm := web.ReviewVM{
 		WardName:       ward.Name,
 		URL:            reviewURL(ward),
-		ImportURL:      "/wards/" + ward.Code + "/observations/import",
-		TemplateURL:    "/wards/" + ward.Code + "/observations/template.csv",
+		ImportURL:      importURL(ward),
+		TemplateURL:    templateURL(ward),
 		Weeks:          strconv.Itoa(p.weeks),
 		WindowText:     fmt.Sprintf("%d weeks, %s to %s", p.weeks, p.from, p.to),
 		ShiftText:      "all shifts",

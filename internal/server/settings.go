@@ -1,6 +1,7 @@
 package server
 
 import (
+	"context"
 	"fmt"
 	"net/http"
 	"strconv"
@@ -39,13 +40,25 @@ func (s *Server) loadSettings(r *http.Request) (*settingsData, error) {
 	if d.settings, err = s.store.FindSettings(r.Context(), ward.ID); err != nil {
 		return nil, fmt.Errorf("settings: %w", err)
 	}
-	if d.shifts, err = s.store.FindShiftPatterns(r.Context(), ward.ID); err != nil {
-		return nil, fmt.Errorf("settings: shifts: %w", err)
-	}
-	if d.tiers, err = s.store.FindTiers(r.Context(), ward.ID); err != nil {
-		return nil, fmt.Errorf("settings: tiers: %w", err)
+	if d.shifts, d.tiers, err = s.shiftsAndTiers(r.Context(), ward, "settings"); err != nil {
+		return nil, err
 	}
 	return d, nil
+}
+
+// shiftsAndTiers reads a ward's shift patterns and acuity tiers, which the
+// census, settings, review and import pages all need; page names the page
+// in a wrapped error.
+func (s *Server) shiftsAndTiers(ctx context.Context, ward *wardload.Ward, page string) ([]*wardload.ShiftPattern, []*wardload.Tier, error) {
+	shifts, err := s.store.FindShiftPatterns(ctx, ward.ID)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: shifts: %w", page, err)
+	}
+	tiers, err := s.store.FindTiers(ctx, ward.ID)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: tiers: %w", page, err)
+	}
+	return shifts, tiers, nil
 }
 
 // settingsURL is the page's address; the forms post below it.

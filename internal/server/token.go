@@ -3,7 +3,6 @@ package server
 import (
 	"fmt"
 	"net/http"
-	"strconv"
 	"strings"
 	"time"
 
@@ -37,12 +36,12 @@ func (s *Server) renderTokens(w http.ResponseWriter, r *http.Request, status int
 	if err != nil {
 		return fmt.Errorf("tokens: %w", err)
 	}
-	codes, err := s.wardCodes(r, nil)
+	codes, err := s.wardCodes(r)
 	if err != nil {
 		return err
 	}
 	vm.WardName = ward.Name
-	vm.CreateURL = "/wards/" + ward.Code + "/tokens"
+	vm.CreateURL = tokensURL(ward)
 	for _, t := range ts {
 		row := web.TokenRowVM{
 			Name:      t.Name,
@@ -88,15 +87,15 @@ func (s *Server) handleTokenCreate(w http.ResponseWriter, r *http.Request) error
 		return fmt.Errorf("token create: %w", err)
 	}
 	s.sessions.Put(r.Context(), sessSecret, t.Name+":"+s.seal(secret))
-	return seeOther(w, r, "/wards/"+p.Ward.Code+"/tokens")
+	return seeOther(w, r, tokensURL(p.Ward))
 }
 
 // handleTokenRevoke revokes a token of this ward.
 func (s *Server) handleTokenRevoke(w http.ResponseWriter, r *http.Request) error {
 	ward := principalFrom(r.Context()).Ward
-	id, err := strconv.ParseInt(chi.URLParam(r, "id"), 10, 64)
+	id, err := idParam(chi.URLParam(r, "id"), "token")
 	if err != nil {
-		return wardload.Errorf(wardload.ENOTFOUND, "There is no such token.")
+		return err
 	}
 	ts, err := s.store.FindTokens(r.Context(), ward.ID)
 	if err != nil {
@@ -115,20 +114,21 @@ func (s *Server) handleTokenRevoke(w http.ResponseWriter, r *http.Request) error
 		return fmt.Errorf("token revoke: %w", err)
 	}
 	s.sessions.Put(r.Context(), sessFlash, "Token "+t.Name+" is revoked.")
-	return seeOther(w, r, "/wards/"+ward.Code+"/tokens")
+	return seeOther(w, r, tokensURL(ward))
 }
 
-// wardCodes maps ward IDs to codes; only is an optional subset.
-func (s *Server) wardCodes(r *http.Request, only []int64) (map[int64]string, error) {
+// tokensURL is the address of a ward's token page.
+func tokensURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/tokens" }
+
+// wardCodes maps every ward's ID to its code.
+func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
 	if err != nil {
 		return nil, fmt.Errorf("find wards: %w", err)
 	}
-	m := map[int64]string{}
+	m := make(map[int64]string, len(ws))
 	for _, w := range ws {
-		if only == nil || containsID(only, w.ID) {
-			m[w.ID] = w.Code
-		}
+		m[w.ID] = w.Code
 	}
 	return m, nil
 }

@@ -90,7 +90,11 @@ func (s *Server) handleUserCreate(w http.ResponseWriter, r *http.Request) error 
 		case wardload.ECONFLICT:
 			return invalid(wardload.FieldErrorf(wardload.EINVALID, "name", "There is already a user called %s.", u.Name))
 		case wardload.EINVALID, wardload.ENOTFOUND:
-			return invalid(wardload.FieldErrorf(wardload.EINVALID, wardload.ErrorField(err), "%s", wardload.ErrorMessage(err)))
+			field := wardload.ErrorField(err)
+			if field == "wards" { // the store's name for the memberships; the form's is "ward"
+				field = "ward"
+			}
+			return invalid(wardload.FieldErrorf(wardload.EINVALID, field, "%s", wardload.ErrorMessage(err)))
 		}
 		return fmt.Errorf("user create: %w", err)
 	}
@@ -105,9 +109,9 @@ func (s *Server) handleUserUpdate(w http.ResponseWriter, r *http.Request) error 
 	if err := r.ParseForm(); err != nil {
 		return formError(err)
 	}
-	id, err := strconv.ParseInt(chi.URLParam(r, "id"), 10, 64)
+	id, err := idParam(chi.URLParam(r, "id"), "user")
 	if err != nil {
-		return wardload.Errorf(wardload.ENOTFOUND, "There is no such user.")
+		return err
 	}
 	target, err := s.store.FindUserByID(r.Context(), id)
 	if err != nil {
