@@ -29,11 +29,9 @@ func runMigrate(ctx context.Context, e *env, args []string) int {
 		return exitFailure
 	}
 	defer st.Close()
-	// A fresh database has no version table yet; that is version 0.
-	before, err := st.schemaVersion(ctx)
-	if err != nil {
-		before = 0
-	}
+	// A fresh database has no version table yet: schemaVersion fails and
+	// returns 0, its version.
+	before, _ := st.schemaVersion(ctx)
 	if err := st.migrate(ctx); err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
 		return exitFailure

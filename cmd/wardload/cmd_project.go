@@ -7,7 +7,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"os"
 	"sort"
 	"strconv"
 	"strings"
@@ -160,56 +159,17 @@ func runProject(_ context.Context, e *env, args []string) int {
 	return exitOK
 }
 
-// parseInterleaved parses flags that may come before and after positional
-// arguments ("project FILE --census …"): Go's flag package stops at the
-// first positional argument, so parsing resumes after each one. Unlike
-// parseFlags it reports a bad flag in one line (the flag package's own
-// message) instead of the whole usage, so that a script sees one clear
-// line; --help still prints the usage.
-func parseInterleaved(e *env, fs *flag.FlagSet, args []string) (positional []string, code int, ok bool) {
-	if code, ok := applyEnv(e, fs); !ok {
-		return nil, code, false
-	}
-	help := fs.Usage
-	fs.Usage = func() {}
-	fs.SetOutput(io.Discard)
-	for {
-		err := fs.Parse(args)
-		if errors.Is(err, flag.ErrHelp) {
-			fs.SetOutput(e.stderr)
-			help()
-			return nil, exitOK, false
-		}
-		if err != nil {
-			fmt.Fprintf(e.stderr, "wardload %s: %v (see wardload %s --help)\n", fs.Name(), err, fs.Name())
-			return nil, exitUsage, false
-		}
-		if fs.NArg() == 0 {
-			return positional, 0, true
-		}
-		positional = append(positional, fs.Arg(0))
-		args = fs.Args()[1:]
-	}
-}
-
 // readProjectFile reads FILE or, for "-", standard input. A file
 // that cannot be opened is bad input (2), as in summarize and correlate:
 // the argument names no readable file.
 func readProjectFile(e *env, name string) (*csvfile.Table, int, error) {
-	var r io.Reader = e.stdin
-	if name != "-" {
-		f, err := os.Open(name)
-		if err != nil {
-			return nil, exitUsage, errors.New("cannot open the file")
-		}
-		defer f.Close()
-		r = f
-	}
-	t, err := csvfile.Read(r)
-	if err != nil {
-		if wardload.ErrorCode(err) == wardload.EINVALID {
-			return nil, exitUsage, err
-		}
+	t, err := readTable(e, name)
+	switch {
+	case errors.Is(err, errCannotOpen):
+		return nil, exitUsage, errors.New("cannot open the file")
+	case wardload.ErrorCode(err) == wardload.EINVALID:
+		return nil, exitUsage, err
+	case err != nil:
 		return nil, exitFailure, errors.New("cannot read the file")
 	}
 	return t, exitOK, nil

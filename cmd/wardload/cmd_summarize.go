@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -65,18 +66,11 @@ func runSummarize(_ context.Context, e *env, args []string) int {
 }
 
 // parseWithFile parses flags that may come before or after the one FILE
-// argument (the standard flag package stops at the first non-flag).
+// argument.
 func parseWithFile(e *env, fs *flag.FlagSet, args []string) (string, int, bool) {
-	var pos []string
-	for {
-		if code, ok := parseFlags(e, fs, args); !ok {
-			return "", code, false
-		}
-		if fs.NArg() == 0 {
-			break
-		}
-		pos = append(pos, fs.Arg(0))
-		args = fs.Args()[1:]
+	pos, code, ok := parseInterleaved(e, fs, args)
+	if !ok {
+		return "", code, false
 	}
 	if len(pos) != 1 {
 		fmt.Fprintf(e.stderr, "wardload %s: exactly one FILE is required (got %d)\n", fs.Name(), len(pos))
@@ -86,19 +80,31 @@ func parseWithFile(e *env, fs *flag.FlagSet, args []string) (string, int, bool) 
 	return pos[0], 0, true
 }
 
-// readCSV reads FILE, or stdin for "-".
-func readCSV(e *env, name, file string) (*csvfile.Table, int, bool) {
+// errCannotOpen is readTable's error for a FILE that cannot be opened.
+var errCannotOpen = errors.New("cannot open the file")
+
+// readTable reads the CSV file FILE, or standard input for "-". Each
+// command words its own messages.
+func readTable(e *env, file string) (*csvfile.Table, error) {
 	var r io.Reader = e.stdin
 	if file != "-" {
 		f, err := os.Open(file)
 		if err != nil {
-			fmt.Fprintf(e.stderr, "wardload %s: cannot open %s\n", name, file)
-			return nil, exitUsage, false
+			return nil, errCannotOpen
 		}
 		defer f.Close()
 		r = f
 	}
-	tab, err := csvfile.Read(r)
+	return csvfile.Read(r)
+}
+
+// readCSV reads FILE, or stdin for "-", for summarize and correlate.
+func readCSV(e *env, name, file string) (*csvfile.Table, int, bool) {
+	tab, err := readTable(e, file)
+	if errors.Is(err, errCannotOpen) {
+		fmt.Fprintf(e.stderr, "wardload %s: cannot open %s\n", name, file)
+		return nil, exitUsage, false
+	}
 	if err != nil {
 		return nil, inputError(e, name, err), false
 	}

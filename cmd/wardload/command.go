@@ -117,8 +117,8 @@ func newFlagSet(e *env, name, argsUsage, summary string) *flag.FlagSet {
 
 // parseFlags parses args; it returns (code, false) when the command should
 // stop: 0 after --help (which prints the usage), 2 after a flag error,
-// reported in one line as parseInterleaved does (the flag package would
-// print its message and then the whole usage).
+// reported in one line (the flag package would print its message and then
+// the whole usage), so that a script sees one clear line.
 func parseFlags(e *env, fs *flag.FlagSet, args []string) (int, bool) {
 	if !fs.Parsed() { // callers that loop over positional arguments parse again
 		if code, ok := applyEnv(e, fs); !ok {
@@ -171,4 +171,21 @@ func applyEnv(e *env, fs *flag.FlagSet) (int, bool) {
 		return exitUsage, false
 	}
 	return 0, true
+}
+
+// parseInterleaved parses flags that may come before and after positional
+// arguments ("project FILE --census …"): Go's flag package stops at the
+// first positional argument, so parsing resumes after each one. It stops
+// as parseFlags does; the environment is applied once, on the first pass.
+func parseInterleaved(e *env, fs *flag.FlagSet, args []string) (positional []string, code int, ok bool) {
+	for {
+		if code, ok := parseFlags(e, fs, args); !ok {
+			return nil, code, false
+		}
+		if fs.NArg() == 0 {
+			return positional, 0, true
+		}
+		positional = append(positional, fs.Arg(0))
+		args = fs.Args()[1:]
+	}
 }

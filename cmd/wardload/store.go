@@ -140,8 +140,9 @@ func (st *openedStore) migrate(ctx context.Context) error {
 	return nil
 }
 
-// schemaVersion returns the newest applied migration, 0 for a fresh
-// database. It reads goose's version table, which both stores use.
+// schemaVersion returns the newest applied migration. It reads goose's
+// version table, which both stores use; a fresh database has none, which
+// is an error, and the version returned with any error is 0.
 func (st *openedStore) schemaVersion(ctx context.Context) (int64, error) {
 	const q = `SELECT COALESCE(MAX(version_id), 0) FROM goose_db_version`
 	var v int64
@@ -154,7 +155,10 @@ func (st *openedStore) schemaVersion(ctx context.Context) (int64, error) {
 	default:
 		err = errors.New("no database handle")
 	}
-	return v, err
+	if err != nil {
+		return 0, err
+	}
+	return v, nil
 }
 
 // oneLine flattens multi-line driver errors so the command prints one line.
