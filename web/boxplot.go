@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 )
 
@@ -60,14 +61,19 @@ type BoxTickVM struct {
 }
 
 // Frame of a box plot, in viewBox units; x beyond boxRight is the
-// "off scale" gutter for values past the axis. The template draws the box
-// from y 8 to 34, the axis at y 44 and the gutter label at x 530.
+// "off scale" gutter for values past the axis, labelled from boxGutterX.
+// The template draws the box from y 8 to 34 and the axis at boxAxisY.
 const (
-	boxW     = 680.0
-	boxH     = 66.0
-	boxLeft  = 16.0
-	boxRight = 520.0
+	boxW       = 680.0
+	boxH       = 66.0
+	boxLeft    = 16.0
+	boxRight   = 520.0
+	boxAxisY   = 44.0
+	boxGutterX = boxRight + 10
 )
+
+// frameNum writes a frame constant for the template: 16, not 16.0.
+func frameNum(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
 
 // NewBoxAxis returns an axis from 0 to a round number at or above hi:
 // care minutes are never negative, so 0 anchors every plot. hi ≤ 0 or not
