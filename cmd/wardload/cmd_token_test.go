@@ -59,23 +59,32 @@ func TestTokenCreateAndRevoke(t *testing.T) {
 
 func TestTokenBadInput(t *testing.T) {
 	dir := t.TempDir()
+	st := openTestStore(t, dir)
+	// A real ward, so that "bad name" fails on the name and not the ward.
+	if err := st.CreateWard(context.Background(), &wardload.Ward{Code: "w2", Name: "Ward w2", TimeZone: "Europe/London"}); err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range []struct {
-		name string
-		args []string
+		name    string
+		args    []string
+		wantErr string
 	}{
-		{"no ward", []string{"token", "create", "--name", "x"}},
-		{"no name", []string{"token", "create", "--ward", "w2"}},
-		{"unknown ward", []string{"token", "create", "--ward", "nope", "--name", "x"}},
-		{"bad name", []string{"token", "create", "--ward", "nope", "--name", "Bad Name"}},
-		{"revoke unknown", []string{"token", "revoke", "nobody"}},
-		{"revoke without name", []string{"token", "revoke"}},
+		{"no ward", []string{"token", "create", "--name", "x"}, "give --ward CODE[,CODE] and --name NAME"},
+		{"no name", []string{"token", "create", "--ward", "w2"}, "give --ward CODE[,CODE] and --name NAME"},
+		{"unknown ward", []string{"token", "create", "--ward", "nope", "--name", "x"}, `no ward with code "nope"`},
+		{"bad name", []string{"token", "create", "--ward", "w2", "--name", "Bad Name"}, "Token name must be"},
+		{"revoke unknown", []string{"token", "revoke", "nobody"}, `no token called "nobody"`},
+		{"revoke without name", []string{"token", "revoke"}, "give exactly one token NAME"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			code, out, errs := runCLI(t, dir, "", tc.args...)
-			if code != exitUsage || out != "" || errs == "" {
-				t.Errorf("= %d, %q, %q; want %d, no output, a message", code, out, errs, exitUsage)
+			if code != exitUsage || out != "" || !strings.Contains(errs, tc.wantErr) {
+				t.Errorf("= %d, %q, %q; want %d, no output, a message with %q", code, out, errs, exitUsage, tc.wantErr)
 			}
 		})
+	}
+	if _, err := st.FindTokenByName(context.Background(), "x"); wardload.ErrorCode(err) != wardload.ENOTFOUND {
+		t.Errorf("a refused token was stored: %v", err)
 	}
 }
 
