@@ -25,6 +25,8 @@ import (
 	"time"
 
 	"golang.org/x/net/html"
+
+	"wardload/internal/projector"
 )
 
 func main() {
@@ -90,7 +92,7 @@ func run(base, user, pw, ward string, n int, target time.Duration) error {
 	// The window ends MaxDaysAhead days after the ward's today: save for
 	// today and the two days before, across every shift.
 	var dates []string
-	for d := 2; d <= 4; d++ {
+	for d := projector.MaxDaysAhead; d <= projector.MaxDaysAhead+2; d++ {
 		dates = append(dates, maxDate.AddDate(0, 0, -d).Format("2006-01-02"))
 	}
 	q := url.Values{"date": {dates[0]}, "shift": {shifts[0]}}
