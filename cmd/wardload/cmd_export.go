@@ -44,7 +44,8 @@ func runExportProjections(ctx context.Context, e *env, args []string) int {
 	if *wardCode == "" {
 		return usageErr("--ward is required")
 	}
-	if *format != "csv" && *format != "json" {
+	fmtOut, ok := export.ParseFormat(*format)
+	if !ok {
 		return usageErr("--format must be csv or json")
 	}
 	var dates [2]wardload.Date
@@ -81,12 +82,7 @@ func runExportProjections(ctx context.Context, e *env, args []string) int {
 	}
 	// Buffered, so that a failure never leaves half an export on stdout.
 	var b bytes.Buffer
-	if *format == "csv" {
-		err = export.WriteCSV(&b, tiers, rows)
-	} else {
-		err = export.WriteJSON(&b, ward, from, to, tiers, rows)
-	}
-	if err != nil {
+	if err := export.Write(&b, fmtOut, ward, from, to, tiers, rows); err != nil {
 		fmt.Fprintf(e.stderr, "wardload %s: %v\n", name, err)
 		return exitFailure
 	}

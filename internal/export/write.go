@@ -96,25 +96,50 @@ func WriteCSV(w io.Writer, tiers []*wardload.Tier, rows []Row) error {
 // that the census_<code> columns are gathered into one "census" object
 // (keys in tier order). Numbers are JSON numbers with exactly the CSV's
 // digits; a missing floor is null. The object ends with a newline.
+//
+// The object is built whole and checked before anything reaches w; when w
+// is a *bytes.Buffer it is built in place (no second copy), and on failure
+// the buffer is cut back to its length on entry.
 func WriteJSON(w io.Writer, ward *wardload.Ward, from, to wardload.Date, tiers []*wardload.Tier, rows []Row) error {
-	var b bytes.Buffer
+	b, inPlace := w.(*bytes.Buffer)
+	if !inPlace {
+		b = new(bytes.Buffer)
+	}
+	start := b.Len()
+	if err := buildJSON(b, ward, from, to, tiers, rows); err != nil {
+		b.Truncate(start)
+		return err
+	}
+	if !json.Valid(b.Bytes()[start:]) {
+		b.Truncate(start)
+		return fmt.Errorf("export: built invalid JSON")
+	}
+	if inPlace {
+		return nil
+	}
+	_, err := w.Write(b.Bytes())
+	return err
+}
+
+// buildJSON appends WriteJSON's object to b.
+func buildJSON(b *bytes.Buffer, ward *wardload.Ward, from, to wardload.Date, tiers []*wardload.Tier, rows []Row) error {
 	b.WriteString("{")
-	key(&b, "ward", ward.Code)
+	key(b, "ward", ward.Code)
 	b.WriteString(",")
-	key(&b, "from", from.String())
+	key(b, "from", from.String())
 	b.WriteString(",")
-	key(&b, "to", to.String())
+	key(b, "to", to.String())
 	b.WriteString(",")
-	key(&b, "caution", stats.Caution)
+	key(b, "caution", stats.Caution)
 	b.WriteString(`,"tiers":[`)
 	for i, t := range tiers {
 		if i > 0 {
 			b.WriteString(",")
 		}
 		b.WriteString("{")
-		key(&b, "code", t.Code)
+		key(b, "code", t.Code)
 		b.WriteString(",")
-		key(&b, "label", t.Label)
+		key(b, "label", t.Label)
 		b.WriteString("}")
 	}
 	b.WriteString(`],"rows":[`)
@@ -160,16 +185,12 @@ func WriteJSON(w io.Writer, ward *wardload.Ward, from, to wardload.Date, tiers [
 			if k > 0 {
 				b.WriteString(",")
 			}
-			key(&b, kv.k, kv.v)
+			key(b, kv.k, kv.v)
 		}
 		b.WriteString("}")
 	}
 	b.WriteString("\n]}\n")
-	if !json.Valid(b.Bytes()) {
-		return fmt.Errorf("export: built invalid JSON")
-	}
-	_, err := w.Write(b.Bytes())
-	return err
+	return nil
 }
 
 // key writes "k":v with v JSON-encoded (a json.RawMessage as it is).

@@ -38,12 +38,13 @@ func (s *Server) handleAPIProjections(w http.ResponseWriter, r *http.Request) er
 	if !slices.Contains(principalFrom(r.Context()).Token.WardIDs, ward.ID) {
 		return wardload.FieldErrorf(wardload.EFORBIDDEN, "ward", "This token may not read this ward.")
 	}
-	format := "json"
+	format := export.JSON
 	if _, ok := q["format"]; ok {
-		if format, err = oneParam(q["format"], "format", "Format must be json or csv."); err != nil {
+		v, err := oneParam(q["format"], "format", "Format must be json or csv.")
+		if err != nil {
 			return err
 		}
-		if format != "json" && format != "csv" {
+		if format, ok = export.ParseFormat(v); !ok {
 			return wardload.FieldErrorf(wardload.EINVALID, "format", "Format must be json or csv.")
 		}
 	}
@@ -60,17 +61,10 @@ func (s *Server) handleAPIProjections(w http.ResponseWriter, r *http.Request) er
 		return err // EINVALID names from or to
 	}
 	var buf bytes.Buffer
-	ctype := "application/json; charset=utf-8"
-	if format == "csv" {
-		ctype = "text/csv; charset=utf-8"
-		err = export.WriteCSV(&buf, tiers, rows)
-	} else {
-		err = export.WriteJSON(&buf, ward, from, to, tiers, rows)
-	}
-	if err != nil {
+	if err := export.Write(&buf, format, ward, from, to, tiers, rows); err != nil {
 		return fmt.Errorf("api projections: %w", err)
 	}
-	w.Header().Set("Content-Type", ctype)
+	w.Header().Set("Content-Type", format.ContentType())
 	w.Header().Set("Cache-Control", "no-store")
 	w.WriteHeader(http.StatusOK)
 	_, err = w.Write(buf.Bytes())

@@ -107,19 +107,19 @@ func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error
 // handleProjectionsCSV downloads the shift list's range as the roster
 // export's CSV.
 func (s *Server) handleProjectionsCSV(w http.ResponseWriter, r *http.Request) error {
-	return s.download(w, r, "csv")
+	return s.download(w, r, export.CSV)
 }
 
 // handleProjectionsJSON downloads the shift list's range as the roster
 // export's JSON.
 func (s *Server) handleProjectionsJSON(w http.ResponseWriter, r *http.Request) error {
-	return s.download(w, r, "json")
+	return s.download(w, r, export.JSON)
 }
 
 // download writes export.WriteCSV or WriteJSON of the range into a buffer,
 // so a failure is an error page and not half a file, and sends it as an
 // attachment named wardload-<ward>-<from>-<to>.<format>.
-func (s *Server) download(w http.ResponseWriter, r *http.Request, format string) error {
+func (s *Server) download(w http.ResponseWriter, r *http.Request, format export.Format) error {
 	ward := principalFrom(r.Context()).Ward
 	from, to, err := s.listRange(r, ward)
 	if err != nil {
@@ -130,18 +130,11 @@ func (s *Server) download(w http.ResponseWriter, r *http.Request, format string)
 		return err
 	}
 	var buf bytes.Buffer
-	ctype := "text/csv; charset=utf-8"
-	if format == "csv" {
-		err = export.WriteCSV(&buf, tiers, rows)
-	} else {
-		ctype = "application/json; charset=utf-8"
-		err = export.WriteJSON(&buf, ward, from, to, tiers, rows)
-	}
-	if err != nil {
+	if err := export.Write(&buf, format, ward, from, to, tiers, rows); err != nil {
 		return fmt.Errorf("download %s: %w", format, err)
 	}
 	h := w.Header()
-	h.Set("Content-Type", ctype)
+	h.Set("Content-Type", format.ContentType())
 	h.Set("Content-Disposition", fmt.Sprintf(`attachment; filename="wardload-%s-%s-%s.%s"`, ward.Code, from, to, format))
 	h.Set("Cache-Control", "no-store")
 	w.WriteHeader(http.StatusOK)
