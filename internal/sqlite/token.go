@@ -3,7 +3,6 @@ package sqlite
 import (
 	"context"
 	"database/sql"
-	"slices"
 	"time"
 
 	"wardload/internal/wardload"
@@ -38,14 +37,9 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 		if err != nil {
 			return err
 		}
-		wards := slices.Compact(slices.Sorted(slices.Values(t.WardIDs)))
-		for _, w := range wards {
-			if err := wardExists(ctx, tx, w); err != nil {
-				return err
-			}
-			if _, err := tx.ExecContext(ctx, `INSERT INTO token_wards (token_id, ward_id) VALUES (?, ?)`, id, w); err != nil {
-				return err
-			}
+		wards, err := setMemberships(ctx, tx, `token_wards`, `token_id`, id, t.WardIDs)
+		if err != nil {
+			return err
 		}
 		t.ID, t.CreatedAt, t.WardIDs = id, tx.now, wards
 		// One row per ward, so each ward's managers see the token in their audit log.

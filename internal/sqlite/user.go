@@ -41,7 +41,7 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 		if err != nil {
 			return err
 		}
-		wards, err := replaceUserWards(ctx, tx, id, u.WardIDs)
+		wards, err := setMemberships(ctx, tx, `user_wards`, `user_id`, id, u.WardIDs)
 		if err != nil {
 			return err
 		}
@@ -50,20 +50,24 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 	})
 }
 
-// replaceUserWards sets a user's memberships and returns them ascending.
-// An unknown ward is ENOTFOUND.
-func replaceUserWards(ctx context.Context, tx *Tx, userID int64, wardIDs []int64) ([]int64, error) {
+// setMemberships replaces the ward links of a user or token (table and its
+// owner column) and returns the ward IDs ascending and without repeats. An
+// unknown ward is ENOTFOUND naming field "wards", as in PostgreSQL.
+func setMemberships(ctx context.Context, tx *Tx, table, column string, id int64, wardIDs []int64) ([]int64, error) {
 	ids := slices.Clone(wardIDs)
 	slices.Sort(ids)
 	ids = slices.Compact(ids)
-	if _, err := tx.ExecContext(ctx, `DELETE FROM user_wards WHERE user_id = ?`, userID); err != nil {
+	if _, err := tx.ExecContext(ctx, `DELETE FROM `+table+` WHERE `+column+` = ?`, id); err != nil {
 		return nil, err
 	}
 	for _, w := range ids {
 		if err := wardExists(ctx, tx, w); err != nil {
+			if wardload.ErrorCode(err) == wardload.ENOTFOUND {
+				return nil, wardload.FieldErrorf(wardload.ENOTFOUND, "wards", "Ward %d not found.", w)
+			}
 			return nil, err
 		}
-		if _, err := tx.ExecContext(ctx, `INSERT INTO user_wards (user_id, ward_id) VALUES (?, ?)`, userID, w); err != nil {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO `+table+` (`+column+`, ward_id) VALUES (?, ?)`, id, w); err != nil {
 			return nil, err
 		}
 	}
@@ -111,7 +115,7 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 			return err
 		}
 		if upd.WardIDs != nil {
-			if u.WardIDs, err = replaceUserWards(ctx, tx, id, upd.WardIDs); err != nil {
+			if u.WardIDs, err = setMemberships(ctx, tx, `user_wards`, `user_id`, id, upd.WardIDs); err != nil {
 				return err
 			}
 		}

@@ -79,7 +79,7 @@ func tokenCases() []testCase {
 			wantErr(t, f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "Bad Name", Hash: hashOf("b"), WardIDs: []int64{w.ward.ID}}), wardload.EINVALID, "name")
 			wantErr(t, f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "two", Hash: "short", WardIDs: []int64{w.ward.ID}}), wardload.EINVALID, "hash")
 			wantErr(t, f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "two", Hash: hashOf("b")}), wardload.EINVALID, "wards")
-			wantErr(t, f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "two", Hash: hashOf("b"), WardIDs: []int64{9999}}), wardload.ENOTFOUND, "")
+			wantErr(t, f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "two", Hash: hashOf("b"), WardIDs: []int64{9999}}), wardload.ENOTFOUND, "wards")
 			wantErr(t, f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "one", Hash: hashOf("b"), WardIDs: []int64{w.ward.ID}}), wardload.ECONFLICT, "name")
 			err := f.store.CreateToken(f.ctx, &wardload.APIToken{Name: "two", Hash: hashOf("a"), WardIDs: []int64{w.ward.ID}})
 			wantErr(t, err, wardload.ECONFLICT, "")
