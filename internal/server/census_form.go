@@ -8,18 +8,13 @@ import (
 	"wardload/internal/wardload"
 )
 
-// maxCensusCount is the largest patient count one tier field accepts: the
-// plausibility cap of wardload.Census.Validate, checked here already so the
-// form can name the field.
-const maxCensusCount = 10_000
-
 // censusField is the form field of a tier's patient count.
 func censusField(t *wardload.Tier) string { return "tier_" + t.Code }
 
 // parseCensusForm reads one patient count per tier from a census form:
 // field "tier_<code>" for each of tiers, in their order. Only those fields
 // are read; anything else in the form is ignored. A count must be a whole
-// number from 0 to maxCensusCount written with the digits 0–9 only (no
+// number from 0 to wardload.MaxCensusCount written with the digits 0–9 only (no
 // sign, decimal point or exponent). The second result maps each bad
 // field's name to a message for the person at the form; when it is empty
 // the counts are complete and valid.
@@ -46,7 +41,9 @@ func parseCensusForm(form url.Values, tiers []*wardload.Tier) ([]wardload.TierCo
 			errs[name] = "Enter a whole number, such as 4."
 		default:
 			n, err := strconv.Atoi(v)
-			if err != nil || n > maxCensusCount {
+			// The cap of wardload.Census.Validate, checked here already so
+			// the message can name the field.
+			if err != nil || n > wardload.MaxCensusCount {
 				errs[name] = "That count is not plausible for one ward; please check it."
 				continue
 			}

@@ -142,7 +142,7 @@ func (s *Server) handleImportTemplate(w http.ResponseWriter, r *http.Request) er
 
 // earliestObservation is the oldest date an import accepts: older records
 // are almost certainly a mistyped year, and the model never looks back
-// that far (lookback is at most 104 weeks).
+// that far (lookback is at most wardload.MaxLookbackWeeks).
 var earliestObservation = wardload.Date{Year: 2000, Month: time.January, Day: 1}
 
 // checkObservationDates refuses observations dated after today in the

@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"wardload/internal/projector"
 	"wardload/internal/stats"
 	"wardload/internal/wardload"
 	"wardload/web"
@@ -34,6 +35,13 @@ type reviewData struct {
 
 func reviewURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/review" }
 
+// reviewWeeks reads a weeks parameter: a whole number of weeks the
+// settings' lookback could also be.
+func reviewWeeks(s string) (int, bool) {
+	n, err := strconv.Atoi(s)
+	return n, err == nil && n >= 1 && n <= wardload.MaxLookbackWeeks
+}
+
 // reviewQuery is the review's address with a shift and weeks, as the
 // exclude and restore forms send them back.
 func reviewQuery(ward *wardload.Ward, shift, weeks string) string {
@@ -41,7 +49,7 @@ func reviewQuery(ward *wardload.Ward, shift, weeks string) string {
 	if id, err := strconv.ParseInt(shift, 10, 64); err == nil && id > 0 {
 		q.Set("shift", strconv.FormatInt(id, 10))
 	}
-	if n, err := strconv.Atoi(weeks); err == nil && n >= 1 && n <= 104 {
+	if n, ok := reviewWeeks(weeks); ok {
 		q.Set("weeks", strconv.Itoa(n))
 	}
 	if len(q) == 0 {
@@ -70,9 +78,9 @@ func (s *Server) loadReview(r *http.Request, shift, weeks string) (*reviewData, 
 	}
 	p := reviewParams{weeks: d.settings.LookbackWeeks}
 	if w := strings.TrimSpace(weeks); w != "" {
-		n, err := strconv.Atoi(w)
-		if err != nil || n < 1 || n > 104 {
-			return nil, wardload.FieldErrorf(wardload.EINVALID, "weeks", "Weeks must be a whole number from 1 to 104.")
+		n, ok := reviewWeeks(w)
+		if !ok {
+			return nil, wardload.FieldErrorf(wardload.EINVALID, "weeks", "Weeks must be a whole number from 1 to %d.", wardload.MaxLookbackWeeks)
 		}
 		p.weeks = n
 	}
@@ -87,7 +95,7 @@ func (s *Server) loadReview(r *http.Request, shift, weeks string) (*reviewData, 
 	if err != nil {
 		return nil, fmt.Errorf("review: %w", err)
 	}
-	today := wardload.DateOf(s.now().In(loc))
+	today := projector.Today(s.now(), loc)
 	p.from, p.to = today.AddDays(-7*p.weeks), today.AddDays(-1)
 	d.params = p
 	f := wardload.ObservationFilter{WardID: &ward.ID, From: &p.from, To: &p.to, IncludeExcluded: true}

@@ -82,8 +82,9 @@ func (s *Server) handleFloorsSave(w http.ResponseWriter, r *http.Request) error 
 		if _, bad := errs[field]; bad {
 			return
 		}
-		if !(v >= wardload.MinPatientsPerNurse && v <= 50) {
-			errs[field] = "Patients per nurse must be between 0.5 (two nurses per patient) and 50."
+		if !(v >= wardload.MinPatientsPerNurse && v <= wardload.MaxPatientsPerNurse) {
+			errs[field] = fmt.Sprintf("Patients per nurse must be between %g (two nurses per patient) and %d.",
+				wardload.MinPatientsPerNurse, wardload.MaxPatientsPerNurse)
 			return
 		}
 		floors = append(floors, wardload.RatioFloor{ShiftID: shiftID, TierID: tierID, PatientsPerNurse: v, ChargeNurseCounts: counts})

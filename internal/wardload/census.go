@@ -5,6 +5,11 @@ import (
 	"time"
 )
 
+// MaxCensusCount is the largest patient count of one tier in one census:
+// a plausibility bound that catches a typo, far above any ward's beds
+// (common practice, no source).
+const MaxCensusCount = 10000
+
 // TierCount is the number of patients in one tier.
 type TierCount struct {
 	TierID   int64
@@ -57,7 +62,7 @@ func (c *Census) Validate() error {
 		if tc.Patients < 0 {
 			return FieldErrorf(EINVALID, "patients", "Patient counts must be whole numbers of at least 0.")
 		}
-		if tc.Patients > 10000 {
+		if tc.Patients > MaxCensusCount {
 			return FieldErrorf(EINVALID, "patients", "A patient count of %d is not plausible for one ward.", tc.Patients)
 		}
 	}

@@ -29,6 +29,16 @@ const (
 	MinPatientsPerNurse   = 0.5
 )
 
+// Upper bounds of the settings a ward may save (see Settings.Validate).
+const (
+	// MaxPatientsPerNurse is the loosest ratio floor: a plausibility bound
+	// that catches a typo, not a staffing standard (common practice, no source).
+	MaxPatientsPerNurse = 50
+	// MaxLookbackWeeks is two years of observations, more than any seasonal
+	// comparison needs: a plausibility bound (common practice, no source).
+	MaxLookbackWeeks = 104
+)
+
 // RatioFloor is a minimum nurse-to-patient ratio for one shift pattern:
 // at most PatientsPerNurse patients per nurse. When TierID is not 0 the
 // floor applies to that tier's patients only; the ward floor is then the
@@ -48,7 +58,7 @@ type Settings struct {
 	WardID             int64
 	DirectCareFraction float64 // share of a nurse's shift available for direct care, (0, 1]
 	CoverLevel         float64 // the one-sided probability staffing should cover, (0, 1)
-	LookbackWeeks      int     // weeks of observations the model uses, 1..104
+	LookbackWeeks      int     // weeks of observations the model uses, 1..MaxLookbackWeeks
 	Quartiles          string  // a Quartiles* constant
 	Beds               int     // 0: not configured
 	Floors             []RatioFloor
@@ -89,8 +99,8 @@ func (s *Settings) Validate() error {
 	if math.IsNaN(s.CoverLevel) || !(s.CoverLevel > 0 && s.CoverLevel < 1) {
 		return FieldErrorf(EINVALID, "cover_level", "Cover level must be between 0 and 1 (for example 0.9).")
 	}
-	if s.LookbackWeeks < 1 || s.LookbackWeeks > 104 {
-		return FieldErrorf(EINVALID, "lookback_weeks", "Lookback must be 1 to 104 weeks.")
+	if s.LookbackWeeks < 1 || s.LookbackWeeks > MaxLookbackWeeks {
+		return FieldErrorf(EINVALID, "lookback_weeks", "Lookback must be 1 to %d weeks.", MaxLookbackWeeks)
 	}
 	if !ValidQuartiles(s.Quartiles) {
 		return FieldErrorf(EINVALID, "quartiles", "Unknown quartile convention %q.", s.Quartiles)
@@ -104,8 +114,8 @@ func (s *Settings) Validate() error {
 		if f.ShiftID == 0 {
 			return FieldErrorf(EINVALID, "floors", "Each ratio floor needs a shift.")
 		}
-		if math.IsNaN(f.PatientsPerNurse) || !(f.PatientsPerNurse >= MinPatientsPerNurse && f.PatientsPerNurse <= 50) {
-			return FieldErrorf(EINVALID, "floors", "Patients per nurse must be between 0.5 (two nurses per patient) and 50.")
+		if math.IsNaN(f.PatientsPerNurse) || !(f.PatientsPerNurse >= MinPatientsPerNurse && f.PatientsPerNurse <= MaxPatientsPerNurse) {
+			return FieldErrorf(EINVALID, "floors", "Patients per nurse must be between %g (two nurses per patient) and %d.", MinPatientsPerNurse, MaxPatientsPerNurse)
 		}
 		k := key{f.ShiftID, f.TierID}
 		if seen[k] {
