@@ -2,7 +2,6 @@ package wardload
 
 import (
 	"context"
-	"strings"
 	"time"
 )
 
@@ -24,7 +23,8 @@ func (t *APIToken) Active() bool { return t.RevokedAt.IsZero() }
 
 // Validate checks the token's own fields.
 func (t *APIToken) Validate() error {
-	if n := strings.TrimSpace(t.Name); !ValidCode(n) {
+	// The name itself, not a trimmed copy: the name is stored as given.
+	if !ValidCode(t.Name) {
 		return FieldErrorf(EINVALID, "name", "Token name must be 1–32 lowercase letters, digits, '-' or '_'.")
 	}
 	if len(t.Hash) != 64 {

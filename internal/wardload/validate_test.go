@@ -171,3 +171,19 @@ func TestNamesRefuseBidiControls(t *testing.T) {
 		t.Errorf("ordinary non-Latin name refused: %v", err)
 	}
 }
+
+// The token's name is stored as given, so a name with spaces around it is
+// refused rather than stored with them.
+func TestTokenNameIsNotTrimmed(t *testing.T) {
+	tok := wardload.APIToken{Hash: "0123456789abcdef0123456789abcdef0123456789abcdef0123456789abcdef", WardIDs: []int64{1}}
+	for _, name := range []string{" tok", "tok ", "\ttok", "tok\n"} {
+		tok.Name = name
+		if err := tok.Validate(); wardload.ErrorCode(err) != wardload.EINVALID || wardload.ErrorField(err) != "name" {
+			t.Errorf("name %q: %v, want EINVALID name", name, err)
+		}
+	}
+	tok.Name = "tok"
+	if err := tok.Validate(); err != nil {
+		t.Errorf("name %q: %v", tok.Name, err)
+	}
+}
