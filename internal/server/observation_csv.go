@@ -101,7 +101,9 @@ func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tie
 			if c < 0 || strings.TrimSpace(t.Records[i][c]) == "" {
 				continue
 			}
-			v, err := factorValue(t, f, i)
+			// csvfile's number rules, so a factor reads exactly as the
+			// other numeric columns do.
+			v, err := t.Float(i, f)
 			if err != nil {
 				return nil, nil, err
 			}
@@ -124,17 +126,6 @@ func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tie
 		obs[i] = o
 	}
 	return obs, t.Lines, nil
-}
-
-// factorValue reads one factor cell through csvfile's number rules, so a
-// factor reads exactly as the other numeric columns do.
-func factorValue(t *csvfile.Table, name string, i int) (float64, error) {
-	one := &csvfile.Table{Header: []string{name}, Records: [][]string{{t.Records[i][t.Index(name)]}}, Lines: []int{t.Lines[i]}}
-	col, err := one.Floats(name)
-	if err != nil {
-		return 0, err
-	}
-	return col.Values[0], nil
 }
 
 func shiftList(shifts []*wardload.ShiftPattern) string {
