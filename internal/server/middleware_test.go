@@ -2,11 +2,14 @@ package server
 
 import (
 	"bytes"
+	"fmt"
 	"io"
 	"net/http"
 	"net/http/httptest"
 	"strings"
 	"testing"
+
+	"wardload/internal/demo"
 )
 
 func TestSecurityHeadersOnEveryResponse(t *testing.T) {
@@ -47,15 +50,36 @@ func TestSecurityHeadersOnEveryResponse(t *testing.T) {
 func TestNoInlineScriptOrStyle(t *testing.T) {
 	// The CSP forbids inline script and style; a template that used them
 	// would silently break in browsers.
-	s, _ := MustNew(t, newFakeStore())
-	for _, path := range []string{"/", "/signin", "/no/such/page"} {
-		_, body := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", path, nil)))
+	check := func(path, body string) {
+		t.Helper()
 		for _, bad := range []string{"<script", "<style", "style=", "onclick=", "onload=", "javascript:"} {
 			if strings.Contains(strings.ToLower(body), bad) {
 				t.Errorf("%s contains %q", path, bad)
 			}
 		}
 	}
+	s, _ := MustNew(t, newFakeStore())
+	for _, path := range []string{"/", "/signin", "/no/such/page"} {
+		_, body := do(t, s.Handler(), asUser(t, s, fakeAdmin.ID, httptest.NewRequest("GET", path, nil)))
+		check(path, body)
+	}
+	// The SVG-heavy pages: a projection's chart and the review's box
+	// plots, where an inline style attribute would be easiest to slip in.
+	cf := newCensusFixture(t)
+	p := cf.mustProject(t, pNurseA, cf.a, "2026-03-02", cf.a.day, 4, 6, 3, 0)
+	path := fmt.Sprintf("/wards/w-a/projections/%d", p.ID)
+	res, body := cf.do(t, cf.as(t, pNurseA, httptest.NewRequest("GET", path, nil)))
+	if res.StatusCode != http.StatusOK || !strings.Contains(body, "<svg") {
+		t.Fatalf("%s: status %d, svg %v", path, res.StatusCode, strings.Contains(body, "<svg"))
+	}
+	check(path, body)
+	rf := newReviewFixture(t)
+	path = "/wards/" + demo.WardCode + "/review?weeks=10"
+	res, body = rf.do(t, rf.as(t, pAdmin, httptest.NewRequest("GET", path, nil)))
+	if res.StatusCode != http.StatusOK || !strings.Contains(body, "<svg") {
+		t.Fatalf("%s: status %d, svg %v", path, res.StatusCode, strings.Contains(body, "<svg"))
+	}
+	check(path, body)
 }
 
 func TestRequestIDIsOurs(t *testing.T) {

@@ -61,8 +61,8 @@ var nav = []navItem{
 func (s *Server) layout(r *http.Request, title string) web.LayoutVM {
 	vm := web.LayoutVM{
 		Title:      title,
-		Stylesheet: s.assets.URL("wardload.css"),
-		Icon:       s.assets.URL("favicon.svg"),
+		Stylesheet: s.stylesheetURL,
+		Icon:       s.iconURL,
 	}
 	u := principalFrom(r.Context()).User
 	if u == nil {

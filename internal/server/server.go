@@ -120,6 +120,8 @@ type Server struct {
 	// projections caches the projection-specific part of projection
 	// pages; stored projections never change.
 	projections *projectionCache
+	// The layout's versioned asset URLs, fixed once the assets are loaded.
+	stylesheetURL, iconURL string
 }
 
 // New checks cfg, fills zero limits from DefaultConfig and builds the
@@ -157,6 +159,7 @@ func New(cfg Config) (*Server, error) {
 		return nil, fmt.Errorf("server: static assets: %w", err)
 	}
 	s := &Server{cfg: cfg, log: cfg.Logger, store: cfg.Store, now: cfg.Now, assets: a,
+		stylesheetURL: a.URL("wardload.css"), iconURL: a.URL("favicon.svg"),
 		sessions:     newSessions(cfg),
 		acctThrottle: newThrottle(3, 15*time.Minute),
 		addrThrottle: newThrottle(20, 15*time.Minute),
