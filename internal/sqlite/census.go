@@ -2,6 +2,7 @@ package sqlite
 
 import (
 	"context"
+	"slices"
 	"strings"
 
 	"wardload/internal/wardload"
@@ -25,11 +26,13 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 	} else if !ok {
 		return wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found for this ward.")
 	}
+	tiers, err := idList(ctx, tx, `SELECT id FROM tiers WHERE ward_id = ? ORDER BY id`, c.WardID)
+	if err != nil {
+		return err
+	}
 	given := map[int64]int{}
 	for _, tc := range c.Counts {
-		if ok, err := tierOfWard(ctx, tx, c.WardID, tc.TierID); err != nil {
-			return err
-		} else if !ok {
+		if !slices.Contains(tiers, tc.TierID) {
 			return wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "Tier not found for this ward.")
 		}
 		given[tc.TierID] = tc.Patients
@@ -49,10 +52,6 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 		return err
 	}
 	// Every tier of the ward gets a row: a tier left out was counted as empty.
-	tiers, err := wardTierIDs(ctx, tx, c.WardID)
-	if err != nil {
-		return err
-	}
 	for _, tid := range tiers {
 		if _, err := tx.ExecContext(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES (?, ?, ?)`, id, tid, given[tid]); err != nil {
 			return err
@@ -64,23 +63,6 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 	}
 	c.ID, c.Revision, c.EnteredAt = id, rev, tx.now
 	return tx.audit("census.create", "census", id, c.WardID, nil, stored)
-}
-
-func wardTierIDs(ctx context.Context, q querier, wardID int64) ([]int64, error) {
-	rows, err := q.QueryContext(ctx, `SELECT id FROM tiers WHERE ward_id = ? ORDER BY id`, wardID)
-	if err != nil {
-		return nil, err
-	}
-	defer rows.Close()
-	var ids []int64
-	for rows.Next() {
-		var id int64
-		if err := rows.Scan(&id); err != nil {
-			return nil, err
-		}
-		ids = append(ids, id)
-	}
-	return ids, rows.Err()
 }
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.
@@ -128,9 +110,13 @@ func findCensus(ctx context.Context, q querier, f wardload.CensusFilter, id int6
 			WHERE l.ward_id = c.ward_id AND l.date = c.date AND l.shift_id = c.shift_id)`)
 	}
 	cond := strings.Join(where, " AND ")
-	var total int
-	if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM census c WHERE `+cond, args...).Scan(&total); err != nil {
-		return nil, 0, err
+	// Without a page the total is the number of rows: spare the count
+	// query (by-ID lookups run on every census and projection page).
+	total := -1
+	if f.Offset > 0 || f.Limit > 0 {
+		if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM census c WHERE `+cond, args...).Scan(&total); err != nil {
+			return nil, 0, err
+		}
 	}
 	rows, err := q.QueryContext(ctx, page(`SELECT c.id, c.ward_id, c.date, c.shift_id, c.revision, c.entered_by, c.entered_at
 		FROM census c JOIN shift_patterns p ON p.id = c.shift_id
@@ -162,6 +148,9 @@ func findCensus(ctx context.Context, q querier, f wardload.CensusFilter, id int6
 		if c.Counts, err = censusCounts(ctx, q, c.ID); err != nil {
 			return nil, 0, err
 		}
+	}
+	if total < 0 {
+		total = len(cs)
 	}
 	return cs, total, nil
 }

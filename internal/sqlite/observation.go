@@ -35,18 +35,14 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 		for i, o := range obs {
 			named, seen := factors[o.WardID]
 			if !seen {
-				if err := wardExists(ctx, tx, o.WardID); err != nil {
-					if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-						return rowError(i, wardload.FieldErrorf(wardload.EINVALID, "ward", "Unknown ward."))
-					}
-					return err
-				}
-				names, err := wardFactors(ctx, tx, o.WardID)
-				if err != nil {
+				w, err := findWard(ctx, tx, o.WardID)
+				if wardload.ErrorCode(err) == wardload.ENOTFOUND {
+					return rowError(i, wardload.FieldErrorf(wardload.EINVALID, "ward", "Unknown ward."))
+				} else if err != nil {
 					return err
 				}
 				named = map[string]bool{}
-				for _, n := range names {
+				for _, n := range w.FactorNames {
 					named[n] = true
 				}
 				factors[o.WardID] = named
@@ -235,9 +231,13 @@ func findObservations(ctx context.Context, q querier, f wardload.ObservationFilt
 		where = append(where, "excluded = 0")
 	}
 	cond := strings.Join(where, " AND ")
-	var total int
-	if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM observations WHERE `+cond, args...).Scan(&total); err != nil {
-		return nil, 0, err
+	// Without a page the total is the number of rows: spare the count
+	// query (exclude and restore look one up by ID).
+	total := -1
+	if f.Offset > 0 || f.Limit > 0 {
+		if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM observations WHERE `+cond, args...).Scan(&total); err != nil {
+			return nil, 0, err
+		}
 	}
 	rows, err := q.QueryContext(ctx, page(`SELECT id, ward_id, tier_id, date, shift_id, window_hours, care_minutes,
 		entered_by, entered_at, batch_id, excluded, excluded_reason, excluded_by, excluded_at
@@ -274,6 +274,9 @@ func findObservations(ctx context.Context, q querier, f wardload.ObservationFilt
 	rows.Close()
 	if err := loadFactors(ctx, q, os, byID); err != nil {
 		return nil, 0, err
+	}
+	if total < 0 {
+		total = len(os)
 	}
 	return os, total, nil
 }

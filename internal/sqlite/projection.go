@@ -90,14 +90,13 @@ func (s *Store) FindProjectionByID(ctx context.Context, id int64) (*wardload.Pro
 // FindProjections returns matches newest first (date, shift start and
 // census revision descending, then ID descending) and the total.
 func (s *Store) FindProjections(ctx context.Context, f wardload.ProjectionFilter) ([]*wardload.Projection, int, error) {
-	ps, n, err := findProjections(ctx, s.r, f, 0)
-	return ps, n, formatError(err)
+	return findProjections(ctx, s.r, f, 0)
 }
 
 func findOneProjection(ctx context.Context, q querier, id int64) (*wardload.Projection, error) {
 	ps, _, err := findProjections(ctx, q, wardload.ProjectionFilter{}, id)
 	if err != nil {
-		return nil, formatError(err)
+		return nil, err
 	}
 	if len(ps) == 0 {
 		return nil, wardload.Errorf(wardload.ENOTFOUND, "Projection not found.")
@@ -133,9 +132,13 @@ func findProjections(ctx context.Context, q querier, f wardload.ProjectionFilter
 			WHERE l.ward_id = p.ward_id AND l.date = p.date AND l.shift_id = p.shift_id)`)
 	}
 	cond := strings.Join(where, " AND ")
-	var total int
-	if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM projections p WHERE `+cond, args...).Scan(&total); err != nil {
-		return nil, 0, err
+	// Without a page the total is the number of rows: spare the count
+	// query (the projection page looks one up by ID).
+	total := -1
+	if f.Offset > 0 || f.Limit > 0 {
+		if err := q.QueryRowContext(ctx, `SELECT COUNT(*) FROM projections p WHERE `+cond, args...).Scan(&total); err != nil {
+			return nil, 0, err
+		}
 	}
 	rows, err := q.QueryContext(ctx, page(`SELECT `+projectionColumns+` FROM projections p WHERE `+cond+`
 		ORDER BY p.date DESC, p.start_at DESC, p.census_revision DESC, p.id DESC`, f.Offset, f.Limit), args...)
@@ -159,6 +162,9 @@ func findProjections(ctx context.Context, q querier, f wardload.ProjectionFilter
 		if p.Counts, err = censusCounts(ctx, q, p.CensusID); err != nil {
 			return nil, 0, err
 		}
+	}
+	if total < 0 {
+		total = len(ps)
 	}
 	return ps, total, nil
 }
@@ -207,7 +213,7 @@ func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload
 		WHERE c.ward_id = ? AND c.date = ? AND c.shift_id = ?
 		ORDER BY c.revision DESC`, wardID, d.String(), shiftID)
 	if err != nil {
-		return nil, formatError(err)
+		return nil, err
 	}
 	defer rows.Close()
 	var rs []*wardload.ShiftRevision
@@ -215,12 +221,12 @@ func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload
 		var r wardload.ShiftRevision
 		var entered string
 		if err := rows.Scan(&r.CensusID, &r.Revision, &entered, &r.TotalPatients, &r.ProjectionID, &r.Recommended); err != nil {
-			return nil, formatError(err)
+			return nil, err
 		}
 		if r.EnteredAt, err = parseTime(entered); err != nil {
 			return nil, err
 		}
 		rs = append(rs, &r)
 	}
-	return rs, formatError(rows.Err())
+	return rs, rows.Err()
 }

@@ -123,7 +123,10 @@ func findToken(ctx context.Context, q querier, cond string, arg any) (*wardload.
 }
 
 func findTokens(ctx context.Context, q querier, cond string, args ...any) ([]*wardload.APIToken, error) {
-	rows, err := q.QueryContext(ctx, `SELECT id, name, hash, created_by, created_at, last_used_at, revoked_at
+	// Ward IDs come in the same query: FindTokenByHash runs on every API
+	// request, so one round trip instead of two.
+	rows, err := q.QueryContext(ctx, `SELECT id, name, hash, created_by, created_at, last_used_at, revoked_at,
+		(SELECT group_concat(ward_id, ',' ORDER BY ward_id) FROM token_wards WHERE token_id = api_tokens.id)
 		FROM api_tokens WHERE `+cond+` ORDER BY name`, args...)
 	if err != nil {
 		return nil, err
@@ -133,8 +136,11 @@ func findTokens(ctx context.Context, q querier, cond string, args ...any) ([]*wa
 	for rows.Next() {
 		var t wardload.APIToken
 		var created string
-		var used, revoked sql.NullString
-		if err := rows.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &created, &used, &revoked); err != nil {
+		var used, revoked, wards sql.NullString
+		if err := rows.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &created, &used, &revoked, &wards); err != nil {
+			return nil, err
+		}
+		if t.WardIDs, err = parseIDs(wards.String); err != nil {
 			return nil, err
 		}
 		if t.CreatedAt, err = parseTime(created); err != nil {
@@ -148,14 +154,5 @@ func findTokens(ctx context.Context, q querier, cond string, args ...any) ([]*wa
 		}
 		ts = append(ts, &t)
 	}
-	if err := rows.Err(); err != nil {
-		return nil, err
-	}
-	rows.Close()
-	for _, t := range ts {
-		if t.WardIDs, err = idList(ctx, q, `SELECT ward_id FROM token_wards WHERE token_id = ? ORDER BY ward_id`, t.ID); err != nil {
-			return nil, err
-		}
-	}
-	return ts, nil
+	return ts, rows.Err()
 }

@@ -171,23 +171,6 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 	return ws, total, nil
 }
 
-func wardFactors(ctx context.Context, q querier, wardID int64) ([]string, error) {
-	rows, err := q.QueryContext(ctx, `SELECT name FROM ward_factors WHERE ward_id = ? ORDER BY position`, wardID)
-	if err != nil {
-		return nil, err
-	}
-	defer rows.Close()
-	var names []string
-	for rows.Next() {
-		var n string
-		if err := rows.Scan(&n); err != nil {
-			return nil, err
-		}
-		names = append(names, n)
-	}
-	return names, rows.Err()
-}
-
 // wardExists returns ENOTFOUND naming field "ward" unless the ward exists.
 func wardExists(ctx context.Context, q querier, id int64) error {
 	var one int
