@@ -139,21 +139,34 @@ func (s *Store) findCensus(ctx context.Context, where, page string, args ...any)
 		return cs, formatError(err)
 	}
 	ids := make([]int64, len(cs))
-	byID := make(map[int64]*wardload.Census, len(cs))
 	for i, c := range cs {
-		ids[i], byID[c.ID] = c.ID, c
+		ids[i] = c.ID
 	}
-	rows, err = s.pool.Query(ctx, `
-		SELECT k.census_id, k.tier_id, k.patients FROM census_counts k JOIN tiers t ON t.id = k.tier_id
-		WHERE k.census_id = ANY($1) ORDER BY k.census_id, t.display_order, t.code`, ids)
+	counts, err := censusCounts(ctx, s.pool, ids)
 	if err != nil {
 		return nil, formatError(err)
 	}
+	for _, c := range cs {
+		c.Counts = counts[c.ID] // nil for an entry without counts
+	}
+	return cs, nil
+}
+
+// censusCounts returns the counts of the given census entries by census ID,
+// each by tier display order.
+func censusCounts(ctx context.Context, q querier, censusIDs []int64) (map[int64][]wardload.TierCount, error) {
+	rows, err := q.Query(ctx, `
+		SELECT k.census_id, k.tier_id, k.patients FROM census_counts k JOIN tiers t ON t.id = k.tier_id
+		WHERE k.census_id = ANY($1) ORDER BY k.census_id, t.display_order, t.code`, censusIDs)
+	if err != nil {
+		return nil, err
+	}
+	counts := make(map[int64][]wardload.TierCount, len(censusIDs))
 	var id int64
 	var tc wardload.TierCount
 	_, err = pgx.ForEachRow(rows, []any{&id, &tc.TierID, &tc.Patients}, func() error {
-		byID[id].Counts = append(byID[id].Counts, tc)
+		counts[id] = append(counts[id], tc)
 		return nil
 	})
-	return cs, formatError(err)
+	return counts, err
 }

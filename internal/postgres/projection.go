@@ -133,24 +133,20 @@ func findProjections(ctx context.Context, q querier, where, page string, args ..
 		return ps, err
 	}
 	ids := make([]int64, len(ps))
-	byCensus := make(map[int64]*wardload.Projection, len(ps))
 	for i, p := range ps {
-		ids[i], byCensus[p.CensusID] = p.CensusID, p
-		p.Counts = []wardload.TierCount{}
+		ids[i] = p.CensusID
 	}
-	rows, err = q.Query(ctx, `
-		SELECT k.census_id, k.tier_id, k.patients FROM census_counts k JOIN tiers t ON t.id = k.tier_id
-		WHERE k.census_id = ANY($1) ORDER BY k.census_id, t.display_order, t.code`, ids)
+	counts, err := censusCounts(ctx, q, ids)
 	if err != nil {
 		return nil, err
 	}
-	var id int64
-	var tc wardload.TierCount
-	_, err = pgx.ForEachRow(rows, []any{&id, &tc.TierID, &tc.Patients}, func() error {
-		byCensus[id].Counts = append(byCensus[id].Counts, tc)
-		return nil
-	})
-	return ps, err
+	for _, p := range ps {
+		p.Counts = []wardload.TierCount{} // empty, not nil, for a census without counts
+		if cs, ok := counts[p.CensusID]; ok {
+			p.Counts = cs
+		}
+	}
+	return ps, nil
 }
 
 // FindShiftRevisions returns the census revisions of one dated shift,

@@ -115,27 +115,24 @@ func userWhere(f wardload.UserFilter) *where {
 
 func findUsers(ctx context.Context, q querier, f wardload.UserFilter, suffix string) ([]*wardload.User, error) {
 	w := userWhere(f)
-	rows, err := q.Query(ctx, `SELECT id, name, role, password_hash, disabled, created_at FROM users`+w.String()+` ORDER BY name`+suffix, w.args...)
+	// Memberships come in the same query: the guard reads the signed-in
+	// user on every request, so one round trip instead of two.
+	rows, err := q.Query(ctx, `SELECT id, name, role, password_hash, disabled, created_at,
+		ARRAY(SELECT ward_id FROM user_wards WHERE user_id = users.id ORDER BY ward_id)
+		FROM users`+w.String()+` ORDER BY name`+suffix, w.args...)
 	if err != nil {
 		return nil, formatError(err)
 	}
 	us, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.User, error) {
 		var u wardload.User
-		err := r.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &u.CreatedAt)
+		err := r.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &u.CreatedAt, &u.WardIDs)
 		u.CreatedAt = u.CreatedAt.UTC()
+		if len(u.WardIDs) == 0 {
+			u.WardIDs = nil // no memberships is nil, as it always was here
+		}
 		return &u, err
 	})
-	if err != nil || len(us) == 0 {
-		return us, formatError(err)
-	}
-	ids := make([]int64, len(us))
-	byID := make(map[int64]*wardload.User, len(us))
-	for i, u := range us {
-		ids[i], byID[u.ID] = u.ID, u
-	}
-	err = loadWardLinks(ctx, q, `SELECT user_id, ward_id FROM user_wards WHERE user_id = ANY($1) ORDER BY user_id, ward_id`, ids,
-		func(id, ward int64) { byID[id].WardIDs = append(byID[id].WardIDs, ward) })
-	return us, err
+	return us, formatError(err)
 }
 
 // loadWardLinks runs a two-column (owner, ward) query and hands each pair to add.
