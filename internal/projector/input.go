@@ -57,13 +57,13 @@ func Seed(wardID int64, date wardload.Date, shiftID int64) uint64 {
 	return binary.BigEndian.Uint64(h.Sum(nil))
 }
 
-// Recompute re-runs the workload model on the stored input of p and
-// returns its result, whose JSON equals p.Result byte for byte when p was
-// made by this build's method (stats.MethodVersion). It returns EINVALID
-// for a projection made by another method version or with an unreadable
-// input.
-func Recompute(p *wardload.Projection) (*stats.Projection, error) {
-	if p.MethodVersion != stats.MethodVersion {
+// Recompute re-runs the workload model of p's method version on the stored
+// input of p and returns its result (a *stats.Projection, or a
+// *stats.ProjectionV1 for version 1), whose JSON equals p.Result byte for
+// byte. It returns EINVALID for a projection made by a method version this
+// build does not have, or with an unreadable input.
+func Recompute(p *wardload.Projection) (any, error) {
+	if p.MethodVersion != stats.MethodVersion && p.MethodVersion != stats.MethodVersionV1 {
 		return nil, wardload.FieldErrorf(wardload.EINVALID, "method_version",
 			"This projection was made with method %s; this version of wardload has %s and cannot reproduce it exactly.",
 			p.MethodVersion, stats.MethodVersion)
@@ -71,6 +71,9 @@ func Recompute(p *wardload.Projection) (*stats.Projection, error) {
 	var in Input
 	if err := json.Unmarshal([]byte(p.Input), &in); err != nil {
 		return nil, wardload.FieldErrorf(wardload.EINVALID, "input", "The stored input of projection %d cannot be read.", p.ID)
+	}
+	if p.MethodVersion == stats.MethodVersionV1 {
+		return stats.ProjectV1(in.Model)
 	}
 	return stats.Project(in.Model)
 }

@@ -117,6 +117,7 @@ func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date,
 	model.ShiftHours, model.DirectCareFraction = hours, settings.DirectCareFraction
 	model.Levels, model.Cover = []float64{settings.CoverLevel}, settings.CoverLevel
 	model.Draws, model.Seed = s.draws(), Seed(wardID, date, shiftID)
+	model.Date = date.String()
 	patients := map[int64]int{}
 	for _, tc := range census.Counts {
 		patients[tc.TierID] = tc.Patients
@@ -126,11 +127,8 @@ func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date,
 		for _, o := range byTier[t.ID] {
 			ts.CareMinutes = append(ts.CareMinutes, o.CareMinutes)
 			ts.WindowHours = append(ts.WindowHours, o.WindowHours)
-		}
-		if ts.Patients > 0 && len(ts.CareMinutes) < 2 {
-			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "tier_"+t.Code,
-				"%s has %d patients but %s in the last %d weeks (%s to %s); at least 2 are needed. Add observations, or check the count.",
-				t.Label, ts.Patients, observationCount(len(ts.CareMinutes), shift.Name), settings.LookbackWeeks, from, to)
+			ts.Dates = append(ts.Dates, o.Date.String())
+			ts.Shifts = append(ts.Shifts, shift.Name) // one pattern: the date names the occurrence
 		}
 		model.Tiers = append(model.Tiers, ts)
 		in.Tiers = append(in.Tiers, InputTier{ID: t.ID, Code: t.Code, Label: t.Label, Observations: len(ts.CareMinutes)})
@@ -150,17 +148,21 @@ func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date,
 		return nil, nil, fmt.Errorf("projector: result json: %w", err)
 	}
 	nurseHours := func(minutes float64) float64 { return minutes / 60 / settings.DirectCareFraction }
+	var bandLow, bandHigh float64
+	if len(res.Bands) > 0 {
+		bandLow, bandHigh = nurseHours(res.Bands[0].Low), nurseHours(res.Bands[0].High)
+	}
 	p := &wardload.Projection{
 		WardID: wardID, Date: date, ShiftID: shiftID, ShiftName: shift.Name,
 		Start: start, End: end, ShiftHours: hours,
 		Counts: census.Counts, TotalPatients: census.Total(), CoverLevel: settings.CoverLevel,
-		ExpectedNurseHours: res.NurseHours.Expected,
-		CoverNurseHours:    res.NurseHours.CoverSimulated,
-		BandLowNurseHours:  nurseHours(res.Bands[0].Low),
-		BandHighNurseHours: nurseHours(res.Bands[0].High),
-		NursesCover:        res.Nurses.CoverSimulated,
+		ExpectedNurseHours: res.NurseHours.Expected.Value,
+		CoverNurseHours:    res.NurseHours.Cover.Value,
+		BandLowNurseHours:  bandLow,
+		BandHighNurseHours: bandHigh,
+		NursesCover:        deref(res.Nurses.Cover),
 		Floor:              res.Nurses.Floor,
-		Recommended:        res.Nurses.Recommended,
+		Recommended:        deref(res.Nurses.Recommended),
 		DecidedBy:          res.Nurses.DecidedBy,
 		MethodVersion:      res.MethodVersion,
 		Seed:               model.Seed, Draws: model.Draws,
@@ -212,12 +214,12 @@ func (s *Service) checkDate(date wardload.Date, loc *time.Location) error {
 	return nil
 }
 
-func observationCount(n int, shift string) string {
-	switch n {
-	case 0:
-		return "no care observations on the " + shift + " shift"
-	case 1:
-		return "only one care observation on the " + shift + " shift"
+// deref reads a headcount that may be absent (a declined projection
+// without a floor): the stored column holds 0, and DecidedBy says
+// wardload.DecidedInsufficient, so readers know it is no recommendation.
+func deref(n *int) int {
+	if n == nil {
+		return 0
 	}
-	return fmt.Sprintf("%d care observations on the %s shift", n, shift)
+	return *n
 }

@@ -198,6 +198,13 @@ var simQuantiles = [3]float64{0.1, 0.5, 0.9}
 // (multiSelect in quantile.go, an introselect), which is several times
 // faster for N = 100,000. The mean is taken first, in draw order.
 func summariseTotals(totals []float64, seed uint64, cover float64) Simulation {
+	s, _ := summariseTotalsWith(totals, seed, cover, nil)
+	return s
+}
+
+// summariseTotalsWith is summariseTotals that also returns the type 7
+// quantiles of totals at each of extra.
+func summariseTotalsWith(totals []float64, seed uint64, cover float64, extra []float64) (Simulation, []float64) {
 	s := Simulation{Draws: len(totals), Seed: seed, QuantileMethod: QuantileMethodSimulated}
 	if len(totals) >= 2 {
 		mean, sd := MeanSD(totals)
@@ -207,6 +214,10 @@ func summariseTotals(totals []float64, seed uint64, cover float64) Simulation {
 	}
 	ps := append(simQuantiles[:], cover)
 	var ks []int
+	for _, p := range extra {
+		j, _ := type7Pos(len(totals), p)
+		ks = append(ks, j, min(j+1, len(totals)-1))
+	}
 	for _, p := range ps {
 		j, _ := type7Pos(len(totals), p)
 		ks = append(ks, j, min(j+1, len(totals)-1))
@@ -223,7 +234,11 @@ func summariseTotals(totals []float64, seed uint64, cover float64) Simulation {
 	for i, p := range ps {
 		*dst[i].q, *dst[i].se = type7Selected(totals, p), quantileSE(totals, p)
 	}
-	return s
+	q := make([]float64, len(extra))
+	for i, p := range extra {
+		q[i] = type7Selected(totals, p)
+	}
+	return s, q
 }
 
 // type7Pos returns the 0-based index j and weight g of the Hyndman & Fan

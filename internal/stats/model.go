@@ -2,6 +2,7 @@ package stats
 
 import (
 	"math"
+	"time"
 
 	"wardload/internal/wardload"
 )
@@ -10,7 +11,7 @@ import (
 // streams. It is stored with every projection so that a stored result can
 // be reproduced later; change it whenever a change to this package could
 // change any number Project returns for the same input.
-const MethodVersion = "wardload-model/1"
+const MethodVersion = "wardload-model/2"
 
 // Caution is shown with every projection, in wardload's own words.
 const Caution = "This is a statistical estimate of care workload from past timed observations, not a staffing decision. " +
@@ -38,6 +39,11 @@ type TierSample struct {
 	Patients    int       `json:"patients"`     // census, ≥ 0; a tier with 0 patients needs no observations
 	CareMinutes []float64 `json:"care_minutes"` // direct care minutes per observation, ≥ 0
 	WindowHours []float64 `json:"window_hours"` // window of each observation, in (0, 24]; same length as CareMinutes
+	// Dates (YYYY-MM-DD) and Shifts name the shift occurrence of each
+	// observation; optional (version 2 only). With them the model estimates
+	// a trend and the shift-level effect; without them it says it could not.
+	Dates  []string `json:"dates,omitempty"`
+	Shifts []string `json:"shifts,omitempty"`
 }
 
 // FloorSpec is the configured minimum nurse-to-patient ratio for the shift
@@ -63,6 +69,84 @@ type ProjectionInput struct {
 	NursesFrom         int          `json:"nurses_from"`          // shortfall table range; both 0: a range around the need and the floor
 	NursesTo           int          `json:"nurses_to"`
 	Floor              *FloorSpec   `json:"floor"` // nil: no ratio floor configured
+	// Date (YYYY-MM-DD) is the projected shift's date, from which
+	// observation ages are counted; required when observations carry dates
+	// (version 2 only).
+	Date string `json:"date,omitempty"`
+	// Calibration is the ward's backtest summary, reported with the
+	// projection and warned about when poor (version 2 only; nil: none).
+	Calibration *Calibration `json:"calibration,omitempty"`
+}
+
+// Bounds of version 2 on the cover level and the draws: below 0.5 the
+// "cover" is less than even odds; above 0.999 it rests on the extreme tail
+// that no ward's history can show; under 1,000 draws the Monte Carlo error
+// of a 90% quantile is several percent of it.
+const (
+	MinCover = 0.5
+	MaxCover = 0.999
+	MinDraws = 1000
+)
+
+// validate checks in for version 2: everything validateV1 checks, and the
+// cover and draws bounds, dates and shifts.
+func (in *ProjectionInput) validate() error {
+	if err := in.validateV1(); err != nil {
+		return err
+	}
+	bad := func(field, format string, args ...any) error {
+		return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
+	}
+	if !(in.Cover >= MinCover && in.Cover <= MaxCover) {
+		return bad("cover_level", "Cover level must be from %g to %g.", MinCover, MaxCover)
+	}
+	if in.Draws < MinDraws {
+		return bad("draws", "Simulation draws must be at least %d (and at most %d).", MinDraws, MaxDraws)
+	}
+	for _, l := range in.Levels {
+		if l < 0.01 || l > MaxCover {
+			return bad("levels", "Band levels must be from 0.01 to %g.", MaxCover)
+		}
+	}
+	if in.Date != "" {
+		if _, err := time.Parse(time.DateOnly, in.Date); err != nil {
+			return bad("date", "The projected date %q is not a date (YYYY-MM-DD).", clipText(in.Date))
+		}
+	}
+	for _, t := range in.Tiers {
+		if len(t.Dates) > 0 {
+			if in.Date == "" {
+				return bad("date", "Observations carry dates, so the projected date is needed.")
+			}
+			if len(t.Dates) != len(t.CareMinutes) {
+				return bad("date", "Tier %s: every observation needs a date, or none.", t.Code)
+			}
+			for _, d := range t.Dates {
+				day, err := time.Parse(time.DateOnly, d)
+				if err != nil {
+					return bad("date", "Tier %s: %q is not a date (YYYY-MM-DD).", t.Code, clipText(d))
+				}
+				if d > in.Date || day.Year() < 1900 {
+					return bad("date", "Tier %s: observation date %s is after the projected date %s or implausible.", t.Code, d, in.Date)
+				}
+			}
+		}
+		if len(t.Shifts) > 0 && len(t.Shifts) != len(t.Dates) {
+			return bad("shift", "Tier %s: every observation with a date needs a shift, or none has one.", t.Code)
+		}
+	}
+	if c := in.Calibration; c != nil && (c.Level <= 0 || c.Level >= 1 || c.Inside > c.Shifts || c.Inside < 0) {
+		return bad("calibration", "The calibration summary is inconsistent.")
+	}
+	return nil
+}
+
+// clipText keeps a quoted bad value short in a message.
+func clipText(s string) string {
+	if len(s) > 40 {
+		return s[:40] + "…"
+	}
+	return s
 }
 
 // ShiftMinutes converts care minutes observed over a window to minutes per
@@ -154,9 +238,10 @@ func WorkloadMoments(codes []string, patients []int, values [][]float64) (mu, va
 	return mu, varPatient, varEstimate, tiers
 }
 
-// validate checks in and returns EINVALID naming the field. Field names
-// follow wardload.Settings where one exists.
-func (in *ProjectionInput) validate() error {
+// Field names follow wardload.Settings where one exists.
+// validateV1 checks in for version 1 of the model (and as the first step
+// of the current one); frozen with ProjectV1.
+func (in *ProjectionInput) validateV1() error {
 	bad := func(field, format string, args ...any) error {
 		return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
 	}

@@ -3,177 +3,160 @@ package stats
 import (
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"wardload/internal/wardload"
 )
 
-// Decided-by values of Nurses.DecidedBy.
-const (
-	DecidedByCover = "cover"       // the simulated need at the cover level is higher
-	DecidedByFloor = "ratio_floor" // the configured ratio floor is higher
-	DecidedByBoth  = "both"        // they are equal
-)
-
-// ceilTolerance is the relative slack of ceilNurses: a need of
-// 7.0000000001 nurses is float noise from dividing minutes that add up to
-// exactly 7 shifts, not a reason to call an eighth nurse. 1e-9 is far below
-// any real difference in care minutes (a 1e-9 share of a shift is well
-// under a millisecond) and far above double rounding error (about 1e-16).
-const ceilTolerance = 1e-9
-
-// ceilNurses rounds a nurse count up, treating values within a relative
-// 1e-9 above an integer as that integer, and never below 0 (a normal
-// quantile below zero minutes, possible for a cover level under 0.5, needs
-// no nurses rather than a negative number):
-//
-//	max(0, ceil(x − 1e-9·max(1, |x|)))
-func ceilNurses(x float64) int {
-	return max(0, int(math.Ceil(x-float64(ceilTolerance*math.Max(1, math.Abs(x))))))
+// TierFit is one tier's part of a projection: what was used and what the
+// log-scale model made of it.
+type TierFit struct {
+	Code          string  `json:"code"`
+	Patients      int     `json:"patients"`
+	Observations  int     `json:"observations"` // given
+	Used          int     `json:"used"`         // after setting aside values beyond the outer fences
+	HeldOut       int     `json:"held_out"`
+	MedianMinutes Number  `json:"median_minutes"` // of the given per-patient shift minutes
+	LogLocation   Number  `json:"log_location"`   // fitted ln(minutes + offset) at the projected date
+	LogSD         Number  `json:"log_sd"`         // patient-to-patient SD on the log scale, after shrinkage
+	Offset        float64 `json:"offset"`         // c in ln(minutes + c)
+	NeedMore      int     `json:"need_more"`      // observations short of MinTierObservations; 0 when enough
+	Trend         Trend   `json:"trend"`          // this tier's own trend
 }
 
-// Band is a central normal band of the shift's total care minutes.
-type Band struct {
-	Level float64 `json:"level"`
-	Low   float64 `json:"low"`
-	High  float64 `json:"high"`
+// ShiftEffect reports the common (between-shift) component: the SD on the
+// log scale of an effect every patient of one shift shares.
+type ShiftEffect struct {
+	Estimated   bool   `json:"estimated"`
+	SDLog       Number `json:"sd_log"` // √max(0, τ̂²)
+	Occurrences int    `json:"occurrences"`
+	Reason      string `json:"reason,omitempty"` // why it was not estimated
 }
 
-// Simulation summarises the bootstrap totals. Quantiles are Hyndman & Fan
-// type 7; standard errors are Monte Carlo errors of the simulation, not of
-// the model, and are null when they cannot be formed.
-type Simulation struct {
-	Draws          int     `json:"draws"`
-	Seed           uint64  `json:"seed"`
-	Mean           float64 `json:"mean"`
-	P10            float64 `json:"p10"`
-	P50            float64 `json:"p50"`
-	P90            float64 `json:"p90"`
-	Cover          float64 `json:"cover"` // q-quantile at the cover level
-	MeanSE         Number  `json:"mean_se"`
-	P10SE          Number  `json:"p10_se"`
-	P50SE          Number  `json:"p50_se"`
-	P90SE          Number  `json:"p90_se"`
-	CoverSE        Number  `json:"cover_se"`
-	QuantileMethod string  `json:"quantile_method"`
+// Trend is a change of care time over the lookback, as percent per 28
+// days with a 95% interval (on the log-scale slope, then exponentiated).
+type Trend struct {
+	Estimated        bool   `json:"estimated"`
+	PercentPer28Days Number `json:"percent_per_28_days"`
+	Low              Number `json:"low"`
+	High             Number `json:"high"`
+	Reason           string `json:"reason,omitempty"`
 }
 
-// NurseHours are nurse hours needed on the shift: care minutes ÷ 60 ÷
-// direct-care fraction.
+// NurseHours are nurse hours of direct care: care minutes ÷ 60 ÷ the
+// direct-care fraction; null when the projection declined.
 type NurseHours struct {
-	Expected       float64 `json:"expected"`        // at the expected total
-	Cover          float64 `json:"cover"`           // at the normal q-quantile μ + z_q·sd
-	CoverSimulated float64 `json:"cover_simulated"` // at the bootstrap q-quantile
+	Expected Number `json:"expected"` // at the expected total (point estimates)
+	Median   Number `json:"median"`   // at the predictive median
+	Cover    Number `json:"cover"`    // at the predictive cover quantile
 }
 
-// Nurses are headcounts: nurse hours ÷ shift hours, unrounded and rounded
-// up (see ceilNurses).
+// Nurses are headcounts. Care-giving nurses give direct care for the
+// direct-care fraction of the shift; where the floor says the nurse in
+// charge does not count towards the ratio, that nurse takes no patients
+// and is added on top (InCharge = 1) on both sides: the floor and the care
+// time.
 type Nurses struct {
-	ExpectedUnrounded       float64 `json:"expected_unrounded"`
-	Expected                int     `json:"expected"`
-	CoverUnrounded          float64 `json:"cover_unrounded"`
-	Cover                   int     `json:"cover"`
-	CoverSimulatedUnrounded float64 `json:"cover_simulated_unrounded"`
-	CoverSimulated          int     `json:"cover_simulated"`
-	Floor                   *int    `json:"floor"` // null when no ratio floor is configured
-	Recommended             int     `json:"recommended"`
-	DecidedBy               string  `json:"decided_by"`
+	ExpectedUnrounded Number `json:"expected_unrounded"` // care-giving nurses at the expected total
+	CoverUnrounded    Number `json:"cover_unrounded"`    // care-giving nurses at the cover quantile
+	CareGiving        *int   `json:"care_giving"`        // CoverUnrounded rounded up
+	InCharge          int    `json:"in_charge"`          // 1 when the nurse in charge is extra, else 0
+	Cover             *int   `json:"cover"`              // CareGiving + InCharge
+	Floor             *int   `json:"floor"`              // null when no ratio floor is configured
+	Recommended       *int   `json:"recommended"`        // max(Cover, Floor); null when declined without a floor
+	DecidedBy         string `json:"decided_by"`
 }
 
-// FloorUsed restates the ratio floor a projection applied, so every
-// result shows it.
-type FloorUsed struct {
-	PatientsPerNurse     *float64           `json:"patients_per_nurse"` // ward-wide; null if only per tier
-	TierPatientsPerNurse map[string]float64 `json:"tier_patients_per_nurse,omitempty"`
-	ChargeNurseCounts    bool               `json:"charge_nurse_counts"`
-	Nurses               int                `json:"nurses"`
-	Description          string             `json:"description"`
-}
-
-// Shortfall is the chance that the shift's care minutes exceed what a
-// headcount can give.
+// Shortfall is the predictive chance that the shift's care minutes exceed
+// what a headcount gives, with its 95% Wilson interval for the Monte Carlo
+// error (Text says it, never as a bare 0 or 1).
 type Shortfall struct {
-	Nurses               int     `json:"nurses"`
-	CapacityMinutes      float64 `json:"capacity_minutes"`      // nurses × shift hours × 60 × direct-care fraction
-	Probability          float64 `json:"probability"`           // normal model
-	SimulatedProbability float64 `json:"simulated_probability"` // share of bootstrap totals above capacity
-	SimulatedSE          float64 `json:"simulated_se"`          // √(p(1−p)/draws)
+	Nurses           int     `json:"nurses"`             // headcount
+	CareGivingNurses int     `json:"care_giving_nurses"` // headcount less the nurse in charge where extra
+	CapacityMinutes  float64 `json:"capacity_minutes"`   // care-giving nurses × shift hours × 60 × direct-care fraction
+	Probability      float64 `json:"probability"`        // share of simulated totals above capacity
+	Low              float64 `json:"low"`
+	High             float64 `json:"high"`
+	Text             string  `json:"text"`
 }
 
 // Projection is the workload model's result for one shift. Its JSON form
-// is what `wardload project --json` prints.
+// is what `wardload project --json` prints and what a projection stores.
 type Projection struct {
-	MethodVersion      string        `json:"method_version"`
-	ShiftHours         float64       `json:"shift_hours"`
-	DirectCareFraction float64       `json:"direct_care_fraction"`
-	CoverLevel         float64       `json:"cover_level"`
-	Patients           int           `json:"patients"`
-	ExpectedMinutes    float64       `json:"expected_minutes"`
-	VariancePatient    float64       `json:"variance_patient"`
-	VarianceEstimate   float64       `json:"variance_estimate"`
-	SDMinutes          float64       `json:"sd_minutes"`
-	CoverMinutes       float64       `json:"cover_minutes"` // μ + z_q·sd
-	Tiers              []TierMoments `json:"tiers"`
-	Bands              []Band        `json:"bands"`
-	Simulation         Simulation    `json:"simulation"`
-	NurseHours         NurseHours    `json:"nurse_hours"`
-	Nurses             Nurses        `json:"nurses"`
-	Floor              *FloorUsed    `json:"floor_used"` // null when no floor is configured
-	Shortfall          []Shortfall   `json:"shortfall"`
-	Warnings           []string      `json:"warnings"`
-	Caution            string        `json:"caution"`
+	MethodVersion      string       `json:"method_version"`
+	Method             string       `json:"method"`
+	ShiftHours         float64      `json:"shift_hours"`
+	DirectCareFraction float64      `json:"direct_care_fraction"`
+	CoverLevel         float64      `json:"cover_level"`
+	Patients           int          `json:"patients"`
+	DataSufficient     bool         `json:"data_sufficient"`
+	Insufficient       []string     `json:"insufficient"` // one sentence per tier short of data
+	ExpectedMinutes    Number       `json:"expected_minutes"`
+	MedianMinutes      Number       `json:"median_minutes"`
+	CoverMinutes       Number       `json:"cover_minutes"`
+	Bands              []Band       `json:"bands"` // equal-tailed predictive bands
+	Tiers              []TierFit    `json:"tiers"`
+	ShiftEffect        ShiftEffect  `json:"shift_effect"`
+	Trend              Trend        `json:"trend"` // common to all tiers; the one the model uses
+	HeldOut            []HeldOut    `json:"held_out"`
+	Simulation         Simulation   `json:"simulation"`
+	NurseHours         NurseHours   `json:"nurse_hours"`
+	Nurses             Nurses       `json:"nurses"`
+	CapacityRule       string       `json:"capacity_rule"`
+	Floor              *FloorUsed   `json:"floor_used"`
+	Calibration        *Calibration `json:"calibration"` // the ward's backtest, when given
+	Shortfall          []Shortfall  `json:"shortfall"`
+	Warnings           []string     `json:"warnings"`
+	Caution            string       `json:"caution"`
 }
 
+// MethodDescription says in one sentence how version 2 projects.
+const MethodDescription = "Log-scale model per tier with a shared shift-level effect and a common trend, " +
+	"simulated from its predictive distribution with parameter uncertainty (Student-t level, scaled inverse-χ² spread)."
+
 // Project estimates the direct care minutes of one shift and the nurses
-// they need. With y the per-patient shift minutes (ShiftMinutes), μ and
-// sd from WorkloadMoments, q the cover level, f the direct-care fraction
-// and h the shift hours:
+// they need from the predictive distribution of fitCare's model
+// (simulateTotals). With totals T_d, q the cover level, f the direct-care
+// fraction, h the shift hours and e = 1 when the nurse in charge is extra:
 //
-//	band(L)        = μ ± Φ⁻¹((1+L)/2)·sd                       (normal approximation)
-//	cover minutes  = μ + Φ⁻¹(q)·sd,   simulated: type-7 q-quantile of BootstrapTotals
-//	nurse hours    = minutes ÷ 60 ÷ f
-//	nurses         = nurse hours ÷ h,  rounded up by ceil(x − 1e-9·max(1,|x|))
-//	floor          = Σ_k ceil(n_k ÷ r_k) + ceil(pooled ÷ r) [+ 1 if the nurse in charge does not count]
-//	recommended    = max(simulated cover nurses, floor)
-//	shortfall(N)   = P(T > N·h·60·f):  normal 1 − Φ((cap − μ)/sd), simulated share of totals
+//	band(L)         = [Q((1−L)/2), Q((1+L)/2)] of T_d  (type 7; equal tails, so asymmetric for skewed care)
+//	cover minutes   = Q(q)
+//	care-giving     = ceil(Q(q) ÷ (h·60·f)),   headcount = care-giving + e
+//	floor           = as ratioFloor (it already includes e)
+//	recommended     = max(headcount, floor)
+//	shortfall(N)    = share of T_d > (N − e)·h·60·f, Wilson 95% interval
 //
-// where tiers with their own ratio r_k are rounded separately and the rest
-// are pooled under the ward ratio r. The recommendation uses the bootstrap
-// quantile because with few patients and right-skewed care times the normal
-// upper tail is too light; the normal figures are shown beside it.
+// It declines (DataSufficient false, DecidedBy "insufficient_data",
+// recommended = the floor or null) when a tier with patients has fewer than
+// MinTierObservations usable observations or no spread at all.
 //
-// Bad input returns a *wardload.Error with code EINVALID whose Field names
-// the input (shift_hours, direct_care_fraction, levels, cover_level, draws,
-// census, tier, care_minutes, window_hours, nurses_to, patients_per_nurse).
-// It panics only on programmer error (CareMinutes and WindowHours of
-// different lengths). Input slices are not modified.
+// Bad input returns EINVALID naming the field (as ProjectV1, and also
+// cover_level outside [0.5, 0.999], draws below 1,000 and dates or shifts
+// that do not parse or do not match the observations).
 //
-// References: newsvendor critical fractile, e.g. Porteus, E. L. (2002).
-// Foundations of Stochastic Inventory Theory, ch. 1 (service level
-// μ + z_q·σ); Hyndman, R. J. & Fan, Y. (1996). Sample quantiles in
-// statistical packages. The American Statistician 50(4), 361–365.
+// References: newsvendor critical fractile, Porteus, E. L. (2002).
+// Foundations of Stochastic Inventory Theory, ch. 1; Hyndman & Fan (1996)
+// for the quantiles; Wilson, E. B. (1927) JASA 22, 209–212.
 func Project(in ProjectionInput) (*Projection, error) {
 	if err := in.validate(); err != nil {
 		return nil, err
 	}
 	p := &Projection{
-		MethodVersion:      MethodVersion,
-		ShiftHours:         in.ShiftHours,
-		DirectCareFraction: in.DirectCareFraction,
-		CoverLevel:         in.Cover,
-		Caution:            Caution,
-		Warnings:           []string{},
+		MethodVersion: MethodVersion, Method: MethodDescription,
+		ShiftHours: in.ShiftHours, DirectCareFraction: in.DirectCareFraction, CoverLevel: in.Cover,
+		Caution: Caution, Warnings: []string{}, Insufficient: []string{}, Bands: []Band{},
+		Shortfall: []Shortfall{}, HeldOut: []HeldOut{}, Calibration: in.Calibration,
+		Simulation: Simulation{Seed: in.Seed, QuantileMethod: QuantileMethodSimulated},
 	}
-	codes := make([]string, len(in.Tiers))
-	patients := make([]int, len(in.Tiers))
-	values := make([][]float64, len(in.Tiers))
-	boot := make([]BootstrapTier, len(in.Tiers))
+	fits := make([]fitInput, len(in.Tiers))
 	scaled, observations := 0, 0
 	for k, t := range in.Tiers {
-		codes[k], patients[k] = t.Code, t.Patients
-		values[k] = ShiftMinutes(t.CareMinutes, t.WindowHours, in.ShiftHours)
-		boot[k] = BootstrapTier{Values: values[k], Patients: t.Patients}
+		fits[k] = fitInput{code: t.Code, patients: t.Patients, raw: t.CareMinutes,
+			minutes: ShiftMinutes(t.CareMinutes, t.WindowHours, in.ShiftHours),
+			dates:   t.Dates, shifts: t.Shifts}
 		p.Patients += t.Patients
 		observations += len(t.CareMinutes)
 		for _, w := range t.WindowHours {
@@ -181,11 +164,52 @@ func Project(in ProjectionInput) (*Projection, error) {
 				scaled++
 			}
 		}
-		if t.Patients > 0 && len(t.CareMinutes) < LowObservations {
-			p.Warnings = append(p.Warnings, fmt.Sprintf(
-				"Tier %s has only %d care observations (fewer than %d): its mean is uncertain, treat the projection as low confidence.",
-				t.Code, len(t.CareMinutes), LowObservations))
+	}
+	f := fitCare(fits, in.Date)
+	p.HeldOut = append(p.HeldOut, f.held...)
+	p.ShiftEffect = ShiftEffect{Estimated: f.effect, Occurrences: f.groups, Reason: f.effectNo}
+	if f.effect {
+		p.ShiftEffect.SDLog = Defined(math.Sqrt(max(0, f.tau2)))
+	} else {
+		p.Warnings = append(p.Warnings, "The shift-level effect could not be estimated: "+f.effectNo+
+			". Heavy shifts where every patient needs more care at once are not in the band.")
+	}
+	p.Trend = trendOf(f.trend, f.beta, f.betaSE, f.betaDF, f.trendNo)
+	p.Tiers = make([]TierFit, len(in.Tiers))
+	for k, t := range f.tiers {
+		tf := TierFit{Code: t.code, Patients: t.patients, Observations: len(fits[k].minutes),
+			Used: len(t.z), HeldOut: len(fits[k].minutes) - len(t.z), Offset: t.offset}
+		tf.Trend = trendOf(tierSlope(&f.tiers[k]))
+		if len(fits[k].minutes) > 0 {
+			tf.MedianMinutes = Defined(medianOf(fits[k].minutes))
 		}
+		if len(t.z) >= 2 {
+			tf.LogLocation = Defined(t.zbar - f.beta*t.tbar)
+			tf.LogSD = Defined(math.Sqrt(t.sigma2))
+		}
+		if t.patients > 0 {
+			switch {
+			case len(t.z) < MinTierObservations:
+				tf.NeedMore = MinTierObservations - len(t.z)
+				p.Insufficient = append(p.Insufficient, fmt.Sprintf(
+					"Insufficient observations in tier %s: %d usable, need about %d more.", t.code, len(t.z), tf.NeedMore))
+			case t.sigma2 == 0:
+				tf.NeedMore = 1
+				p.Insufficient = append(p.Insufficient, fmt.Sprintf(
+					"Tier %s: all %d usable observations are equal, so its spread cannot be estimated; add observations that show its real variation.", t.code, len(t.z)))
+			}
+		}
+		if tr := tf.Trend; tr.Estimated && t.patients > 0 && (tr.Low.Value > 0 || tr.High.Value < 0) {
+			p.Warnings = append(p.Warnings, fmt.Sprintf(
+				"Care time in tier %s has moved: %+.0f%% per 4 weeks (95%% interval %+.0f%% to %+.0f%%). Review the tier and its observations.",
+				t.code, tr.PercentPer28Days.Value, tr.Low.Value, tr.High.Value))
+		}
+		p.Tiers[k] = tf
+	}
+	for _, h := range f.held {
+		p.Warnings = append(p.Warnings, fmt.Sprintf(
+			"An observation of %g minutes in tier %s%s lies far %s the tier's other values (beyond the log-scale outer fence) and was set aside as a likely entry error; review it.",
+			h.CareMinutes, h.Tier, onDate(h.Date), map[string]string{"above": "above", "below": "below"}[h.Side]))
 	}
 	if scaled > 0 {
 		p.Warnings = append(p.Warnings, fmt.Sprintf(
@@ -195,164 +219,149 @@ func Project(in ProjectionInput) (*Projection, error) {
 	if p.Patients == 0 {
 		p.Warnings = append(p.Warnings, "The census has no patients: the projected care workload is zero.")
 	}
-
-	// Analytic model.
-	p.ExpectedMinutes, p.VariancePatient, p.VarianceEstimate, p.Tiers = WorkloadMoments(codes, patients, values)
-	p.SDMinutes = math.Sqrt(p.VariancePatient + p.VarianceEstimate)
-	mu, sd := p.ExpectedMinutes, p.SDMinutes
-	p.Bands = make([]Band, len(in.Levels))
-	for i, l := range in.Levels {
-		z := TwoSidedZ(l)
-		half := float64(z * sd) // no fused multiply-add: see WorkloadMoments
-		p.Bands[i] = Band{Level: l, Low: mu - half, High: mu + half}
-		if p.Bands[i].Low < 0 {
-			p.Warnings = append(p.Warnings, fmt.Sprintf(
-				"The %g%% normal band reaches below zero minutes: the normal approximation is poor here; rely on the simulated figures.", 100*l))
-		}
-	}
-	p.CoverMinutes = mu + float64(NormalQuantile(in.Cover)*sd)
-
-	// Simulation.
-	totals := BootstrapTotals(boot, in.Draws, in.Seed)
-	p.Simulation = summariseTotals(totals, in.Seed, in.Cover)
-	if in.Draws < 1000 {
-		p.Warnings = append(p.Warnings, fmt.Sprintf(
-			"Only %d simulation draws: the simulated figures carry visible Monte Carlo error.", in.Draws))
+	if c := in.Calibration; c != nil && c.Warn(in.Cover) {
+		p.Warnings = append(p.Warnings, c.Sentence(in.Cover))
 	}
 
-	// Nurses.
-	perNurse := in.ShiftHours * 60 * in.DirectCareFraction
-	hours := func(minutes float64) float64 { return minutes / 60 / in.DirectCareFraction }
-	p.NurseHours = NurseHours{
-		Expected:       hours(mu),
-		Cover:          hours(p.CoverMinutes),
-		CoverSimulated: hours(p.Simulation.Cover),
+	inCharge := 0
+	if in.Floor != nil && !in.Floor.ChargeNurseCounts {
+		inCharge = 1
+		p.CapacityRule = "The nurse in charge takes no patients and does not count towards the ratio, so that nurse's time is not counted as direct care: headcount = care-giving nurses + 1."
+	} else {
+		p.CapacityRule = "Every nurse counted, the nurse in charge included, gives direct care for the direct-care fraction of the shift."
 	}
-	n := &p.Nurses
-	n.ExpectedUnrounded = p.NurseHours.Expected / in.ShiftHours
-	n.CoverUnrounded = p.NurseHours.Cover / in.ShiftHours
-	n.CoverSimulatedUnrounded = p.NurseHours.CoverSimulated / in.ShiftHours
-	// A tiny direct-care fraction (1e-320 passes "more than 0") makes the
-	// counts +Inf, and ceilNurses(+Inf) is int(+Inf), not defined in Go: it
-	// came out as 0 nurses recommended. Refuse counts past MaxNurses before
-	// rounding any of them.
-	for _, v := range []float64{n.ExpectedUnrounded, n.CoverUnrounded, n.CoverSimulatedUnrounded} {
-		if !(v <= MaxNurses) {
-			return nil, wardload.FieldErrorf(wardload.EINVALID, "direct_care_fraction",
-				"The care time would need more than %d nurses at a direct-care fraction of %g; check the direct-care fraction.", MaxNurses, in.DirectCareFraction)
-		}
-	}
-	n.Expected = ceilNurses(n.ExpectedUnrounded)
-	n.Cover = ceilNurses(n.CoverUnrounded)
-	n.CoverSimulated = ceilNurses(n.CoverSimulatedUnrounded)
-	n.Recommended, n.DecidedBy = n.CoverSimulated, DecidedByCover
+	p.Nurses.InCharge = inCharge
 	if in.Floor == nil {
 		p.Warnings = append(p.Warnings, "No ratio floor was configured: the recommendation rests on care time alone; check the minimum staffing that applies to this ward.")
 	} else {
 		p.Floor = ratioFloor(in.Floor, in.Tiers, &p.Warnings)
 		floor := p.Floor.Nurses
-		n.Floor = &floor
+		p.Nurses.Floor = &floor
+	}
+	p.DataSufficient = len(p.Insufficient) == 0
+	if !p.DataSufficient {
+		p.Nurses.DecidedBy = DecidedByInsufficient
+		p.Nurses.Recommended = p.Nurses.Floor
+		if p.Nurses.Floor != nil {
+			p.Warnings = append(p.Warnings, "Too few observations to estimate care time: the recommendation is the ratio floor alone, and no shortfall chance is shown.")
+		} else {
+			p.Warnings = append(p.Warnings, "Too few observations to estimate care time and no ratio floor configured: there is no recommendation.")
+		}
+		return p, nil
+	}
+
+	totals := simulateTotals(f, in.Draws, in.Seed)
+	p.ExpectedMinutes = Defined(f.plugInMean())
+	ps := make([]float64, 0, 2*len(in.Levels))
+	for _, l := range in.Levels {
+		ps = append(ps, (1-l)/2, (1+l)/2)
+	}
+	var extra []float64
+	p.Simulation, extra = summariseTotalsWith(totals, in.Seed, in.Cover, ps)
+	sim := &p.Simulation
+	p.MedianMinutes, p.CoverMinutes = Defined(sim.P50), Defined(sim.Cover)
+	for i, l := range in.Levels {
+		p.Bands = append(p.Bands, Band{Level: l, Low: extra[2*i], High: extra[2*i+1]})
+	}
+
+	perNurse := in.ShiftHours * 60 * in.DirectCareFraction
+	hours := func(minutes float64) Number { return Defined(minutes / 60 / in.DirectCareFraction) }
+	p.NurseHours = NurseHours{Expected: hours(p.ExpectedMinutes.Value), Median: hours(sim.P50), Cover: hours(sim.Cover)}
+	n := &p.Nurses
+	expU, covU := p.ExpectedMinutes.Value/perNurse, sim.Cover/perNurse
+	if !(expU <= MaxNurses) || !(covU <= MaxNurses) {
+		return nil, fieldError("direct_care_fraction",
+			"The care time would need more than %d nurses at a direct-care fraction of %g; check the direct-care fraction and the observations.", MaxNurses, in.DirectCareFraction)
+	}
+	n.ExpectedUnrounded, n.CoverUnrounded = Defined(expU), Defined(covU)
+	care := ceilNurses(covU)
+	head := care + inCharge
+	n.CareGiving, n.Cover = &care, &head
+	rec := head
+	n.Recommended, n.DecidedBy = &rec, DecidedByCover
+	if n.Floor != nil {
 		switch {
-		case floor > n.CoverSimulated:
-			n.Recommended, n.DecidedBy = floor, DecidedByFloor
-		case floor == n.CoverSimulated:
+		case *n.Floor > head:
+			rec = *n.Floor
+			n.DecidedBy = DecidedByFloor
+		case *n.Floor == head:
 			n.DecidedBy = DecidedByBoth
 		}
 	}
 
-	// Shortfall table.
 	from, to := in.NursesFrom, in.NursesTo
 	if from == 0 && to == 0 {
-		from = n.Expected
+		from = ceilNurses(expU) + inCharge
 		if n.Floor != nil {
 			from = min(from, *n.Floor)
 		}
-		to = n.Recommended + 3
-		from = max(from, to-MaxNursesInRange+1)
+		to = rec + 3
+		from = max(from, to-MaxNursesInRange+1, inCharge)
 	}
 	capacities := make([]float64, 0, to-from+1)
 	for nurses := from; nurses <= to; nurses++ {
-		capacities = append(capacities, float64(nurses)*perNurse)
+		capacities = append(capacities, float64(max(0, nurses-inCharge))*perNurse)
 	}
 	above := countAbove(totals, capacities)
-	p.Shortfall = make([]Shortfall, len(capacities))
 	for i, capacity := range capacities {
-		ps := float64(above[i]) / float64(len(totals))
-		p.Shortfall[i] = Shortfall{
-			Nurses:               from + i,
-			CapacityMinutes:      capacity,
-			Probability:          normalExceed(capacity, mu, sd),
-			SimulatedProbability: ps,
-			SimulatedSE:          math.Sqrt(ps * (1 - ps) / float64(len(totals))),
-		}
+		lo, hi := WilsonInterval(above[i], len(totals))
+		p.Shortfall = append(p.Shortfall, Shortfall{
+			Nurses: from + i, CareGivingNurses: max(0, from+i-inCharge), CapacityMinutes: capacity,
+			Probability: float64(above[i]) / float64(len(totals)), Low: lo, High: hi,
+			Text: ProbabilityText(above[i], len(totals)),
+		})
 	}
 	return p, nil
 }
 
-// countAbove returns, for each of the ascending thresholds, how many
-// values exceed it, in one pass over values with a binary search each
-// (O(N log R) rather than O(N·R) for R thresholds).
-func countAbove(values, thresholds []float64) []int {
-	// hist[i] counts values above exactly the first i thresholds.
-	hist := make([]int, len(thresholds)+1)
-	for _, v := range values {
-		hist[sort.SearchFloat64s(thresholds, v)]++
+func onDate(d string) string {
+	if d == "" {
+		return ""
 	}
-	above := make([]int, len(thresholds))
-	run := 0
-	for i := len(thresholds) - 1; i >= 0; i-- {
-		run += hist[i+1]
-		above[i] = run
-	}
-	return above
+	return " on " + d
 }
 
-// normalExceed returns P(T > x) for T ~ Normal(mu, sd²); a zero sd is a
-// point mass at mu.
-func normalExceed(x, mu, sd float64) float64 {
-	if sd == 0 {
-		if mu > x {
-			return 1
-		}
-		return 0
-	}
-	return NormalUpperTail((x - mu) / sd)
+func fieldError(field, format string, args ...any) error {
+	return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
 }
 
-// ratioFloor applies the configured floor to the census. Tiers with their
-// own ratio are rounded up separately; the others are pooled under the
-// ward ratio (one ceiling for the pool, as a ward-wide ratio counts all its
-// patients together).
-func ratioFloor(f *FloorSpec, tiers []TierSample, warnings *[]string) *FloorUsed {
-	used := &FloorUsed{ChargeNurseCounts: f.ChargeNurseCounts}
-	var parts []string
-	pooled := 0
-	for _, t := range tiers {
-		if r, ok := f.TierPatientsPerNurse[t.Code]; ok {
-			used.Nurses += ceilNurses(float64(t.Patients) / r)
-			parts = append(parts, fmt.Sprintf("tier %s at most %g patients per nurse", t.Code, r))
-			continue
-		}
-		pooled += t.Patients
-		if f.PatientsPerNurse == 0 && t.Patients > 0 {
-			*warnings = append(*warnings, fmt.Sprintf(
-				"Tier %s has no ratio floor configured; its patients add nothing to the floor.", t.Code))
-		}
+// trendOf turns a log-scale slope per day into percent per 28 days with a
+// 95% Student-t interval.
+func trendOf(ok bool, beta, se, df float64, reason string) Trend {
+	if !ok {
+		return Trend{Reason: reason}
 	}
-	if len(f.TierPatientsPerNurse) > 0 {
-		used.TierPatientsPerNurse = f.TierPatientsPerNurse
+	t := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(0.975)
+	pct := func(b float64) Number { return Defined(100 * math.Expm1(28*b)) }
+	return Trend{Estimated: true, PercentPer28Days: pct(beta), Low: pct(beta - t*se), High: pct(beta + t*se)}
+}
+
+// medianOf is the type 7 median of x (not modified).
+func medianOf(x []float64) float64 {
+	return HFQuantile(7, 0.5, slices.Sorted(slices.Values(x)))
+}
+
+// ProbabilityText says a simulated share k/n as a percentage with its 95%
+// Wilson interval, never as a bare 0% or 100%: "< 0.02%" when no draw
+// exceeded, "> 99.98%" when all did, else "12% (11.5–12.6%)".
+func ProbabilityText(k, n int) string {
+	lo, hi := WilsonInterval(k, n)
+	switch {
+	case k == 0:
+		return "< " + percentText(hi)
+	case k == n:
+		return "> " + percentText(lo)
 	}
-	if r := f.PatientsPerNurse; r > 0 {
-		used.PatientsPerNurse = &r
-		used.Nurses += ceilNurses(float64(pooled) / r)
-		parts = append([]string{fmt.Sprintf("at most %g patients per nurse", r)}, parts...)
+	return percentText(float64(k)/float64(n)) + " (" + strings.TrimSuffix(percentText(lo), "%") + "–" + percentText(hi) + ")"
+}
+
+func percentText(p float64) string {
+	x := 100 * p
+	switch {
+	case x >= 10:
+		return fmt.Sprintf("%.0f%%", x)
+	case x >= 1:
+		return fmt.Sprintf("%.1f%%", x)
 	}
-	if !f.ChargeNurseCounts {
-		used.Nurses++
-		parts = append(parts, "plus 1 nurse in charge who does not count towards the ratio")
-	} else {
-		parts = append(parts, "the nurse in charge counts towards the ratio")
-	}
-	used.Description = "Configured ratio floor: " + strings.Join(parts, "; ") + "."
-	return used
+	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.2g", x), "0"), ".") + "%"
 }

@@ -20,7 +20,7 @@ func ExampleProject() {
 		Levels: []float64{0.9}, Cover: 0.9, Draws: 10_000, Seed: 1,
 		Floor: &stats.FloorSpec{PatientsPerNurse: 8, ChargeNurseCounts: true},
 	}
-	p, err := stats.Project(in)
+	p, err := stats.ProjectV1(in)
 	if err != nil {
 		fmt.Println(err)
 		return

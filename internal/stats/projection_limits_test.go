@@ -31,7 +31,7 @@ func TestProjectTinyFractionAndRatio(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			in := handInput()
 			tc.edit(&in)
-			p, err := Project(in)
+			p, err := ProjectV1(in)
 			if wardload.ErrorCode(err) != wardload.EINVALID || wardload.ErrorField(err) != tc.field {
 				if p != nil {
 					t.Fatalf("Project = recommended %d (cover unrounded %g), %v; want EINVALID field %s", p.Nurses.Recommended, p.Nurses.CoverSimulatedUnrounded, err, tc.field)
@@ -44,7 +44,7 @@ func TestProjectTinyFractionAndRatio(t *testing.T) {
 	// at the mean (hand computation as in TestProjectHand).
 	in := handInput()
 	in.DirectCareFraction = 0.01
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -38,7 +38,7 @@ func handInput() ProjectionInput {
 // for N = 1, 2, 3: 0.32021439370639548, 6.3048778946417932e-10,
 // 8.3070137664740978e-32.
 func TestProjectHand(t *testing.T) {
-	p, err := Project(handInput())
+	p, err := ProjectV1(handInput())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -92,7 +92,7 @@ func TestProjectHand(t *testing.T) {
 	if got := p.Tiers[2]; got.Code != "c" || got.Patients != 0 || got.ExpectedMinutes != 0 || got.MeanMinutes.Defined {
 		t.Errorf("census-0 tier = %+v", got)
 	}
-	if p.MethodVersion != MethodVersion || p.Caution != Caution || p.Patients != 5 {
+	if p.MethodVersion != MethodVersionV1 || p.Caution != cautionV1 || p.Patients != 5 {
 		t.Errorf("method %q, caution %q, patients %d", p.MethodVersion, p.Caution, p.Patients)
 	}
 	var lowA, lowB, lowC bool
@@ -112,7 +112,7 @@ func TestProjectHand(t *testing.T) {
 // Properties on a larger case with a fixed seed.
 func TestProjectProperties(t *testing.T) {
 	in := benchInput(200_000)
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -134,12 +134,12 @@ func TestProjectProperties(t *testing.T) {
 	}
 	// Same seed, same projection; another seed moves the simulation only.
 	in2 := benchInput(200_000)
-	q, _ := Project(in2)
+	q, _ := ProjectV1(in2)
 	if q.Simulation != p.Simulation {
 		t.Error("same seed gave a different simulation")
 	}
 	in2.Seed = 2
-	r, _ := Project(in2)
+	r, _ := ProjectV1(in2)
 	if r.Simulation.P90 == p.Simulation.P90 || r.ExpectedMinutes != p.ExpectedMinutes {
 		t.Error("seed did not change the simulation, or changed the analytic model")
 	}
@@ -170,7 +170,7 @@ func benchInput(draws int) ProjectionInput {
 func TestProjectScalingWarning(t *testing.T) {
 	in := handInput()
 	in.Tiers[0].WindowHours = []float64{4, 8, 8}
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -201,7 +201,7 @@ func TestProjectFloorVariants(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			in := handInput()
 			in.Floor = &tc.floor
-			p, err := Project(in)
+			p, err := ProjectV1(in)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -216,7 +216,7 @@ func TestProjectFloorVariants(t *testing.T) {
 	}
 	in := handInput()
 	in.Floor = nil
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -266,7 +266,7 @@ func TestProjectInvalid(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			in := handInput()
 			tc.edit(&in)
-			p, err := Project(in)
+			p, err := ProjectV1(in)
 			if p != nil || wardload.ErrorCode(err) != wardload.EINVALID || wardload.ErrorField(err) != tc.field {
 				t.Errorf("Project = %v, %v; want EINVALID field %s", p, err, tc.field)
 			}
@@ -278,7 +278,7 @@ func TestProjectExplicitRangeAndNoMutation(t *testing.T) {
 	in := handInput()
 	in.NursesFrom, in.NursesTo = 0, 2
 	before := slices.Clone(in.Tiers[0].CareMinutes)
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -293,7 +293,7 @@ func TestProjectExplicitRangeAndNoMutation(t *testing.T) {
 func TestProjectionJSON(t *testing.T) {
 	in := handInput()
 	in.Floor = nil
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -340,12 +340,12 @@ func TestCountAbove(t *testing.T) {
 func TestProjectExtremeInput(t *testing.T) {
 	in := handInput()
 	in.Tiers[0].WindowHours = []float64{1e-300, 8, 8}
-	if _, err := Project(in); wardload.ErrorField(err) != "care_minutes" {
+	if _, err := ProjectV1(in); wardload.ErrorField(err) != "care_minutes" {
 		t.Errorf("tiny window: %v, want EINVALID care_minutes", err)
 	}
 	in = handInput()
 	in.NursesFrom, in.NursesTo = MaxNurses, MaxNurses+1
-	if _, err := Project(in); wardload.ErrorField(err) != "nurses_to" {
+	if _, err := ProjectV1(in); wardload.ErrorField(err) != "nurses_to" {
 		t.Errorf("huge range: %v, want EINVALID nurses_to", err)
 	}
 }
@@ -362,8 +362,8 @@ func TestProjectionInputJSONRoundTrip(t *testing.T) {
 	if err := json.Unmarshal(stored, &again); err != nil {
 		t.Fatal(err)
 	}
-	p1, err1 := Project(in)
-	p2, err2 := Project(again)
+	p1, err1 := ProjectV1(in)
+	p2, err2 := ProjectV1(again)
 	if err1 != nil || err2 != nil {
 		t.Fatal(err1, err2)
 	}
@@ -399,7 +399,7 @@ func TestProjectDomainBrief(t *testing.T) {
 		}
 		in.Tiers = append(in.Tiers, ts)
 	}
-	p, err := Project(in)
+	p, err := ProjectV1(in)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -43,7 +43,7 @@ type Projection struct {
 	NursesCover        int    // CoverNurseHours ÷ ShiftHours, rounded up
 	Floor              *int   // nurses the configured ratio floor asks for; nil: no floor configured
 	Recommended        int    // max(NursesCover, *Floor)
-	DecidedBy          string // "cover", "ratio_floor" or "both"
+	DecidedBy          string // "cover", "ratio_floor", "both" or "insufficient_data" (then Recommended is the floor, or 0 with Floor nil: no recommendation)
 
 	MethodVersion string // the stats package's method version
 	Seed          uint64 // bootstrap seed

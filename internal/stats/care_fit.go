@@ -1,0 +1,409 @@
+package stats
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"time"
+)
+
+// The care model of version 2 (see FitCare). Its tuning constants were
+// chosen with the simulation battery in internal/simstudy (bench/calibration
+// prints its table); each says why.
+const (
+	// MinTierObservations is the fewest usable observations a tier with
+	// patients needs before the care-time part of a projection is shown.
+	// Below it the battery's tiny-tier scenarios could not keep the cover
+	// promise within 2 points without recommending absurd headcounts, so
+	// the projection declines (DecidedByInsufficient) instead.
+	MinTierObservations = 8
+	// fenceK is the multiple of the log-scale IQR beyond the quartiles
+	// where an observation is set aside as a likely entry error: Tukey's
+	// (1977) outer fence, 3·IQR. On a lognormal tier it sets aside about
+	// one value in a million that is real; a value typed in hours instead of
+	// minutes (×60, +4.1 on the log scale) lies far beyond it.
+	fenceK = 3.0
+	// minFenceObservations: quartiles of fewer values cannot tell an entry
+	// error from the tail (common practice, no source).
+	minFenceObservations = 8
+	// offsetShare sets the log offset c = max(1 minute, 10% of the tier's
+	// median): zero-minute observations stay finite on the log scale
+	// without dominating its spread (our choice, checked by the battery).
+	offsetShare = 0.1
+	// priorDF is the weight, in degrees of freedom, with which a tier's log
+	// variance is pulled towards the pooled log variance of all tiers
+	// (hierarchical shrinkage; Gelman et al. 2013, Bayesian Data Analysis,
+	// 3rd ed., §5.4 and §14.8 for the scaled inverse-χ² form). 2 keeps the
+	// pull weak, so a tier that really is more variable stays so.
+	priorDF = 2.0
+	// minTrendDates and minTrendDays: a trend needs this many distinct dates
+	// spread over this many days before it is estimated at all.
+	minTrendDates = 8
+	minTrendDays  = 14
+	// minEffectGroups: the shift-level component needs this many shift
+	// occurrences with two or more observations.
+	minEffectGroups = 5
+	// maxLogVariance caps a simulated log variance (σ = 10 on the log
+	// scale) so that every simulated total stays finite.
+	maxLogVariance = 100.0
+	// sigmaFloorShare keeps at least this share of a tier's residual log
+	// variance as patient-to-patient variance after the shift-level part is
+	// taken out, so a noisy estimate of that part cannot leave a tier with
+	// no spread of its own.
+	sigmaFloorShare = 0.25
+)
+
+// HeldOut is an observation the model set aside because it lies beyond the
+// log-scale outer fences of its tier: probably an entry error (minutes
+// typed as hours, a misplaced digit). It is not deleted; the review page is
+// where it can be excluded or confirmed.
+type HeldOut struct {
+	Tier        string  `json:"tier"`
+	Index       int     `json:"index"`        // position in the tier's CareMinutes
+	CareMinutes float64 `json:"care_minutes"` // as given
+	Side        string  `json:"side"`         // "above" or "below"
+	Date        string  `json:"date,omitempty"`
+}
+
+// careTier is one tier's part of a fitted model.
+type careTier struct {
+	code     string
+	patients int
+	offset   float64   // c of z = ln(y + c)
+	z        []float64 // log-scale values used
+	t        []float64 // days relative to the projected date (≤ 0); nil without dates
+	group    []int     // shift occurrence of each used value; nil without dates and shifts
+	zbar     float64   // mean of z
+	tbar     float64   // mean of t
+	resVar   float64   // residual log variance (shift-level part included)
+	sigma2   float64   // patient-to-patient log variance after shrinkage
+	df       float64   // degrees of freedom of sigma2
+	weight   float64   // Σ_g (n_kg/m_k)²: how shift occurrences weigh on zbar
+}
+
+// careFit is the fitted log-scale model of FitCare.
+type careFit struct {
+	tiers []careTier
+	held  []HeldOut
+
+	trend   bool
+	beta    float64 // common slope per day on the log scale
+	betaSE  float64
+	betaDF  float64
+	trendNo string // why no trend was estimated
+
+	effect   bool
+	tau2     float64 // shift-level log variance (may be below 0 before truncation)
+	tau2SE   float64
+	groups   int // shift occurrences with two or more observations
+	effectNo string
+}
+
+// fitInput is one tier's data for fitCare.
+type fitInput struct {
+	code     string
+	patients int
+	minutes  []float64 // per-patient shift minutes (ShiftMinutes)
+	raw      []float64 // as given, for HeldOut
+	dates    []string  // optional
+	shifts   []string  // optional
+}
+
+// fitCare fits, on the log scale z = ln(y + c_k), the model
+//
+//	z_kgi = α_k + β·t_g + b_g + e_kgi,   b_g ~ N(0, τ²),  e_kgi ~ N(0, σ_k²)
+//
+// for tier k, shift occurrence g (date and shift) on day t_g relative to the
+// projected date, and patient i. Right-skewed care times become roughly
+// symmetric on the log scale, and b_g multiplies every patient's care on
+// one shift at once (a heavy intake, an emergency). Estimators, all by
+// moments so that they are cheap and transparent:
+//
+//   - values beyond the outer fences Q1 − 3·IQR, Q3 + 3·IQR of a tier's z
+//     (type 7 quartiles, Tukey 1977) are set aside and reported (HeldOut);
+//   - β: the pooled within-tier least-squares slope Σ(t−t̄_k)(z−z̄_k) /
+//     Σ(t−t̄_k)², with a cluster-robust standard error over shift
+//     occurrences, G/(G−1)·Σ_g (Σ_{i∈g}(t_i−t̄_k)r_i)² / Sxx² (Liang &
+//     Zeger 1986; Cameron & Miller 2015, J. Human Resources 50(2));
+//     only with ≥ 8 distinct dates over ≥ 14 days;
+//   - τ²: the mean product of residual pairs within a shift occurrence,
+//     Σ_g Σ_{i<j} r_i r_j / Σ_g n_g(n_g−1)/2, an analysis-of-variance
+//     moment estimator (Searle, Casella & McCulloch 1992, Variance
+//     Components, ch. 3), with a cluster-robust standard error; only with
+//     ≥ 5 occurrences holding two or more observations;
+//   - σ_k²: the tier's residual variance less τ² (at least a quarter of
+//     it), shrunk towards the pooled value with 2 degrees of freedom.
+//
+// fitCare assumes validated input (see ProjectionInput.validate).
+func fitCare(tiers []fitInput, target string) *careFit {
+	f := &careFit{}
+	dated := target != ""
+	for _, t := range tiers {
+		if len(t.dates) != len(t.minutes) {
+			dated = false
+		}
+	}
+	var targetDay time.Time
+	if dated {
+		targetDay, _ = time.Parse(time.DateOnly, target)
+	}
+	groupID := map[string]int{}
+	for _, in := range tiers {
+		ct := careTier{code: in.code, patients: in.patients}
+		ct.offset = 1
+		if len(in.minutes) > 0 {
+			if med := HFQuantile(7, 0.5, slices.Sorted(slices.Values(in.minutes))); offsetShare*med > 1 {
+				ct.offset = offsetShare * med
+			}
+		}
+		z := make([]float64, len(in.minutes))
+		for i, y := range in.minutes {
+			z[i] = math.Log(y + ct.offset)
+		}
+		lo, hi := math.Inf(-1), math.Inf(1)
+		if len(z) >= minFenceObservations {
+			s := slices.Sorted(slices.Values(z))
+			q1, q3 := HFQuantile(7, 0.25, s), HFQuantile(7, 0.75, s)
+			if iqr := q3 - q1; iqr > 0 {
+				lo, hi = q1-fenceK*iqr, q3+fenceK*iqr
+			}
+		}
+		for i, v := range z {
+			if v < lo || v > hi {
+				h := HeldOut{Tier: in.code, Index: i, CareMinutes: in.raw[i], Side: "above"}
+				if v < lo {
+					h.Side = "below"
+				}
+				if dated {
+					h.Date = in.dates[i]
+				}
+				f.held = append(f.held, h)
+				continue
+			}
+			ct.z = append(ct.z, v)
+			if dated {
+				d, _ := time.Parse(time.DateOnly, in.dates[i])
+				ct.t = append(ct.t, d.Sub(targetDay).Hours()/24)
+				key := in.dates[i]
+				if i < len(in.shifts) {
+					key += "|" + in.shifts[i]
+				}
+				g, ok := groupID[key]
+				if !ok {
+					g = len(groupID)
+					groupID[key] = g
+				}
+				ct.group = append(ct.group, g)
+			}
+		}
+		if m := len(ct.z); m > 0 {
+			ct.zbar = avg(ct.z)
+			if dated {
+				ct.tbar = avg(ct.t)
+			}
+		}
+		f.tiers = append(f.tiers, ct)
+	}
+	f.fitTrend(dated, len(groupID))
+	res := f.residuals()
+	f.fitEffect(res, len(groupID))
+	f.fitSpread(res)
+	return f
+}
+
+// fitTrend estimates the common slope β and its cluster-robust SE.
+func (f *careFit) fitTrend(dated bool, groups int) {
+	if !dated {
+		f.trendNo = "observations carry no dates"
+		return
+	}
+	days := map[float64]bool{}
+	first, last := math.Inf(1), math.Inf(-1)
+	var sxx, sxy float64
+	for _, t := range f.tiers {
+		if len(t.z) < 2 {
+			continue
+		}
+		for i, ti := range t.t {
+			days[ti] = true
+			first, last = min(first, ti), max(last, ti)
+			dt := ti - t.tbar
+			sxx += dt * dt
+			sxy += dt * (t.z[i] - t.zbar)
+		}
+	}
+	if len(days) < minTrendDates || last-first < minTrendDays || sxx == 0 {
+		f.trendNo = fmt.Sprintf("a trend needs observations on at least %d dates over at least %d days", minTrendDates, minTrendDays)
+		return
+	}
+	f.trend, f.beta = true, sxy/sxx
+	score := make([]float64, groups)
+	for _, t := range f.tiers {
+		if len(t.z) < 2 {
+			continue
+		}
+		for i, ti := range t.t {
+			r := t.z[i] - t.zbar - f.beta*(ti-t.tbar)
+			score[t.group[i]] += (ti - t.tbar) * r
+		}
+	}
+	var ss float64
+	used := 0
+	for _, s := range score {
+		if s != 0 {
+			used++
+		}
+		ss += s * s
+	}
+	g := float64(max(used, 2))
+	f.betaSE = math.Sqrt(g / (g - 1) * ss / (sxx * sxx))
+	f.betaDF = g - 1
+}
+
+// residuals returns r = z − z̄_k − β(t − t̄_k) per tier.
+func (f *careFit) residuals() [][]float64 {
+	res := make([][]float64, len(f.tiers))
+	for k, t := range f.tiers {
+		res[k] = make([]float64, len(t.z))
+		for i, z := range t.z {
+			r := z - t.zbar
+			if f.trend {
+				r -= f.beta * (t.t[i] - t.tbar)
+			}
+			res[k][i] = r
+		}
+	}
+	return res
+}
+
+// fitEffect estimates τ² from residual pairs within shift occurrences.
+func (f *careFit) fitEffect(res [][]float64, groups int) {
+	if groups == 0 {
+		f.effectNo = "observations carry no date and shift, so shifts that are heavier for every patient at once cannot be told apart from single heavy patients"
+		return
+	}
+	sum := make([]float64, groups)
+	sq := make([]float64, groups)
+	n := make([]int, groups)
+	for k, t := range f.tiers {
+		if len(t.z) < 2 {
+			continue // a lone value's residual is 0 by construction
+		}
+		for i, g := range t.group {
+			sum[g] += res[k][i]
+			sq[g] += res[k][i] * res[k][i]
+			n[g]++
+		}
+	}
+	var u, p []float64
+	var su, sp float64
+	for g := range sum {
+		if n[g] < 2 {
+			continue
+		}
+		ug := (sum[g]*sum[g] - sq[g]) / 2
+		pg := float64(n[g]*(n[g]-1)) / 2
+		u, p = append(u, ug), append(p, pg)
+		su, sp = su+ug, sp+pg
+	}
+	f.groups = len(u)
+	if len(u) < minEffectGroups {
+		f.effectNo = fmt.Sprintf("only %d shift occurrences hold two or more observations; at least %d are needed", len(u), minEffectGroups)
+		return
+	}
+	f.effect, f.tau2 = true, su/sp
+	var ss float64
+	for i := range u {
+		d := u[i] - f.tau2*p[i]
+		ss += d * d
+	}
+	g := float64(len(u))
+	f.tau2SE = math.Sqrt(g/(g-1)*ss) / sp
+}
+
+// fitSpread sets each tier's patient-to-patient log variance.
+func (f *careFit) fitSpread(res [][]float64) {
+	tau2 := 0.0
+	if f.effect {
+		tau2 = max(0, f.tau2)
+	}
+	var poolSS, poolDF float64
+	for k := range f.tiers {
+		t := &f.tiers[k]
+		m := len(t.z)
+		if m < 2 {
+			continue
+		}
+		var ss float64
+		for _, r := range res[k] {
+			ss += r * r
+		}
+		t.resVar = ss / float64(m-1)
+		t.sigma2 = max(t.resVar-tau2, sigmaFloorShare*t.resVar)
+		t.df = float64(m - 1)
+		poolSS += t.df * t.sigma2
+		poolDF += t.df
+		w := map[int]float64{}
+		for _, g := range t.group {
+			w[g]++
+		}
+		if len(w) == 0 {
+			t.weight = 1 / float64(m)
+		}
+		for _, c := range w {
+			t.weight += (c / float64(m)) * (c / float64(m))
+		}
+	}
+	for k := range f.tiers {
+		t := &f.tiers[k]
+		other := poolDF - t.df
+		if other < 5 || len(t.z) < 2 {
+			continue // nothing worth borrowing
+		}
+		pool := (poolSS - t.df*t.sigma2) / other
+		t.sigma2 = (t.df*t.sigma2 + priorDF*pool) / (t.df + priorDF)
+		t.df += priorDF
+	}
+}
+
+// avg is the arithmetic mean of a non-empty x.
+func avg(x []float64) float64 {
+	s := 0.0
+	for _, v := range x {
+		s += v
+	}
+	return s / float64(len(x))
+}
+
+// tierSlope is the tier's own least-squares slope of z on t with a
+// cluster-robust standard error over shift occurrences (as fitTrend, for
+// one tier), for reporting: the model itself uses the common slope.
+func tierSlope(t *careTier) (ok bool, beta, se, df float64, reason string) {
+	if t.t == nil {
+		return false, 0, 0, 0, "observations carry no dates"
+	}
+	days := map[float64]bool{}
+	first, last := math.Inf(1), math.Inf(-1)
+	var sxx, sxy float64
+	for i, ti := range t.t {
+		days[ti] = true
+		first, last = min(first, ti), max(last, ti)
+		dt := ti - t.tbar
+		sxx += dt * dt
+		sxy += dt * (t.z[i] - t.zbar)
+	}
+	if len(days) < minTrendDates || last-first < minTrendDays || sxx == 0 {
+		return false, 0, 0, 0, fmt.Sprintf("a trend needs observations on at least %d dates over at least %d days", minTrendDates, minTrendDays)
+	}
+	beta = sxy / sxx
+	score := map[int]float64{}
+	for i, ti := range t.t {
+		score[t.group[i]] += (ti - t.tbar) * (t.z[i] - t.zbar - beta*(ti-t.tbar))
+	}
+	var ss float64
+	for _, s := range score {
+		ss += s * s
+	}
+	g := float64(len(score))
+	return true, beta, math.Sqrt(g / (g - 1) * ss / (sxx * sxx)), g - 1, ""
+}

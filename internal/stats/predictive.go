@@ -1,0 +1,177 @@
+package stats
+
+import (
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"sync"
+)
+
+// fwThreshold: a tier with more patients than this has its shift total
+// drawn in one step by the Fenton–Wilkinson lognormal approximation
+// instead of patient by patient (see simulateTotals).
+const fwThreshold = 64
+
+// paramDraw is one draw of the model's parameters from their approximate
+// posterior (see simulateTotals).
+type paramDraw struct {
+	beta, tau2, u float64
+}
+
+// simulateTotals draws `draws` shift totals of care minutes from the
+// predictive distribution of the fitted model for the census in f.tiers,
+// integrating over parameter uncertainty. For each draw:
+//
+//	β   = β̂ + se(β)·T_ν               (Student t, ν = occurrences − 1)
+//	τ²  = max(0, τ̂² + se(τ²)·Z)
+//	σ_k² = ν_k·s̃_k² / χ²_ν_k          (scaled inverse χ², ν_k = m_k − 1 + 2)
+//	μ_k = z̄_k − β·t̄_k + √(τ²·w_k)·U + √(σ_k²/m_k)·Z_k
+//	b   ~ N(0, τ²)                     (the new shift's common effect)
+//	total = Σ_k Σ_{i≤n_k} max(0, exp(μ_k + b + σ_k·ε_i) − c_k)
+//
+// with U shared by all tiers: the tiers' means are estimated from the same
+// shifts, so their errors are positively correlated, and a shared U is the
+// cautious (largest-variance) choice. With flat priors on α_k and log σ_k
+// this is the usual normal-theory posterior predictive (Gelman et al. 2013,
+// Bayesian Data Analysis, 3rd ed., §3.2 and §3.6: the predictive of a new
+// value is a Student t on the log scale, wider than the plug-in normal for
+// small m_k, so the spread never shrinks below the analytic one). Tiers
+// with more than 64 patients have their sum of lognormal values drawn as one
+// lognormal with the same mean and variance (Fenton, L. F. (1960), IRE
+// Trans. Commun. Syst. 8(1), 57–67), which keeps the right skew of the sum.
+//
+// Randomness: draws are cut into fixed chunks of 4096; chunk c uses
+// math/rand/v2's PCG seeded with (seed, splitmix64(c ⊕ 0x9e3779b97f4a7c15))
+// and its NormFloat64 (Marsaglia & Tsang 2000 ziggurat); χ² draws use
+// Marsaglia & Tsang's (2000, ACM TOMS 26(3)) gamma method. The same seed
+// gives the same totals for any GOMAXPROCS on one platform.
+func simulateTotals(f *careFit, draws int, seed uint64) []float64 {
+	out := make([]float64, draws)
+	chunks := (draws + bootstrapChunk - 1) / bootstrapChunk
+	workers := min(runtime.GOMAXPROCS(0), 4, chunks)
+	next := make(chan int, chunks)
+	for c := range chunks {
+		next <- c
+	}
+	close(next)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Go(func() {
+			for c := range next {
+				lo := c * bootstrapChunk
+				hi := min(lo+bootstrapChunk, draws)
+				r := rand.New(rand.NewPCG(seed, splitmix64(uint64(c)^streamKey)))
+				for d := lo; d < hi; d++ {
+					out[d] = f.drawTotal(r)
+				}
+			}
+		})
+	}
+	wg.Wait()
+	return out
+}
+
+// drawParams draws β, τ² and the shared mean error U.
+func (f *careFit) drawParams(r *rand.Rand) paramDraw {
+	var p paramDraw
+	if f.trend {
+		p.beta = f.beta + f.betaSE*studentT(r, f.betaDF)
+	}
+	if f.effect {
+		p.tau2 = min(max(0, f.tau2+f.tau2SE*r.NormFloat64()), maxLogVariance)
+	}
+	p.u = r.NormFloat64()
+	return p
+}
+
+// tierLocation draws tier k's log variance and its log-scale location at
+// the projected date.
+func (f *careFit) tierLocation(r *rand.Rand, t *careTier, p paramDraw) (mu, sigma2 float64) {
+	sigma2 = min(t.df*t.sigma2/chiSquare(r, t.df), maxLogVariance)
+	mu = t.zbar - p.beta*t.tbar + math.Sqrt(p.tau2*t.weight)*p.u +
+		math.Sqrt(sigma2/float64(len(t.z)))*r.NormFloat64()
+	return mu, sigma2
+}
+
+// drawTotal draws one shift total.
+func (f *careFit) drawTotal(r *rand.Rand) float64 {
+	p := f.drawParams(r)
+	b := math.Sqrt(p.tau2) * r.NormFloat64()
+	total := 0.0
+	for k := range f.tiers {
+		t := &f.tiers[k]
+		if t.patients == 0 {
+			continue
+		}
+		mu, s2 := f.tierLocation(r, t, p)
+		mu += b
+		s := math.Sqrt(s2)
+		if t.patients <= fwThreshold {
+			for range t.patients {
+				total += max(0, math.Exp(mu+s*r.NormFloat64())-t.offset)
+			}
+			continue
+		}
+		// Fenton–Wilkinson: Σ of n lognormal(mu, s²) ≈ lognormal with the
+		// same mean n·e^{mu+s²/2} and variance n·(e^{s²}−1)·e^{2mu+s²}.
+		n := float64(t.patients)
+		v := math.Log1p(math.Expm1(s2) / n)
+		loc := math.Log(n) + mu + s2/2 - v/2
+		total += max(0, math.Exp(loc+math.Sqrt(v)*r.NormFloat64())-n*t.offset)
+	}
+	return total
+}
+
+// chiSquare draws χ²_ν = 2·Gamma(ν/2).
+func chiSquare(r *rand.Rand, nu float64) float64 { return 2 * gammaDraw(r, nu/2) }
+
+// studentT draws Student's t with ν degrees of freedom, Z / √(χ²_ν/ν).
+func studentT(r *rand.Rand, nu float64) float64 {
+	return r.NormFloat64() / math.Sqrt(chiSquare(r, nu)/nu)
+}
+
+// gammaDraw draws Gamma(shape, 1) by Marsaglia & Tsang (2000), "A simple
+// method for generating gamma variables", ACM TOMS 26(3), 363–372; for
+// shape < 1 it draws Gamma(shape+1) and multiplies by U^(1/shape) (their §6).
+func gammaDraw(r *rand.Rand, shape float64) float64 {
+	if shape < 1 {
+		u := r.Float64()
+		for u == 0 {
+			u = r.Float64()
+		}
+		return gammaDraw(r, shape+1) * math.Pow(u, 1/shape)
+	}
+	d := shape - 1.0/3
+	c := 1 / math.Sqrt(9*d)
+	for {
+		x := r.NormFloat64()
+		v := 1 + c*x
+		if v <= 0 {
+			continue
+		}
+		v = v * v * v
+		u := r.Float64()
+		if u < 1-0.0331*x*x*x*x || math.Log(u) < 0.5*x*x+d*(1-v+math.Log(v)) {
+			return d * v
+		}
+	}
+}
+
+// plugInMean is E[total] at the point estimates, Σ_k n_k·(e^{μ̂_k +
+// (σ̂_k² + τ̂²)/2} − c_k): the lognormal mean (Aitchison & Brown 1957,
+// The Lognormal Distribution, ch. 2), less the offset.
+func (f *careFit) plugInMean() float64 {
+	tau2 := 0.0
+	if f.effect {
+		tau2 = max(0, f.tau2)
+	}
+	total := 0.0
+	for _, t := range f.tiers {
+		if t.patients == 0 {
+			continue
+		}
+		mu := t.zbar - f.beta*t.tbar
+		total += float64(t.patients) * max(0, math.Exp(mu+(t.sigma2+tau2)/2)-t.offset)
+	}
+	return total
+}
