@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -357,11 +358,23 @@ func ProbabilityText(k, n int) string {
 
 func percentText(p float64) string {
 	x := 100 * p
+	var s string
 	switch {
 	case x >= 10:
-		return fmt.Sprintf("%.0f%%", x)
+		s = strconv.FormatFloat(x, 'f', 0, 64)
 	case x >= 1:
-		return fmt.Sprintf("%.1f%%", x)
+		s = strconv.FormatFloat(x, 'f', 1, 64)
+	default:
+		s = strconv.FormatFloat(x, 'g', 2, 64)
 	}
-	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.2g", x), "0"), ".") + "%"
+	// A share just under 100% must not read as 100% (nor one just above
+	// 0% as 0%): add decimals until it does not.
+	for prec := 1; prec <= 8; prec++ {
+		v, _ := strconv.ParseFloat(s, 64)
+		if !(v == 100 && x < 100) && !(v == 0 && x > 0) {
+			break
+		}
+		s = strconv.FormatFloat(x, 'f', prec, 64)
+	}
+	return s + "%"
 }
