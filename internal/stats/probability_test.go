@@ -14,7 +14,7 @@ import (
 // the same closed form (R through the score test's quadratic).
 func TestWilsonIntervalR(t *testing.T) {
 	for _, c := range []struct {
-		k, n     int
+		k, n      int
 		low, high float64
 	}{
 		{0, 1000, 0, 0.0038267584855551221},
