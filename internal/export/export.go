@@ -13,12 +13,10 @@ package export
 
 import (
 	"context"
-	"encoding/json"
 	"slices"
 	"strconv"
 	"time"
 
-	"wardload/internal/stats"
 	"wardload/internal/wardload"
 )
 
@@ -26,25 +24,37 @@ import (
 // typing error in a year cannot ask for decades of rows.
 const MaxDays = 366
 
-// Row is one ward × dated shift: its newest projection.
+// Row is one ward × dated shift: its newest projection. Figures the
+// model could not stand behind are nil: a declined projection
+// (DataSufficient false, DecidedBy stats.DecidedByInsufficient) has no
+// expected hours, band, headcount at cover or shortfall, and no
+// recommendation either when no ratio floor is configured.
 type Row struct {
-	Ward               string        // ward code
-	Date               wardload.Date // the dated shift's date
-	Shift              string        // shift name when projected
-	Start, End         time.Time     // in the ward's time zone
-	ShiftHours         float64       // real hours of the dated shift
-	CensusRevision     int
-	TotalPatients      int
-	Census             []int // patients per tier, in the order of Rows' tiers
-	CoverLevel         float64
-	ExpectedNurseHours float64
-	BandLowNurseHours  float64 // normal band at two-sided level CoverLevel
-	BandHighNurseHours float64
-	NursesCover        int
+	Ward           string        // ward code
+	Date           wardload.Date // the dated shift's date
+	Shift          string        // shift name when projected
+	Start, End     time.Time     // in the ward's time zone
+	ShiftHours     float64       // real hours of the dated shift
+	CensusRevision int
+	TotalPatients  int
+	Census         []int // patients per tier, in the order of Rows' tiers
+	CoverLevel     float64
+	DataSufficient bool     // false: the care-time part declined (method 2)
+	Insufficient   []string // why it declined, one sentence per tier
+	// ExpectedNurseHours is at the expected total care minutes.
+	ExpectedNurseHours *float64
+	// BandLevel is the two-sided level of the band (the cover level);
+	// BandMethod names it (BandPredictive, BandNormal).
+	BandLevel          *float64
+	BandMethod         string
+	BandLowNurseHours  *float64
+	BandHighNurseHours *float64
+	NursesCover        *int   // headcount needed at the cover level
 	Floor              *int   // nil: no ratio floor configured for the shift
 	FloorRule          string // the floor used, in words; NoFloor when none
-	Recommended        int
+	Recommended        *int   // nil: no recommendation
 	DecidedBy          string
+	Shortfall          *Shortfall // at the recommended headcount
 	MethodVersion      string
 	GeneratedAt        time.Time // when the projection was made, in the ward's time zone
 	Caution            string
@@ -84,24 +94,17 @@ func Rows(ctx context.Context, st wardload.Store, ward *wardload.Ward, from, to 
 	slices.Reverse(ps) // the store gives newest first
 	rows := make([]Row, 0, len(ps))
 	for _, p := range ps {
-		r := Row{
-			Ward: ward.Code, Date: p.Date, Shift: p.ShiftName,
-			Start: p.Start.In(loc), End: p.End.In(loc), ShiftHours: p.ShiftHours,
-			CensusRevision: p.CensusRevision, TotalPatients: p.TotalPatients,
-			CoverLevel: p.CoverLevel, ExpectedNurseHours: p.ExpectedNurseHours,
-			BandLowNurseHours: p.BandLowNurseHours, BandHighNurseHours: p.BandHighNurseHours,
-			NursesCover: p.NursesCover, Floor: p.Floor, Recommended: p.Recommended, DecidedBy: p.DecidedBy,
-			MethodVersion: p.MethodVersion, GeneratedAt: p.CreatedAt.In(loc), Caution: stats.Caution,
+		res, err := DecodeResult(p)
+		if err != nil {
+			return nil, nil, err
 		}
+		r := newRow(ward, loc, p, res)
 		byTier := map[int64]int{}
 		for _, tc := range p.Counts {
 			byTier[tc.TierID] = tc.Patients
 		}
 		for _, t := range tiers {
 			r.Census = append(r.Census, byTier[t.ID])
-		}
-		if r.FloorRule, err = floorRule(p); err != nil {
-			return nil, nil, err
 		}
 		rows = append(rows, r)
 	}
@@ -110,23 +113,6 @@ func Rows(ctx context.Context, st wardload.Store, ward *wardload.Ward, from, to 
 
 // NoFloor is Row.FloorRule when no ratio floor was configured for the shift.
 const NoFloor = "No ratio floor is configured in wardload for this shift."
-
-// floorRule reads the description of the floor used from the stored
-// result; NoFloor when the projection had none.
-func floorRule(p *wardload.Projection) (string, error) {
-	var res struct {
-		Floor *struct {
-			Description string `json:"description"`
-		} `json:"floor_used"`
-	}
-	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
-		return "", wardload.Errorf(wardload.EINTERNAL, "The stored result of projection %d cannot be read.", p.ID)
-	}
-	if res.Floor == nil {
-		return NoFloor, nil
-	}
-	return res.Floor.Description, nil
-}
 
 // FormatHours formats hours and nurse-hours as the export writes them:
 // fixed, two decimals (hundredths of an hour, 36 seconds, are finer than
@@ -139,6 +125,12 @@ func FormatHours(v float64) string {
 	}
 	return s
 }
+
+// FormatProbability formats a probability or its interval bound as the
+// export writes it: four significant digits (0.08355, 1e-05). That is
+// finer than the simulation's own error, which the Wilson interval beside
+// each share states, and a tiny bound reads 1e-05 rather than 0.
+func FormatProbability(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
 // FormatLevel formats a probability such as the cover level in the
 // shortest form that reads back exactly (0.9, not 0.90).

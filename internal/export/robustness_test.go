@@ -47,13 +47,15 @@ func TestWriteCSVNeutralisesFormulas(t *testing.T) {
 		t.Fatalf("the payload is not a valid shift name any more (%v); keep the export check anyway", err)
 	}
 	tiers := []*wardload.Tier{{ID: 1, Code: "t1", Label: "=1+1"}}
-	floor := 3
+	floor, cover, rec := 3, 1, 3
+	expected, low, high := 1.5, -0.5, 3.5
 	at := time.Date(2026, 3, 28, 7, 30, 0, 0, time.UTC)
 	rows := []export.Row{{
 		Ward: "w1", Date: wardload.Date{Year: 2026, Month: 3, Day: 28}, Shift: sp.Name,
 		Start: at, End: at.Add(12 * time.Hour), ShiftHours: 12, CensusRevision: 1, TotalPatients: 2,
-		Census: []int{2}, CoverLevel: 0.9, ExpectedNurseHours: 1.5, BandLowNurseHours: -0.5, BandHighNurseHours: 3.5,
-		NursesCover: 1, Floor: &floor, FloorRule: "-1 nurse", Recommended: 3, DecidedBy: "@floor",
+		Census: []int{2}, CoverLevel: 0.9, DataSufficient: true, ExpectedNurseHours: &expected, BandLowNurseHours: &low, BandHighNurseHours: &high,
+		NursesCover: &cover, Floor: &floor, FloorRule: "-1 nurse", Recommended: &rec, DecidedBy: "@floor", BandMethod: "=band",
+		Shortfall:     &export.Shortfall{Method: "+sim", Nurses: 3, CareGivingNurses: 2, Text: "-text"},
 		MethodVersion: "+v", GeneratedAt: at, Caution: "\tcaution",
 	}}
 	var b bytes.Buffer
@@ -71,6 +73,7 @@ func TestWriteCSVNeutralisesFormulas(t *testing.T) {
 	for c, want := range map[string]string{
 		"shift": "'=cmd|' /C calc'!A0", "ratio_floor_rule": "'-1 nurse", "decided_by": "'@floor",
 		"method_version": "'+v", "caution": "'\tcaution",
+		"band_method": "'=band", "shortfall_method": "'+sim", "shortfall_text": "'-text",
 		// Numbers are untouched.
 		"band_low_nurse_hours": "-0.50", "expected_nurse_hours": "1.50", "census_t1": "2", "ratio_floor_nurses": "3",
 	} {

@@ -20,28 +20,105 @@ func Columns(tiers []*wardload.Tier) []string {
 	for _, t := range tiers {
 		cols = append(cols, "census_"+t.Code)
 	}
-	return append(cols, "cover_level", "expected_nurse_hours", "band_low_nurse_hours", "band_high_nurse_hours",
-		"nurses_at_cover", "ratio_floor_nurses", "ratio_floor_rule", "recommended_nurses", "decided_by",
-		"method_version", "generated_at", "caution")
+	for _, c := range (&Row{}).cells() {
+		cols = append(cols, c.name)
+	}
+	return cols
 }
 
-// fields returns the row's values as the export writes them, in Columns
-// order: hours with FormatHours, levels with FormatLevel, instants with
-// FormatTime, a missing floor as "", and every free-text cell through
-// TextCell. Number cells are never changed, so "-0.50" stays a number.
+// cell is one column of a row after the census: its name, its CSV text
+// and its JSON value (the CSV's digits; null where the CSV is empty).
+type cell struct {
+	name string
+	csv  string
+	json any
+}
+
+// text is a free-text cell: TextCell in the CSV, as stored in the JSON.
+func text(name, s string) cell { return cell{name, TextCell(s), s} }
+
+// optText is a free-text cell that is null in the JSON when empty.
+func optText(name, s string) cell {
+	if s == "" {
+		return cell{name, "", nil}
+	}
+	return text(name, s)
+}
+
+// number is a cell whose CSV text is also its JSON number; "" is null.
+func number(name, s string) cell {
+	if s == "" {
+		return cell{name, "", nil}
+	}
+	return cell{name, s, json.RawMessage(s)}
+}
+
+func optional[T any](v *T, format func(T) string) string {
+	if v == nil {
+		return ""
+	}
+	return format(*v)
+}
+
+// cells returns the row's columns after the census, in Columns order:
+// hours with FormatHours, levels with FormatLevel, probabilities with
+// FormatProbability, instants with FormatTime, a missing figure as ""
+// (JSON null), and every free-text cell through TextCell. Number cells are
+// never changed, so "-0.50" stays a number.
+func (r *Row) cells() []cell {
+	var sf Shortfall
+	if r.Shortfall != nil {
+		sf = *r.Shortfall
+	}
+	has := r.Shortfall != nil
+	prob := func(v float64) string {
+		if !has {
+			return ""
+		}
+		return FormatProbability(v)
+	}
+	careGiving := ""
+	if has {
+		careGiving = strconv.Itoa(sf.CareGivingNurses)
+	}
+	return []cell{
+		number("cover_level", FormatLevel(r.CoverLevel)),
+		number("data_sufficient", strconv.FormatBool(r.DataSufficient)),
+		optText("insufficient", strings.Join(r.Insufficient, " ")),
+		number("expected_nurse_hours", optional(r.ExpectedNurseHours, FormatHours)),
+		number("band_level", optional(r.BandLevel, FormatLevel)),
+		optText("band_method", r.BandMethod),
+		number("band_low_nurse_hours", optional(r.BandLowNurseHours, FormatHours)),
+		number("band_high_nurse_hours", optional(r.BandHighNurseHours, FormatHours)),
+		number("nurses_at_cover", optional(r.NursesCover, strconv.Itoa)),
+		number("ratio_floor_nurses", optional(r.Floor, strconv.Itoa)),
+		text("ratio_floor_rule", r.FloorRule),
+		number("recommended_nurses", optional(r.Recommended, strconv.Itoa)),
+		text("decided_by", r.DecidedBy),
+		number("care_giving_nurses", careGiving),
+		optText("shortfall_method", sf.Method),
+		number("shortfall_simulated_share", prob(sf.Probability)),
+		number("shortfall_wilson95_low", prob(sf.WilsonLow)),
+		number("shortfall_wilson95_high", prob(sf.WilsonHigh)),
+		optText("shortfall_text", sf.Text),
+		text("method_version", r.MethodVersion),
+		{"generated_at", FormatTime(r.GeneratedAt), FormatTime(r.GeneratedAt)},
+		text("caution", r.Caution),
+	}
+}
+
+// fields returns the row's values as the CSV writes them, in Columns
+// order.
 func (r *Row) fields() []string {
 	f := []string{TextCell(r.Ward), r.Date.String(), TextCell(r.Shift), FormatTime(r.Start), FormatTime(r.End), FormatHours(r.ShiftHours),
 		strconv.Itoa(r.CensusRevision), strconv.Itoa(r.TotalPatients)}
 	for _, n := range r.Census {
 		f = append(f, strconv.Itoa(n))
 	}
-	floor := ""
-	if r.Floor != nil {
-		floor = strconv.Itoa(*r.Floor)
+	for _, c := range r.cells() {
+		f = append(f, c.csv)
 	}
-	return append(f, FormatLevel(r.CoverLevel), FormatHours(r.ExpectedNurseHours), FormatHours(r.BandLowNurseHours),
-		FormatHours(r.BandHighNurseHours), strconv.Itoa(r.NursesCover), floor, TextCell(r.FloorRule), strconv.Itoa(r.Recommended),
-		TextCell(r.DecidedBy), TextCell(r.MethodVersion), FormatTime(r.GeneratedAt), TextCell(r.Caution))
+	return f
 }
 
 // TextCell neutralises a free-text CSV cell that a spreadsheet would read
@@ -95,7 +172,9 @@ func WriteCSV(w io.Writer, tiers []*wardload.Tier, rows []Row) error {
 // Each row object has the CSV columns as keys, in the same order, except
 // that the census_<code> columns are gathered into one "census" object
 // (keys in tier order). Numbers are JSON numbers with exactly the CSV's
-// digits; a missing floor is null. The object ends with a newline.
+// digits; a figure the CSV leaves empty (no floor, no recommendation, a
+// declined projection's care-time figures) is null, and data_sufficient
+// is a boolean. The object ends with a newline.
 //
 // The object is built whole and checked before anything reaches w; when w
 // is a *bytes.Buffer it is built in place (no second copy), and on failure
@@ -152,10 +231,6 @@ func buildJSON(b *bytes.Buffer, ward *wardload.Ward, from, to wardload.Date, tie
 			b.WriteString(",")
 		}
 		b.WriteString("\n{")
-		floor := json.RawMessage("null")
-		if r.Floor != nil {
-			floor = json.RawMessage(strconv.Itoa(*r.Floor))
-		}
 		census := &bytes.Buffer{}
 		census.WriteString("{")
 		for k, t := range tiers {
@@ -165,27 +240,18 @@ func buildJSON(b *bytes.Buffer, ward *wardload.Ward, from, to wardload.Date, tie
 			key(census, t.Code, json.RawMessage(strconv.Itoa(r.Census[k])))
 		}
 		census.WriteString("}")
-		for k, kv := range []struct {
-			k string
-			v any
-		}{
-			{"ward", r.Ward}, {"date", r.Date.String()}, {"shift", r.Shift},
-			{"start", FormatTime(r.Start)}, {"end", FormatTime(r.End)},
-			{"shift_hours", json.RawMessage(FormatHours(r.ShiftHours))},
-			{"census_revision", r.CensusRevision}, {"census_total", r.TotalPatients},
-			{"census", json.RawMessage(census.Bytes())},
-			{"cover_level", json.RawMessage(FormatLevel(r.CoverLevel))},
-			{"expected_nurse_hours", json.RawMessage(FormatHours(r.ExpectedNurseHours))},
-			{"band_low_nurse_hours", json.RawMessage(FormatHours(r.BandLowNurseHours))},
-			{"band_high_nurse_hours", json.RawMessage(FormatHours(r.BandHighNurseHours))},
-			{"nurses_at_cover", r.NursesCover}, {"ratio_floor_nurses", floor}, {"ratio_floor_rule", r.FloorRule},
-			{"recommended_nurses", r.Recommended}, {"decided_by", r.DecidedBy},
-			{"method_version", r.MethodVersion}, {"generated_at", FormatTime(r.GeneratedAt)}, {"caution", r.Caution},
-		} {
+		head := []cell{
+			{"ward", "", r.Ward}, {"date", "", r.Date.String()}, {"shift", "", r.Shift},
+			{"start", "", FormatTime(r.Start)}, {"end", "", FormatTime(r.End)},
+			{"shift_hours", "", json.RawMessage(FormatHours(r.ShiftHours))},
+			{"census_revision", "", r.CensusRevision}, {"census_total", "", r.TotalPatients},
+			{"census", "", json.RawMessage(census.Bytes())},
+		}
+		for k, c := range append(head, r.cells()...) {
 			if k > 0 {
 				b.WriteString(",")
 			}
-			key(b, kv.k, kv.v)
+			key(b, c.name, c.json)
 		}
 		b.WriteString("}")
 	}
@@ -193,14 +259,18 @@ func buildJSON(b *bytes.Buffer, ward *wardload.Ward, from, to wardload.Date, tie
 	return nil
 }
 
-// key writes "k":v with v JSON-encoded (a json.RawMessage as it is).
-// Encoding strings and small integers cannot fail.
+// key writes "k":v with v JSON-encoded (a json.RawMessage as it is),
+// without HTML escaping: the export is a file, not a page, and a shortfall
+// of "< 0.19%" should read as such rather than "\u003c 0.19%". Encoding
+// strings and small integers cannot fail.
 func key(b *bytes.Buffer, k string, v any) {
-	kb, _ := json.Marshal(k)
-	vb, _ := json.Marshal(v)
-	b.Write(kb)
+	enc := json.NewEncoder(b)
+	enc.SetEscapeHTML(false)
+	_ = enc.Encode(k)
+	b.Truncate(b.Len() - 1) // Encode ends with a newline
 	b.WriteString(":")
-	b.Write(vb)
+	_ = enc.Encode(v)
+	b.Truncate(b.Len() - 1)
 }
 
 func checkCensus(r *Row, tiers []*wardload.Tier) error {
