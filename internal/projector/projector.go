@@ -11,6 +11,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"sync"
 	"time"
 
 	"wardload/internal/stats"
@@ -36,7 +37,10 @@ const DefaultDraws = 20_000
 type Service struct {
 	Store wardload.Store
 	Now   wardload.Clock // "today" for the date window; nil means time.Now
-	Draws int            // bootstrap draws; 0 means DefaultDraws
+	Draws int            // simulation draws; 0 means DefaultDraws
+
+	calOnce      sync.Once
+	calibrations *calibrationCache // see Calibrate
 }
 
 // Prepare validates a census of one dated shift and computes its
@@ -56,7 +60,10 @@ type Service struct {
 //     ward-wide floor pools the tiers without their own; the nurse in
 //     charge counts towards the floor only if every floor of the shift
 //     says so;
-//   - the seed Seed(ward, date, shift) and Service.Draws draws.
+//   - the seed Seed(ward, date, shift) and Service.Draws draws;
+//   - the ward's calibration (Calibrate: its backtest over the
+//     CalibrationWeeks weeks before the date), reported with the
+//     projection and warned about when more than 5 points short.
 //
 // Errors name the field: ENOTFOUND "ward"; EINVALID "date" (missing, or
 // outside the window above), "shift" (not a shift of this ward), "tier" (a
@@ -134,6 +141,11 @@ func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date,
 		in.Tiers = append(in.Tiers, InputTier{ID: t.ID, Code: t.Code, Label: t.Label, Observations: len(ts.CareMinutes)})
 	}
 	model.Floor = floorSpec(settings.Floors, shiftID, tiers, &in.Settings.Floors)
+	backtest, err := s.Calibrate(ctx, wardID, date)
+	if err != nil {
+		return nil, nil, err
+	}
+	model.Calibration = backtest.Calibration()
 
 	res, err := stats.Project(*model)
 	if err != nil {

@@ -3,6 +3,7 @@ package projector_test
 import (
 	"context"
 	"encoding/json"
+	"fmt"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -121,12 +122,15 @@ func decodeInput(t *testing.T, p *wardload.Projection) projector.Input {
 	return in
 }
 
-// By hand (as internal/stats TestProjectHand): μ = 220 minutes, so
-// expected nurse-hours = 220 / 60 / 0.5 = 7.3333; floor = ceil(5/4) + 1 = 3.
-// Band at two-sided level 0.9, in nurse-hours, from R 4.2.2 Patched
-// (2022-11-10 r83330), Debian r-base-core:
+// The hand ward's tiers hold 3, 2 and 1 observations, fewer than
+// stats.MinTierObservations, so version 2 declines: the recommendation is
+// the floor, ceil(5/4) + 1 = 3, and no care-time figure is stored.
+// Version 1 on the same stored input still gives the hand figures (as
+// internal/stats TestProjectHand): μ = 220 minutes, expected nurse-hours
+// 220 / 60 / 0.5 = 7.3333, and the band at two-sided level 0.9 from R
+// 4.2.2 Patched (2022-11-10 r83330), Debian r-base-core:
 // sprintf("%.17g", (220 + c(-1, 1)*qnorm(0.95)*sqrt(800 + 3100/3))/60/0.5)
-// = 4.9857191782163852, 9.6809474884502809.
+// = 4.9857191782163852, 9.6809474884502809 (minutes there, ×60×0.5 here).
 func TestPrepareHand(t *testing.T) {
 	h := seedHand(t)
 	c, p, err := h.service().Prepare(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 3, 0))
@@ -137,17 +141,16 @@ func TestPrepareHand(t *testing.T) {
 			t.Errorf("%s = %.17g, want %.17g", name, got, want)
 		}
 	}
-	near("expected nurse-hours", p.ExpectedNurseHours, 220.0/60/0.5)
-	near("band low", p.BandLowNurseHours, 4.9857191782163852)
-	near("band high", p.BandHighNurseHours, 9.6809474884502809)
-	if p.Floor == nil || *p.Floor != 3 || p.Recommended != 3 || p.DecidedBy != stats.DecidedByFloor {
-		t.Errorf("floor %v, recommended %d by %s; want 3, 3 by ratio_floor", p.Floor, p.Recommended, p.DecidedBy)
+	if p.Floor == nil || *p.Floor != 3 || p.Recommended != 3 || p.DecidedBy != stats.DecidedByInsufficient ||
+		p.NursesCover != 0 || p.ExpectedNurseHours != 0 || p.CoverNurseHours != 0 {
+		t.Errorf("floor %v, recommended %d by %s, cover %d, nurse-hours %g; want the floor 3 by insufficient_data and no care-time figure",
+			p.Floor, p.Recommended, p.DecidedBy, p.NursesCover, p.ExpectedNurseHours)
 	}
-	// The analytic cover need is 1.145 nurses (stats TestProjectHand); the
-	// simulated one is near it, so it rounds up to 2.
-	if p.NursesCover != 2 || p.CoverNurseHours <= 8 || p.CoverNurseHours > 16 {
-		t.Errorf("nurses at cover %d (%g nurse-hours), want 2 (8 to 16 nurse-hours)", p.NursesCover, p.CoverNurseHours)
-	}
+	v1, err := stats.ProjectV1(decodeInput(t, p).Model)
+	must(t, err)
+	near("version 1 expected nurse-hours", v1.NurseHours.Expected, 220.0/60/0.5)
+	near("version 1 band low", v1.Bands[0].Low/60/0.5, 4.9857191782163852)
+	near("version 1 band high", v1.Bands[0].High/60/0.5, 9.6809474884502809)
 	if p.ShiftHours != 8 || p.ShiftName != "Early" || !p.Start.Equal(time.Date(2026, 3, 20, 7, 0, 0, 0, time.UTC)) ||
 		!p.End.Equal(time.Date(2026, 3, 20, 15, 0, 0, 0, time.UTC)) {
 		t.Errorf("shift %s %g h %v–%v", p.ShiftName, p.ShiftHours, p.Start, p.End)
@@ -182,8 +185,25 @@ func TestPrepareHand(t *testing.T) {
 	}
 }
 
+// addObservations gives each of tiers a, b and c n more observations of
+// the Early shift in the lookback, so version 2 has enough to project.
+// Invented values, for properties only.
+func (h *handWard) addObservations(t *testing.T, n int) {
+	t.Helper()
+	var obs []*wardload.Observation
+	for k, tier := range []*wardload.Tier{h.a, h.b, h.c} {
+		for i := range n {
+			obs = append(obs, &wardload.Observation{WardID: h.ward.ID, TierID: tier.ID, ShiftID: h.early.ID,
+				Date: h.shiftDate.AddDays(-1 - i%7), WindowHours: 8, CareMinutes: float64(10*(k+1) + 7*(i%5) + i%3)})
+		}
+	}
+	_, err := h.st.CreateObservations(ctx, obs)
+	must(t, err)
+}
+
 func TestSaveAndRecompute(t *testing.T) {
 	h := seedHand(t)
+	h.addObservations(t, 12)
 	s := h.service()
 	c1, p1, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 3, 0))
 	must(t, err)
@@ -250,8 +270,6 @@ func TestPrepareErrors(t *testing.T) {
 		{"shift of other ward", h.ward.ID, "2026-03-20", otherShift.ID, nil, wardload.EINVALID, "shift", "no such shift"},
 		{"three days ahead", h.ward.ID, "2026-03-23", h.early.ID, nil, wardload.EINVALID, "date", "too far from today"},
 		{"fifteen days back", h.ward.ID, "2026-03-05", h.early.ID, nil, wardload.EINVALID, "date", "14 days back"},
-		{"tier with no observations", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: d.ID, Patients: 1}}, wardload.EINVALID, "tier_d", "Tier D has 1 patients but no care observations"},
-		{"tier with one observation", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: h.c.ID, Patients: 1}}, wardload.EINVALID, "tier_c", "only one care observation"},
 		{"tier above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(7, 0, 0), wardload.EINVALID, "tier_a", "6 beds"},
 		{"total above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(4, 3, 0), wardload.EINVALID, "patients", "7 patients, more than the ward's 6 beds"},
 		{"negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(-1, 0, 0), wardload.EINVALID, "tier_a", "Tier A"},
@@ -280,6 +298,27 @@ func TestPrepareErrors(t *testing.T) {
 	}
 	if got := countAudit(t, h.st); got != auditBefore {
 		t.Errorf("audit rows %d -> %d", auditBefore, got)
+	}
+}
+
+// A tier with patients and too few observations (none, or one) is not an
+// error any more: the projection declines and says how many are missing.
+func TestPrepareDeclines(t *testing.T) {
+	h := seedHand(t)
+	d := &wardload.Tier{WardID: h.ward.ID, Code: "d", Label: "Tier D", DisplayOrder: 4}
+	must(t, h.st.CreateTier(ctx, d))
+	for _, tc := range []struct {
+		counts []wardload.TierCount
+		msg    string
+	}{
+		{[]wardload.TierCount{{TierID: d.ID, Patients: 1}}, fmt.Sprintf("tier d: 0 usable, need about %d more", stats.MinTierObservations)},
+		{[]wardload.TierCount{{TierID: h.c.ID, Patients: 1}}, fmt.Sprintf("tier c: 1 usable, need about %d more", stats.MinTierObservations-1)},
+	} {
+		_, p, err := h.service().Prepare(ctx, h.ward.ID, h.shiftDate, h.early.ID, tc.counts)
+		must(t, err)
+		if p.DecidedBy != stats.DecidedByInsufficient || p.Recommended != 2 || !strings.Contains(p.Result, tc.msg) {
+			t.Errorf("%v: decided by %s, recommended %d; result lacks %q", tc.counts, p.DecidedBy, p.Recommended, tc.msg)
+		}
 	}
 }
 

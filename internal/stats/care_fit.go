@@ -351,16 +351,7 @@ func (f *careFit) fitSpread(res [][]float64) {
 		t.df = float64(m - 1)
 		poolSS += t.df * t.sigma2
 		poolDF += t.df
-		w := map[int]float64{}
-		for _, g := range t.group {
-			w[g]++
-		}
-		if len(w) == 0 {
-			t.weight = 1 / float64(m)
-		}
-		for _, c := range w {
-			t.weight += (c / float64(m)) * (c / float64(m))
-		}
+		t.weight = clusterWeight(t.group, m)
 	}
 	for k := range f.tiers {
 		t := &f.tiers[k]
@@ -405,13 +396,39 @@ func tierSlope(t *careTier) (ok bool, beta, se, df float64, reason string) {
 	}
 	beta = sxy / sxx
 	score := map[int]float64{}
+	var order []int // first-seen order: sums in a fixed order reproduce bit for bit
 	for i, ti := range t.t {
+		if _, ok := score[t.group[i]]; !ok {
+			order = append(order, t.group[i])
+		}
 		score[t.group[i]] += (ti - t.tbar) * (t.z[i] - t.zbar - beta*(ti-t.tbar))
 	}
 	var ss float64
-	for _, s := range score {
-		ss += s * s
+	for _, g := range order {
+		ss += score[g] * score[g]
 	}
-	g := float64(len(score))
+	g := float64(len(order))
 	return true, beta, math.Sqrt(g / (g - 1) * ss / (sxx * sxx)), g - 1, ""
+}
+
+// clusterWeight is Σ_g (n_g/m)² over the shift occurrences of a tier's m
+// values (1/m without occurrences), summed in first-seen order.
+func clusterWeight(group []int, m int) float64 {
+	if len(group) == 0 {
+		return 1 / float64(m)
+	}
+	count := map[int]int{}
+	var order []int
+	for _, g := range group {
+		if count[g] == 0 {
+			order = append(order, g)
+		}
+		count[g]++
+	}
+	w := 0.0
+	for _, g := range order {
+		share := float64(count[g]) / float64(m)
+		w += share * share
+	}
+	return w
 }

@@ -91,7 +91,7 @@ const (
 // validate checks in for version 2: everything validateV1 checks, and the
 // cover and draws bounds, dates and shifts.
 func (in *ProjectionInput) validate() error {
-	if err := in.validateV1(); err != nil {
+	if err := in.validateBase(false); err != nil {
 		return err
 	}
 	bad := func(field, format string, args ...any) error {
@@ -241,7 +241,12 @@ func WorkloadMoments(codes []string, patients []int, values [][]float64) (mu, va
 // Field names follow wardload.Settings where one exists.
 // validateV1 checks in for version 1 of the model (and as the first step
 // of the current one); frozen with ProjectV1.
-func (in *ProjectionInput) validateV1() error {
+func (in *ProjectionInput) validateV1() error { return in.validateBase(true) }
+
+// validateBase checks what both versions check; requireObservations adds
+// version 1's refusal of a tier with patients and fewer than two
+// observations (version 2 declines instead).
+func (in *ProjectionInput) validateBase(requireObservations bool) error {
 	bad := func(field, format string, args ...any) error {
 		return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
 	}
@@ -298,10 +303,10 @@ func (in *ProjectionInput) validateV1() error {
 				return bad("care_minutes", "Tier %s: an observation of %g minutes in %g hours scales to more than %g minutes per shift; check the minutes and the window.", t.Code, c, w, MaxShiftMinutes)
 			}
 		}
-		if t.Patients > 0 && len(t.CareMinutes) == 0 {
+		if requireObservations && t.Patients > 0 && len(t.CareMinutes) == 0 {
 			return bad("tier", "Tier %s has %d patients but no care observations.", t.Code, t.Patients)
 		}
-		if t.Patients > 0 && len(t.CareMinutes) < minTierObservations {
+		if requireObservations && t.Patients > 0 && len(t.CareMinutes) < minTierObservations {
 			return bad("tier", "Tier %s has patients but only one care observation; at least 2 are needed to estimate its spread.", t.Code)
 		}
 	}

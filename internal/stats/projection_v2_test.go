@@ -232,6 +232,11 @@ func TestProjectV2Deterministic(t *testing.T) {
 	if string(a) != string(b) {
 		t.Error("result depends on GOMAXPROCS")
 	}
+	for range 5 { // map iteration order must not reach any sum
+		if c, _ := json.Marshal(mustProject(t, in)); string(c) != string(a) {
+			t.Fatal("two runs differ")
+		}
+	}
 }
 
 // TestProjectV2BadInput: cover, draws and dates out of range are EINVALID
