@@ -32,6 +32,7 @@ type ReviewVM struct {
 	Flagged     []ReviewObservationVM
 	Excluded    []ReviewObservationVM
 	Reasons     []string // the exclusion reasons offered
+	Calibration *CalibrationVM // the ward's backtest; nil when it could not be run
 }
 
 // ReviewShiftVM is one choice of the shift filter.

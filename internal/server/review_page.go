@@ -2,7 +2,9 @@ package server
 
 import (
 	"fmt"
+	"math"
 	"net/http"
+	"slices"
 	"strconv"
 	"time"
 
@@ -99,6 +101,9 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 		}
 	}
 	sortFlagged(vm.Flagged)
+	if vm.Calibration, err = s.calibrationVM(r, ward, p.to.AddDays(1)); err != nil {
+		return vm, err
+	}
 	names := map[int64]string{}
 	tierByID := map[int64]*wardload.Tier{}
 	for _, t := range d.tiers {
@@ -283,3 +288,51 @@ func (s *Server) handleReview(w http.ResponseWriter, r *http.Request) error {
 func (s *Server) renderReview(w http.ResponseWriter, r *http.Request, status int, vm web.ReviewVM) error {
 	return s.render(w, r, status, web.ReviewPage(s.layout(r, "Weekly review · "+vm.WardName), vm))
 }
+
+// calibrationVM runs the ward's backtest as of today (projector.Calibrate,
+// cached) and lays it out for the review page.
+func (s *Server) calibrationVM(r *http.Request, ward *wardload.Ward, today wardload.Date) (*web.CalibrationVM, error) {
+	res, err := s.projector.Calibrate(r.Context(), ward.ID, today)
+	if err != nil {
+		return nil, err
+	}
+	c := res.Calibration()
+	vm := &web.CalibrationVM{Sentence: res.Sentence, Warn: c.Warn(res.Cover), Basis: c.Basis}
+	for _, l := range res.Levels {
+		vm.Levels = append(vm.Levels, wholePercent(l)+" band")
+	}
+	row := func(name string, b stats.BacktestRow) web.CalibrationRowVM {
+		out := web.CalibrationRowVM{Name: name, Checked: strconv.Itoa(b.Checked)}
+		for _, v := range b.Coverage {
+			if b.Checked == 0 {
+				out.Observed = append(out.Observed, "—")
+				continue
+			}
+			out.Observed = append(out.Observed, wholePercent(v))
+		}
+		return out
+	}
+	vm.Rows = append(vm.Rows, web.CalibrationRowVM{Name: "Expected", Checked: "", Observed: slices.Clone(vm.Levels)})
+	for i := range vm.Rows[0].Observed {
+		vm.Rows[0].Observed[i] = wholePercent(res.Levels[i])
+	}
+	vm.Rows = append(vm.Rows, row("Shift totals", res.Totals))
+	pit := res.Totals.PIT
+	what := "shift totals"
+	for _, t := range res.Tiers {
+		vm.Rows = append(vm.Rows, row("Tier "+t.Name+", single observations", t))
+	}
+	if res.Totals.Checked < stats.CalibrationMinShifts {
+		pit, what = [10]int{}, "single observations"
+		for _, t := range res.Tiers {
+			for i, n := range t.PIT {
+				pit[i] += n
+			}
+		}
+	}
+	vm.PIT = web.NewPITChart(pit, what)
+	return vm, nil
+}
+
+// wholePercent says a share as a whole percentage, "86%".
+func wholePercent(v float64) string { return strconv.FormatFloat(math.Round(100*v), 'f', 0, 64) + "%" }
