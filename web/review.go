@@ -31,7 +31,7 @@ type ReviewVM struct {
 	Trend       []ReviewTrendRowVM
 	Flagged     []ReviewObservationVM
 	Excluded    []ReviewObservationVM
-	Reasons     []string // the exclusion reasons offered
+	Reasons     []string       // the exclusion reasons offered
 	Calibration *CalibrationVM // the ward's backtest; nil when it could not be run
 }
 
