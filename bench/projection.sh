@@ -1,6 +1,7 @@
 #!/bin/sh
-# Runs BenchmarkProjection (100,000 bootstrap draws, 40 patients in 4 tiers
-# of 60 observations) and checks the target of at most 30 ms per projection.
+# Runs BenchmarkProjection (the projector's default 20,000 predictive draws,
+# 40 patients in 4 tiers of 60 observations) and checks the target of at
+# most 30 ms per projection.
 # Usage: bench/projection.sh [count]   (default 5 runs; the best is judged,
 # since other load on the machine only ever adds time)
 set -eu

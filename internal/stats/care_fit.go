@@ -103,6 +103,8 @@ type careFit struct {
 	tau2SE   float64
 	groups   int // shift occurrences with two or more observations
 	effectNo string
+
+	fwFrom int // see fwFrom in predictive.go
 }
 
 // fitInput is one tier's data for fitCare.
@@ -143,7 +145,7 @@ type fitInput struct {
 //
 // fitCare assumes validated input (see ProjectionInput.validate).
 func fitCare(tiers []fitInput, target string) *careFit {
-	f := &careFit{}
+	f := &careFit{fwFrom: fwFrom}
 	dated := target != ""
 	for _, t := range tiers {
 		if len(t.dates) != len(t.minutes) {

@@ -7,10 +7,19 @@ import (
 	"sync"
 )
 
-// fwThreshold: a tier with more patients than this has its shift total
-// drawn in one step by the Fenton–Wilkinson lognormal approximation
-// instead of patient by patient (see simulateTotals).
-const fwThreshold = 64
+// A tier with at least fwFrom patients has its shift total drawn in one
+// step by the Fenton–Wilkinson lognormal approximation instead of patient
+// by patient (see simulateTotals): 16 for cover levels up to 0.95, 64
+// above. Measured against exact sums of n lognormal values (200,000 draws
+// each): at the 90% quantile FW is within −0.12% for n ≥ 16 and log SD ≤
+// 0.7, and above the exact quantile (the safe side) by 1–10% for log SD
+// 1–1.5; at the 99% quantile it is up to 3% low for n = 16–32, so higher
+// cover levels draw patient by patient up to 64.
+const (
+	fwFrom     = 16
+	fwFromHigh = 64
+	fwHighFrom = 0.95 // cover levels above this use fwFromHigh
+)
 
 // paramDraw is one draw of the model's parameters from their approximate
 // posterior (see simulateTotals).
@@ -36,7 +45,7 @@ type paramDraw struct {
 // Bayesian Data Analysis, 3rd ed., §3.2 and §3.6: the predictive of a new
 // value is a Student t on the log scale, wider than the plug-in normal for
 // small m_k, so the spread never shrinks below the analytic one). Tiers
-// with more than 64 patients have their sum of lognormal values drawn as one
+// with many patients (fwFrom) have their sum of lognormal values drawn as one
 // lognormal with the same mean and variance (Fenton, L. F. (1960), IRE
 // Trans. Commun. Syst. 8(1), 57–67), which keeps the right skew of the sum.
 //
@@ -106,7 +115,7 @@ func (f *careFit) drawTotal(r *rand.Rand) float64 {
 		mu, s2 := f.tierLocation(r, t, p)
 		mu += b
 		s := math.Sqrt(s2)
-		if t.patients <= fwThreshold {
+		if t.patients < f.fwFrom {
 			for range t.patients {
 				total += max(0, math.Exp(mu+s*r.NormFloat64())-t.offset)
 			}

@@ -167,6 +167,9 @@ func Project(in ProjectionInput) (*Projection, error) {
 		}
 	}
 	f := fitCare(fits, in.Date)
+	if in.Cover > fwHighFrom {
+		f.fwFrom = fwFromHigh
+	}
 	p.HeldOut = append(p.HeldOut, f.held...)
 	p.ShiftEffect = ShiftEffect{Estimated: f.effect, Occurrences: f.groups, Reason: f.effectNo}
 	if f.effect {
