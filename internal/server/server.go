@@ -60,6 +60,16 @@ type Config struct {
 	// makes; 0 means projector.DefaultDraws. Tests lower it for speed.
 	Draws int
 
+	// HashConcurrency bounds the password checks of sign-ins from unknown
+	// devices that run at once (each takes the hash's memory, 64 MiB by
+	// default); HashQueue more may wait up to HashWait for a slot, and
+	// further sign-ins get 503 with Retry-After without hashing (HashQueue
+	// 0: no waiting). Sign-ins from known devices have one slot of their
+	// own, so at most HashConcurrency+1 checks run at once.
+	HashConcurrency int
+	HashQueue       int
+	HashWait        time.Duration
+
 	// MaxBodyBytes caps every request body; larger bodies fail with 413.
 	MaxBodyBytes int64
 	// ReadyTimeout bounds the database ping of /readyz.
@@ -90,6 +100,9 @@ func DefaultConfig() Config {
 		ShutdownTimeout:   10 * time.Second,
 		SessionIdle:       8 * time.Hour,
 		SessionLifetime:   12 * time.Hour,
+		HashConcurrency:   2,
+		HashQueue:         8,
+		HashWait:          2 * time.Second,
 	}
 }
 
@@ -114,6 +127,9 @@ type Server struct {
 	sealKey      []byte // seals one-time token secrets kept in the session
 	dummyOnce    sync.Once
 	dummy        string
+	// signin bounds password hashing and holds device cookies and the
+	// summarised audit of failed sign-ins (signin.go).
+	signin *signInGuard
 
 	// projector turns a posted census into a stored projection.
 	projector *projector.Service
@@ -146,6 +162,7 @@ func New(cfg Config) (*Server, error) {
 		{&cfg.ShutdownTimeout, &def.ShutdownTimeout},
 		{&cfg.SessionIdle, &def.SessionIdle},
 		{&cfg.SessionLifetime, &def.SessionLifetime},
+		{&cfg.HashWait, &def.HashWait},
 	} {
 		if *f.v <= 0 {
 			*f.v = *f.d
@@ -153,6 +170,9 @@ func New(cfg Config) (*Server, error) {
 	}
 	if cfg.MaxBodyBytes <= 0 {
 		cfg.MaxBodyBytes = def.MaxBodyBytes
+	}
+	if cfg.HashConcurrency <= 0 {
+		cfg.HashConcurrency = def.HashConcurrency
 	}
 	a, err := loadAssets(web.Static)
 	if err != nil {
@@ -163,6 +183,7 @@ func New(cfg Config) (*Server, error) {
 		sessions:     newSessions(cfg),
 		acctThrottle: newThrottle(3, 15*time.Minute),
 		addrThrottle: newThrottle(20, 15*time.Minute),
+		signin:       newSignInGuard(cfg),
 		sealKey:      newSealKey(),
 		projections:  newProjectionCache(projectionCacheSize),
 	}
@@ -238,6 +259,7 @@ func (s *Server) Serve(ctx context.Context) error {
 		s.http.Close()
 		return fmt.Errorf("shutdown: %w", err)
 	}
+	s.FlushSignInAudit(sctx)
 	if err := <-errc; err != nil && !errors.Is(err, http.ErrServerClosed) {
 		return fmt.Errorf("server stopped: %w", err)
 	}

@@ -1,6 +1,11 @@
 package server
 
 import (
+	"context"
+	"crypto/hmac"
+	"crypto/rand"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -25,9 +30,70 @@ func (s *Server) handleSignInForm(w http.ResponseWriter, r *http.Request) error 
 	return s.render(w, r, http.StatusOK, web.SignInPage(s.layout(r, "Sign in"), vm))
 }
 
-// handleSignIn checks a name and password. Throttled attempts are refused
-// before the password is looked at; every failure is audited with the
-// attempted name (sanitised), never the password.
+// throttleKey is one key of one throttle.
+type throttleKey struct {
+	t   *throttle
+	key string
+}
+
+// signInGuard holds what protects sign-in from anonymous clients besides
+// the account and address throttles (Server.acctThrottle, addrThrottle):
+// the bound on concurrent password hashes, device cookies with their own
+// throttle, and the summarised audit of failures.
+type signInGuard struct {
+	// anon bounds the hashes of sign-ins from unknown devices; known those
+	// with a valid device cookie, so a flood of anonymous sign-ins cannot
+	// keep staff on their own browsers waiting.
+	anon, known *hashGate
+	retryAfter  time.Duration // told to a sign-in refused as busy
+	devices     *deviceCookies
+	// deviceThrottle counts attempts per device cookie: from the fifth
+	// failure on a known device, it waits like an account does.
+	deviceThrottle *throttle
+	failures       *failTally
+	// nameKey keys the fingerprints of typed names, which are never
+	// stored; it exists only in this process's memory.
+	nameKey []byte
+	// verify checks a password against a stored hash; tests count calls.
+	verify func(pw, encoded string) (bool, error)
+}
+
+func newSignInGuard(cfg Config) *signInGuard {
+	g := &signInGuard{
+		anon:           newHashGate(cfg.HashConcurrency, cfg.HashQueue, cfg.HashWait),
+		known:          newHashGate(1, 2, cfg.HashWait),
+		retryAfter:     max(time.Second, cfg.HashWait),
+		devices:        newDeviceCookies(cfg.SecureCookies),
+		deviceThrottle: newThrottle(5, 15*time.Minute),
+		failures:       newFailTally(),
+		nameKey:        make([]byte, 32),
+		verify:         password.Verify,
+	}
+	rand.Read(g.nameKey) // never fails (crypto/rand panics instead)
+	return g
+}
+
+// fingerprint is a keyed, non-reversible digest of a typed name, in hex.
+func (g *signInGuard) fingerprint(name string) string {
+	m := hmac.New(sha256.New, g.nameKey)
+	m.Write([]byte(name))
+	return hex.EncodeToString(m.Sum(nil))
+}
+
+// handleSignIn checks a name and password. In order:
+//
+//   - The name is looked up (a cheap read), so that the audit can name a
+//     real account and never stores a name that matches none.
+//   - A valid device cookie for the account makes the attempt count
+//     against that device only; otherwise it counts against the account
+//     and the client address. The attempt is reserved before any hashing
+//     (throttle.reserve), and a key that must wait is refused with 429.
+//   - The hash runs only when a slot of the hash gate is free or frees
+//     within a short wait; otherwise 503 with Retry-After, nothing hashed
+//     and nothing counted against the user.
+//
+// Failures and refusals write no audit row each: failTally summarises them
+// per source and window. The password is never stored or logged.
 func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 	if err := r.ParseForm(); err != nil {
 		return formError(err)
@@ -42,34 +108,71 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 	if name == "" || pw == "" {
 		return fail(http.StatusBadRequest, "Enter your name and your password.")
 	}
+	g := s.signin
 	now, addr := s.now(), s.clientAddr(r)
-	acctKey, addrKey := "name:"+auditName(name), "addr:"+addr
-	if d := max(s.acctThrottle.wait(acctKey, now), s.addrThrottle.wait(addrKey, now)); d > 0 {
-		s.auditEvent(r, wardload.Actor{Name: auditName(name)}, "signin.throttled", "user", 0, 0,
-			map[string]string{"address": addr})
-		secs := int(d.Round(time.Second) / time.Second)
-		w.Header().Set("Retry-After", strconv.Itoa(max(secs, 1)))
-		return fail(http.StatusTooManyRequests, fmt.Sprintf(
-			"Too many failed sign-ins. Please wait %s and try again.", waitText(d)))
-	}
-
-	u, reason, err := s.checkPassword(r, name, pw)
+	u, err := s.findSignInUser(r, name)
 	if err != nil {
 		return err
 	}
-	if reason != "" {
-		s.acctThrottle.fail(acctKey, now)
-		s.addrThrottle.fail(addrKey, now)
-		var id int64
-		if u != nil {
-			id = u.ID
+	att := failAttempt{Source: addr}
+	if u != nil {
+		att.Account, att.AccountID = u.Name, u.ID
+	} else {
+		att.NameFP = g.fingerprint(name)[:8]
+	}
+	device, known := g.devices.find(r, name, now)
+	att.KnownDevice = known
+
+	// The keys this attempt counts against: the device alone when it is
+	// known, else the account and the address.
+	acctKey, addrKey, devKey := "acct:"+g.fingerprint(name), "addr:"+addr, "dev:"+device
+	keys := []throttleKey{{s.acctThrottle, acctKey}, {s.addrThrottle, addrKey}}
+	if known {
+		keys = []throttleKey{{g.deviceThrottle, devKey}}
+	}
+	var held []throttleKey
+	giveBack := func() {
+		for _, k := range held {
+			k.t.cancel(k.key)
 		}
-		s.auditEvent(r, wardload.Actor{Name: auditName(name)}, "signin.fail", "user", id, 0,
-			map[string]string{"reason": reason, "address": addr})
+	}
+	for _, k := range keys {
+		if d := k.t.reserve(k.key, now); d > 0 {
+			giveBack()
+			s.recordFailure(r, att, "throttled", now)
+			w.Header().Set("Retry-After", strconv.Itoa(max(1, int(d.Round(time.Second)/time.Second))))
+			return fail(http.StatusTooManyRequests, fmt.Sprintf(
+				"Too many failed sign-ins. Please wait %s and try again.", waitText(d)))
+		}
+		held = append(held, k)
+	}
+
+	gate := g.anon
+	if known {
+		gate = g.known
+	}
+	if !gate.enter(r.Context()) {
+		giveBack()
+		s.recordFailure(r, att, "busy", now)
+		w.Header().Set("Retry-After", strconv.Itoa(int(g.retryAfter.Round(time.Second)/time.Second)))
+		return fail(http.StatusServiceUnavailable,
+			"Sign-in is busy just now. Your password was not checked; please try again in a few seconds.")
+	}
+	reason := func() string {
+		defer gate.leave()
+		return s.checkPassword(r, u, pw)
+	}()
+	if reason != "" {
+		s.recordFailure(r, att, reason, now)
 		return fail(http.StatusUnauthorized, signInFailed)
 	}
 
-	s.acctThrottle.succeed(acctKey)
+	if known {
+		g.deviceThrottle.succeed(devKey)
+	} else {
+		s.acctThrottle.succeed(acctKey)
+		s.addrThrottle.cancel(addrKey) // a success is not a failure of the address
+	}
 	// A new session ID at sign-in, so an ID planted before sign-in
 	// (session fixation) is worthless afterwards.
 	ctx := r.Context()
@@ -83,41 +186,73 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 		map[string]string{"address": addr}); err != nil {
 		return err
 	}
+	g.devices.issue(w, r, name, now)
 	return seeOther(w, r, vm.Next)
 }
 
-// checkPassword returns the user and "" when name and pw are right and the
-// account is enabled; otherwise a reason for the audit log. An unknown name
-// still costs one hash, so timing does not tell which names exist.
-func (s *Server) checkPassword(r *http.Request, name, pw string) (*wardload.User, string, error) {
+// findSignInUser returns the user called name, or nil when there is none.
+func (s *Server) findSignInUser(r *http.Request, name string) (*wardload.User, error) {
 	if !wardload.StorableText(name) {
 		// No user has such a name, and PostgreSQL refuses to look it up
 		// (NUL, invalid UTF-8): answer as for any unknown name.
-		password.Verify(pw, s.dummyHash())
-		return nil, "unknown_name", nil
+		return nil, nil
 	}
 	u, err := s.store.FindUserByName(r.Context(), name)
 	if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-		password.Verify(pw, s.dummyHash())
-		return nil, "unknown_name", nil
+		return nil, nil
 	} else if err != nil {
-		return nil, "", fmt.Errorf("sign-in: find user: %w", err)
+		return nil, fmt.Errorf("sign-in: find user: %w", err)
 	}
-	ok, err := password.Verify(pw, u.PasswordHash)
+	return u, nil
+}
+
+// checkPassword hashes pw and returns "" when it is u's password and the
+// account is enabled; otherwise a reason for the audit log. An unknown
+// name (u nil) still costs one hash, so timing does not tell which names
+// exist. The caller holds a slot of the hash gate.
+func (s *Server) checkPassword(r *http.Request, u *wardload.User, pw string) string {
+	if u == nil {
+		s.signin.verify(pw, s.dummyHash())
+		return "unknown_name"
+	}
+	ok, err := s.signin.verify(pw, u.PasswordHash)
 	switch {
 	case err != nil:
 		s.log.Error("stored password hash unreadable", "request_id", RequestID(r.Context()), "user_id", u.ID, "err", err)
-		return u, "bad_hash", nil
+		return "bad_hash"
 	case !ok:
-		return u, "password", nil
+		return "password"
 	case u.Disabled:
-		return u, "disabled", nil
+		return "disabled"
 	}
-	return u, "", nil
+	return ""
+}
+
+// recordFailure counts a failed or refused sign-in and writes whatever
+// summary rows are due. A row that cannot be written is logged; the
+// refusal stands.
+func (s *Server) recordFailure(r *http.Request, a failAttempt, reason string, now time.Time) {
+	a.Reason = reason
+	s.writeFailureRows(context.WithoutCancel(r.Context()), s.signin.failures.record(a, now))
+}
+
+// FlushSignInAudit writes the summarised sign-in failures not yet in the
+// audit log. Serve calls it at shutdown.
+func (s *Server) FlushSignInAudit(ctx context.Context) {
+	s.writeFailureRows(ctx, s.signin.failures.flush(s.now()))
+}
+
+func (s *Server) writeFailureRows(ctx context.Context, rows []*wardload.AuditEntry) {
+	for _, e := range rows {
+		if err := s.store.AppendAudit(ctx, e); err != nil {
+			s.log.Error("audit failed", "request_id", RequestID(ctx), "action", e.Action, "err", err)
+		}
+	}
 }
 
 // dummyHash is a hash to verify against when the name is unknown. It is
-// made on first use so that servers in tests do not pay for it.
+// made on first use (inside a hash gate slot) so that servers in tests do
+// not pay for it.
 func (s *Server) dummyHash() string {
 	s.dummyOnce.Do(func() {
 		secret, _ := NewTokenSecret()
