@@ -123,7 +123,7 @@ func newRow(ward *wardload.Ward, loc *time.Location, p *wardload.Projection, res
 		if draws := res.V1.Simulation.Draws; draws > 0 {
 			for _, sf := range res.V1.Shortfall {
 				if sf.Nurses == rec {
-					r.Shortfall = v1Shortfall(sf.Nurses, sf.SimulatedProbability, draws)
+					r.Shortfall = ShortfallV1(sf.Nurses, sf.SimulatedProbability, draws)
 				}
 			}
 		}
@@ -132,11 +132,12 @@ func newRow(ward *wardload.Ward, loc *time.Location, p *wardload.Projection, res
 	return r
 }
 
-// v1Shortfall restates a method 1 simulated share with its Wilson
-// interval. Method 1 stored the share k/draws and its standard error
+// ShortfallV1 restates a method 1 simulated share of draws at a headcount
+// with its Wilson interval; the projection page uses it for method 1's
+// table as the export does for the recommendation. Method 1 stored the share k/draws and its standard error
 // √(p(1−p)/draws), which reads "± 0" at k = 0; k is recovered exactly by
 // rounding share × draws, since the share was k/draws.
-func v1Shortfall(nurses int, share float64, draws int) *Shortfall {
+func ShortfallV1(nurses int, share float64, draws int) *Shortfall {
 	k := min(draws, max(0, int(math.Round(share*float64(draws)))))
 	lo, hi := stats.WilsonInterval(k, draws)
 	return &Shortfall{Method: ShortfallBootstrap, Nurses: nurses, CareGivingNurses: nurses,

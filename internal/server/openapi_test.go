@@ -235,8 +235,11 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 	}
 	good := `{"ward":"w","date":"2026-03-01","shift":"Night","start":"2026-03-01T19:30:00Z","end":"2026-03-02T07:30:00Z",
 		"shift_hours":12.00,"census_revision":1,"census_total":3,"census":{"t1":3},"cover_level":0.9,
-		"expected_nurse_hours":1.00,"band_low_nurse_hours":0.50,"band_high_nurse_hours":1.50,"nurses_at_cover":1,
+		"data_sufficient":true,"insufficient":null,"expected_nurse_hours":1.00,"band_level":0.9,"band_method":"predictive_equal_tailed",
+		"band_low_nurse_hours":0.50,"band_high_nurse_hours":1.50,"nurses_at_cover":1,
 		"ratio_floor_nurses":null,"ratio_floor_rule":"none","recommended_nurses":1,"decided_by":"cover",
+		"care_giving_nurses":1,"shortfall_method":"simulated_predictive","shortfall_simulated_share":0,
+		"shortfall_wilson95_low":0,"shortfall_wilson95_high":0.001917,"shortfall_text":"< 0.19%",
 		"method_version":"m1","generated_at":"2026-03-01T19:00:00+01:00","caution":"c"}`
 	if errs := doc.validate(row, decodeJSON(t, []byte(good)), "row"); len(errs) > 0 {
 		t.Fatalf("valid row rejected: %v", errs)
@@ -249,7 +252,9 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"bad enum":          strings.Replace(good, `"decided_by":"cover"`, `"decided_by":"law"`, 1),
 		"bad date":          strings.Replace(good, `"date":"2026-03-01"`, `"date":"2026-02-30"`, 1),
 		"bad date-time":     strings.Replace(good, `"start":"2026-03-01T19:30:00Z"`, `"start":"2026-03-01 19:30"`, 1),
-		"null not nullable": strings.Replace(good, `"nurses_at_cover":1`, `"nurses_at_cover":null`, 1),
+		"null not nullable": strings.Replace(good, `"decided_by":"cover"`, `"decided_by":null`, 1),
+		"bool as string":    strings.Replace(good, `"data_sufficient":true`, `"data_sufficient":"true"`, 1),
+		"bad band method":   strings.Replace(good, `"band_method":"predictive_equal_tailed"`, `"band_method":"guess"`, 1),
 		"census not int":    strings.Replace(good, `"census":{"t1":3}`, `"census":{"t1":"3"}`, 1),
 	} {
 		if errs := doc.validate(row, decodeJSON(t, []byte(bad)), "row"); len(errs) == 0 {

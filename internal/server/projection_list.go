@@ -86,8 +86,17 @@ func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error
 	for i, row := range rows {
 		rv := web.ProjectionRowVM{
 			Date: row.Date.String(), Shift: row.Shift, Revision: strconv.Itoa(row.CensusRevision),
-			TotalPatients: strconv.Itoa(row.TotalPatients), Recommended: strconv.Itoa(row.Recommended),
-			Floor: "none", NursesCover: strconv.Itoa(row.NursesCover), ExpectedNurseHours: export.FormatHours(row.ExpectedNurseHours),
+			TotalPatients: strconv.Itoa(row.TotalPatients), Recommended: "none", Floor: "none",
+			NursesCover: "–", ExpectedNurseHours: "–", Declined: !row.DataSufficient,
+		}
+		if row.Recommended != nil {
+			rv.Recommended = strconv.Itoa(*row.Recommended)
+		}
+		if row.NursesCover != nil {
+			rv.NursesCover = strconv.Itoa(*row.NursesCover)
+		}
+		if row.ExpectedNurseHours != nil {
+			rv.ExpectedNurseHours = export.FormatHours(*row.ExpectedNurseHours)
 		}
 		if row.Floor != nil {
 			rv.Floor = strconv.Itoa(*row.Floor)
