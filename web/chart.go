@@ -8,17 +8,23 @@ import (
 )
 
 // ChartInput is what the workload chart draws, all in nurse-hours: the
-// normal model of the shift's workload (Mean, SD), the simulated P10, P50
-// and P90, and the capacity of some headcounts.
+// band of the shift's workload with its median, the cover figure, and the
+// capacity of some headcounts. The band and the cover figure are the ones
+// the page states beside the chart, under the same names.
 type ChartInput struct {
-	Mean, SD      float64
-	P10, P50, P90 float64
-	Capacities    []ChartCapacity
+	BandLow, BandHigh float64
+	Median            float64
+	BandName          string // e.g. "90% band"
+	Cover             float64
+	CoverName         string // e.g. "90% cover"
+	Capacities        []ChartCapacity
 }
 
-// ChartCapacity is the nurse-hours a headcount gives on the shift.
+// ChartCapacity is the nurse-hours of direct care a headcount gives on the
+// shift: its care-giving nurses × the shift's hours.
 type ChartCapacity struct {
 	Nurses      int
+	CareGiving  int // Nurses less the nurse in charge where that nurse is extra
 	NurseHours  float64
 	Recommended bool
 }
@@ -27,18 +33,22 @@ type ChartCapacity struct {
 // ViewBox, ready for the template: no arithmetic is left to it.
 type ChartVM struct {
 	ViewBox string
-	Empty   bool   // nothing to draw: no variation in the workload
-	Curve   string // SVG path of the normal density
-	Tail    string // filled area beyond the recommended capacity
+	Empty   bool // nothing to draw: the band has no width (for example, no patients)
 	AxisY   string
 	AxisX1  string
 	AxisX2  string
 	Ticks   []ChartTick
 	Lines   []ChartLine
-	// The simulated P10–P90 bar under the axis, with a dot at P50.
-	RangeX1, RangeX2, RangeMid, RangeY string
-	LabelY                             string // y of the axis title
-	Describe                           string // the chart in words, for screen readers
+	// The band as a bar with end caps, its name at its left end and a dot
+	// at the median.
+	BandX1, BandX2, BandY             string
+	BandCapY1, BandCapY2              string
+	BandLabel, BandLabelX, BandLabelY string // centred under the bar
+	MedianX                           string
+	CoverX, CoverY1, CoverY2          string // the cover figure: a mark across the bar
+	CoverLabel, CoverLabelY           string
+	AxisLabelX, AxisLabelY            string // the axis title "nurse-hours"
+	Describe                          string // the chart in words, for screen readers
 }
 
 // ChartTick is one labelled tick of the nurse-hours axis.
@@ -61,74 +71,52 @@ type ChartLine struct {
 
 // The chart's frame, in viewBox units.
 const (
-	chartW      = 640.0
-	chartH      = 300.0
-	chartLeft   = 24.0
-	chartRight  = 616.0
-	chartTop    = 56.0 // room for two rows of capacity labels above the curve
-	chartBase   = 220.0
-	chartPoints = 161
+	chartW     = 640.0
+	chartH     = 236.0
+	chartLeft  = 24.0
+	chartRight = 616.0
+	chartTop   = 56.0  // room for two rows of capacity labels above the lines
+	chartBandY = 122.0 // the band's bar
+	chartBase  = 180.0 // the axis
 )
 
-// NewChart lays out the chart: x from a little below the lowest of
-// mean − 4·SD and the capacities to a little above the highest, never
-// below 0 nurse-hours; the density scaled to the frame's height.
+// NewChart lays out the chart: x from a little below the lowest of the
+// band and the capacities to a little above the highest, never below 0
+// nurse-hours.
 func NewChart(in ChartInput) ChartVM {
 	c := ChartVM{ViewBox: fmt.Sprintf("0 0 %g %g", chartW, chartH)}
-	if !(in.SD > 0) || math.IsInf(in.SD, 0) || math.IsNaN(in.Mean) {
+	for _, v := range []float64{in.BandLow, in.BandHigh, in.Median, in.Cover} {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			c.Empty = true
+			return c
+		}
+	}
+	if !(in.BandHigh > in.BandLow) {
 		c.Empty = true
 		return c
 	}
-	lo, hi := in.Mean-4*in.SD, in.Mean+4*in.SD
+	lo, hi := in.BandLow, in.BandHigh
+	for _, v := range []float64{in.Median, in.Cover} {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
 	for _, cp := range in.Capacities {
 		lo, hi = math.Min(lo, cp.NurseHours), math.Max(hi, cp.NurseHours)
 	}
-	for _, q := range []float64{in.P10, in.P90} {
-		lo, hi = math.Min(lo, q), math.Max(hi, q)
-	}
-	pad := (hi - lo) * 0.04
+	pad := (hi - lo) * 0.06
 	lo, hi = math.Max(0, lo-pad), hi+pad
 	x := func(v float64) float64 { return chartLeft + (v-lo)/(hi-lo)*(chartRight-chartLeft) }
-	y := func(v float64) float64 {
-		z := (v - in.Mean) / in.SD
-		return chartBase - math.Exp(-z*z/2)*(chartBase-chartTop-8)
-	}
 
-	var curve strings.Builder
-	rec := math.NaN()
-	for _, cp := range in.Capacities {
-		if cp.Recommended {
-			rec = cp.NurseHours
-		}
-	}
-	var tail strings.Builder
-	for i := range chartPoints {
-		v := lo + (hi-lo)*float64(i)/(chartPoints-1)
-		cmd := "L"
-		if i == 0 {
-			cmd = "M"
-		}
-		fmt.Fprintf(&curve, "%s%s,%s ", cmd, oneDecimal(x(v)), oneDecimal(y(v)))
-		if !math.IsNaN(rec) && v >= rec {
-			if tail.Len() == 0 {
-				fmt.Fprintf(&tail, "M%s,%s L%s,%s ", oneDecimal(x(rec)), oneDecimal(chartBase), oneDecimal(x(rec)), oneDecimal(y(rec)))
-			}
-			fmt.Fprintf(&tail, "L%s,%s ", oneDecimal(x(v)), oneDecimal(y(v)))
-		}
-	}
-	c.Curve = strings.TrimSpace(curve.String())
-	if tail.Len() > 0 {
-		fmt.Fprintf(&tail, "L%s,%s Z", oneDecimal(x(hi)), oneDecimal(chartBase))
-		c.Tail = tail.String()
-	}
 	c.AxisY, c.AxisX1, c.AxisX2 = oneDecimal(chartBase), oneDecimal(chartLeft), oneDecimal(chartRight)
 	step := niceStep((hi - lo) / 6)
-	for t := math.Ceil(lo/step) * step; t <= hi; t += step {
-		c.Ticks = append(c.Ticks, ChartTick{
-			X: oneDecimal(x(t)), Y1: oneDecimal(chartBase), Y2: oneDecimal(chartBase + 6), LabelY: oneDecimal(chartBase + 22),
-			Label: strconv.FormatFloat(math.Round(t/step)*step, 'f', -1, 64),
-		})
+	if step > 0 {
+		for t := math.Ceil(lo/step) * step; t <= hi; t += step {
+			c.Ticks = append(c.Ticks, ChartTick{
+				X: oneDecimal(x(t)), Y1: oneDecimal(chartBase), Y2: oneDecimal(chartBase + 6), LabelY: oneDecimal(chartBase + 22),
+				Label: strconv.FormatFloat(math.Round(t/step)*step, 'f', -1, 64),
+			})
+		}
 	}
+	c.AxisLabelX, c.AxisLabelY = oneDecimal(chartRight), oneDecimal(chartH-4)
 	for i, cp := range in.Capacities {
 		l := ChartLine{
 			X1: oneDecimal(x(cp.NurseHours)), X2: oneDecimal(x(cp.NurseHours)), Y1: oneDecimal(chartTop - 6), Y2: oneDecimal(chartBase),
@@ -144,14 +132,27 @@ func NewChart(in ChartInput) ChartVM {
 		}
 		c.Lines = append(c.Lines, l)
 	}
-	c.RangeX1, c.RangeX2, c.RangeMid, c.RangeY = oneDecimal(x(in.P10)), oneDecimal(x(in.P90)), oneDecimal(x(in.P50)), oneDecimal(chartBase+46)
-	c.LabelY = oneDecimal(chartH - 4)
-	c.Describe = fmt.Sprintf("Normal curve of the shift's workload centred on %s nurse-hours with a standard deviation of %s; "+
-		"the simulation's middle 80%% runs from %s to %s nurse-hours (median %s).",
-		oneDecimal(in.Mean), oneDecimal(in.SD), oneDecimal(in.P10), oneDecimal(in.P90), oneDecimal(in.P50))
+
+	c.BandX1, c.BandX2, c.BandY = oneDecimal(x(in.BandLow)), oneDecimal(x(in.BandHigh)), oneDecimal(chartBandY)
+	c.BandCapY1, c.BandCapY2 = oneDecimal(chartBandY-7), oneDecimal(chartBandY+7)
+	c.MedianX = oneDecimal(x(in.Median))
+	// The band's name sits under the bar, centred, where the capacity
+	// labels above the frame cannot reach it.
+	c.BandLabel, c.BandLabelX, c.BandLabelY = in.BandName, oneDecimal((x(in.BandLow)+x(in.BandHigh))/2), oneDecimal(chartBandY+28)
+	c.CoverX, c.CoverY1, c.CoverY2 = oneDecimal(x(in.Cover)), oneDecimal(chartBandY-18), oneDecimal(chartBandY+18)
+	c.CoverLabel, c.CoverLabelY = in.CoverName, oneDecimal(chartBandY-24)
+
+	var d strings.Builder
+	fmt.Fprintf(&d, "The %s of this shift's workload runs from %s to %s nurse-hours, median %s; %s: %s nurse-hours.",
+		in.BandName, oneDecimal(in.BandLow), oneDecimal(in.BandHigh), oneDecimal(in.Median), in.CoverName, oneDecimal(in.Cover))
 	for _, cp := range in.Capacities {
-		c.Describe += fmt.Sprintf(" %d nurses give %s nurse-hours.", cp.Nurses, oneDecimal(cp.NurseHours))
+		if cp.CareGiving != cp.Nurses {
+			fmt.Fprintf(&d, " %d nurses (%d giving direct care) give %s nurse-hours.", cp.Nurses, cp.CareGiving, oneDecimal(cp.NurseHours))
+		} else {
+			fmt.Fprintf(&d, " %d nurses give %s nurse-hours.", cp.Nurses, oneDecimal(cp.NurseHours))
+		}
 	}
+	c.Describe = d.String()
 	return c
 }
 

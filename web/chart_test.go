@@ -16,31 +16,46 @@ func TestNiceStep(t *testing.T) {
 	}
 }
 
-func TestNewChart(t *testing.T) {
-	if c := NewChart(ChartInput{Mean: 10, SD: 0}); !c.Empty || c.Curve != "" {
-		t.Errorf("no spread: %+v, want an empty chart", c)
+func TestNewChartEmpty(t *testing.T) {
+	for name, in := range map[string]ChartInput{
+		"no width":  {BandLow: 10, BandHigh: 10, Median: 10, Cover: 10},
+		"reversed":  {BandLow: 12, BandHigh: 10, Median: 11, Cover: 11},
+		"not a num": {BandLow: 10, BandHigh: 12, Median: 11, Cover: nan()},
+	} {
+		if c := NewChart(in); !c.Empty || len(c.Lines) != 0 {
+			t.Errorf("%s: %+v, want an empty chart", name, c)
+		}
 	}
-	c := NewChart(ChartInput{Mean: 60, SD: 10, P10: 48, P50: 59, P90: 73, Capacities: []ChartCapacity{
-		{Nurses: 5, NurseHours: 60}, {Nurses: 6, NurseHours: 72, Recommended: true}, {Nurses: 7, NurseHours: 84},
-	}})
-	if c.Empty || !strings.HasPrefix(c.Curve, "M") || c.Tail == "" {
+}
+
+func nan() float64 { v, _ := strconv.ParseFloat("NaN", 64); return v }
+
+func TestNewChart(t *testing.T) {
+	// An asymmetric band, as method 2 gives for right-skewed care.
+	c := NewChart(ChartInput{BandLow: 40, BandHigh: 70, Median: 52, Cover: 64, BandName: "90% band", CoverName: "90% cover",
+		Capacities: []ChartCapacity{
+			{Nurses: 5, CareGiving: 4, NurseHours: 48}, {Nurses: 6, CareGiving: 5, NurseHours: 60, Recommended: true}, {Nurses: 7, CareGiving: 6, NurseHours: 72},
+		}})
+	if c.Empty {
 		t.Fatalf("chart %+v", c)
 	}
-	// Lines are placed linearly: equal nurse-hour steps, equal x steps.
-	// The x are written to one decimal, so the two gaps differ by rounding
-	// only: by at most 0.2 in general (four roundings of up to 0.05), by
-	// nothing here (see the exact positions below). 0.11 allows one
-	// rounding step, 0.1, plus floating-point noise from parsing.
-	x := func(s string) float64 { v, _ := strconv.ParseFloat(s, 64); return v }
-	d1, d2 := x(c.Lines[1].X1)-x(c.Lines[0].X1), x(c.Lines[2].X1)-x(c.Lines[1].X1)
-	if d1 <= 0 || d1-d2 > 0.11 || d2-d1 > 0.11 {
-		t.Errorf("capacity lines at %s, %s, %s are not evenly spaced", c.Lines[0].X1, c.Lines[1].X1, c.Lines[2].X1)
+	// Worked by hand: x runs from min(40, 48) = 40 to max(70, 72) = 72,
+	// padded by 6% of 32 (1.92) to 38.08 … 73.92, over x 24 … 616, so
+	// x(h) = 24 + (h − 38.08)/35.84 × 592.
+	x := func(h float64) string { return strconv.FormatFloat(24+(h-38.08)/35.84*592, 'f', 1, 64) }
+	for _, tc := range []struct{ name, got, want string }{
+		{"band low", c.BandX1, x(40)}, {"band high", c.BandX2, x(70)}, {"median", c.MedianX, x(52)}, {"cover", c.CoverX, x(64)},
+		{"5 nurses", c.Lines[0].X1, x(48)}, {"6 nurses", c.Lines[1].X1, x(60)}, {"7 nurses", c.Lines[2].X1, x(72)},
+	} {
+		if tc.got != tc.want {
+			t.Errorf("%s at x = %s, want %s", tc.name, tc.got, tc.want)
+		}
 	}
-	// Worked by hand: x runs from mean − 4·SD = 20 to mean + 4·SD = 100,
-	// padded by 4% of 80 to 16.8 … 103.2, over x 24 … 616, so
-	// x(h) = 24 + (h − 16.8)/86.4 × 592: 320, 402.22…, 484.44….
-	if c.Lines[0].X1 != "320.0" || c.Lines[1].X1 != "402.2" || c.Lines[2].X1 != "484.4" {
-		t.Errorf("capacity lines at %s, %s, %s, want 320.0, 402.2, 484.4", c.Lines[0].X1, c.Lines[1].X1, c.Lines[2].X1)
+	if c.BandX1 != "55.7" || c.CoverX != "452.1" { // the same, as numbers: 24 + 1.92/35.84·592, 24 + 25.92/35.84·592
+		t.Errorf("band from %s, cover at %s; want 55.7 and 452.1", c.BandX1, c.CoverX)
+	}
+	if c.BandLabel != "90% band" || c.CoverLabel != "90% cover" {
+		t.Errorf("labels %q %q", c.BandLabel, c.CoverLabel)
 	}
 	if c.Lines[1].Class != "chart-cap chart-cap-rec" || c.Lines[1].Label != "6 recommended" || c.Lines[0].Label != "5 nurses" {
 		t.Errorf("lines %+v", c.Lines)
@@ -49,24 +64,21 @@ func TestNewChart(t *testing.T) {
 	if c.Lines[0].LabelY == c.Lines[1].LabelY || c.Lines[0].LabelY != c.Lines[2].LabelY {
 		t.Errorf("label rows %s %s %s", c.Lines[0].LabelY, c.Lines[1].LabelY, c.Lines[2].LabelY)
 	}
-	// The curve's highest point (smallest y) is at the mean, 60, which is
-	// where the 5-nurse line stands: the curve is sampled, so its highest
-	// sample is at most one sampling step from the mean.
-	step := (chartRight - chartLeft) / (chartPoints - 1)
-	best, bestX := 1e9, 0.0
-	for _, pt := range strings.Fields(c.Curve) {
-		xy := strings.Split(strings.TrimLeft(pt, "ML"), ",")
-		if y := x(xy[1]); y < best {
-			best, bestX = y, x(xy[0])
+	for _, want := range []string{"90% band of this shift's workload runs from 40.0 to 70.0 nurse-hours, median 52.0", "90% cover: 64.0 nurse-hours",
+		"6 nurses (5 giving direct care) give 60.0 nurse-hours"} {
+		if !strings.Contains(c.Describe, want) {
+			t.Errorf("description %q lacks %q", c.Describe, want)
 		}
 	}
-	if d := bestX - x(c.Lines[0].X1); d > step || d < -step {
-		t.Errorf("peak at x=%g, mean line at %s", bestX, c.Lines[0].X1)
+	if len(c.Ticks) < 3 {
+		t.Errorf("%d ticks", len(c.Ticks))
 	}
-	if !(x(c.RangeX1) < x(c.RangeMid) && x(c.RangeMid) < x(c.RangeX2)) {
-		t.Errorf("P10–P90 bar %s %s %s", c.RangeX1, c.RangeMid, c.RangeX2)
-	}
-	if !strings.Contains(c.Describe, "6 nurses give 72.0 nurse-hours") {
-		t.Errorf("description %q", c.Describe)
+}
+
+// The axis never goes below 0 nurse-hours.
+func TestNewChartStartsAtZero(t *testing.T) {
+	c := NewChart(ChartInput{BandLow: 0.5, BandHigh: 10, Median: 3, Cover: 8, Capacities: []ChartCapacity{{Nurses: 1, CareGiving: 1, NurseHours: 12, Recommended: true}}})
+	if c.Ticks[0].Label != "0" || c.Ticks[0].X != "24.0" {
+		t.Errorf("first tick %+v, want 0 at the left edge", c.Ticks[0])
 	}
 }

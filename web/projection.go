@@ -3,6 +3,10 @@ package web
 // ProjectionVM is the page of one stored projection. Figures that the
 // roster export also carries are already formatted with the export's
 // helpers, so page and export agree to the last digit.
+//
+// A declined projection (Declined: too few observations to estimate care
+// time) has no band, chart, shortfall table or probability: only the
+// headcount the ratio floor gives, if any, and what data are missing.
 type ProjectionVM struct {
 	WardName   string
 	Date       string
@@ -15,29 +19,56 @@ type ProjectionVM struct {
 	NewerRevision int
 	GeneratedAt   string
 
-	Recommended string
-	NursesCover string
-	Floor       string // "" when no floor is configured
-	DecidedBy   string // the export's code: cover, ratio_floor or both
+	// MethodV1 marks a projection made with method 1, shown as stored.
+	MethodV1 bool
+
+	Recommended string // headcount; "none" when there is no recommendation
+	DecidedBy   string // the export's code: cover, ratio_floor, both or insufficient_data
 	DecidedText string // the same in words
-	FloorRule   string
+	Declined    bool
+	// NeedMore says per tier short of data "Insufficient observations —
+	// need about N more in tier X" (or that its observations are all equal).
+	NeedMore     []string
+	NursesCover  string // headcount at the cover level; "" when declined
+	CareGiving   string // of them, nurses giving direct care
+	InCharge     bool   // the nurse in charge is extra: takes no patients, gives no direct care
+	CapacityRule string // shown unless declined
+	Floor        string // "" when no floor is configured
+	FloorRule    string
 	// SettingsURL links to the ward settings where the floor is set; ""
 	// for roles that may not change them.
 	SettingsURL string
 
+	// Calibration is the ward's backtest in a sentence; "" when the
+	// projection was made without one. CalibrationWarn: the backtest's
+	// hit rate is more than 5 points below the cover level. Neither shows
+	// on a declined projection, which has no band to be calibrated.
+	Calibration     string
+	CalibrationWarn bool
+
 	CoverLevel         string // e.g. "0.9"
 	CoverPercent       string // e.g. "90%"
 	TotalPatients      string
+	DirectCareFraction string
 	ExpectedCareHours  string
 	ExpectedNurseHours string
+	MedianNurseHours   string
 	CoverNurseHours    string
-	BandLow            string
-	BandHigh           string
-	DirectCareFraction string
+	// BandName names the band with its level and method, e.g. "90% band"
+	// or "90% normal band" (method 1); BandLevel is the level alone.
+	BandName  string
+	BandLevel string
+	BandLow   string
+	BandHigh  string
 
 	Chart     ChartVM
 	Shortfall []ShortfallRowVM
-	Tiers     []TierShareVM
+	Tiers     []TierVM
+	// HeldOut are observations set aside as likely entry errors;
+	// ReviewURL links to the review page where they can be excluded ("" for
+	// roles that may not use it).
+	HeldOut   []string
+	ReviewURL string
 
 	LookbackFrom     string
 	LookbackTo       string
@@ -46,6 +77,11 @@ type ProjectionVM struct {
 	Observations     string // in all tiers
 	Warnings         []string
 
+	// Method details, folded away.
+	Method         string
+	ShiftEffect    string
+	Trend          string
+	TierTrends     []string
 	MethodVersion  string
 	Seed           string
 	Draws          string
@@ -54,32 +90,29 @@ type ProjectionVM struct {
 
 	Caution string
 
-	Revisions  []RevisionVM
-	CensusURL  string // enter a correction
-	ListURL    string // the ward's shift list
-	LowerBound bool   // the band's low end is below zero (normal approximation poor)
+	Revisions []RevisionVM
+	CensusURL string // enter a correction
+	ListURL   string // the ward's shift list
 }
 
 // ShortfallRowVM is one headcount of the shortfall table.
 type ShortfallRowVM struct {
 	Nurses      string
-	Capacity    string // nurse-hours the headcount gives
-	Analytic    string // normal model, as a percentage
-	Simulated   string // bootstrap share, as a percentage
-	SimulatedSE string
+	CareGiving  string // nurses giving direct care (the nurse in charge left out where extra)
+	Capacity    string // nurse-hours of direct care the headcount gives
+	Chance      string // e.g. "8.4% (7.2–9.8%)" or "< 0.19%": never a bare 0%
 	Recommended bool
 }
 
-// TierShareVM is one tier's part of the expected workload.
-type TierShareVM struct {
+// TierVM is one tier's data behind the projection.
+type TierVM struct {
 	Label        string
 	Code         string
 	Patients     string
-	Observations string
-	Mean         string // care minutes per patient per shift
-	SD           string
-	Expected     string // expected care minutes of the tier's patients
-	Share        string // of the expected total
+	Observations string // given in the lookback
+	Used         string // after setting aside likely entry errors
+	Median       string // care minutes per patient per shift, "–" without observations
+	NeedMore     string // "" when the tier has enough observations
 }
 
 // RevisionVM is one census revision of the same ward, date and shift.
@@ -87,7 +120,8 @@ type RevisionVM struct {
 	Revision    int
 	EnteredAt   string
 	Total       string
-	Recommended string // "" without a projection
+	Recommended string // "" without a projection or without a recommendation
+	NoRecommend bool   // projected, but declined without a ratio floor
 	URL         string // "" without a projection
 	Current     bool
 }
@@ -116,9 +150,10 @@ type ProjectionRowVM struct {
 	Shift              string
 	Revision           string
 	TotalPatients      string
-	Recommended        string
+	Recommended        string // "none" without a recommendation
 	Floor              string // "none" when not configured
-	NursesCover        string
-	ExpectedNurseHours string
+	NursesCover        string // "–" when declined
+	ExpectedNurseHours string // "–" when declined
+	Declined           bool   // too few observations: the floor alone, or nothing
 	URL                string
 }

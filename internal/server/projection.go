@@ -73,12 +73,16 @@ func coverPercent(level float64) string {
 }
 
 // decidedText says in words which of the cover need and the floor decided
-// the recommendation.
+// the recommendation, or why there is none from care time.
 func decidedText(p *wardload.Projection) string {
 	// Say the cover level in words: "enough for the workload on 90% of such
 	// shifts" reads at a glance where "cover level 0.9" needs explaining.
 	cover := fmt.Sprintf("the workload on %s of such shifts", coverPercent(p.CoverLevel))
 	switch {
+	case p.DecidedBy == stats.DecidedByInsufficient && p.Floor == nil:
+		return "There is no recommendation: too few observations to estimate the care workload, and no ratio floor is configured for this shift."
+	case p.DecidedBy == stats.DecidedByInsufficient:
+		return fmt.Sprintf("The ratio floor of %d nurses alone: too few observations to estimate the care workload, so no band or chance of a shortfall is shown.", *p.Floor)
 	case p.Floor == nil:
 		return fmt.Sprintf("Set by %s; no ratio floor is configured for this shift.", cover)
 	case p.DecidedBy == stats.DecidedByFloor:
@@ -90,15 +94,16 @@ func decidedText(p *wardload.Projection) string {
 }
 
 // newProjectionPage builds the projection's part of the page from the
-// stored projection: the figures the export carries come from the
-// projection's columns, formatted with the export's helpers; the detail
-// comes from the stored Result and Input, which the page keeps no copy of.
+// stored projection. The figures the export carries come from the
+// export's own row of the projection (export.NewRow), formatted with its
+// helpers; the detail comes from the stored Result, decoded by its method
+// version, and Input, which the page keeps no copy of.
 func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Projection) (*projectionPage, error) {
-	var res stats.Projection
-	var in projector.Input
-	if err := json.Unmarshal([]byte(p.Result), &res); err != nil {
-		return nil, fmt.Errorf("projection %d: result: %w", p.ID, err)
+	row, res, err := export.NewRow(ward, p)
+	if err != nil {
+		return nil, fmt.Errorf("projection %d: %w", p.ID, err)
 	}
+	var in projector.Input
 	if err := json.Unmarshal([]byte(p.Input), &in); err != nil {
 		return nil, fmt.Errorf("projection %d: input: %w", p.ID, err)
 	}
@@ -106,88 +111,46 @@ func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Pro
 	if err != nil {
 		return nil, err
 	}
-	f := res.DirectCareFraction
-	nh := func(minutes float64) float64 { return minutes / 60 / f }
 	vm := web.ProjectionVM{
 		WardName: ward.Name, Date: p.Date.String(), ShiftName: p.ShiftName,
 		ShiftTimes:  fmt.Sprintf("%s to %s (%s)", p.Start.In(loc).Format("Mon 2 Jan 15:04"), p.End.In(loc).Format("Mon 2 Jan 15:04"), ward.TimeZone),
-		ShiftHours:  export.FormatHours(p.ShiftHours),
-		Revision:    p.CensusRevision,
+		ShiftHours:  export.FormatHours(row.ShiftHours),
+		Revision:    row.CensusRevision,
 		GeneratedAt: formatLocal(p.CreatedAt, ward),
 
-		Recommended: strconv.Itoa(p.Recommended),
-		NursesCover: strconv.Itoa(p.NursesCover),
-		DecidedBy:   p.DecidedBy,
+		Recommended: "none",
+		DecidedBy:   row.DecidedBy,
 		DecidedText: decidedText(p),
-		FloorRule:   export.NoFloor,
+		FloorRule:   row.FloorRule,
 
-		CoverLevel:         export.FormatLevel(p.CoverLevel),
-		CoverPercent:       coverPercent(p.CoverLevel),
-		TotalPatients:      strconv.Itoa(p.TotalPatients),
-		ExpectedCareHours:  export.FormatHours(res.ExpectedMinutes / 60),
-		ExpectedNurseHours: export.FormatHours(p.ExpectedNurseHours),
-		CoverNurseHours:    export.FormatHours(p.CoverNurseHours),
-		BandLow:            export.FormatHours(p.BandLowNurseHours),
-		BandHigh:           export.FormatHours(p.BandHighNurseHours),
-		DirectCareFraction: export.FormatLevel(f),
-		LowerBound:         p.BandLowNurseHours < 0,
+		CoverLevel:    export.FormatLevel(row.CoverLevel),
+		CoverPercent:  coverPercent(row.CoverLevel),
+		TotalPatients: strconv.Itoa(row.TotalPatients),
 
 		LookbackFrom: in.Settings.LookbackFrom, LookbackTo: in.Settings.LookbackTo,
 		LookbackWeeks:    strconv.Itoa(in.Settings.LookbackWeeks),
 		ObservationShift: in.Settings.ObservationShift,
-		Warnings:         res.Warnings,
 
-		MethodVersion:  p.MethodVersion,
-		Seed:           strconv.FormatUint(p.Seed, 10),
-		Draws:          strconv.Itoa(p.Draws),
-		QuantileMethod: res.Simulation.QuantileMethod,
-		Quartiles:      in.Settings.Quartiles,
-		Caution:        stats.Caution,
+		MethodVersion: row.MethodVersion,
+		Seed:          strconv.FormatUint(p.Seed, 10),
+		Draws:         strconv.Itoa(p.Draws),
+		Quartiles:     in.Settings.Quartiles,
+		Caution:       row.Caution,
 
 		CensusURL: fmt.Sprintf("%s?date=%s&shift=%d", censusURL(ward), p.Date, p.ShiftID),
 		ListURL:   projectionsURL(ward),
 	}
-	if p.Floor != nil {
-		vm.Floor = strconv.Itoa(*p.Floor)
+	if row.Recommended != nil {
+		vm.Recommended = strconv.Itoa(*row.Recommended)
 	}
-	if res.Floor != nil {
-		vm.FloorRule = res.Floor.Description
+	if row.Floor != nil {
+		vm.Floor = strconv.Itoa(*row.Floor)
 	}
-
-	// Chart: the normal model and the simulated quantiles in nurse-hours,
-	// with the recommended headcount and its neighbours.
-	chart := web.ChartInput{Mean: p.ExpectedNurseHours, SD: nh(res.SDMinutes),
-		P10: nh(res.Simulation.P10), P50: nh(res.Simulation.P50), P90: nh(res.Simulation.P90)}
-	for n := max(1, p.Recommended-1); n <= p.Recommended+1; n++ {
-		chart.Capacities = append(chart.Capacities, web.ChartCapacity{Nurses: n, NurseHours: float64(n) * p.ShiftHours, Recommended: n == p.Recommended})
+	if res.V1 != nil {
+		method1VM(&vm, &row, p, res.V1, &in)
+	} else {
+		method2VM(&vm, &row, p, res.V2, &in)
 	}
-	vm.Chart = web.NewChart(chart)
-
-	for _, sf := range res.Shortfall {
-		vm.Shortfall = append(vm.Shortfall, web.ShortfallRowVM{
-			Nurses: strconv.Itoa(sf.Nurses), Capacity: export.FormatHours(nh(sf.CapacityMinutes)),
-			Analytic: percent(sf.Probability), Simulated: percent(sf.SimulatedProbability),
-			SimulatedSE: percent(sf.SimulatedSE), Recommended: sf.Nurses == p.Recommended,
-		})
-	}
-
-	observations := 0
-	for k, t := range res.Tiers {
-		label := t.Code
-		if k < len(in.Tiers) && in.Tiers[k].Code == t.Code {
-			label = in.Tiers[k].Label
-		}
-		observations += t.Observations
-		share := "–"
-		if res.ExpectedMinutes > 0 {
-			share = percent(t.ExpectedMinutes / res.ExpectedMinutes)
-		}
-		vm.Tiers = append(vm.Tiers, web.TierShareVM{
-			Label: label, Code: t.Code, Patients: strconv.Itoa(t.Patients), Observations: strconv.Itoa(t.Observations),
-			Mean: minutes(t.MeanMinutes), SD: minutes(t.SDMinutes), Expected: strconv.FormatFloat(t.ExpectedMinutes, 'f', 1, 64), Share: share,
-		})
-	}
-	vm.Observations = strconv.Itoa(observations)
 
 	lite := *p
 	lite.Input, lite.Result = "", ""
@@ -195,8 +158,11 @@ func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Pro
 	if pg.titleHTML, err = renderHTML(ctx, web.ProjectionTitle(vm)); err != nil {
 		return nil, fmt.Errorf("projection %d: render: %w", p.ID, err)
 	}
-	for i, settings := range []string{"", settingsURL(ward)} {
-		vm.SettingsURL = settings
+	// The body once for charge nurses and once for managers and admins,
+	// who get the links to the ward settings and the review.
+	review := reviewQuery(ward, strconv.FormatInt(p.ShiftID, 10), strconv.Itoa(in.Settings.LookbackWeeks))
+	for i, links := range [][2]string{{"", ""}, {settingsURL(ward), review}} {
+		vm.SettingsURL, vm.ReviewURL = links[0], links[1]
 		if pg.bodyHTML[i], err = renderHTML(ctx, web.ProjectionBody(vm)); err != nil {
 			return nil, fmt.Errorf("projection %d: render: %w", p.ID, err)
 		}
@@ -207,7 +173,9 @@ func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Pro
 // revisionsVM lists every census revision of the projection's dated shift,
 // linking those with a projection. It reads the list with one light query
 // on every request: a revision saved a moment ago, perhaps by another
-// server process, must show at once.
+// server process, must show at once. A projection that recommends 0 nurses
+// is read in full to tell a declined one without a floor (no
+// recommendation) from a census without patients; both are rare.
 func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection, vm *web.ProjectionVM) error {
 	rs, err := s.store.FindShiftRevisions(r.Context(), ward.ID, p.Date, p.ShiftID)
 	if err != nil {
@@ -217,6 +185,19 @@ func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.P
 		rv := web.RevisionVM{Revision: c.Revision, EnteredAt: formatLocal(c.EnteredAt, ward), Total: strconv.Itoa(c.TotalPatients), Current: c.CensusID == p.CensusID}
 		if c.ProjectionID != 0 {
 			rv.URL, rv.Recommended = projectionURL(ward, c.ProjectionID), strconv.Itoa(c.Recommended)
+			if c.Recommended == 0 {
+				decided := p.DecidedBy
+				if c.ProjectionID != p.ID {
+					other, err := s.store.FindProjectionByID(r.Context(), c.ProjectionID)
+					if err != nil {
+						return fmt.Errorf("projection %d: revision %d: %w", p.ID, c.Revision, err)
+					}
+					decided = other.DecidedBy
+				}
+				if decided == stats.DecidedByInsufficient {
+					rv.Recommended, rv.NoRecommend = "", true
+				}
+			}
 			if vm.NewerURL == "" && c.Revision > p.CensusRevision {
 				vm.NewerURL, vm.NewerRevision = rv.URL, c.Revision
 			}
@@ -224,26 +205,4 @@ func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.P
 		vm.Revisions = append(vm.Revisions, rv)
 	}
 	return nil
-}
-
-// percent formats a probability for people: one decimal, with "< 0.1%"
-// rather than a misleading 0.0% for a small non-zero chance.
-func percent(p float64) string {
-	switch {
-	case p == 0:
-		return "0%"
-	case p < 0.0005:
-		return "< 0.1%"
-	case p > 0.9995 && p < 1:
-		return "> 99.9%"
-	}
-	return strconv.FormatFloat(100*p, 'f', 1, 64) + "%"
-}
-
-// minutes formats a tier's mean or SD, "–" when undefined.
-func minutes(n stats.Number) string {
-	if !n.Defined || math.IsNaN(n.Value) {
-		return "–"
-	}
-	return strconv.FormatFloat(n.Value, 'f', 1, 64)
 }

@@ -40,8 +40,42 @@ func (f *censusFixture) mustProject(tb testing.TB, p string, cw *censusWard, dat
 	return pr
 }
 
+// exportedOnPage maps the page's data-testid of each figure the roster
+// export carries to the export's text of it.
+func exportedOnPage(row export.Row) map[string]string {
+	opt := func(n *int, none string) string {
+		if n == nil {
+			return none
+		}
+		return strconv.Itoa(*n)
+	}
+	m := map[string]string{
+		"recommended":        opt(row.Recommended, "none"),
+		"floor-nurses":       opt(row.Floor, "none"),
+		"floor-rule":         row.FloorRule,
+		"decided-by":         row.DecidedBy,
+		"shift-hours":        export.FormatHours(row.ShiftHours),
+		"census-total":       strconv.Itoa(row.TotalPatients),
+		"revision":           strconv.Itoa(row.CensusRevision),
+		"method-version":     row.MethodVersion,
+		"projection-caution": row.Caution,
+	}
+	// A declined projection shows no figure of the care-time part, the
+	// cover level it could not be held to included.
+	if row.DataSufficient {
+		m["cover-level"] = export.FormatLevel(row.CoverLevel)
+		m["nurses-cover"] = opt(row.NursesCover, "")
+		m["expected-nurse-hours"] = export.FormatHours(*row.ExpectedNurseHours)
+		m["band-low"] = export.FormatHours(*row.BandLowNurseHours)
+		m["band-high"] = export.FormatHours(*row.BandHighNurseHours)
+	}
+	return m
+}
+
 // TestProjectionPageShowsTheExportsFigures: every figure the roster
-// export carries appears on the page with exactly the export's digits.
+// export carries appears on the page with exactly the export's digits,
+// the band under its level, and the shortfall chance of the recommended
+// row as the export words it.
 func TestProjectionPageShowsTheExportsFigures(t *testing.T) {
 	f := newCensusFixture(t)
 	withFloor := f.mustProject(t, pNurseA, f.a, "2026-03-02", f.a.day, 4, 6, 3, 0)
@@ -54,38 +88,53 @@ func TestProjectionPageShowsTheExportsFigures(t *testing.T) {
 	for i, p := range []*wardload.Projection{noFloor, withFloor} { // rows are oldest first
 		row := rows[i]
 		_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-a/projections/%d", p.ID), nil)))
-		floor := "none"
-		if row.Floor != nil {
-			floor = strconv.Itoa(*row.Floor)
-		}
-		for id, want := range map[string]string{
-			"recommended":          strconv.Itoa(row.Recommended),
-			"nurses-cover":         strconv.Itoa(row.NursesCover),
-			"floor-nurses":         floor,
-			"floor-rule":           row.FloorRule,
-			"decided-by":           row.DecidedBy,
-			"expected-nurse-hours": export.FormatHours(row.ExpectedNurseHours),
-			"band-low":             export.FormatHours(row.BandLowNurseHours),
-			"band-high":            export.FormatHours(row.BandHighNurseHours),
-			"cover-level":          export.FormatLevel(row.CoverLevel),
-			"shift-hours":          export.FormatHours(row.ShiftHours),
-			"census-total":         strconv.Itoa(row.TotalPatients),
-			"revision":             strconv.Itoa(row.CensusRevision),
-			"method-version":       row.MethodVersion,
-			"projection-caution":   row.Caution,
-		} {
+		for id, want := range exportedOnPage(row) {
 			if got := byTestID(t, body, id); !slices.Equal(got, []string{want}) {
 				t.Errorf("%s %s: page %q, export %q", row.Shift, id, got, want)
 			}
 		}
+		if !row.DataSufficient || row.Shortfall == nil || row.BandLevel == nil {
+			t.Fatalf("%s: the fixture's projections have enough data: %+v", row.Shift, row)
+		}
+		level := coverPercent(*row.BandLevel)
+		if got := byTestID(t, body, "band-name"); !slices.Equal(got, []string{level + " band"}) {
+			t.Errorf("%s band name %q, want %q", row.Shift, got, level+" band")
+		}
+		if got := byTestID(t, body, "chart-band-label"); !slices.Equal(got, []string{level + " band"}) {
+			t.Errorf("%s chart band label %q, want the band's name %q", row.Shift, got, level+" band")
+		}
+		rec := recommendedRow(t, body)
+		if rec["shortfall-chance"] != row.Shortfall.Text || rec["shortfall-nurses"] != strconv.Itoa(*row.Recommended)+" recommended" {
+			t.Errorf("%s recommended shortfall row %v, export %q at %d", row.Shift, rec, row.Shortfall.Text, *row.Recommended)
+		}
 		// And the stored projection agrees with both.
-		if row.Recommended != p.Recommended {
-			t.Errorf("export recommended %d, stored %d", row.Recommended, p.Recommended)
+		if *row.Recommended != p.Recommended {
+			t.Errorf("export recommended %d, stored %d", *row.Recommended, p.Recommended)
 		}
 	}
 	if withFloor.Floor == nil || noFloor.Floor != nil {
 		t.Fatalf("fixture: Day should have a floor and Night none (%v, %v)", withFloor.Floor, noFloor.Floor)
 	}
+}
+
+// recommendedRow returns the cells of the shortfall table's recommended
+// row by data-testid.
+func recommendedRow(tb testing.TB, body string) map[string]string {
+	tb.Helper()
+	nurses := byTestID(tb, body, "shortfall-nurses")
+	for i, n := range nurses {
+		if strings.HasSuffix(n, "recommended") {
+			row := map[string]string{"shortfall-nurses": n}
+			for _, id := range []string{"shortfall-capacity", "shortfall-chance", "shortfall-care-giving"} {
+				if cells := byTestID(tb, body, id); i < len(cells) {
+					row[id] = cells[i]
+				}
+			}
+			return row
+		}
+	}
+	tb.Fatalf("no recommended row among %q", nurses)
+	return nil
 }
 
 // TestProjectionPageSaysCoverWithoutFloatNoise: a cover level of 0.57 is
@@ -126,19 +175,57 @@ func TestProjectionPageContent(t *testing.T) {
 	if got := byTestID(t, body, "floor-rule"); len(got) != 1 || !strings.Contains(got[0], "at most 5 patients per nurse") || !strings.Contains(got[0], "nurse in charge") {
 		t.Errorf("floor rule %q", got)
 	}
-	if !strings.Contains(body, `<svg xmlns="http://www.w3.org/2000/svg"`) || !strings.Contains(body, `class="chart-curve"`) || strings.Count(body, `class="chart-cap`) != 3 {
-		t.Error("no chart with a curve and three capacity lines")
+	if !strings.Contains(body, `<svg xmlns="http://www.w3.org/2000/svg"`) || !strings.Contains(body, `class="chart-range"`) || strings.Count(body, `class="chart-cap`) != 3 {
+		t.Error("no chart with a band and three capacity lines")
 	}
 	if got := byTestID(t, body, "shortfall-nurses"); len(got) != len(res.Shortfall) || len(got) == 0 {
 		t.Errorf("shortfall rows %d, result has %d", len(got), len(res.Shortfall))
 	}
+	chances := byTestID(t, body, "shortfall-chance")
 	for i, sf := range res.Shortfall {
-		if got := byTestID(t, body, "shortfall-analytic"); i < len(got) && got[i] != percent(sf.Probability) {
-			t.Errorf("shortfall %d nurses analytic %q, want %q", sf.Nurses, got[i], percent(sf.Probability))
+		if i >= len(chances) || chances[i] != sf.Text {
+			t.Errorf("shortfall at %d nurses: page %q, want the result's %q", sf.Nurses, chances[i:min(i+1, len(chances))], sf.Text)
+		}
+	}
+	for _, c := range chances {
+		if bareZero(c) || strings.Contains(c, "±") {
+			t.Errorf("shortfall chance %q reads as a bare 0%% or with ±", c)
+		}
+	}
+	// Day has a floor whose nurse in charge does not count: that nurse
+	// gives no direct care either, and the page says so.
+	if res.Nurses.InCharge != 1 {
+		t.Fatalf("fixture: the Day floor's nurse in charge should be extra (in charge %d)", res.Nurses.InCharge)
+	}
+	if got := byTestID(t, body, "capacity-rule"); !slices.Equal(got, []string{res.CapacityRule}) || !strings.Contains(got[0], "+ 1") {
+		t.Errorf("capacity rule %q, result %q", got, res.CapacityRule)
+	}
+	if got := byTestID(t, body, "care-giving"); !slices.Equal(got, []string{fmt.Sprintf("(%d giving direct care + 1 nurse in charge)", *res.Nurses.CareGiving)}) {
+		t.Errorf("care-giving %q, result %d", got, *res.Nurses.CareGiving)
+	}
+	for i, g := range byTestID(t, body, "shortfall-care-giving") {
+		if want := strconv.Itoa(res.Shortfall[i].CareGivingNurses); g != want || res.Shortfall[i].CareGivingNurses != res.Shortfall[i].Nurses-1 {
+			t.Errorf("row %d: care-giving %q, result %d of %d nurses", i, g, res.Shortfall[i].CareGivingNurses, res.Shortfall[i].Nurses)
+		}
+	}
+	// The caution once, with the page's figures; the layout's own line
+	// stays in the footer. Method details are folded away.
+	if got := byTestID(t, body, "projection-caution"); !slices.Equal(got, []string{stats.Caution}) || strings.Count(body, "not a staffing decision") != 1 {
+		t.Errorf("caution %q, %d times \"not a staffing decision\"", got, strings.Count(body, "not a staffing decision"))
+	}
+	if !strings.Contains(body, `<details class="record" data-testid="method-details">`) {
+		t.Error("method details are not in a closed details element")
+	}
+	for _, id := range []string{"shift-effect", "trend"} {
+		if got := byTestID(t, body, id); len(got) != 1 || got[0] == "" {
+			t.Errorf("%s line %q", id, got)
 		}
 	}
 	if got := byTestID(t, body, "tier-patients"); !slices.Equal(got, []string{"4", "6", "3", "0"}) {
 		t.Errorf("tier patients %q", got)
+	}
+	if got := byTestID(t, body, "insufficient"); len(got) != 0 {
+		t.Errorf("a projection with enough data says insufficient: %q", got)
 	}
 	if got := byTestID(t, body, "draws"); !slices.Equal(got, []string{strconv.Itoa(p.Draws)}) {
 		t.Errorf("draws %q", got)
@@ -272,4 +359,11 @@ func byTestIDAttr(tb testing.TB, page, id string) string {
 	}
 	href := tag[j+6:]
 	return strings.ReplaceAll(href[:strings.Index(href, `"`)], "&amp;", "&")
+}
+
+// bareZero reports whether a probability text says a flat 0%: "0%" alone
+// or "0.0%", not "< 0.19%" or "0.65% (0.38–1.1%)".
+func bareZero(s string) bool {
+	s = strings.TrimSpace(s)
+	return s == "0%" || s == "0.0%" || s == "0.00%" || strings.HasPrefix(s, "0% ") || strings.HasPrefix(s, "0.0% ")
 }
