@@ -80,8 +80,10 @@ type careTier struct {
 	t        []float64 // days relative to the projected date (≤ 0); nil without dates
 	group    []int     // shift occurrence of each used value; nil without dates and shifts
 	zbar     float64   // mean of z
+	level    float64   // ln(ȳ + c): log of the mean of the kept values plus the offset
+	y        []float64 // kept values, minutes
 	tbar     float64   // mean of t
-	resVar   float64   // residual log variance (shift-level part included)
+	resVar   float64   // moment-matched log variance (shift-level part included)
 	sigma2   float64   // patient-to-patient log variance after shrinkage
 	df       float64   // degrees of freedom of sigma2
 	weight   float64   // Σ_g (n_kg/m_k)²: how shift occurrences weigh on zbar
@@ -96,12 +98,14 @@ type careFit struct {
 	beta    float64 // common slope per day on the log scale
 	betaSE  float64
 	betaDF  float64
-	trendNo string // why no trend was estimated
+	trendP  float64 // posterior weight of the model with a trend (trendWeight)
+	trendNo string  // why no trend was estimated
 
 	effect   bool
 	tau2     float64 // shift-level log variance (may be below 0 before truncation)
 	tau2SE   float64
-	groups   int // shift occurrences with two or more observations
+	tau2P    float64 // posterior weight of the model with a shift-level effect (trendWeight of τ̂²/se)
+	groups   int     // shift occurrences with two or more observations
 	effectNo string
 
 	fwFrom int // see fwFrom in predictive.go
@@ -140,8 +144,12 @@ type fitInput struct {
 //     moment estimator (Searle, Casella & McCulloch 1992, Variance
 //     Components, ch. 3), with a cluster-robust standard error; only with
 //     ≥ 5 occurrences holding two or more observations;
-//   - σ_k²: the tier's residual variance less τ² (at least a quarter of
-//     it), shrunk towards the pooled value with 2 degrees of freedom.
+//   - σ_k²: the log variance of the lognormal with the tier's mean and
+//     variance of minutes (fitSpread), less τ² (at least a quarter of
+//     it), shrunk towards the pooled value with 2 degrees of freedom;
+//   - the trend and the shift-level effect enter the projection in
+//     proportion to the evidence for them (trendWeight), so a flat ward
+//     does not pay for a line or a shared effect it does not have.
 //
 // fitCare assumes validated input (see ProjectionInput.validate).
 func fitCare(tiers []fitInput, target string) *careFit {
@@ -191,6 +199,7 @@ func fitCare(tiers []fitInput, target string) *careFit {
 				continue
 			}
 			ct.z = append(ct.z, v)
+			ct.y = append(ct.y, in.minutes[i])
 			if dated {
 				d, _ := time.Parse(time.DateOnly, in.dates[i])
 				ct.t = append(ct.t, d.Sub(targetDay).Hours()/24)
@@ -208,6 +217,7 @@ func fitCare(tiers []fitInput, target string) *careFit {
 		}
 		if m := len(ct.z); m > 0 {
 			ct.zbar = avg(ct.z)
+			ct.level = math.Log(avg(ct.y) + ct.offset)
 			if dated {
 				ct.tbar = avg(ct.t)
 			}
@@ -268,6 +278,27 @@ func (f *careFit) fitTrend(dated bool, groups int) {
 	g := float64(max(used, 2))
 	f.betaSE = math.Sqrt(g / (g - 1) * ss / (sxx * sxx))
 	f.betaDF = g - 1
+	f.trendP = trendWeight(f.beta/f.betaSE, g)
+}
+
+// trendWeight is the approximate posterior probability of the model with
+// a trend against the one without, from the BIC difference of one added
+// parameter with G independent shift occurrences (Kass & Raftery 1995,
+// JASA 90(430), 773–795, §4.1; Raftery 1995, Sociological Methodology 25):
+//
+//	odds = exp((t² − ln G) / 2),   weight = odds / (1 + odds)
+//
+// with t = β̂ / se(β̂). The projection averages over the two models (Hoeting
+// et al. 1999, Statistical Science 14(4)): a flat history keeps most draws
+// at its mean level instead of paying for an extrapolated line whose
+// variance is about four times that of the mean, while a clear drift
+// (t² well above ln G) is followed almost always.
+func trendWeight(t, g float64) float64 {
+	x := (t*t - math.Log(g)) / 2
+	if x > 40 {
+		return 1
+	}
+	return math.Exp(x) / (1 + math.Exp(x))
 }
 
 // residuals returns r = z − z̄_k − β(t − t̄_k) per tier.
@@ -329,10 +360,31 @@ func (f *careFit) fitEffect(res [][]float64, groups int) {
 	}
 	g := float64(len(u))
 	f.tau2SE = math.Sqrt(g/(g-1)*ss) / sp
+	if f.tau2 > 0 && f.tau2SE > 0 {
+		// As for the trend (trendWeight): a noisy positive estimate on a
+		// ward without a shift-level effect would otherwise put a shared
+		// factor on every patient of every draw, which at a census of 40
+		// added two nurses in the battery (census-40).
+		f.tau2P = trendWeight(f.tau2/f.tau2SE, g)
+	}
 }
 
-// fitSpread sets each tier's patient-to-patient log variance.
+// fitSpread sets each tier's patient-to-patient log variance by matching
+// moments on the minutes scale: with ȳ and s² the mean and variance of the
+// kept values,
+//
+//	v_k = ln(1 + s² / (ȳ + c)²)
+//
+// the log variance of the lognormal with that mean and variance
+// (Aitchison & Brown 1957, The Lognormal Distribution, §2.3). Matching
+// the variance of minutes rather than of log minutes keeps the sum of many
+// patients right whatever the tier's shape: a left-skewed tier on the log
+// scale (gamma-like care times) would otherwise be given up to half as
+// much variance again as it has (found by the battery, census-100). The
+// shift-level part τ̂² is taken out (at most three quarters of v_k), then
+// v_k is shrunk towards the pool.
 func (f *careFit) fitSpread(res [][]float64) {
+	_ = res
 	tau2 := 0.0
 	if f.effect {
 		tau2 = max(0, f.tau2)
@@ -340,15 +392,12 @@ func (f *careFit) fitSpread(res [][]float64) {
 	var poolSS, poolDF float64
 	for k := range f.tiers {
 		t := &f.tiers[k]
-		m := len(t.z)
+		m := len(t.y)
 		if m < 2 {
 			continue
 		}
-		var ss float64
-		for _, r := range res[k] {
-			ss += r * r
-		}
-		t.resVar = ss / float64(m-1)
+		mean, sd := MeanSD(t.y)
+		t.resVar = math.Log1p(sd * sd / ((mean + t.offset) * (mean + t.offset)))
 		t.sigma2 = max(t.resVar-tau2, sigmaFloorShare*t.resVar)
 		t.df = float64(m - 1)
 		poolSS += t.df * t.sigma2

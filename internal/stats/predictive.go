@@ -31,10 +31,13 @@ type paramDraw struct {
 // predictive distribution of the fitted model for the census in f.tiers,
 // integrating over parameter uncertainty. For each draw:
 //
-//	β   = β̂ + se(β)·T_ν               (Student t, ν = occurrences − 1)
-//	τ²  = max(0, τ̂² + se(τ²)·Z)
+//	β   = β̂ + se(β)·T_ν with probability w, else 0   (Student t, ν = occurrences − 1;
+//	      w the trend model's weight, trendWeight)
+//	τ²  = τ̂²·ν/χ²_ν, ν = 2τ̂⁴/se(τ̂²)², with probability w_τ when τ̂² > 0; else 0
+//	      (w_τ the shift-effect model's weight, as trendWeight of τ̂²/se)
 //	σ_k² = ν_k·s̃_k² / χ²_ν_k          (scaled inverse χ², ν_k = m_k − 1 + 2)
-//	μ_k = z̄_k − β·t̄_k + √(τ²·w_k)·U + √(σ_k²/m_k)·Z_k
+//	L_k = ln(ȳ_k + c_k) − β·t̄_k + √(τ²·w_k)·U + √((e^{σ_k²} − 1)/m_k)·Z_k
+//	μ_k = L_k − (σ_k² + τ²)/2          (so that E[minutes + c_k] = e^{L_k})
 //	b   ~ N(0, τ²)                     (the new shift's common effect)
 //	total = Σ_k Σ_{i≤n_k} max(0, exp(μ_k + b + σ_k·ε_i) − c_k)
 //
@@ -83,11 +86,16 @@ func simulateTotals(f *careFit, draws int, seed uint64) []float64 {
 // drawParams draws β, τ² and the shared mean error U.
 func (f *careFit) drawParams(r *rand.Rand) paramDraw {
 	var p paramDraw
-	if f.trend {
+	if f.trend && r.Float64() < f.trendP {
 		p.beta = f.beta + f.betaSE*studentT(r, f.betaDF)
 	}
-	if f.effect {
-		p.tau2 = min(max(0, f.tau2+f.tau2SE*r.NormFloat64()), maxLogVariance)
+	if f.effect && f.tau2 > 0 && r.Float64() < f.tau2P {
+		// Scaled inverse χ² with Satterthwaite's (1946, Biometrics
+		// Bulletin 2(6)) degrees of freedom ν = 2·τ̂⁴ / se(τ̂²)²: centred
+		// on τ̂², right-skewed like a variance estimate, and 0 when the
+		// estimate is (a zero effect is not given a spurious spread).
+		nu := max(1, 2*f.tau2*f.tau2/(f.tau2SE*f.tau2SE))
+		p.tau2 = min(f.tau2*nu/chiSquare(r, nu), maxLogVariance)
 	}
 	p.u = r.NormFloat64()
 	return p
@@ -97,9 +105,13 @@ func (f *careFit) drawParams(r *rand.Rand) paramDraw {
 // the projected date.
 func (f *careFit) tierLocation(r *rand.Rand, t *careTier, p paramDraw) (mu, sigma2 float64) {
 	sigma2 = min(t.df*t.sigma2/chiSquare(r, t.df), maxLogVariance)
-	mu = t.zbar - p.beta*t.tbar + math.Sqrt(p.tau2*t.weight)*p.u +
-		math.Sqrt(sigma2/float64(len(t.z)))*r.NormFloat64()
-	return mu, sigma2
+	// The log of the tier's mean (plus offset) at the projected date, with
+	// the error of a mean of m values whose log variance is sigma2
+	// (squared CV e^{σ²} − 1) and of the shifts they came from; then the
+	// lognormal location that keeps that mean: μ = level − (σ² + τ²)/2.
+	level := t.level - p.beta*t.tbar + math.Sqrt(p.tau2*t.weight)*p.u +
+		math.Sqrt(math.Expm1(sigma2)/float64(len(t.y)))*r.NormFloat64()
+	return level - (sigma2+p.tau2)/2, sigma2
 }
 
 // drawTotal draws one shift total.
@@ -166,21 +178,17 @@ func gammaDraw(r *rand.Rand, shape float64) float64 {
 	}
 }
 
-// plugInMean is E[total] at the point estimates, Σ_k n_k·(e^{μ̂_k +
-// (σ̂_k² + τ̂²)/2} − c_k): the lognormal mean (Aitchison & Brown 1957,
-// The Lognormal Distribution, ch. 2), less the offset.
+// plugInMean is E[total] at the point estimates, Σ_k n_k·(e^{L̂_k} − c_k)
+// with L̂_k = ln(ȳ_k + c_k) − w·β̂·t̄_k: the tier means, moved to the
+// projected date by the averaged trend.
 func (f *careFit) plugInMean() float64 {
-	tau2 := 0.0
-	if f.effect {
-		tau2 = max(0, f.tau2)
-	}
 	total := 0.0
 	for _, t := range f.tiers {
 		if t.patients == 0 {
 			continue
 		}
-		mu := t.zbar - f.beta*t.tbar
-		total += float64(t.patients) * max(0, math.Exp(mu+(t.sigma2+tau2)/2)-t.offset)
+		level := t.level - f.trendP*f.beta*t.tbar // the models averaged, as in the draws
+		total += float64(t.patients) * max(0, math.Exp(level)-t.offset)
 	}
 	return total
 }

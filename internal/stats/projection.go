@@ -115,8 +115,9 @@ type Projection struct {
 }
 
 // MethodDescription says in one sentence how version 2 projects.
-const MethodDescription = "Log-scale model per tier with a shared shift-level effect and a common trend, " +
-	"simulated from its predictive distribution with parameter uncertainty (Student-t level, scaled inverse-χ² spread)."
+const MethodDescription = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
+	"and a common trend, each weighed by the evidence for it; simulated from the predictive distribution with " +
+	"parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
 
 // Project estimates the direct care minutes of one shift and the nurses
 // they need from the predictive distribution of fitCare's model
@@ -188,7 +189,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 			tf.MedianMinutes = Defined(medianOf(fits[k].minutes))
 		}
 		if len(t.z) >= 2 {
-			tf.LogLocation = Defined(t.zbar - f.beta*t.tbar)
+			tf.LogLocation = Defined(t.level - f.trendP*f.beta*t.tbar - (t.sigma2+max(0, f.tau2))/2)
 			tf.LogSD = Defined(math.Sqrt(t.sigma2))
 		}
 		if t.patients > 0 {
