@@ -7,6 +7,7 @@ import (
 	"io"
 	"sort"
 	"strings"
+	"time"
 )
 
 // Exit statuses shared by every command.
@@ -23,6 +24,15 @@ type env struct {
 	stdout io.Writer
 	stderr io.Writer
 	getenv func(string) string
+	now    func() time.Time // the clock; nil: time.Now
+}
+
+// clock returns the current time from e.now, or time.Now when unset.
+func (e *env) clock() time.Time {
+	if e.now == nil {
+		return time.Now()
+	}
+	return e.now()
 }
 
 // command is one subcommand. Name may be two words ("user add").
