@@ -166,3 +166,24 @@ func MustMethod1(tb testing.TB, p *wardload.Projection) *stats.ProjectionV1 {
 	p.NursesCover, p.Floor, p.Recommended, p.DecidedBy = v1.Nurses.CoverSimulated, v1.Nurses.Floor, v1.Nurses.Recommended, v1.Nurses.DecidedBy
 	return v1
 }
+
+// A method 1 share restated never reads as a bare 0% or 100% or with
+// "± 0", at the edges least of all, and its Wilson interval always has
+// width (Wilson 1927; stats.WilsonInterval).
+func TestShortfallV1Text(t *testing.T) {
+	for _, n := range []int{1000, 2000, 20000} {
+		for _, k := range []int{0, 1, n / 2, n - 1, n} {
+			sf := export.ShortfallV1(5, float64(k)/float64(n), n)
+			text := strings.TrimSpace(sf.Text)
+			if text == "0%" || text == "100%" || strings.HasPrefix(text, "0% ") || strings.Contains(text, "±") {
+				t.Errorf("%d of %d: text %q", k, n, sf.Text)
+			}
+			if !(sf.WilsonHigh > sf.WilsonLow) || sf.WilsonLow > sf.Probability || sf.Probability > sf.WilsonHigh {
+				t.Errorf("%d of %d: share %g outside or on a collapsed interval %g–%g", k, n, sf.Probability, sf.WilsonLow, sf.WilsonHigh)
+			}
+			if got := int(sf.Probability*float64(n) + 0.5); got != k {
+				t.Errorf("%d of %d: recovered %d", k, n, got)
+			}
+		}
+	}
+}
