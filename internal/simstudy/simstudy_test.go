@@ -345,7 +345,10 @@ func TestFailures(t *testing.T) {
 		{"all declined, tiny", Result{Scenario: tiny, Reps: 4, Declined: 4}, 0, nil},
 		{"declined, plentiful", Result{Scenario: plenty, Reps: 4, Declined: 1, Shortfall: rep(0.05, 3), Recommended: []int{5, 5, 5}, Oracle: 5}, 0, []string{"declined 1 of 4"}},
 		{"far from oracle", Result{Scenario: plenty, Reps: 4, Shortfall: rep(0.01, 4), Recommended: []int{6, 6, 6, 5}, Oracle: 5}, 0, []string{"mean recommended 5.75"}},
-		{"below oracle", Result{Scenario: plenty, Reps: 4, Shortfall: rep(0.11, 4), Recommended: []int{4, 4, 5, 4}, Oracle: 5}, 0, []string{"mean recommended 4.25"}},
+		// The oracle margin is one-sided (see Failures): below the oracle
+		// the shortfall rule judges.
+		{"below oracle, promise kept", Result{Scenario: plenty, Reps: 4, Shortfall: rep(0.11, 4), Recommended: []int{4, 4, 5, 4}, Oracle: 5}, 0, nil},
+		{"below oracle, promise broken", Result{Scenario: plenty, Reps: 4, Shortfall: rep(0.13, 4), Recommended: []int{4, 4, 5, 4}, Oracle: 5}, 0, []string{"shortfall 0.130"}},
 		{"close to oracle", Result{Scenario: plenty, Reps: 4, Shortfall: rep(0.05, 4), Recommended: []int{6, 5, 5, 6}, Oracle: 5}, 0, nil},
 		{"far only for a tiny scenario", Result{Scenario: tiny, Reps: 4, Shortfall: rep(0.01, 4), Recommended: []int{9, 9, 9, 9}, Oracle: 5}, 0, nil},
 	} {

@@ -31,8 +31,8 @@ type paramDraw struct {
 // predictive distribution of the fitted model for the census in f.tiers,
 // integrating over parameter uncertainty. For each draw:
 //
-//	β   = β̂ + se(β)·T_ν with probability w, else 0   (Student t, ν = occurrences − 1;
-//	      w the trend model's weight, trendWeight)
+//	β   = β̂ + se(β)·T_ν when the trend is followed, else 0   (Student t,
+//	      ν = occurrences − 1; followed when its 95% interval excludes 0)
 //	τ²  = τ̂²·ν/χ²_ν, ν = 2τ̂⁴/se(τ̂²)², with probability w_τ when τ̂² > 0; else 0
 //	      (w_τ the shift-effect model's weight, as trendWeight of τ̂²/se)
 //	σ_k² = ν_k·s̃_k² / χ²_ν_k          (scaled inverse χ², ν_k = m_k − 1 + 2)
@@ -86,7 +86,7 @@ func simulateTotals(f *careFit, draws int, seed uint64) []float64 {
 // drawParams draws β, τ² and the shared mean error U.
 func (f *careFit) drawParams(r *rand.Rand) paramDraw {
 	var p paramDraw
-	if f.trend && r.Float64() < f.trendP {
+	if f.trend && f.trendP == 1 {
 		p.beta = f.beta + f.betaSE*studentT(r, f.betaDF)
 	}
 	if f.effect && f.tau2 > 0 && r.Float64() < f.tau2P {

@@ -41,6 +41,7 @@ type ShiftEffect struct {
 // days with a 95% interval (on the log-scale slope, then exponentiated).
 type Trend struct {
 	Estimated        bool   `json:"estimated"`
+	Followed         bool   `json:"followed"` // the projection extrapolates it (the common trend only)
 	PercentPer28Days Number `json:"percent_per_28_days"`
 	Low              Number `json:"low"`
 	High             Number `json:"high"`
@@ -116,8 +117,8 @@ type Projection struct {
 
 // MethodDescription says in one sentence how version 2 projects.
 const MethodDescription = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
-	"and a common trend, each weighed by the evidence for it; simulated from the predictive distribution with " +
-	"parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
+	"weighed by the evidence for it, and a common trend followed when its 95% interval excludes zero; simulated " +
+	"from the predictive distribution with parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
 
 // Project estimates the direct care minutes of one shift and the nurses
 // they need from the predictive distribution of fitCare's model
@@ -180,6 +181,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 			". Heavy shifts where every patient needs more care at once are not in the band.")
 	}
 	p.Trend = trendOf(f.trend, f.beta, f.betaSE, f.betaDF, f.trendNo)
+	p.Trend.Followed = f.trend && f.trendP == 1
 	p.Tiers = make([]TierFit, len(in.Tiers))
 	for k, t := range f.tiers {
 		tf := TierFit{Code: t.code, Patients: t.patients, Observations: len(fits[k].minutes),
