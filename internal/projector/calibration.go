@@ -82,8 +82,15 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 		if !ok || code[o.TierID] == "" {
 			continue
 		}
+		minutes := o.CareMinutes / o.WindowHours * h
+		if !(minutes >= 0 && minutes <= stats.MaxShiftMinutes) {
+			// A value no projection can use (stats.Project refuses it with
+			// its own message, naming it) is left out of the backtest, so
+			// that it cannot break the census page or the review page.
+			continue
+		}
 		in = append(in, stats.BacktestObservation{Tier: code[o.TierID], Date: o.Date.String(), Shift: name[o.ShiftID],
-			Minutes: o.CareMinutes / o.WindowHours * h})
+			Minutes: minutes})
 	}
 	slices.SortStableFunc(in, func(a, b stats.BacktestObservation) int {
 		return cmp.Or(cmp.Compare(a.Date, b.Date), cmp.Compare(a.Shift, b.Shift))

@@ -144,10 +144,15 @@ func TestAuditPage(t *testing.T) {
 
 func TestAuditPaging(t *testing.T) {
 	f := newFixture(t)
+	// Failed sign-ins are summarised per source and window, and names that
+	// match no account are not stored: one failure each for known accounts
+	// x00, x01, ..., each from its own address, makes one row each.
 	for i := 0; i < auditPageSize+5; i++ {
-		f.s.acctThrottle = newThrottle(3, 0) // keep sign-in failures unthrottled
-		f.s.addrThrottle = newThrottle(3, 0)
-		f.do(t, signInForm(fmt.Sprintf("x%02d", i), "pw", "/"))
+		name := fmt.Sprintf("x%02d", i)
+		f.MustUser(t, "", name, wardload.RoleChargeNurse, "pw of "+name+" 123", f.wardA.ID)
+		req := signInForm(name, "pw", "/")
+		req.RemoteAddr = fmt.Sprintf("198.51.100.%d:4000", i+1)
+		f.do(t, req)
 	}
 	res, body := f.do(t, f.as(t, pAdmin, httptest.NewRequest("GET", "/audit?action=signin.fail", nil)))
 	if res.StatusCode != 200 || len(byTestID(t, body, "audit-row")) != auditPageSize {

@@ -143,8 +143,14 @@ func TestReviewSummariesEqualStats(t *testing.T) {
 	if strings.Contains(body, "style=") {
 		t.Error("page has an inline style attribute; the CSP forbids them")
 	}
-	if n := strings.Count(body, `role="img"`); n != len(tiers) {
-		t.Errorf("%d role=img, want %d", n, len(tiers))
+	// One box plot per tier and the backtest's PIT histogram.
+	if n := strings.Count(body, `role="img"`); n != len(tiers)+1 || len(byTestID(t, body, "pit-svg")) != 1 {
+		t.Errorf("%d role=img, want %d (a box plot per tier and the PIT histogram)", n, len(tiers)+1)
+	}
+	// The backtest says how the projections held, with its table.
+	if len(byTestID(t, body, "calibration-sentence"))+len(byTestID(t, body, "calibration-warning")) != 1 ||
+		len(byTestID(t, body, "calibration-table")) != 1 || !strings.Contains(body, "In the last 12 weeks") {
+		t.Error("the review page lacks the backtest sentence or table")
 	}
 	// The demo tiers are built to rise; the order check agrees.
 	if len(byTestID(t, body, "order-ok")) != 1 || len(byTestID(t, body, "order-warning")) != 0 {
