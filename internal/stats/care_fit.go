@@ -402,6 +402,7 @@ func (f *careFit) fitSpread(res [][]float64) {
 	if f.effect {
 		tau2 = max(0, f.tau2)
 	}
+	kurt := excessKurtosis(f.tiers)
 	var poolSS, poolDF float64
 	for k := range f.tiers {
 		t := &f.tiers[k]
@@ -412,7 +413,13 @@ func (f *careFit) fitSpread(res [][]float64) {
 		mean, sd := MeanSD(t.y)
 		t.resVar = math.Log1p(sd * sd / ((mean + t.offset) * (mean + t.offset)))
 		t.sigma2 = max(t.resVar-tau2, sigmaFloorShare*t.resVar)
-		t.df = float64(m - 1)
+		// Degrees of freedom of a sample variance from data with excess
+		// kurtosis κ: Var(s²)/σ⁴ = 2/(m−1) + κ/m, so ν = 2/(2/(m−1) + κ/m)
+		// (e.g. Kendall & Stuart, The Advanced Theory of Statistics, vol.
+		// 1, §10.5, from memory); m − 1 for normal data, far fewer for
+		// the right-skewed, heavy-tailed minutes of real tiers.
+		fm := float64(m)
+		t.df = 2 / (2/(fm-1) + kurt/fm)
 		poolSS += t.df * t.sigma2
 		poolDF += t.df
 		t.weight = clusterWeight(t.group, m)
@@ -427,6 +434,37 @@ func (f *careFit) fitSpread(res [][]float64) {
 		t.sigma2 = (t.df*t.sigma2 + priorDF*pool) / (t.df + priorDF)
 		t.df += priorDF
 	}
+}
+
+// excessKurtosis is the pooled excess kurtosis of the tiers' kept
+// minutes: Σ_k Σ_i (y−ȳ_k)⁴ / Σ_k m_k·s̃_k⁴ − 3 with s̃_k² the plug-in
+// variance of tier k, over tiers with 4 or more values, and never below 0
+// (a light-tailed estimate would claim more certainty than normal data
+// give). Pooled because one tier's fourth moment is very noisy.
+func excessKurtosis(tiers []careTier) float64 {
+	var s4, s22 float64
+	for _, t := range tiers {
+		m := len(t.y)
+		if m < 4 {
+			continue
+		}
+		mean := avg(t.y)
+		var m2, m4 float64
+		for _, y := range t.y {
+			d := (y - mean) * (y - mean)
+			m2 += d
+			m4 += d * d
+		}
+		if m2 == 0 {
+			continue
+		}
+		s4 += m4
+		s22 += m2 * m2 / float64(m)
+	}
+	if s22 == 0 {
+		return 0
+	}
+	return max(0, s4/s22-3)
 }
 
 // avg is the arithmetic mean of a non-empty x.

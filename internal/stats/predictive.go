@@ -36,7 +36,7 @@ type paramDraw struct {
 //	τ²  = τ̂²·ν/χ²_ν, ν = 2τ̂⁴/se(τ̂²)², with probability w_τ when τ̂² > 0; else 0
 //	      (w_τ the shift-effect model's weight, as trendWeight of τ̂²/se)
 //	σ_k² = ν_k·s̃_k² / χ²_ν_k          (scaled inverse χ², ν_k = m_k − 1 + 2)
-//	L_k = ln(ȳ_k + c_k) − β·t̄_k + √(τ²·w_k)·U + √((e^{σ_k²} − 1)/m_k)·Z_k
+//	L_k = ln(ȳ_k + c_k) − β·t̄_k + √(τ²·w_k)·U + √(ln(1 + (e^{σ_k²} − 1)/m_k))·Z_k
 //	μ_k = L_k − (σ_k² + τ²)/2          (so that E[minutes + c_k] = e^{L_k})
 //	b   ~ N(0, τ²)                     (the new shift's common effect)
 //	total = Σ_k Σ_{i≤n_k} max(0, exp(μ_k + b + σ_k·ε_i) − c_k)
@@ -107,10 +107,11 @@ func (f *careFit) tierLocation(r *rand.Rand, t *careTier, p paramDraw) (mu, sigm
 	sigma2 = min(t.df*t.sigma2/chiSquare(r, t.df), maxLogVariance)
 	// The log of the tier's mean (plus offset) at the projected date, with
 	// the error of a mean of m values whose log variance is sigma2
-	// (squared CV e^{σ²} − 1) and of the shifts they came from; then the
+	// (squared CV e^{σ²} − 1, so the mean's squared CV is that over m, and
+	// its log variance ln(1 + CV²/m)) and of the shifts they came from; then the
 	// lognormal location that keeps that mean: μ = level − (σ² + τ²)/2.
 	level := t.level - p.beta*t.tbar + math.Sqrt(p.tau2*t.weight)*p.u +
-		math.Sqrt(math.Expm1(sigma2)/float64(len(t.y)))*r.NormFloat64()
+		math.Sqrt(math.Log1p(math.Expm1(sigma2)/float64(len(t.y))))*r.NormFloat64()
 	return level - (sigma2+p.tau2)/2, sigma2
 }
 
