@@ -3,7 +3,7 @@
 # prints its coverage table, version 1 ("before") beside version 2
 # ("after"). Exits non-zero when a version 2 row breaks the pass rule.
 # Usage: bench/calibration.sh [-reps 200] [-draws 20000] [-truth 200000]
-#        [-scenario name,name] [-seed N]   (from anywhere; needs go)
+#        [-scenario name,name] [-seed N] [-quantile]   (from anywhere; needs go)
 set -eu
 cd "$(dirname "$0")/.."
 export CGO_ENABLED=0

@@ -33,8 +33,8 @@ type paramDraw struct {
 //
 //	β   = β̂ + se(β)·T_ν when the trend is followed, else 0   (Student t,
 //	      ν = occurrences − 1; followed when its 95% interval excludes 0)
-//	τ²  = τ̂²·ν/χ²_ν, ν = 2τ̂⁴/se(τ̂²)², with probability w_τ when τ̂² > 0; else 0
-//	      (w_τ the shift-effect model's weight, as trendWeight of τ̂²/se)
+//	τ²  = τ̂²·ν/χ²_ν, ν = 2τ̂⁴/se(τ̂²)², when the effect is drawn
+//	      (τ̂² > 1.96·se(τ̂²)); else 0
 //	σ_k² = ν_k·s̃_k² / χ²_ν_k          (scaled inverse χ², ν_k = m_k − 1 + 2)
 //	L_k = ln(ȳ_k + c_k) − β·t̄_k + √(τ²·w_k)·U + √(ln(1 + (e^{σ_k²} − 1)/m_k))·Z_k
 //	μ_k = L_k − (σ_k² + τ²)/2          (so that E[minutes + c_k] = e^{L_k})
@@ -89,7 +89,7 @@ func (f *careFit) drawParams(r *rand.Rand) paramDraw {
 	if f.trend && f.trendP == 1 {
 		p.beta = f.beta + f.betaSE*studentT(r, f.betaDF)
 	}
-	if f.effect && f.tau2 > 0 && r.Float64() < f.tau2P {
+	if f.effect && f.tau2P == 1 {
 		// Scaled inverse χ² with Satterthwaite's (1946, Biometrics
 		// Bulletin 2(6)) degrees of freedom ν = 2·τ̂⁴ / se(τ̂²)²: centred
 		// on τ̂², right-skewed like a variance estimate, and 0 when the

@@ -117,7 +117,7 @@ type Projection struct {
 
 // MethodDescription says in one sentence how version 2 projects.
 const MethodDescription = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
-	"weighed by the evidence for it, and a common trend followed when its 95% interval excludes zero; simulated " +
+	"and a common trend, each used when the data show it (95% level); simulated " +
 	"from the predictive distribution with parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
 
 // Project estimates the direct care minutes of one shift and the nurses
@@ -191,7 +191,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 			tf.MedianMinutes = Defined(medianOf(fits[k].minutes))
 		}
 		if len(t.z) >= 2 {
-			tf.LogLocation = Defined(t.level - f.trendP*f.beta*t.tbar - (t.sigma2+max(0, f.tau2))/2)
+			tf.LogLocation = Defined(t.level - f.trendP*f.beta*t.tbar - (t.sigma2+f.tau2P*max(0, f.tau2))/2)
 			tf.LogSD = Defined(math.Sqrt(t.sigma2))
 		}
 		if t.patients > 0 {

@@ -283,15 +283,3 @@ func daysBetween(a, b string) float64 {
 	tb, _ := time.Parse(time.DateOnly, b)
 	return tb.Sub(ta).Hours() / 24
 }
-
-// TestTrendWeight checks the BIC weight against its closed form:
-// t = 0 with G = e² gives odds e^(−1), weight 1/(1+e) = 0.2689414213699951
-// (R 4.2.2: sprintf("%.17g", 1/(1+exp(1))) = 0.2689414213699951).
-func TestTrendWeight(t *testing.T) {
-	if got := trendWeight(0, math.Exp(2)); math.Abs(got-0.2689414213699951) > 1e-15 {
-		t.Errorf("trendWeight(0, e²) = %.17g", got)
-	}
-	if trendWeight(3, 50) < 0.8 || trendWeight(0.5, 50) > 0.2 || trendWeight(100, 50) != 1 {
-		t.Error("trendWeight does not follow the evidence")
-	}
-}
