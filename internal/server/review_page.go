@@ -316,7 +316,11 @@ func (s *Server) calibrationVM(r *http.Request, ward *wardload.Ward, today wardl
 	for i := range vm.Rows[0].Observed {
 		vm.Rows[0].Observed[i] = wholePercent(res.Levels[i])
 	}
-	vm.Rows = append(vm.Rows, row("Shift totals", res.Totals))
+	totals := row("Shift totals", res.Totals)
+	if res.Totals.Checked == 0 {
+		totals.Name = "Shift totals (no shift had every patient timed)"
+	}
+	vm.Rows = append(vm.Rows, totals)
 	pit := res.Totals.PIT
 	what := "shift totals"
 	for _, t := range res.Tiers {

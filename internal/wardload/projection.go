@@ -33,21 +33,21 @@ type Projection struct {
 	CoverLevel    float64 // the one-sided cover probability q used (the ward's setting)
 
 	ExpectedNurseHours float64 // at the expected total care minutes μ
-	CoverNurseHours    float64 // at the bootstrap q-quantile of the total (the basis of NursesCover)
-	// BandLowNurseHours and BandHighNurseHours are the central normal band
-	// μ ± Φ⁻¹((1+q)/2)·sd of the total care minutes at two-sided level
-	// q = CoverLevel, in nurse-hours (the normal approximation, not the
-	// bootstrap); Low may be below zero where that approximation is poor.
+	CoverNurseHours    float64 // at the simulated q-quantile of the total (the basis of NursesCover); 0 when declined
+	// BandLowNurseHours and BandHighNurseHours are the central band of the
+	// total care minutes at two-sided level q = CoverLevel, in nurse-hours:
+	// method 2's equal-tailed predictive interval (0 when declined), or
+	// method 1's normal μ ± Φ⁻¹((1+q)/2)·sd, whose Low may be below zero.
 	BandLowNurseHours  float64
 	BandHighNurseHours float64
-	NursesCover        int    // CoverNurseHours ÷ ShiftHours, rounded up
+	NursesCover        int    // headcount at the cover level (care-giving nurses + the nurse in charge where extra); 0 when declined
 	Floor              *int   // nurses the configured ratio floor asks for; nil: no floor configured
 	Recommended        int    // max(NursesCover, *Floor)
 	DecidedBy          string // "cover", "ratio_floor", "both" or "insufficient_data" (then Recommended is the floor, or 0 with Floor nil: no recommendation)
 
 	MethodVersion string // the stats package's method version
-	Seed          uint64 // bootstrap seed
-	Draws         int    // bootstrap draws
+	Seed          uint64 // simulation seed
+	Draws         int    // simulation draws
 	// Input is the JSON of the complete model input (settings, shift length,
 	// census and the observation values used); Result is the JSON of the
 	// model's complete result. Re-running the model of MethodVersion on
