@@ -171,22 +171,28 @@ func Backtest(obs []BacktestObservation, o BacktestOptions) (*BacktestResult, er
 					occ[x.Date] = append(occ[x.Date], i)
 				}
 			}
+			// One fit per week and pattern, as of the week's first day;
+			// each occurrence then only moves the projected date (the
+			// tiers' mean ages) and sets its census (fitCare does not
+			// depend on either otherwise).
+			base := make([]fitInput, 0, len(tierCodes))
+			for _, code := range tierCodes {
+				in := fitInput{code: code}
+				if t := train[code]; t != nil {
+					in.minutes, in.raw, in.dates, in.shifts = t.minutes, t.raw, t.dates, t.shifts
+				}
+				base = append(base, in)
+			}
+			f0 := fitCare(base, wStart.Format(time.DateOnly))
 			for _, date := range slices.Sorted(mapKeys(occ)) {
 				idx := occ[date]
 				counts := map[string]int{}
 				for _, i := range idx {
 					counts[obs[i].Tier]++
 				}
-				inputs := make([]fitInput, 0, len(tierCodes))
+				day, _ := time.Parse(time.DateOnly, date)
+				f := f0.at(day.Sub(wStart).Hours()/24, counts)
 				ok := true
-				for _, code := range tierCodes {
-					in := fitInput{code: code, patients: counts[code]}
-					if t := train[code]; t != nil {
-						in.minutes, in.raw, in.dates, in.shifts = t.minutes, t.raw, t.dates, t.shifts
-					}
-					inputs = append(inputs, in)
-				}
-				f := fitCare(inputs, date)
 				for _, t := range f.tiers {
 					if t.patients > 0 && (len(t.z) < MinTierObservations || t.sigma2 == 0) {
 						ok = false
@@ -308,4 +314,17 @@ func mapKeys[V any](m map[string]V) func(func(string) bool) {
 // String says the backtest's first lines, for logs.
 func (b *BacktestResult) String() string {
 	return fmt.Sprintf("backtest %s to %s: %d shift totals, %d skipped", b.From, b.To, b.Totals.Checked, b.Skipped)
+}
+
+// at returns a copy of f for a projected date days later than the one it
+// was fitted for, with the given census per tier code: observation ages
+// grow by days (t̄ falls by days; slopes and spreads are unchanged).
+func (f *careFit) at(days float64, census map[string]int) *careFit {
+	g := *f
+	g.tiers = slices.Clone(f.tiers)
+	for k := range g.tiers {
+		g.tiers[k].patients = census[g.tiers[k].code]
+		g.tiers[k].tbar -= days
+	}
+	return &g
 }
