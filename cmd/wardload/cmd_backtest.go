@@ -13,6 +13,7 @@ import (
 	"text/tabwriter"
 
 	"wardload/internal/csvfile"
+	"wardload/internal/projector"
 	"wardload/internal/stats"
 	"wardload/internal/wardload"
 )
@@ -302,79 +303,17 @@ func loadWardObservations(ctx context.Context, e *env, so *storeOptions, code st
 	}
 	to, _ := wardload.ParseDate(bo.opts.End)
 	from := to.AddDays(-7*(bo.opts.Weeks+bo.opts.LookbackWeeks) + 1)
-	patterns, err := st.FindShiftPatterns(ctx, ward.ID)
+	// The projections' own loader (projector.LoadBacktest), so the
+	// command and the review page read the same history the same way.
+	data, err := (&projector.Service{Store: st}).LoadBacktest(ctx, ward.ID, from, to)
 	if err != nil {
 		return nil, reportError(e, name, err)
 	}
-	tiers, err := st.FindTiers(ctx, ward.ID)
-	if err != nil {
-		return nil, reportError(e, name, err)
-	}
-	stored, _, err := st.FindObservations(ctx, wardload.ObservationFilter{WardID: &ward.ID, From: &from, To: &to})
-	if err != nil {
-		return nil, reportError(e, name, err)
-	}
-	censuses, _, err := st.FindCensus(ctx, wardload.CensusFilter{WardID: &ward.ID, From: &from, To: &to, LatestOnly: true})
-	if err != nil {
-		return nil, reportError(e, name, err)
-	}
-	shiftOf := map[int64]*wardload.ShiftPattern{}
-	for _, p := range patterns {
-		shiftOf[p.ID] = p
-	}
-	tierCode := map[int64]string{}
-	for _, t := range tiers {
-		tierCode[t.ID] = t.Code
-	}
-	obs := make([]stats.BacktestObservation, 0, len(stored))
-	for _, o := range stored {
-		p, ok := shiftOf[o.ShiftID]
-		code, tok := tierCode[o.TierID]
-		if !ok || !tok { // the store keeps these consistent; skip rather than guess
-			continue
-		}
-		obs = append(obs, stats.BacktestObservation{Tier: code, Date: o.Date.String(), Shift: p.Name,
-			Minutes: o.CareMinutes / o.WindowHours * p.NominalHours})
-	}
-	census := map[string]map[string]int{} // date|shift → tier code → patients
-	for _, c := range censuses {
-		p, ok := shiftOf[c.ShiftID]
-		if !ok {
-			continue
-		}
-		key := c.Date.String() + "|" + p.Name // one per key: LatestOnly
-		counts := map[string]int{}
-		for _, tc := range c.Counts {
-			counts[tierCode[tc.TierID]] = tc.Patients
-		}
-		census[key] = counts
-	}
-	bo.opts.Covered = func(date, shift string, counts map[string]int) bool {
-		return censusMatches(census[date+"|"+shift], counts)
-	}
+	bo.opts.Covered = data.CoveredFunc()
+	obs := data.Observations
 	bo.source = fmt.Sprintf("ward %s (%s)", ward.Code, ward.Name)
 	bo.totalNote = wardTotalsNote
 	return obs, exitOK
-}
-
-// censusMatches reports whether the observation counts per tier equal the
-// census (nil: no census, so not covered). Tiers missing from either side
-// count 0.
-func censusMatches(census, counts map[string]int) bool {
-	if census == nil {
-		return false
-	}
-	for code, n := range counts {
-		if census[code] != n {
-			return false
-		}
-	}
-	for code, n := range census {
-		if counts[code] != n {
-			return false
-		}
-	}
-	return true
 }
 
 // writeBacktest prints the backtest: its sentence, a coverage table per

@@ -25,18 +25,28 @@ const CalibrationWeeks = 12
 // beside the band edges it is compared with.
 const CalibrationDraws = 1000
 
-// Calibrate runs the ward's rolling-origin backtest (stats.Backtest) over
-// the CalibrationWeeks weeks before date, with the ward's lookback and
-// cover level, on its included observations, each shift pattern apart
-// and scaled to the pattern's nominal hours. A shift occurrence counts as
-// a shift total only where its observations per tier equal the newest
-// census of that dated shift (every patient timed). The seed depends on
-// the ward and date only, so the same history gives the same result.
-func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Date) (*stats.BacktestResult, error) {
-	settings, err := s.Store.FindSettings(ctx, wardID)
-	if err != nil {
-		return nil, err
-	}
+// BacktestData is a ward's history as stats.Backtest takes it.
+type BacktestData struct {
+	Observations []stats.BacktestObservation
+	// Covered holds the shift occurrences ("date|shift") whose
+	// observations match their newest census tier by tier: every patient
+	// timed, so their total is a shift total.
+	Covered map[string]bool
+}
+
+// CoveredFunc is Covered as stats.BacktestOptions.Covered.
+func (d *BacktestData) CoveredFunc() func(date, shift string, counts map[string]int) bool {
+	return func(date, shift string, _ map[string]int) bool { return d.Covered[date+"|"+shift] }
+}
+
+// LoadBacktest reads a ward's included observations dated from..to, each
+// scaled to its shift pattern's nominal hours (a shift pattern's
+// occurrences are named "Name#ID"), leaving out values no projection can
+// use (stats.Project refuses those with its own message, so they cannot
+// break the census page or the review page here), and which occurrences
+// were fully timed. It is the one loader of the ward backtest, for the
+// projections (Calibrate) and the command line.
+func (s *Service) LoadBacktest(ctx context.Context, wardID int64, from, to wardload.Date) (*BacktestData, error) {
 	patterns, err := s.Store.FindShiftPatterns(ctx, wardID)
 	if err != nil {
 		return nil, err
@@ -45,8 +55,6 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 	if err != nil {
 		return nil, err
 	}
-	from := date.AddDays(-7 * (CalibrationWeeks + settings.LookbackWeeks))
-	to := date.AddDays(-1)
 	obs, _, err := s.Store.FindObservations(ctx, wardload.ObservationFilter{WardID: &wardID, From: &from, To: &to})
 	if err != nil {
 		return nil, err
@@ -61,10 +69,8 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 	}
 	hours := map[int64]float64{}
 	name := map[int64]string{}
-	byName := map[string]int64{}
 	for _, p := range patterns {
 		hours[p.ID], name[p.ID] = p.NominalHours, p.Name+"#"+strconv.FormatInt(p.ID, 10)
-		byName[name[p.ID]] = p.ID
 	}
 	census := map[string]map[string]int{}
 	for _, c := range censuses {
@@ -76,7 +82,7 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 		}
 		census[c.Date.String()+"|"+name[c.ShiftID]] = counts
 	}
-	in := make([]stats.BacktestObservation, 0, len(obs))
+	d := &BacktestData{Observations: make([]stats.BacktestObservation, 0, len(obs)), Covered: map[string]bool{}}
 	for _, o := range obs {
 		h, ok := hours[o.ShiftID]
 		if !ok || code[o.TierID] == "" {
@@ -84,38 +90,51 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 		}
 		minutes := o.CareMinutes / o.WindowHours * h
 		if !(minutes >= 0 && minutes <= stats.MaxShiftMinutes) {
-			// A value no projection can use (stats.Project refuses it with
-			// its own message, naming it) is left out of the backtest, so
-			// that it cannot break the census page or the review page.
 			continue
 		}
-		in = append(in, stats.BacktestObservation{Tier: code[o.TierID], Date: o.Date.String(), Shift: name[o.ShiftID],
-			Minutes: minutes})
+		d.Observations = append(d.Observations, stats.BacktestObservation{Tier: code[o.TierID], Date: o.Date.String(),
+			Shift: name[o.ShiftID], Minutes: minutes})
 	}
-	slices.SortStableFunc(in, func(a, b stats.BacktestObservation) int {
+	slices.SortStableFunc(d.Observations, func(a, b stats.BacktestObservation) int {
 		return cmp.Or(cmp.Compare(a.Date, b.Date), cmp.Compare(a.Shift, b.Shift))
 	})
-	// The occurrences whose observations match their census tier by tier:
-	// the only thing the censuses change in a backtest, and so the only
-	// part of them in the cache key (a census saved for a shift with
-	// untimed patients leaves the cached backtest valid).
 	timed := map[string]map[string]int{}
-	for _, x := range in {
+	for _, x := range d.Observations {
 		k := x.Date + "|" + x.Shift
 		if timed[k] == nil {
 			timed[k] = map[string]int{}
 		}
 		timed[k][x.Tier]++
 	}
-	covered := map[string]bool{}
 	for k, counts := range timed {
-		covered[k] = maps.Equal(counts, census[k])
+		d.Covered[k] = maps.Equal(counts, census[k])
 	}
+	return d, nil
+}
+
+// Calibrate runs the ward's rolling-origin backtest (stats.Backtest) over
+// the CalibrationWeeks weeks before date, with the ward's lookback and
+// cover level, on LoadBacktest's data. The seed depends on the ward and
+// date only, so the same history gives the same result; results are
+// cached by a hash of everything they depend on (only which shifts were
+// fully timed, of the censuses).
+func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Date) (*stats.BacktestResult, error) {
+	settings, err := s.Store.FindSettings(ctx, wardID)
+	if err != nil {
+		return nil, err
+	}
+	from := date.AddDays(-7 * (CalibrationWeeks + settings.LookbackWeeks))
+	to := date.AddDays(-1)
+	data, err := s.LoadBacktest(ctx, wardID, from, to)
+	if err != nil {
+		return nil, err
+	}
+	in, covered := data.Observations, data.Covered
 	opts := stats.BacktestOptions{
 		Weeks: CalibrationWeeks, LookbackWeeks: settings.LookbackWeeks, End: to.String(),
 		Levels: []float64{0.5, 0.8, settings.CoverLevel}, Cover: settings.CoverLevel,
 		Draws: CalibrationDraws, Seed: Seed(wardID, date, 0),
-		Covered: func(date, shift string, _ map[string]int) bool { return covered[date+"|"+shift] },
+		Covered: data.CoveredFunc(),
 	}
 	if settings.CoverLevel < stats.MinCover || settings.CoverLevel > stats.MaxCover {
 		opts.Cover, opts.Levels = 0.9, []float64{0.5, 0.8, 0.9}
