@@ -81,6 +81,18 @@ func BootstrapTotals(tiers []BootstrapTier, draws int, seed uint64) []float64 {
 			panic("stats: BootstrapTotals tier with too many values")
 		}
 	}
+	return inChunks(draws, func() func(out []float64, c int) {
+		w := newBootstrapWorker(tiers)
+		return func(out []float64, c int) { w.run(out, seed, uint64(c)) }
+	})
+}
+
+// inChunks fills draws values in fixed chunks of bootstrapChunk, chunk c
+// into out[c·4096 : …], on up to min(GOMAXPROCS, 4) goroutines; worker is
+// called once per goroutine for its own fill function (its own scratch
+// space). The split does not depend on the goroutines, so each chunk's
+// own random stream gives the same values for any GOMAXPROCS.
+func inChunks(draws int, worker func() func(out []float64, c int)) []float64 {
 	out := make([]float64, draws)
 	chunks := (draws + bootstrapChunk - 1) / bootstrapChunk
 	workers := min(runtime.GOMAXPROCS(0), 4, chunks)
@@ -92,11 +104,10 @@ func BootstrapTotals(tiers []BootstrapTier, draws int, seed uint64) []float64 {
 	var wg sync.WaitGroup
 	for range workers {
 		wg.Go(func() {
-			w := newBootstrapWorker(tiers)
+			fill := worker()
 			for c := range next {
 				lo := c * bootstrapChunk
-				hi := min(lo+bootstrapChunk, draws)
-				w.run(out[lo:hi], seed, uint64(c))
+				fill(out[lo:min(lo+bootstrapChunk, draws)], c)
 			}
 		})
 	}

@@ -228,65 +228,37 @@ func fitCare(tiers []fitInput, target string) *careFit {
 		}
 		f.tiers = append(f.tiers, ct)
 	}
-	f.fitTrend(dated, len(groupID))
+	f.fitTrend(dated)
 	res := f.residuals()
 	f.fitEffect(res, len(groupID))
 	f.fitSpread(res)
 	return f
 }
 
-// fitTrend estimates the common slope β and its cluster-robust SE.
-func (f *careFit) fitTrend(dated bool, groups int) {
+// fitTrend estimates the common slope β and its cluster-robust SE (slope
+// over every tier with two or more values).
+func (f *careFit) fitTrend(dated bool) {
 	if !dated {
 		f.trendNo = "observations carry no dates"
 		return
 	}
-	days := map[float64]bool{}
-	first, last := math.Inf(1), math.Inf(-1)
-	var sxx, sxy float64
-	for _, t := range f.tiers {
-		if len(t.z) < 2 {
-			continue
-		}
-		for i, ti := range t.t {
-			days[ti] = true
-			first, last = min(first, ti), max(last, ti)
-			dt := ti - t.tbar
-			sxx += dt * dt
-			sxy += dt * (t.z[i] - t.zbar)
+	var used []*careTier
+	for k := range f.tiers {
+		if len(f.tiers[k].z) >= 2 {
+			used = append(used, &f.tiers[k])
 		}
 	}
-	if len(days) < minTrendDates || last-first < minTrendDays || sxx == 0 {
-		f.trendNo = fmt.Sprintf("a trend needs observations on at least %d dates over at least %d days", minTrendDates, minTrendDays)
+	ok, beta, se, df, reason := slope(used)
+	if !ok {
+		f.trendNo = reason
 		return
 	}
-	f.trend, f.beta = true, sxy/sxx
-	score := make([]float64, groups)
-	for _, t := range f.tiers {
-		if len(t.z) < 2 {
-			continue
-		}
-		for i, ti := range t.t {
-			r := t.z[i] - t.zbar - f.beta*(ti-t.tbar)
-			score[t.group[i]] += (ti - t.tbar) * r
-		}
-	}
-	var ss float64
-	used := 0
-	for _, s := range score {
-		if s != 0 {
-			used++
-		}
-		ss += s * s
-	}
-	g := float64(max(used, 2))
-	f.betaSE = math.Sqrt(g / (g - 1) * ss / (sxx * sxx))
-	f.betaDF = g - 1
+	f.trend, f.beta, f.betaSE, f.betaDF = true, beta, se, df
 	// The projection follows the trend only when the data show one: its
 	// 95% interval (Student t) excludes 0, the same test that makes a
 	// projection warn that care time has moved. Averaging over the two
-	// models by their BIC weights (Kass & Raftery 1995, JASA 90(430)) was tried and measured by
-	// the battery: it never drops below about 13% weight on a flat ward,
+	// models by their BIC weights (Kass & Raftery 1995, JASA 90(430))
+	// was tried and measured by the battery: it never drops below about 13% weight on a flat ward,
 	// and the extrapolated line's variance, about four times that of the
 	// mean, then cost 0.3-0.4 nurses at a census of 100 (rec − oracle
 	// +1.0 against +0.6 to +0.7), while drift was covered either way
@@ -481,22 +453,33 @@ func avg(x []float64) float64 {
 	return s / float64(len(x))
 }
 
-// tierSlope is the tier's own least-squares slope of z on t with a
-// cluster-robust standard error over shift occurrences (as fitTrend, for
-// one tier), for reporting: the model itself uses the common slope.
+// tierSlope is the tier's own slope (slope of the one tier), for
+// reporting: the model itself uses the common slope.
 func tierSlope(t *careTier) (ok bool, beta, se, df float64, reason string) {
 	if t.t == nil {
 		return false, 0, 0, 0, "observations carry no dates"
 	}
+	return slope([]*careTier{t})
+}
+
+// slope is the pooled within-tier least-squares slope of z on t over the
+// given tiers, Σ(t−t̄_k)(z−z̄_k) / Σ(t−t̄_k)², with the cluster-robust
+// standard error over shift occurrences G/(G−1)·Σ_g (Σ_{i∈g}(t_i−t̄_k)r_i)²
+// / Sxx² (Liang & Zeger 1986; Cameron & Miller 2015, J. Human Resources
+// 50(2)) and G − 1 degrees of freedom. Not ok, with the reason, with fewer
+// than minTrendDates distinct dates or a span under minTrendDays.
+func slope(tiers []*careTier) (ok bool, beta, se, df float64, reason string) {
 	days := map[float64]bool{}
 	first, last := math.Inf(1), math.Inf(-1)
 	var sxx, sxy float64
-	for i, ti := range t.t {
-		days[ti] = true
-		first, last = min(first, ti), max(last, ti)
-		dt := ti - t.tbar
-		sxx += dt * dt
-		sxy += dt * (t.z[i] - t.zbar)
+	for _, t := range tiers {
+		for i, ti := range t.t {
+			days[ti] = true
+			first, last = min(first, ti), max(last, ti)
+			dt := ti - t.tbar
+			sxx += dt * dt
+			sxy += dt * (t.z[i] - t.zbar)
+		}
 	}
 	if len(days) < minTrendDates || last-first < minTrendDays || sxx == 0 {
 		return false, 0, 0, 0, fmt.Sprintf("a trend needs observations on at least %d dates over at least %d days", minTrendDates, minTrendDays)
@@ -504,17 +487,19 @@ func tierSlope(t *careTier) (ok bool, beta, se, df float64, reason string) {
 	beta = sxy / sxx
 	score := map[int]float64{}
 	var order []int // first-seen order: sums in a fixed order reproduce bit for bit
-	for i, ti := range t.t {
-		if _, ok := score[t.group[i]]; !ok {
-			order = append(order, t.group[i])
+	for _, t := range tiers {
+		for i, ti := range t.t {
+			if _, seen := score[t.group[i]]; !seen {
+				order = append(order, t.group[i])
+			}
+			score[t.group[i]] += (ti - t.tbar) * (t.z[i] - t.zbar - beta*(ti-t.tbar))
 		}
-		score[t.group[i]] += (ti - t.tbar) * (t.z[i] - t.zbar - beta*(ti-t.tbar))
 	}
 	var ss float64
 	for _, g := range order {
 		ss += score[g] * score[g]
 	}
-	g := float64(len(order))
+	g := float64(max(len(order), 2))
 	return true, beta, math.Sqrt(g / (g - 1) * ss / (sxx * sxx)), g - 1, ""
 }
 

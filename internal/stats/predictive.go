@@ -3,8 +3,6 @@ package stats
 import (
 	"math"
 	"math/rand/v2"
-	"runtime"
-	"sync"
 )
 
 // A tier with at least fwFrom patients has its shift total drawn in one
@@ -58,29 +56,14 @@ type paramDraw struct {
 // Marsaglia & Tsang's (2000, ACM TOMS 26(3)) gamma method. The same seed
 // gives the same totals for any GOMAXPROCS on one platform.
 func simulateTotals(f *careFit, draws int, seed uint64) []float64 {
-	out := make([]float64, draws)
-	chunks := (draws + bootstrapChunk - 1) / bootstrapChunk
-	workers := min(runtime.GOMAXPROCS(0), 4, chunks)
-	next := make(chan int, chunks)
-	for c := range chunks {
-		next <- c
-	}
-	close(next)
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Go(func() {
-			for c := range next {
-				lo := c * bootstrapChunk
-				hi := min(lo+bootstrapChunk, draws)
-				r := rand.New(rand.NewPCG(seed, splitmix64(uint64(c)^streamKey)))
-				for d := lo; d < hi; d++ {
-					out[d] = f.drawTotal(r)
-				}
+	return inChunks(draws, func() func(out []float64, c int) {
+		return func(out []float64, c int) {
+			r := rand.New(rand.NewPCG(seed, splitmix64(uint64(c)^streamKey)))
+			for d := range out {
+				out[d] = f.drawTotal(r)
 			}
-		})
-	}
-	wg.Wait()
-	return out
+		}
+	})
 }
 
 // drawParams draws β, τ² and the shared mean error U.
