@@ -31,6 +31,9 @@ type HomeVM struct {
 	// SignedOut: the visitor sees ward names only and is asked to sign in.
 	SignedOut bool
 	Wards     []WardRowVM
+	// NewWardURL links to the form that creates a ward; "" for everyone
+	// but admins.
+	NewWardURL string
 }
 
 // WardRowVM is one ward in a list of wards.

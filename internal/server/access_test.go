@@ -50,6 +50,8 @@ var routeExpectations = map[string][]string{
 	"users":        admins,
 	"user.create":  admins,
 	"user.update":  admins,
+	"ward.new":     admins, // ward_test.go
+	"ward.create":  admins,
 	// API routes: token principals. A token of ward B may list its own
 	// wards; ward-scoped API routes would refuse it for ward A.
 	"api.wards": {tValid, tOtherW},

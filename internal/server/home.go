@@ -23,6 +23,9 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 		return fmt.Errorf("home: find wards: %w", err)
 	}
 	vm := web.HomeVM{SignedOut: u == nil, Wards: make([]web.WardRowVM, 0, len(wards))}
+	if u != nil && u.Role == wardload.RoleAdmin {
+		vm.NewWardURL = newWardURL
+	}
 	for _, wd := range wards {
 		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone}
 		if u != nil {

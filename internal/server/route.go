@@ -80,6 +80,8 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodGet, Pattern: "/admin/users", Name: "users", Access: admins, Handler: s.handleUsers},
 		{Method: http.MethodPost, Pattern: "/admin/users", Name: "user.create", Access: admins, Handler: s.handleUserCreate, MaxBodyBytes: 64 << 10},
 		{Method: http.MethodPost, Pattern: "/admin/users/{id}", Name: "user.update", Access: admins, Handler: s.handleUserUpdate, MaxBodyBytes: 64 << 10},
+		{Method: http.MethodGet, Pattern: "/admin/wards/new", Name: "ward.new", Access: admins, Handler: s.handleWardNew},
+		{Method: http.MethodPost, Pattern: "/admin/wards", Name: "ward.create", Access: admins, Handler: s.handleWardCreate, MaxBodyBytes: 16 << 10},
 
 		{Method: http.MethodGet, Pattern: "/api/v1/wards", Name: "api.wards", Access: api, Handler: s.handleAPIWards},
 

@@ -113,7 +113,8 @@ func (s *Server) settingsVM(r *http.Request, d *settingsData) (web.SettingsVM, e
 }
 
 func (s *Server) renderSettings(w http.ResponseWriter, r *http.Request, status int, vm web.SettingsVM) error {
-	return s.render(w, r, status, web.SettingsPage(s.layout(r, "Settings · "+vm.WardName), vm))
+	setup := wardSetupVM(principalFrom(r.Context()).Ward, len(vm.Shifts) > 0, len(vm.Tiers) > 0)
+	return s.render(w, r, status, web.SettingsPage(s.layout(r, "Settings · "+vm.WardName), vm, setup))
 }
 
 // handleSettings shows the settings page.
