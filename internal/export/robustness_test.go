@@ -28,9 +28,28 @@ func TestTextCell(t *testing.T) {
 		"=HYPERLINK(\"http://example.test\")": "'=HYPERLINK(\"http://example.test\")",
 		"Day":                                 "Day",
 		"Night =1":                            "Night =1", // only the first character counts
-		" =1":                                 " =1",
-		"'=1":                                 "'=1", // already text; not quoted twice
-		"":                                    "",
+		// A trigger after leading spaces or separators (OWASP CSV
+		// Injection: separators and quotes can start a new cell), and the
+		// full-width forms U+FF1D U+FF0B U+FF0D U+FF20.
+		" =1+1":           "' =1+1",
+		"   @SUM(A1)":     "'   @SUM(A1)",
+		";=1+1":           "';=1+1",
+		",=1+1":           "',=1+1",
+		"\"=1+1":          "'\"=1+1",
+		"; ;+1":           "'; ;+1",
+		"\u00a0=1+1":      "'\u00a0=1+1", // no-break space
+		"\u3000=1+1":      "'\u3000=1+1", // ideographic space
+		"\uff1b\uff1d1+1": "'\uff1b\uff1d1+1",
+		"\uff1d1+1":       "'\uff1d1+1", // ＝1+1
+		"\uff0b1+1":       "'\uff0b1+1", // ＋1+1
+		"\uff0d1+1":       "'\uff0d1+1", // －1+1
+		"\uff20SUM(A1)":   "'\uff20SUM(A1)",
+		" ;Day":           " ;Day", // separators before ordinary text
+		"Day \uff1d1":     "Day \uff1d1",
+		"   ":             "   ",
+		"\xff=1":          "\xff=1", // invalid UTF-8 is text, not a separator
+		"'=1":             "'=1",    // already text; not quoted twice
+		"":                "",
 	} {
 		if got := export.TextCell(in); got != want {
 			t.Errorf("TextCell(%q) = %q, want %q", in, got, want)
@@ -105,4 +124,43 @@ func TestWriteCSVNeutralisesFormulas(t *testing.T) {
 	if got := doc.Rows[0]["shift"]; got != sp.Name {
 		t.Errorf("JSON shift = %q, want the stored %q", got, sp.Name)
 	}
+}
+
+// The OWASP variants through WriteCSV: a trigger after spaces or a
+// separator, and the full-width forms, reach every free-text cell quoted.
+// Number cells keep their digits and sign.
+func TestWriteCSVNeutralisesOWASPVariants(t *testing.T) {
+	tiers := []*wardload.Tier{{ID: 1, Code: "t1", Label: "t1"}}
+	floor, rec := 3, 3
+	low := -0.5
+	at := time.Date(2026, 3, 28, 7, 30, 0, 0, time.UTC)
+	rows := []export.Row{{
+		Ward: " =1+1", Date: wardload.Date{Year: 2026, Month: 3, Day: 28}, Shift: "\uff1d1+1",
+		Start: at, End: at.Add(12 * time.Hour), ShiftHours: 12, CensusRevision: 1, TotalPatients: 2,
+		Census: []int{2}, CoverLevel: 0.9, DataSufficient: true, BandLowNurseHours: &low,
+		Floor: &floor, FloorRule: ";=1+1", Recommended: &rec, DecidedBy: "\uff20SUM(A1)",
+		MethodVersion: "\u3000\uff0b1", GeneratedAt: at, Caution: ";\uff0d1",
+	}}
+	var b bytes.Buffer
+	if err := export.WriteCSV(&b, tiers, rows); err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(bytes.NewReader(b.Bytes())).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]string{}
+	for i, c := range recs[0] {
+		col[c] = recs[1][i]
+	}
+	for c, want := range map[string]string{
+		"ward": "' =1+1", "shift": "'\uff1d1+1", "ratio_floor_rule": "';=1+1",
+		"decided_by": "'\uff20SUM(A1)", "method_version": "'\u3000\uff0b1", "caution": "';\uff0d1",
+		"band_low_nurse_hours": "-0.50", "ratio_floor_nurses": "3",
+	} {
+		if col[c] != want {
+			t.Errorf("%s = %q, want %q", c, col[c], want)
+		}
+	}
+
 }

@@ -8,6 +8,7 @@ import (
 	"io"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"wardload/internal/stats"
 	"wardload/internal/wardload"
@@ -122,25 +123,78 @@ func (r *Row) fields() []string {
 }
 
 // TextCell neutralises a free-text CSV cell that a spreadsheet would read
-// as a formula (CSV or formula injection): a cell starting with '=', '+',
-// '-', '@', a tab, a carriage return, a line feed or NUL gets a leading
-// single quote, which spreadsheets show as text and do not evaluate. This
-// is the mitigation of the OWASP "CSV Injection" page
-// (owasp.org/www-community/attacks/CSV_Injection: = + - @ tab CR) and of
-// OWASP ASVS 5.0 requirement 1.2.10 (= + - @ tab NUL); LF is added
-// because it is as invisible as CR. RFC 4180 quoting is encoding/csv's.
-// A shift name is free text a manager types (e.g. "=cmd|' /C calc'!A0"
-// passes ShiftPattern.Validate), so the export cannot rely on validation.
+// as a formula (CSV or formula injection) by giving it a leading single
+// quote, which spreadsheets show as text and do not evaluate. A cell is
+// quoted when its first character is a trigger, or when the first
+// character after a run of leading spaces and separators is one:
+//
+//   - triggers: '=', '+', '-', '@', tab, carriage return, line feed, NUL,
+//     and the full-width forms U+FF1D ＝, U+FF0B ＋, U+FF0D － and U+FF20 ＠,
+//     which some spreadsheets fold to their ASCII forms on input;
+//   - spaces: anything unicode.IsSpace reports (space, NBSP, U+3000...);
+//   - separators: ',' and ';' (the field separators of CSV in different
+//     locales), the double quote, and their full-width forms U+FF0C ，,
+//     U+FF1B ； and U+FF02 ＂.
+//
+// A leading apostrophe is not a separator: "'=1" is already text to a
+// spreadsheet and is not quoted twice.
+//
+// So " =1+1", ";=1+1" and "＝1+1" are quoted, while "Night =1" is not: a
+// trigger after ordinary text cannot start a formula.
+//
+// This follows the OWASP "CSV Injection" page
+// (owasp.org/www-community/attacks/CSV_Injection: = + - @ tab CR, and its
+// warning that separators and quotes let a payload start a new cell
+// mid-value; from memory of the page's text) and OWASP ASVS 5.0
+// requirement 1.2.10 (= + - @ tab NUL); LF is added because it is as
+// invisible as CR, and the full-width forms and leading spaces because
+// spreadsheets have been seen to accept them in front of a formula
+// (common practice, no source). RFC 4180 quoting is encoding/csv's.
+// Limitation: encoding/csv does not put a field holding ';' in double
+// quotes, so a spreadsheet that splits on ';' (locales with a decimal
+// comma) still starts a new cell after any ';' inside a value, with or
+// without the leading quote; closing that needs every text cell holding
+// ';' quoted per RFC 4180, which changes the file's bytes (and the golden).
+//
+// A shift name is free text a manager types, and stored data may predate
+// any rule on names, so the export cannot rely on validation.
 //
 // Only the CSV is changed; the JSON export carries the text as stored,
 // since JSON is not opened by spreadsheets as formulas. Number, date and
 // time cells never pass through here: a negative number must stay a
 // number.
 func TextCell(s string) string {
-	if s != "" && strings.IndexByte("=+-@\t\r\n\x00", s[0]) >= 0 {
-		return "'" + s
+	for _, r := range s {
+		switch {
+		case formulaTrigger(r):
+			return "'" + s
+		case unicode.IsSpace(r) || cellSeparator(r):
+			continue
+		}
+		return s
 	}
 	return s
+}
+
+// formulaTrigger reports whether r can start a spreadsheet formula (see
+// TextCell).
+func formulaTrigger(r rune) bool {
+	switch r {
+	case '=', '+', '-', '@', '\t', '\r', '\n', 0,
+		'\uFF1D', '\uFF0B', '\uFF0D', '\uFF20':
+		return true
+	}
+	return false
+}
+
+// cellSeparator reports whether r is a field separator or quote that may
+// stand before a formula trigger (see TextCell).
+func cellSeparator(r rune) bool {
+	switch r {
+	case ',', ';', '"', '\uFF0C', '\uFF1B', '\uFF02':
+		return true
+	}
+	return false
 }
 
 // WriteCSV writes a header row and one record per row, per RFC 4180
