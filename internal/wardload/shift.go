@@ -29,6 +29,9 @@ func (p *ShiftPattern) Validate() error {
 	if !plainText(p.Name, "") {
 		return FieldErrorf(EINVALID, "name", "Shift name must be one line of text, without control characters.")
 	}
+	if !startsAlnum(p.Name) {
+		return FieldErrorf(EINVALID, "name", "Shift name must begin with a letter or digit.")
+	}
 	if p.StartMinute < 0 || p.StartMinute >= 24*60 {
 		return FieldErrorf(EINVALID, "start", "Shift start must be a time of day between 00:00 and 23:59.")
 	}

@@ -35,3 +35,14 @@ func plainText(s, allow string) bool {
 	}
 	return true
 }
+
+// startsAlnum reports whether s begins with a letter or a digit (any
+// script, so "Ärztliche" and "３病棟" pass). Names and labels are shown in
+// exports that spreadsheets open; a name starting with '=', '+', '-', '@',
+// a space or a full-width form of these could be read as a formula there
+// (OWASP "CSV Injection"), so names may not start that way. The export
+// still neutralises such cells for data stored before this rule.
+func startsAlnum(s string) bool {
+	r, _ := utf8.DecodeRuneInString(s)
+	return unicode.IsLetter(r) || unicode.IsDigit(r)
+}

@@ -40,6 +40,9 @@ func (w *Ward) Validate() error {
 	if !plainText(w.Name, "") {
 		return FieldErrorf(EINVALID, "name", "Ward name must be one line of text, without control characters.")
 	}
+	if !startsAlnum(w.Name) {
+		return FieldErrorf(EINVALID, "name", "Ward name must begin with a letter or digit.")
+	}
 	if _, err := w.Location(); err != nil {
 		return err
 	}
@@ -139,6 +142,9 @@ func (t *Tier) Validate() error {
 	}
 	if !plainText(t.Label, "") {
 		return FieldErrorf(EINVALID, "label", "Tier label must be one line of text, without control characters.")
+	}
+	if !startsAlnum(t.Label) {
+		return FieldErrorf(EINVALID, "label", "Tier label must begin with a letter or digit.")
 	}
 	if !plainText(t.Description, "\n\r\t") {
 		return FieldErrorf(EINVALID, "description", "Tier description must be text without control characters.")
