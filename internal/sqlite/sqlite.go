@@ -8,7 +8,9 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"io/fs"
 	"net/url"
+	"os"
 	"runtime"
 	"time"
 
@@ -72,6 +74,9 @@ func Open(ctx context.Context, cfg Config) (*Store, error) {
 		db.SetConnMaxIdleTime(0)
 		s.w, s.r = db, newReadDB(db)
 	} else {
+		if err := createPrivate(cfg.Path); err != nil {
+			return nil, fmt.Errorf("sqlite: create %s: %w", cfg.Path, err)
+		}
 		q.Add("_pragma", "journal_mode(WAL)")
 		wq := url.Values{"_pragma": q["_pragma"], "_txlock": {"immediate"}}
 		w, err := sql.Open("sqlite", cfg.Path+"?"+wq.Encode())
@@ -98,6 +103,37 @@ func Open(ctx context.Context, cfg Config) (*Store, error) {
 		return nil, fmt.Errorf("sqlite: open %s: %w", cfg.Path, err)
 	}
 	return s, nil
+}
+
+// FileMode is the mode of a database file Open creates. The file holds
+// password hashes, sessions and the audit log, so only its owner may read
+// it.
+const FileMode fs.FileMode = 0o600
+
+// createPrivate creates the database file at path with FileMode when it
+// does not exist yet, and leaves an existing file alone (the caller warns
+// about its mode instead). Left to itself SQLite would create the file
+// 0644 less the process umask. Its -wal and -shm files take the database
+// file's permission bits whatever the umask (SQLite's unix VFS copies the
+// mode and fchmods a new file to it), so they are 0600 too; the tests
+// check all three.
+func createPrivate(path string) error {
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|os.O_EXCL, FileMode)
+	if errors.Is(err, fs.ErrExist) {
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	// OpenFile's mode passes through the umask, which can only take bits
+	// away; set it exactly so that a strict umask cannot leave the file
+	// unwritable either.
+	if err := f.Chmod(FileMode); err != nil {
+		f.Close()
+		os.Remove(path)
+		return err
+	}
+	return f.Close()
 }
 
 // Migrate applies every pending migration in migrations/sqlite.
