@@ -23,6 +23,9 @@ func runMigrate(ctx context.Context, e *env, args []string) int {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
 		return exitUsage
 	}
+	for _, m := range so.looseModes() {
+		fmt.Fprintf(e.stderr, "wardload: warning: %s\n", m)
+	}
 	st, err := openStore(ctx, so, false)
 	if err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)

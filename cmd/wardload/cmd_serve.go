@@ -61,6 +61,9 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	}
 	log := slog.New(slog.NewTextHandler(e.stderr, nil))
 
+	for _, m := range so.looseModes() {
+		log.Warn(m.String())
+	}
 	st, err := openStore(ctx, so, true)
 	if err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)

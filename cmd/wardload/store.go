@@ -5,8 +5,10 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"time"
 
@@ -60,6 +62,49 @@ func (o *storeOptions) kind() (string, error) {
 
 // sqlitePath is the SQLite file inside the data directory.
 func (o *storeOptions) sqlitePath() string { return filepath.Join(o.DataDir, "wardload.db") }
+
+// looseMode is a data directory or database file that users other than
+// its owner may read or write.
+type looseMode struct {
+	Path  string
+	Mode  fs.FileMode // permission bits
+	IsDir bool
+}
+
+// String is one line for the log or stderr, with the fix.
+func (m looseMode) String() string {
+	want := "600"
+	what := "database file"
+	if m.IsDir {
+		want, what = "700", "data directory"
+	}
+	return fmt.Sprintf("%s %s is open to other users (mode %#o): it holds password hashes, sessions and the audit log; run: chmod %s %s",
+		what, m.Path, m.Mode, want, m.Path)
+}
+
+// looseModes returns the SQLite data directory, database file and its
+// -wal and -shm files that exist and have any group or other permission
+// bit set. wardload creates them 0700 and 0600, but a directory made by
+// hand, or files from an earlier version, may be wider; the files hold
+// password hashes and live session tokens. It returns nil for
+// PostgreSQL, and on Windows, whose permission bits mean nothing here.
+func (o *storeOptions) looseModes() []looseMode {
+	if kind, err := o.kind(); err != nil || kind != "sqlite" || o.DataDir == "" || runtime.GOOS == "windows" {
+		return nil
+	}
+	var loose []looseMode
+	db := o.sqlitePath()
+	for _, p := range []string{o.DataDir, db, db + "-wal", db + "-shm"} {
+		fi, err := os.Stat(p)
+		if err != nil {
+			continue // not there yet: created private
+		}
+		if perm := fi.Mode().Perm(); perm&0o077 != 0 {
+			loose = append(loose, looseMode{Path: p, Mode: perm, IsDir: fi.IsDir()})
+		}
+	}
+	return loose
+}
 
 // openStore opens the selected database and, when migrate is set, applies
 // pending migrations. Errors are one line, fit to print after "wardload: ".
