@@ -59,10 +59,10 @@ func (s *Store) FindAudit(ctx context.Context, f wardload.AuditFilter) ([]*wardl
 	}
 	cond := strings.Join(where, " AND ")
 	var total int
-	if err := s.r.QueryRowContext(ctx, `SELECT COUNT(*) FROM audit_log WHERE `+cond, args...).Scan(&total); err != nil {
+	if err := s.reader(ctx).QueryRowContext(ctx, `SELECT COUNT(*) FROM audit_log WHERE `+cond, args...).Scan(&total); err != nil {
 		return nil, 0, err
 	}
-	rows, err := s.r.QueryContext(ctx, page(`SELECT id, at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json
+	rows, err := s.reader(ctx).QueryContext(ctx, page(`SELECT id, at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json
 		FROM audit_log WHERE `+cond+` ORDER BY at DESC, id DESC`, f.Offset, f.Limit), args...)
 	if err != nil {
 		return nil, 0, err

@@ -67,13 +67,13 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.
 func (s *Store) FindCensusByID(ctx context.Context, id int64) (*wardload.Census, error) {
-	return findOneCensus(ctx, s.r, id)
+	return findOneCensus(ctx, s.reader(ctx), id)
 }
 
 // FindCensus returns matches by date descending, shift start, revision
 // descending (then ID, for ties across wards), and the total.
 func (s *Store) FindCensus(ctx context.Context, f wardload.CensusFilter) ([]*wardload.Census, int, error) {
-	return findCensus(ctx, s.r, f, 0)
+	return findCensus(ctx, s.reader(ctx), f, 0)
 }
 
 func findOneCensus(ctx context.Context, q querier, id int64) (*wardload.Census, error) {

@@ -132,12 +132,12 @@ func newBatchID() (string, error) {
 
 // FindObservationByID returns ENOTFOUND if there is no such observation.
 func (s *Store) FindObservationByID(ctx context.Context, id int64) (*wardload.Observation, error) {
-	return findObservation(ctx, s.r, id)
+	return findObservation(ctx, s.reader(ctx), id)
 }
 
 // FindObservations returns matches by date, then ID, and the total.
 func (s *Store) FindObservations(ctx context.Context, f wardload.ObservationFilter) ([]*wardload.Observation, int, error) {
-	return findObservations(ctx, s.r, f, 0)
+	return findObservations(ctx, s.reader(ctx), f, 0)
 }
 
 // ExcludeObservation marks an observation as excluded; it never deletes.

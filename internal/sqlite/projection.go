@@ -84,13 +84,13 @@ func nullInt(v *int) any {
 
 // FindProjectionByID returns ENOTFOUND if there is no such projection.
 func (s *Store) FindProjectionByID(ctx context.Context, id int64) (*wardload.Projection, error) {
-	return findOneProjection(ctx, s.r, id)
+	return findOneProjection(ctx, s.reader(ctx), id)
 }
 
 // FindProjections returns matches newest first (date, shift start and
 // census revision descending, then ID descending) and the total.
 func (s *Store) FindProjections(ctx context.Context, f wardload.ProjectionFilter) ([]*wardload.Projection, int, error) {
-	return findProjections(ctx, s.r, f, 0)
+	return findProjections(ctx, s.reader(ctx), f, 0)
 }
 
 func findOneProjection(ctx context.Context, q querier, id int64) (*wardload.Projection, error) {
@@ -206,7 +206,7 @@ func scanProjection(r scanner) (*wardload.Projection, error) {
 // newest first, with their projections' IDs and recommendations, in one
 // query.
 func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload.Date, shiftID int64) ([]*wardload.ShiftRevision, error) {
-	rows, err := s.r.QueryContext(ctx, `SELECT c.id, c.revision, c.entered_at,
+	rows, err := s.reader(ctx).QueryContext(ctx, `SELECT c.id, c.revision, c.entered_at,
 			COALESCE((SELECT SUM(n.patients) FROM census_counts n WHERE n.census_id = c.id), 0),
 			COALESCE(p.id, 0), COALESCE(p.recommended, 0)
 		FROM census c LEFT JOIN projections p ON p.census_id = c.id

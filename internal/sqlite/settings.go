@@ -10,7 +10,7 @@ import (
 
 // FindSettings returns the ward's saved settings or its defaults.
 func (s *Store) FindSettings(ctx context.Context, wardID int64) (*wardload.Settings, error) {
-	return findSettings(ctx, s.r, wardID)
+	return findSettings(ctx, s.reader(ctx), wardID)
 }
 
 func findSettings(ctx context.Context, q querier, wardID int64) (*wardload.Settings, error) {

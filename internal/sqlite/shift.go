@@ -31,13 +31,13 @@ func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern
 
 // FindShiftPatternByID returns ENOTFOUND if there is no such pattern.
 func (s *Store) FindShiftPatternByID(ctx context.Context, id int64) (*wardload.ShiftPattern, error) {
-	return findShift(ctx, s.r, id)
+	return findShift(ctx, s.reader(ctx), id)
 }
 
 // FindShiftPatterns returns the ward's patterns by start time (then name,
 // so that two shifts starting together have a stable order).
 func (s *Store) FindShiftPatterns(ctx context.Context, wardID int64) ([]*wardload.ShiftPattern, error) {
-	rows, err := s.r.QueryContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = ? ORDER BY start_minute, name`, wardID)
+	rows, err := s.reader(ctx).QueryContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = ? ORDER BY start_minute, name`, wardID)
 	if err != nil {
 		return nil, err
 	}

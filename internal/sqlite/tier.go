@@ -31,12 +31,12 @@ func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
 
 // FindTierByID returns ENOTFOUND if there is no such tier.
 func (s *Store) FindTierByID(ctx context.Context, id int64) (*wardload.Tier, error) {
-	return findTier(ctx, s.r, id)
+	return findTier(ctx, s.reader(ctx), id)
 }
 
 // FindTiers returns the ward's tiers by display order, then code.
 func (s *Store) FindTiers(ctx context.Context, wardID int64) ([]*wardload.Tier, error) {
-	rows, err := s.r.QueryContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = ? ORDER BY display_order, code`, wardID)
+	rows, err := s.reader(ctx).QueryContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = ? ORDER BY display_order, code`, wardID)
 	if err != nil {
 		return nil, err
 	}

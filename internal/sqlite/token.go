@@ -54,20 +54,20 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 
 // FindTokenByHash returns the token with that hash, revoked or not.
 func (s *Store) FindTokenByHash(ctx context.Context, hash string) (*wardload.APIToken, error) {
-	return findToken(ctx, s.r, "hash = ?", hash)
+	return findToken(ctx, s.reader(ctx), "hash = ?", hash)
 }
 
 // FindTokenByName returns ENOTFOUND if there is no such token.
 func (s *Store) FindTokenByName(ctx context.Context, name string) (*wardload.APIToken, error) {
-	return findToken(ctx, s.r, "name = ?", name)
+	return findToken(ctx, s.reader(ctx), "name = ?", name)
 }
 
 // FindTokens returns tokens by name; wardID 0 returns all.
 func (s *Store) FindTokens(ctx context.Context, wardID int64) ([]*wardload.APIToken, error) {
 	if wardID == 0 {
-		return findTokens(ctx, s.r, "1 = 1")
+		return findTokens(ctx, s.reader(ctx), "1 = 1")
 	}
-	return findTokens(ctx, s.r, "id IN (SELECT token_id FROM token_wards WHERE ward_id = ?)", wardID)
+	return findTokens(ctx, s.reader(ctx), "id IN (SELECT token_id FROM token_wards WHERE ward_id = ?)", wardID)
 }
 
 // RevokeToken sets RevokedAt.

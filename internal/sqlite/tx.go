@@ -26,9 +26,48 @@ type Tx struct {
 	now time.Time
 }
 
+// outerTx is the transaction Atomically puts in the context, with the
+// store it belongs to.
+type outerTx struct {
+	s  *Store
+	tx *sql.Tx
+}
+
+type outerTxKey struct{}
+
+// Atomically runs fn in one write transaction: every change fn makes
+// through s with the context it is given (and that context's
+// descendants) commits when fn returns nil, and none of it is kept when
+// fn returns an error or panics. It returns fn's error, or the commit's.
+//
+// Each store method inside keeps its own all-or-nothing behaviour (a
+// savepoint), so a method that fails leaves nothing of its own even if fn
+// goes on. Reads on the read pool (the Find methods) do not see the
+// uncommitted changes, and other writers wait until fn returns: keep fn
+// to a batch of writes such as the demo seed (internal/demo uses it when
+// the store offers it). A nested call runs fn in the outer transaction.
+func (s *Store) Atomically(ctx context.Context, fn func(ctx context.Context) error) error {
+	if o, ok := ctx.Value(outerTxKey{}).(outerTx); ok && o.s == s {
+		return fn(ctx)
+	}
+	stx, err := s.w.BeginTx(ctx, nil)
+	if err != nil {
+		return formatError(err)
+	}
+	defer stx.Rollback()
+	if err := fn(context.WithValue(ctx, outerTxKey{}, outerTx{s: s, tx: stx})); err != nil {
+		return err
+	}
+	return formatError(stx.Commit())
+}
+
 // write runs fn in a write transaction and commits if it returns nil.
-// Errors from fn and the driver pass through formatError.
+// Errors from fn and the driver pass through formatError. Inside
+// Atomically, fn runs in the outer transaction under a savepoint instead.
 func (s *Store) write(ctx context.Context, fn func(tx *Tx) error) error {
+	if o, ok := ctx.Value(outerTxKey{}).(outerTx); ok && o.s == s {
+		return s.writeNested(ctx, o.tx, fn)
+	}
 	stx, err := s.w.BeginTx(ctx, nil)
 	if err != nil {
 		return formatError(err)
@@ -39,6 +78,25 @@ func (s *Store) write(ctx context.Context, fn func(tx *Tx) error) error {
 		return formatError(err)
 	}
 	return formatError(stx.Commit())
+}
+
+// writeNested runs fn in stx under a savepoint, released if fn returns
+// nil and rolled back to otherwise, so that a failing method leaves
+// nothing in the outer transaction.
+func (s *Store) writeNested(ctx context.Context, stx *sql.Tx, fn func(tx *Tx) error) error {
+	if _, err := stx.ExecContext(ctx, `SAVEPOINT store_write`); err != nil {
+		return formatError(err)
+	}
+	tx := &Tx{Tx: stx, ctx: ctx, now: s.now().UTC()}
+	if err := fn(tx); err != nil {
+		// The outer transaction is rolled back by Atomically if this
+		// fails too, so only fn's error matters.
+		stx.ExecContext(ctx, `ROLLBACK TO store_write`)
+		stx.ExecContext(ctx, `RELEASE store_write`)
+		return formatError(err)
+	}
+	_, err := stx.ExecContext(ctx, `RELEASE store_write`)
+	return formatError(err)
 }
 
 // audit appends an audit row in tx for the actor in the context. before
@@ -133,4 +191,13 @@ func boolInt(b bool) int {
 		return 1
 	}
 	return 0
+}
+
+// reader is where a finder reads: the read pool, or inside Atomically the
+// outer transaction, so that a batch sees its own uncommitted writes.
+func (s *Store) reader(ctx context.Context) querier {
+	if o, ok := ctx.Value(outerTxKey{}).(outerTx); ok && o.s == s {
+		return o.tx
+	}
+	return s.r
 }

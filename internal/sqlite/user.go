@@ -76,17 +76,17 @@ func setMemberships(ctx context.Context, tx *Tx, table, column string, id int64,
 
 // FindUserByID returns ENOTFOUND if there is no such user.
 func (s *Store) FindUserByID(ctx context.Context, id int64) (*wardload.User, error) {
-	return findUser(ctx, s.r, wardload.UserFilter{ID: &id})
+	return findUser(ctx, s.reader(ctx), wardload.UserFilter{ID: &id})
 }
 
 // FindUserByName returns ENOTFOUND if there is no such user.
 func (s *Store) FindUserByName(ctx context.Context, name string) (*wardload.User, error) {
-	return findUser(ctx, s.r, wardload.UserFilter{Name: &name})
+	return findUser(ctx, s.reader(ctx), wardload.UserFilter{Name: &name})
 }
 
 // FindUsers returns matches ordered by name and the total.
 func (s *Store) FindUsers(ctx context.Context, f wardload.UserFilter) ([]*wardload.User, int, error) {
-	return findUsers(ctx, s.r, f)
+	return findUsers(ctx, s.reader(ctx), f)
 }
 
 // UpdateUser applies upd in one transaction.

@@ -46,12 +46,12 @@ func replaceFactors(ctx context.Context, tx *Tx, wardID int64, names []string) e
 
 // FindWardByID returns ENOTFOUND if there is no such ward.
 func (s *Store) FindWardByID(ctx context.Context, id int64) (*wardload.Ward, error) {
-	return findWard(ctx, s.r, id)
+	return findWard(ctx, s.reader(ctx), id)
 }
 
 // FindWardByCode returns ENOTFOUND if there is no such ward.
 func (s *Store) FindWardByCode(ctx context.Context, code string) (*wardload.Ward, error) {
-	ws, _, err := findWards(ctx, s.r, wardload.WardFilter{Code: &code})
+	ws, _, err := findWards(ctx, s.reader(ctx), wardload.WardFilter{Code: &code})
 	if err != nil {
 		return nil, err
 	}
@@ -63,7 +63,7 @@ func (s *Store) FindWardByCode(ctx context.Context, code string) (*wardload.Ward
 
 // FindWards returns matching wards ordered by code and the total count.
 func (s *Store) FindWards(ctx context.Context, f wardload.WardFilter) ([]*wardload.Ward, int, error) {
-	return findWards(ctx, s.r, f)
+	return findWards(ctx, s.reader(ctx), f)
 }
 
 // UpdateWard applies upd in one transaction.
