@@ -36,12 +36,25 @@ type Result struct {
 	Accounts []Account
 }
 
+// Atomic is a store that can run several of its methods as one
+// transaction: every change fn makes with the context it is given commits
+// together, or none is kept if fn returns an error. internal/sqlite's
+// Store offers it.
+type Atomic interface {
+	Atomically(ctx context.Context, fn func(ctx context.Context) error) error
+}
+
 // Seed seeds the demo scenario once: if the demo ward already exists it
 // returns Created=false and no passwords. Observations and census end on
 // the ward's calendar day before now. Writes are audited as actor "demo".
 //
-// Seeding is not one transaction (the store has none spanning services);
-// if it fails half-way, delete the database and start again.
+// On a store that implements Atomic (SQLite) the whole seed is one
+// transaction: if any step fails nothing is kept, not even audit rows,
+// so no account exists whose password was never shown and the next start
+// seeds again. On other stores (PostgreSQL, whose store offers no
+// transaction spanning its methods) a failure half-way leaves what was
+// created, and the next start finds the ward and reports it as present;
+// drop the demo database and start again.
 func Seed(ctx context.Context, st wardload.Store, now time.Time) (*Result, error) {
 	existing, err := st.FindWardByCode(ctx, WardCode)
 	if err == nil {
@@ -52,6 +65,20 @@ func Seed(ctx context.Context, st wardload.Store, now time.Time) (*Result, error
 
 	ctx = wardload.WithActor(ctx, wardload.Actor{Name: "demo"})
 	s := &seeder{st: st, rng: rand.New(rand.NewPCG(seedA, seedB))}
+	seed := func(ctx context.Context) error { return s.seed(ctx, now) }
+	if a, ok := st.(Atomic); ok {
+		err = a.Atomically(ctx, seed)
+	} else {
+		err = seed(ctx)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("demo: %w", err)
+	}
+	return &Result{Created: true, Ward: s.ward, Accounts: s.accounts}, nil
+}
+
+// seed runs every step of Seed in order, stopping at the first error.
+func (s *seeder) seed(ctx context.Context, now time.Time) error {
 	steps := []func(context.Context) error{
 		s.createWard,
 		s.createTiers,
@@ -61,21 +88,18 @@ func Seed(ctx context.Context, st wardload.Store, now time.Time) (*Result, error
 	}
 	for _, step := range steps {
 		if err := step(ctx); err != nil {
-			return nil, fmt.Errorf("demo: %w", err)
+			return err
 		}
 	}
 	loc, err := s.ward.Location()
 	if err != nil {
-		return nil, fmt.Errorf("demo: %w", err)
+		return err
 	}
 	first, last := period(now, loc)
 	if err := s.createObservations(ctx, first, last, loc); err != nil {
-		return nil, fmt.Errorf("demo: %w", err)
+		return err
 	}
-	if err := s.createCensus(ctx, first, last); err != nil {
-		return nil, fmt.Errorf("demo: %w", err)
-	}
-	return &Result{Created: true, Ward: s.ward, Accounts: s.accounts}, nil
+	return s.createCensus(ctx, first, last)
 }
 
 // seeder carries what the steps of Seed create for the steps after them.
