@@ -26,6 +26,23 @@ type CensusVM struct {
 	Latest       *LatestCensusVM // nil when the shift has no census yet
 	NextRevision int
 
+	// Choices are the large shift choices at a change-over: the shift
+	// about to start first, the one running second (empty when there is
+	// only one likely shift).
+	Choices []ShiftChoiceVM
+	// The dated shift a save stores, for the sentence near Save: "Saving
+	// stores the census for Day shift on Fri 4 Dec 2026 (07:30–20:00)".
+	SaveShift string
+	SaveDate  string
+	SaveTimes string
+	// Ended is set when that shift has ended (EndedAt, e.g. "Fri 4 Dec
+	// 08:00"); ConfirmEnded when a save of it was posted without
+	// confirmation: the page asks, and the form then carries the
+	// confirmation.
+	Ended        bool
+	EndedAt      string
+	ConfirmEnded bool
+
 	// Errors lists every problem at the top of the page, each linking to
 	// its field; DateError and ShiftError are shown beside those fields.
 	Errors     []FormErrorVM
@@ -41,6 +58,14 @@ type CensusVM struct {
 type ShiftOptionVM struct {
 	ID       string
 	Label    string
+	Selected bool
+}
+
+// ShiftChoiceVM is one large choice of a dated shift, e.g. "Day shift,
+// Fri 4 Dec 07:30–20:00 (starts in 20 min)"; URL opens the census of it.
+type ShiftChoiceVM struct {
+	Label    string
+	URL      string
 	Selected bool
 }
 

@@ -41,9 +41,11 @@ func projectionURL(ward *wardload.Ward, id int64) string {
 }
 
 // handleCensusForm shows the census form. Without query parameters it
-// preselects the shift running now in the ward's time zone (or the next
-// one); ?date=&shift= chooses another dated shift. The counts start from
-// the newest census of the chosen shift, if there is one.
+// preselects the first of projector.ShiftChoices in the ward's time zone:
+// within projector.ChangeoverWindow of a shift's start, that shift, offered
+// with the running one as two large choices; otherwise the shift running
+// now (or the next one). ?date=&shift= chooses another dated shift. The
+// counts start from the newest census of the chosen shift, if there is one.
 func (s *Server) handleCensusForm(w http.ResponseWriter, r *http.Request) error {
 	d, err := s.loadCensusData(r)
 	if err != nil {
@@ -51,19 +53,24 @@ func (s *Server) handleCensusForm(w http.ResponseWriter, r *http.Request) error 
 	}
 	q := r.URL.Query()
 	date, shift := q.Get("date"), q.Get("shift")
-	if date == "" && shift == "" && len(d.shifts) > 0 {
-		cd, cs, err := projector.CurrentShift(d.ward, d.shifts, s.now())
-		if err != nil {
+	var choices []projector.Choice
+	if len(d.shifts) > 0 {
+		if choices, err = projector.ShiftChoices(d.ward, d.shifts, s.now()); err != nil {
 			return err
 		}
-		// The current shift can be the next one to start, which may lie
+	}
+	if date == "" && shift == "" && len(choices) > 0 {
+		// The first choice can be the next shift to start, which may lie
 		// beyond the window in an odd configuration; the chooser then
 		// shows the problem like any other.
-		date, shift = cd.String(), strconv.FormatInt(cs.ID, 10)
+		date, shift = choices[0].Date.String(), strconv.FormatInt(choices[0].Shift.ID, 10)
 	}
 	vm, err := s.censusVM(r, d, date, shift, nil, nil)
 	if err != nil {
 		return err
+	}
+	if len(choices) > 1 {
+		vm.Choices = shiftChoicesVM(d.ward, choices, s.now(), date, shift)
 	}
 	status := http.StatusOK
 	if len(vm.Errors) > 0 {
@@ -75,7 +82,10 @@ func (s *Server) handleCensusForm(w http.ResponseWriter, r *http.Request) error 
 // handleCensusCreate stores a census with its projection and shows the
 // projection. Any problem re-renders the form with what was typed, status
 // 400, and nothing is stored: parseCensusForm checks the fields,
-// projector.Save the rest (date window, beds, enough observations).
+// projector.Save the rest (date window, beds, enough observations). A
+// census for a dated shift that has ended needs confirm_ended=1: without
+// it the form comes back with status 409 and a question whose button
+// posts the same values with the confirmation.
 func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) error {
 	if err := r.ParseForm(); err != nil {
 		return formError(err)
@@ -86,12 +96,13 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	}
 	form := r.PostForm
 	date, shift := strings.TrimSpace(form.Get("date")), strings.TrimSpace(form.Get("shift"))
-	rerender := func(errs map[string]string) error {
+	rerender := func(status int, errs map[string]string) error {
 		vm, err := s.censusVM(r, d, date, shift, form, errs)
 		if err != nil {
 			return err
 		}
-		return s.render(w, r, http.StatusBadRequest, web.CensusPage(s.layout(r, "Census"), vm))
+		vm.ConfirmEnded = status == http.StatusConflict
+		return s.render(w, r, status, web.CensusPage(s.layout(r, "Census"), vm))
 	}
 	day, shiftID, errs := parseShiftChoice(d, date, shift)
 	counts, countErrs := parseCensusForm(form, d.tiers)
@@ -99,11 +110,16 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 		errs[k] = v
 	}
 	if len(errs) > 0 {
-		return rerender(errs)
+		return rerender(http.StatusBadRequest, errs)
+	}
+	// A census for a shift that has ended is most likely a slip at the
+	// change-over: ask once, keeping what was typed.
+	if form.Get(confirmEndedField) != "1" && shiftEnded(d, day, shiftID, s.now()) {
+		return rerender(http.StatusConflict, map[string]string{})
 	}
 	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts)
 	if wardload.ErrorCode(err) == wardload.EINVALID {
-		return rerender(map[string]string{censusErrorField(d, wardload.ErrorField(err)): wardload.ErrorMessage(err)})
+		return rerender(http.StatusBadRequest, map[string]string{censusErrorField(d, wardload.ErrorField(err)): wardload.ErrorMessage(err)})
 	} else if err != nil {
 		return fmt.Errorf("census create: %w", err)
 	}
@@ -200,6 +216,7 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		return vm, nil
 	}
 	vm.ShiftLabel = shiftLabel(chosen)
+	saveTarget(&vm, d.ward, chosen, date, s.now())
 	latest, err := s.latestCensus(r, d, date, chosen.ID)
 	if err != nil {
 		return vm, err

@@ -20,7 +20,9 @@ import (
 // stored projection.
 func (f *censusFixture) mustProject(tb testing.TB, p string, cw *censusWard, date string, shift *wardload.ShiftPattern, counts ...int) *wardload.Projection {
 	tb.Helper()
-	form := map[string][]string{"date": {date}, "shift": {strconv.FormatInt(shift.ID, 10)}}
+	// confirm_ended: several callers post shifts that ended before the
+	// fixture's clock; the question itself is tested in census_shift_test.go.
+	form := map[string][]string{"date": {date}, "shift": {strconv.FormatInt(shift.ID, 10)}, "confirm_ended": {"1"}}
 	for i, t := range cw.tiers {
 		form["tier_"+t.Code] = []string{strconv.Itoa(counts[i])}
 	}
