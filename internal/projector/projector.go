@@ -228,7 +228,7 @@ func (s *Service) checkDate(date wardload.Date, loc *time.Location) error {
 
 // deref reads a headcount that may be absent (a declined projection
 // without a floor): the stored column holds 0, and DecidedBy says
-// wardload.DecidedInsufficient, so readers know it is no recommendation.
+// stats.DecidedByInsufficient, so readers know it is no recommendation.
 func deref(n *int) int {
 	if n == nil {
 		return 0

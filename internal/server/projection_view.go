@@ -199,16 +199,21 @@ func trendText(t stats.Trend) string {
 // projection also drops the note that a recommendation rests on care time
 // alone, which is not so: it rests on the floor, or there is none.
 func pageWarnings(res *stats.Projection) []string {
+	shown := map[string]bool{stats.WarnDeclinedFloor: true, stats.WarnDeclinedNoFloor: true}
+	if !res.DataSufficient {
+		shown[stats.WarnNoFloor] = true
+	}
+	if res.Calibration != nil {
+		shown[res.Calibration.Sentence(res.CoverLevel)] = true
+	}
+	for _, h := range res.HeldOut {
+		shown[stats.HeldOutWarning(h)] = true
+	}
 	var out []string
 	for _, w := range res.Warnings {
-		switch {
-		case res.Calibration != nil && w == res.Calibration.Sentence(res.CoverLevel),
-			strings.Contains(w, "set aside as a likely entry error"),
-			strings.HasPrefix(w, "Too few observations to estimate care time"),
-			!res.DataSufficient && strings.HasPrefix(w, "No ratio floor was configured"):
-			continue
+		if !shown[w] {
+			out = append(out, w)
 		}
-		out = append(out, w)
 	}
 	return out
 }

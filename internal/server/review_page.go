@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"net/http"
-	"slices"
 	"strconv"
 	"time"
 
@@ -312,10 +311,11 @@ func (s *Server) calibrationVM(r *http.Request, ward *wardload.Ward, today wardl
 		}
 		return out
 	}
-	vm.Rows = append(vm.Rows, web.CalibrationRowVM{Name: "Expected", Checked: "", Observed: slices.Clone(vm.Levels)})
-	for i := range vm.Rows[0].Observed {
-		vm.Rows[0].Observed[i] = wholePercent(res.Levels[i])
+	expected := web.CalibrationRowVM{Name: "Expected"}
+	for _, l := range res.Levels {
+		expected.Observed = append(expected.Observed, wholePercent(l))
 	}
+	vm.Rows = append(vm.Rows, expected)
 	totals := row("Shift totals", res.Totals)
 	if res.Totals.Checked == 0 {
 		totals.Name = "Shift totals (no shift had every patient timed)"

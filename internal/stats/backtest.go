@@ -2,7 +2,7 @@ package stats
 
 import (
 	"cmp"
-	"fmt"
+	"maps"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -149,7 +149,7 @@ func Backtest(obs []BacktestObservation, o BacktestOptions) (*BacktestResult, er
 		wStart := first.AddDate(0, 0, 7*w)
 		wEnd := wStart.AddDate(0, 0, 7)
 		hStart := wStart.AddDate(0, 0, -7*o.LookbackWeeks)
-		for _, pattern := range slices.Sorted(mapKeys(patterns)) {
+		for _, pattern := range slices.Sorted(maps.Keys(patterns)) {
 			train := map[string]*fitInput{}
 			occ := map[string][]int{}
 			for i, x := range obs {
@@ -184,7 +184,7 @@ func Backtest(obs []BacktestObservation, o BacktestOptions) (*BacktestResult, er
 				base = append(base, in)
 			}
 			f0 := fitCare(base, wStart.Format(time.DateOnly))
-			for _, date := range slices.Sorted(mapKeys(occ)) {
+			for _, date := range slices.Sorted(maps.Keys(occ)) {
 				idx := occ[date]
 				counts := map[string]int{}
 				for _, i := range idx {
@@ -299,21 +299,6 @@ func totalPIT(f *careFit, r *rand.Rand, y float64, draws int) float64 {
 		}
 	}
 	return (float64(below) + float64(ties)/2) / float64(draws)
-}
-
-func mapKeys[V any](m map[string]V) func(func(string) bool) {
-	return func(yield func(string) bool) {
-		for k := range m {
-			if !yield(k) {
-				return
-			}
-		}
-	}
-}
-
-// String says the backtest's first lines, for logs.
-func (b *BacktestResult) String() string {
-	return fmt.Sprintf("backtest %s to %s: %d shift totals, %d skipped", b.From, b.To, b.Totals.Checked, b.Skipped)
 }
 
 // at returns a copy of f for a projected date days later than the one it

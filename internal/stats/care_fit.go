@@ -9,7 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// The care model of version 2 (see FitCare). Its tuning constants were
+// The care model of version 2 (see fitCare). Its tuning constants were
 // chosen with the simulation battery in internal/simstudy (bench/calibration
 // prints its table); each says why.
 const (
@@ -100,14 +100,14 @@ type careFit struct {
 	beta    float64 // common slope per day on the log scale
 	betaSE  float64
 	betaDF  float64
-	trendP  float64 // 1 when the projection follows the trend, else 0 (fitTrend)
-	trendNo string  // why no trend was estimated
+	follow  bool   // the projection follows the trend (fitTrend)
+	trendNo string // why no trend was estimated
 
 	effect   bool
 	tau2     float64 // shift-level log variance (may be below 0 before truncation)
 	tau2SE   float64
-	tau2P    float64 // 1 when the projection draws the shift-level effect, else 0 (fitEffect)
-	groups   int     // shift occurrences with two or more observations
+	draw     bool // the projection draws the shift-level effect (fitEffect)
+	groups   int  // shift occurrences with two or more observations
 	effectNo string
 
 	fwFrom int // see fwFrom in predictive.go
@@ -231,7 +231,7 @@ func fitCare(tiers []fitInput, target string) *careFit {
 	f.fitTrend(dated)
 	res := f.residuals()
 	f.fitEffect(res, len(groupID))
-	f.fitSpread(res)
+	f.fitSpread()
 	return f
 }
 
@@ -264,7 +264,7 @@ func (f *careFit) fitTrend(dated bool) {
 	// +1.0 against +0.6 to +0.7), while drift was covered either way
 	// (true shortfall 0.064 averaged, 0.077 tested).
 	if crit := (distuv.StudentsT{Mu: 0, Sigma: 1, Nu: f.betaDF}).Quantile(0.975); math.Abs(f.beta/f.betaSE) > crit {
-		f.trendP = 1
+		f.follow = true
 	}
 }
 
@@ -353,7 +353,7 @@ func (f *careFit) fitEffect(res [][]float64, groups int) {
 	// (census-100: +0.80 against +0.55 tested), with the shift-effect
 	// scenario covered either way (true shortfall 0.091 and 0.096).
 	if f.tau2 > 1.959963984540054*f.tau2SE {
-		f.tau2P = 1
+		f.draw = true
 	}
 }
 
@@ -371,14 +371,10 @@ func (f *careFit) fitEffect(res [][]float64, groups int) {
 // much variance again as it has (found by the battery, census-100). The
 // shift-level part τ̂² is taken out (at most three quarters of v_k), then
 // v_k is shrunk towards the pool.
-func (f *careFit) fitSpread(res [][]float64) {
-	_ = res
-	tau2 := 0.0
-	if f.effect && f.tau2P == 1 {
-		// Only a shift-level part the projection draws is taken out of
-		// the patients' spread; otherwise that variance would be lost.
-		tau2 = max(0, f.tau2)
-	}
+func (f *careFit) fitSpread() {
+	// Only a shift-level part the projection draws is taken out of the
+	// patients' spread; otherwise that variance would be lost.
+	tau2 := f.tau2Used()
 	kurt := excessKurtosis(f.tiers)
 	var poolSS, poolDF float64
 	for k := range f.tiers {
@@ -442,6 +438,24 @@ func excessKurtosis(tiers []careTier) float64 {
 		return 0
 	}
 	return max(0, s4/s22-3)
+}
+
+// slopeUsed is the slope the projection extrapolates: β̂ when it follows
+// the trend, else 0.
+func (f *careFit) slopeUsed() float64 {
+	if f.follow {
+		return f.beta
+	}
+	return 0
+}
+
+// tau2Used is the shift-level log variance the projection draws around:
+// max(0, τ̂²) when it draws the effect, else 0.
+func (f *careFit) tau2Used() float64 {
+	if f.draw {
+		return max(0, f.tau2)
+	}
+	return 0
 }
 
 // avg is the arithmetic mean of a non-empty x.

@@ -69,10 +69,10 @@ func simulateTotals(f *careFit, draws int, seed uint64) []float64 {
 // drawParams draws β, τ² and the shared mean error U.
 func (f *careFit) drawParams(r *rand.Rand) paramDraw {
 	var p paramDraw
-	if f.trend && f.trendP == 1 {
+	if f.follow {
 		p.beta = f.beta + f.betaSE*studentT(r, f.betaDF)
 	}
-	if f.effect && f.tau2P == 1 {
+	if f.draw {
 		// Scaled inverse χ² with Satterthwaite's (1946, Biometrics
 		// Bulletin 2(6)) degrees of freedom ν = 2·τ̂⁴ / se(τ̂²)²: centred
 		// on τ̂², right-skewed like a variance estimate, and 0 when the
@@ -163,15 +163,15 @@ func gammaDraw(r *rand.Rand, shape float64) float64 {
 }
 
 // plugInMean is E[total] at the point estimates, Σ_k n_k·(e^{L̂_k} − c_k)
-// with L̂_k = ln(ȳ_k + c_k) − w·β̂·t̄_k: the tier means, moved to the
-// projected date by the averaged trend.
+// with L̂_k = ln(ȳ_k + c_k) − β̂·t̄_k (β̂ only where the trend is
+// followed): the tier means, moved to the projected date.
 func (f *careFit) plugInMean() float64 {
 	total := 0.0
 	for _, t := range f.tiers {
 		if t.patients == 0 {
 			continue
 		}
-		level := t.level - f.trendP*f.beta*t.tbar // the models averaged, as in the draws
+		level := t.level - f.slopeUsed()*t.tbar
 		total += float64(t.patients) * max(0, math.Exp(level)-t.offset)
 	}
 	return total

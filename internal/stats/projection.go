@@ -181,7 +181,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 			". Heavy shifts where every patient needs more care at once are not in the band.")
 	}
 	p.Trend = trendOf(f.trend, f.beta, f.betaSE, f.betaDF, f.trendNo)
-	p.Trend.Followed = f.trend && f.trendP == 1
+	p.Trend.Followed = f.follow
 	p.Tiers = make([]TierFit, len(in.Tiers))
 	for k, t := range f.tiers {
 		tf := TierFit{Code: t.code, Patients: t.patients, Observations: len(fits[k].minutes),
@@ -191,7 +191,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 			tf.MedianMinutes = Defined(medianOf(fits[k].minutes))
 		}
 		if len(t.z) >= 2 {
-			tf.LogLocation = Defined(t.level - f.trendP*f.beta*t.tbar - (t.sigma2+f.tau2P*max(0, f.tau2))/2)
+			tf.LogLocation = Defined(t.level - f.slopeUsed()*t.tbar - (t.sigma2+f.tau2Used())/2)
 			tf.LogSD = Defined(math.Sqrt(t.sigma2))
 		}
 		if t.patients > 0 {
@@ -214,9 +214,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 		p.Tiers[k] = tf
 	}
 	for _, h := range f.held {
-		p.Warnings = append(p.Warnings, fmt.Sprintf(
-			"An observation of %g minutes in tier %s%s lies far %s the tier's other values (beyond the log-scale outer fence) and was set aside as a likely entry error; review it.",
-			h.CareMinutes, h.Tier, onDate(h.Date), map[string]string{"above": "above", "below": "below"}[h.Side]))
+		p.Warnings = append(p.Warnings, HeldOutWarning(h))
 	}
 	if scaled > 0 {
 		p.Warnings = append(p.Warnings, fmt.Sprintf(
@@ -239,7 +237,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 	}
 	p.Nurses.InCharge = inCharge
 	if in.Floor == nil {
-		p.Warnings = append(p.Warnings, "No ratio floor was configured: the recommendation rests on care time alone; check the minimum staffing that applies to this ward.")
+		p.Warnings = append(p.Warnings, WarnNoFloor)
 	} else {
 		p.Floor = ratioFloor(in.Floor, in.Tiers, &p.Warnings)
 		floor := p.Floor.Nurses
@@ -250,9 +248,9 @@ func Project(in ProjectionInput) (*Projection, error) {
 		p.Nurses.DecidedBy = DecidedByInsufficient
 		p.Nurses.Recommended = p.Nurses.Floor
 		if p.Nurses.Floor != nil {
-			p.Warnings = append(p.Warnings, "Too few observations to estimate care time: the recommendation is the ratio floor alone, and no shortfall chance is shown.")
+			p.Warnings = append(p.Warnings, WarnDeclinedFloor)
 		} else {
-			p.Warnings = append(p.Warnings, "Too few observations to estimate care time and no ratio floor configured: there is no recommendation.")
+			p.Warnings = append(p.Warnings, WarnDeclinedNoFloor)
 		}
 		return p, nil
 	}
@@ -277,7 +275,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 	n := &p.Nurses
 	expU, covU := p.ExpectedMinutes.Value/perNurse, sim.Cover/perNurse
 	if !(expU <= MaxNurses) || !(covU <= MaxNurses) {
-		return nil, fieldError("direct_care_fraction",
+		return nil, wardload.FieldErrorf(wardload.EINVALID, "direct_care_fraction",
 			"The care time would need more than %d nurses at a direct-care fraction of %g; check the direct-care fraction and the observations.", MaxNurses, in.DirectCareFraction)
 	}
 	n.ExpectedUnrounded, n.CoverUnrounded = Defined(expU), Defined(covU)
@@ -321,15 +319,23 @@ func Project(in ProjectionInput) (*Projection, error) {
 	return p, nil
 }
 
-func onDate(d string) string {
-	if d == "" {
-		return ""
-	}
-	return " on " + d
-}
+// Warnings that pages show in their own place (the headline, the list of
+// observations set aside) and so leave out of the list: named here, so a
+// page matches them exactly rather than by wording.
+const (
+	WarnNoFloor         = "No ratio floor was configured: the recommendation rests on care time alone; check the minimum staffing that applies to this ward."
+	WarnDeclinedFloor   = "Too few observations to estimate care time: the recommendation is the ratio floor alone, and no shortfall chance is shown."
+	WarnDeclinedNoFloor = "Too few observations to estimate care time and no ratio floor configured: there is no recommendation."
+)
 
-func fieldError(field, format string, args ...any) error {
-	return wardload.FieldErrorf(wardload.EINVALID, field, format, args...)
+// HeldOutWarning is the warning Project gives for an observation set aside.
+func HeldOutWarning(h HeldOut) string {
+	on := ""
+	if h.Date != "" {
+		on = " on " + h.Date
+	}
+	return fmt.Sprintf("An observation of %g minutes in tier %s%s lies far %s the tier's other values (beyond the log-scale outer fence) and was set aside as a likely entry error; review it.",
+		h.CareMinutes, h.Tier, on, h.Side)
 }
 
 // trendOf turns a log-scale slope per day into percent per 28 days with a
