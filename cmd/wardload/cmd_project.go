@@ -500,6 +500,13 @@ func writeProjection(out io.Writer, p *stats.Projection, date string) error {
 		}
 	}
 	fmt.Fprintf(out, "\nTrend: %s\n", trendText(p.Trend))
+	if p.Trend.Estimated {
+		if p.Trend.Followed {
+			fmt.Fprintln(out, "       The projection follows it to the projected shift.")
+		} else {
+			fmt.Fprintln(out, "       Not followed (not clear enough): the projection uses the lookback's level.")
+		}
+	}
 	fmt.Fprintf(out, "Shift-level effect: %s\n", shiftEffectText(p.ShiftEffect))
 	if p.DataSufficient {
 		s := p.Simulation

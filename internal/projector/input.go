@@ -58,12 +58,17 @@ func Seed(wardID int64, date wardload.Date, shiftID int64) uint64 {
 }
 
 // Recompute re-runs the workload model of p's method version on the stored
-// input of p and returns its result (a *stats.Projection, or a
-// *stats.ProjectionV1 for version 1), whose JSON equals p.Result byte for
-// byte. It returns EINVALID for a projection made by a method version this
-// build does not have, or with an unreadable input.
+// input of p and returns its result (a *stats.Projection for versions 2
+// and 3, a *stats.ProjectionV1 for version 1), whose JSON equals p.Result
+// byte for byte. It returns EINVALID for a projection made by a method
+// version this build does not have, or with an unreadable input.
 func Recompute(p *wardload.Projection) (any, error) {
-	if p.MethodVersion != stats.MethodVersion && p.MethodVersion != stats.MethodVersionV1 {
+	project := map[string]func(stats.ProjectionInput) (any, error){
+		stats.MethodVersion:   func(in stats.ProjectionInput) (any, error) { return stats.Project(in) },
+		stats.MethodVersionV2: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV2(in) },
+		stats.MethodVersionV1: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV1(in) },
+	}[p.MethodVersion]
+	if project == nil {
 		return nil, wardload.FieldErrorf(wardload.EINVALID, "method_version",
 			"This projection was made with method %s; this version of wardload has %s and cannot reproduce it exactly.",
 			p.MethodVersion, stats.MethodVersion)
@@ -72,8 +77,5 @@ func Recompute(p *wardload.Projection) (any, error) {
 	if err := json.Unmarshal([]byte(p.Input), &in); err != nil {
 		return nil, wardload.FieldErrorf(wardload.EINVALID, "input", "The stored input of projection %d cannot be read.", p.ID)
 	}
-	if p.MethodVersion == stats.MethodVersionV1 {
-		return stats.ProjectV1(in.Model)
-	}
-	return stats.Project(in.Model)
+	return project(in.Model)
 }

@@ -232,6 +232,23 @@ func TestSaveAndRecompute(t *testing.T) {
 	if n != 2 || all[0].ID != p2.ID || all[1].ID != p1.ID {
 		t.Errorf("history = %d projections, want revision 2 then 1", n)
 	}
+	// A projection stored under version 2 recomputes as version 2, not 3.
+	var in projector.Input
+	must(t, json.Unmarshal([]byte(stored.Input), &in))
+	v2, err := stats.ProjectV2(in.Model)
+	must(t, err)
+	b2, err := json.Marshal(v2)
+	must(t, err)
+	asV2 := *stored
+	asV2.MethodVersion, asV2.Result = stats.MethodVersionV2, string(b2)
+	if string(b2) == stored.Result {
+		t.Fatal("version 2 and 3 gave the same result here; the check below would prove nothing")
+	}
+	got, err := projector.Recompute(&asV2)
+	must(t, err)
+	if b, _ := json.Marshal(got); string(b) != asV2.Result {
+		t.Errorf("version 2 recomputed differs:\n%s\n%s", b, asV2.Result)
+	}
 	// A projection of another method version cannot be reproduced here.
 	old := *stored
 	old.MethodVersion = "wardload-model/0"

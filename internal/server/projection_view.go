@@ -76,6 +76,11 @@ func method2VM(vm *web.ProjectionVM, row *export.Row, p *wardload.Projection, re
 			". Heavy shifts where every patient needs more care at once are not in the band."
 	}
 	vm.Trend = "Trend of care time over the lookback, common to all tiers: " + trendText(res.Trend)
+	if res.Trend.Estimated && res.Trend.Followed {
+		vm.Trend += " The projection follows it to this shift."
+	} else if res.Trend.Estimated {
+		vm.Trend += " The projection does not follow it (not clear enough) and uses the lookback's level."
+	}
 
 	if vm.Declined {
 		return

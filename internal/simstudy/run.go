@@ -19,10 +19,18 @@ type Method struct {
 	Recommend func(in stats.ProjectionInput) (nurses int, ok bool, err error)
 }
 
-// After is version 2, stats.Project. It declines when the projection says
-// the data are insufficient or gives no recommendation.
-var After = Method{Name: "after (v2)", Recommend: func(in stats.ProjectionInput) (int, bool, error) {
-	p, err := stats.Project(in)
+// After is the current version (3), stats.Project. It declines when the
+// projection says the data are insufficient or gives no recommendation.
+var After = Method{Name: "v3 (after)", Recommend: func(in stats.ProjectionInput) (int, bool, error) {
+	return recommend(stats.Project(in))
+}}
+
+// Previous is version 2, stats.ProjectV2, judged the same way.
+var Previous = Method{Name: "v2 (previous)", Recommend: func(in stats.ProjectionInput) (int, bool, error) {
+	return recommend(stats.ProjectV2(in))
+}}
+
+func recommend(p *stats.Projection, err error) (int, bool, error) {
 	if err != nil {
 		return 0, false, err
 	}
@@ -30,12 +38,12 @@ var After = Method{Name: "after (v2)", Recommend: func(in stats.ProjectionInput)
 		return 0, false, nil
 	}
 	return *p.Nurses.Recommended, true, nil
-}}
+}
 
 // Before is version 1, stats.ProjectV1: it ignores dates and shifts and
 // never declines (it needs two observations per tier with patients, which
 // every scenario has).
-var Before = Method{Name: "before (v1)", Recommend: func(in stats.ProjectionInput) (int, bool, error) {
+var Before = Method{Name: "v1 (before)", Recommend: func(in stats.ProjectionInput) (int, bool, error) {
 	p, err := stats.ProjectV1(in)
 	if err != nil {
 		return 0, false, err

@@ -375,7 +375,7 @@ func rep2(v, n int) []int {
 }
 
 // The quick battery: every scenario, 50 replications of 4,000 draws each
-// against a truth of 100,000 draws. Version 2 must pass the rule of issue 8,
+// against a truth of 100,000 draws. Version 3 (After) must pass the rule of issue 8,
 // item 6 (Result.Failures): a mean fails only where its one-sided 99%
 // Student-t bound over the 50 replications is still beyond the limit, so
 // the test fails when the rule is broken by more than the Monte Carlo
@@ -394,7 +394,7 @@ func TestBattery(t *testing.T) {
 		}
 		rows = append(rows, Row{Scenario: s, Results: res})
 		if f := res[1].Failures(Cover, 0.99); len(f) > 0 {
-			t.Errorf("version 2, %s: %s", s.Name, strings.Join(f, "; "))
+			t.Errorf("version 3, %s: %s", s.Name, strings.Join(f, "; "))
 		}
 		if v1Breaks[s.Name] && len(res[0].Failures(Cover, 0.99)) == 0 {
 			short, _ := res[0].MeanShortfall()

@@ -183,7 +183,7 @@ func Backtest(obs []BacktestObservation, o BacktestOptions) (*BacktestResult, er
 				}
 				base = append(base, in)
 			}
-			f0 := fitCare(base, wStart.Format(time.DateOnly))
+			f0 := fitCare(base, wStart.Format(time.DateOnly), specV3)
 			for _, date := range slices.Sorted(maps.Keys(occ)) {
 				idx := occ[date]
 				counts := map[string]int{}

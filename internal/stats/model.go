@@ -11,7 +11,13 @@ import (
 // streams. It is stored with every projection so that a stored result can
 // be reproduced later; change it whenever a change to this package could
 // change any number Project returns for the same input.
-const MethodVersion = "wardload-model/2"
+const MethodVersion = "wardload-model/3"
+
+// MethodVersionV2 is the previous version of the model (ProjectV2): the
+// same model as version 3 with a sandwich standard error for the trend,
+// 95% tests for the trend and the shift-level effect, and level draws that
+// were not centred (see specV3 for the measured differences).
+const MethodVersionV2 = "wardload-model/2"
 
 // Caution is shown with every projection, in wardload's own words.
 const Caution = "This is a statistical estimate of care workload from past timed observations, not a staffing decision. " +

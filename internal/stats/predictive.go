@@ -30,11 +30,15 @@ type paramDraw struct {
 // integrating over parameter uncertainty. For each draw:
 //
 //	β   = β̂ + se(β)·T_ν when the trend is followed, else 0   (Student t,
-//	      ν = occurrences − 1; followed when its 95% interval excludes 0)
+//	      ν = occurrences − 1; followed when its 96% interval excludes 0;
+//	      95% in version 2)
 //	τ²  = τ̂²·ν/χ²_ν, ν = 2τ̂⁴/se(τ̂²)², when the effect is drawn
-//	      (τ̂² > 1.96·se(τ̂²)); else 0
+//	      (τ̂² > 2.326·se(τ̂²); 1.96 in version 2); else 0
 //	σ_k² = ν_k·s̃_k² / χ²_ν_k          (scaled inverse χ², ν_k = m_k − 1 + 2)
-//	L_k = ln(ȳ_k + c_k) − β·t̄_k + √(τ²·w_k)·U + √(ln(1 + (e^{σ_k²} − 1)/m_k))·Z_k
+//	v_k = ln(1 + (e^{σ_k²} − 1)/m_k)
+//	L_k = ln(ȳ_k + c_k) − β·t̄_k + √(τ²·w_k)·U + √v_k·Z_k − (v_k + τ²·w_k + t̄_k²·se(β)²)/2
+//	      (the last term, which keeps E[e^{L_k}] at the estimate, from
+//	      version 3 on; its trend part only when the trend is followed)
 //	μ_k = L_k − (σ_k² + τ²)/2          (so that E[minutes + c_k] = e^{L_k})
 //	b   ~ N(0, τ²)                     (the new shift's common effect)
 //	total = Σ_k Σ_{i≤n_k} max(0, exp(μ_k + b + σ_k·ε_i) − c_k)
@@ -93,8 +97,19 @@ func (f *careFit) tierLocation(r *rand.Rand, t *careTier, p paramDraw) (mu, sigm
 	// (squared CV e^{σ²} − 1, so the mean's squared CV is that over m, and
 	// its log variance ln(1 + CV²/m)) and of the shifts they came from; then the
 	// lognormal location that keeps that mean: μ = level − (σ² + τ²)/2.
-	level := t.level - p.beta*t.tbar + math.Sqrt(p.tau2*t.weight)*p.u +
-		math.Sqrt(math.Log1p(math.Expm1(sigma2)/float64(len(t.y))))*r.NormFloat64()
+	v := math.Log1p(math.Expm1(sigma2) / float64(len(t.y)))
+	level := t.level - p.beta*t.tbar + math.Sqrt(p.tau2*t.weight)*p.u + math.Sqrt(v)*r.NormFloat64()
+	if f.spec.meanPreserving {
+		// Centre the normal errors so that E[e^level] = e^{level at the
+		// estimates}: ȳ_k estimates the tier's mean without bias, and the
+		// uncentred draw put the expected total e^{v/2} above it. The
+		// trend's part uses its normal approximation (a Student t has no
+		// exponential moment).
+		level -= (v + p.tau2*t.weight) / 2
+		if f.follow {
+			level -= t.tbar * t.tbar * f.betaSE * f.betaSE / 2
+		}
+	}
 	return level - (sigma2+p.tau2)/2, sigma2
 }
 

@@ -115,8 +115,13 @@ type Projection struct {
 	Caution            string       `json:"caution"`
 }
 
-// MethodDescription says in one sentence how version 2 projects.
+// MethodDescription says in one sentence how version 3 projects.
 const MethodDescription = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
+	"(used when the data show it at the 99% level) and a common trend (at the 96% level); simulated " +
+	"from the predictive distribution with parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
+
+// MethodDescriptionV2 says in one sentence how version 2 projected.
+const MethodDescriptionV2 = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
 	"and a common trend, each used when the data show it (95% level); simulated " +
 	"from the predictive distribution with parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
 
@@ -143,12 +148,19 @@ const MethodDescription = "Per tier, a lognormal matched to the mean and varianc
 // References: newsvendor critical fractile, Porteus, E. L. (2002).
 // Foundations of Stochastic Inventory Theory, ch. 1; Hyndman & Fan (1996)
 // for the quantiles; Wilson, E. B. (1927) JASA 22, 209–212.
-func Project(in ProjectionInput) (*Projection, error) {
+func Project(in ProjectionInput) (*Projection, error) { return project(in, specV3) }
+
+// ProjectV2 is Project as method version 2 (MethodVersionV2) made it, kept
+// so that projections stored under version 2 recompute exactly; new
+// projections use Project.
+func ProjectV2(in ProjectionInput) (*Projection, error) { return project(in, specV2) }
+
+func project(in ProjectionInput, spec modelSpec) (*Projection, error) {
 	if err := in.validate(); err != nil {
 		return nil, err
 	}
 	p := &Projection{
-		MethodVersion: MethodVersion, Method: MethodDescription,
+		MethodVersion: spec.version, Method: spec.description,
 		ShiftHours: in.ShiftHours, DirectCareFraction: in.DirectCareFraction, CoverLevel: in.Cover,
 		Caution: Caution, Warnings: []string{}, Insufficient: []string{}, Bands: []Band{},
 		Shortfall: []Shortfall{}, HeldOut: []HeldOut{}, Calibration: in.Calibration,
@@ -168,7 +180,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 			}
 		}
 	}
-	f := fitCare(fits, in.Date)
+	f := fitCare(fits, in.Date, spec)
 	if in.Cover > fwHighFrom {
 		f.fwFrom = fwFromHigh
 	}
@@ -186,7 +198,7 @@ func Project(in ProjectionInput) (*Projection, error) {
 	for k, t := range f.tiers {
 		tf := TierFit{Code: t.code, Patients: t.patients, Observations: len(fits[k].minutes),
 			Used: len(t.z), HeldOut: len(fits[k].minutes) - len(t.z), Offset: t.offset}
-		tf.Trend = trendOf(tierSlope(&f.tiers[k]))
+		tf.Trend = trendOf(f.tierSlope(&f.tiers[k]))
 		if len(fits[k].minutes) > 0 {
 			tf.MedianMinutes = Defined(medianOf(fits[k].minutes))
 		}
