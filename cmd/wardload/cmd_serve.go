@@ -10,10 +10,10 @@ import (
 	"text/tabwriter"
 	"time"
 
-	"github.com/alexedwards/scs/pgxstore"
 	"github.com/alexedwards/scs/v2"
 
 	"wardload/internal/demo"
+	"wardload/internal/postgres"
 	"wardload/internal/server"
 	"wardload/internal/sqlite"
 )
@@ -138,8 +138,8 @@ func sessionStore(st *openedStore) interface {
 	scs.Store
 	StopCleanup()
 } {
-	if st.PGPool != nil {
-		return pgxstore.NewWithCleanupInterval(st.PGPool, 5*time.Minute)
+	if pg, ok := st.Store.(*postgres.Store); ok {
+		return postgres.NewSessionStore(pg, 5*time.Minute)
 	}
 	return sqlite.NewSessionStore(st.SQLite, 5*time.Minute)
 }
