@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"fmt"
+	"net"
 	"net/http"
 	"regexp"
 	"strconv"
@@ -60,6 +61,11 @@ func (s *Server) handleImportForm(w http.ResponseWriter, r *http.Request) error 
 
 // handleImport stores an uploaded file as one batch, all or nothing.
 func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
+	end, err := s.beginImport()
+	if err != nil {
+		return err
+	}
+	defer end()
 	vm, tiers, shifts, err := s.importVM(r)
 	if err != nil {
 		return err
@@ -70,8 +76,9 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 	}
 	if err := r.ParseMultipartForm(maxImportBytes); err != nil {
 		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			return err
+		var ne net.Error
+		if errors.As(err, &mbe) || errors.As(err, &ne) && ne.Timeout() {
+			return err // the adapter names the limit
 		}
 		return refuse("The upload could not be read. Choose a CSV file and try again.")
 	}
