@@ -85,13 +85,18 @@ func (s *Server) handle(h handlerFunc) http.HandlerFunc {
 // lasts (the database away or full) is counted by the fault log instead,
 // and a request whose client has gone gets no answer at all.
 func (s *Server) renderError(w http.ResponseWriter, r *http.Request, err error) {
-	if errors.Is(r.Context().Err(), context.Canceled) {
-		noteRequest(r, err, outcomeClientGone)
-		return
-	}
 	err = s.classify(r, err)
 	code, msg, status := wardload.ErrorCode(err), wardload.ErrorMessage(err), ErrorStatus(err)
 	id := RequestID(r.Context())
+	switch {
+	case code == eTimeout:
+		// net/http cancels the request's context when a body read
+		// times out, but the client may well still be reading.
+		noteRequest(r, nil, code)
+	case errors.Is(r.Context().Err(), context.Canceled):
+		noteRequest(r, err, outcomeClientGone)
+		return
+	}
 	switch code {
 	case wardload.EFULL:
 		s.writes.failed(s.now())
@@ -120,7 +125,9 @@ func (s *Server) renderError(w http.ResponseWriter, r *http.Request, err error) 
 	}
 	page := web.ErrorPage(l, vm)
 	var buf bytes.Buffer
-	if rerr := page.Render(r.Context(), &buf); rerr != nil {
+	// Without the request's cancellation: a timed-out body read cancels
+	// it, and this page is still worth sending.
+	if rerr := page.Render(context.WithoutCancel(r.Context()), &buf); rerr != nil {
 		// The error page itself failed: fall back to plain text, still
 		// without internal detail.
 		noteRequest(r, fmt.Errorf("error page failed: %w (for %w)", rerr, err), "")
@@ -147,19 +154,20 @@ func (s *Server) classify(r *http.Request, err error) error {
 	if errors.As(err, &ne) && ne.Timeout() && wardload.ErrorCode(err) == wardload.EINTERNAL {
 		return &wardload.Error{Code: eTimeout, Message: fmt.Sprintf(
 			"The upload did not arrive within the time limit of %s, so nothing was saved. "+
-				"On a slow connection, send a smaller file (split it by date) or ask an administrator to import it on the server.",
+				"On a slow connection, split the file by date and send the parts one by one.",
 			s.cfg.ReadTimeout.Round(time.Second))}
 	}
 	return err
 }
 
 // tooLarge is the 413 of a body over limit bytes, naming the limit; on
-// the import route it says how to bring in a bigger file.
+// the import route it says how to bring in a bigger file. (There is no
+// command-line import yet to point to; when there is, name it here.)
 func tooLarge(r *http.Request, limit int64) error {
 	msg := fmt.Sprintf("The request is larger than the limit of %s, so nothing was saved.", byteSize(limit))
 	if strings.HasSuffix(r.URL.Path, "/observations/import") {
 		msg = fmt.Sprintf("The file is larger than the import limit of %s, so nothing was imported. "+
-			"Split it by date into files under the limit and import them one by one, or ask an administrator to import it on the server.",
+			"Split it by date into files under the limit and import them one by one.",
 			byteSize(maxImportBytes))
 	}
 	return &wardload.Error{Code: eTooLarge, Message: msg}
