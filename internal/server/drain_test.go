@@ -12,7 +12,8 @@ import (
 
 	"github.com/alexedwards/scs/sqlite3store"
 
-	"wardload/internal/demo")
+	"wardload/internal/demo"
+)
 
 // serveFixture serves f's store over real HTTP on 127.0.0.1:0 with cfg
 // changed by change, and returns the server and a function that starts
