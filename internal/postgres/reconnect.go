@@ -66,11 +66,13 @@ func (g *reconnect) connected(context.Context, *pgx.Conn) error {
 	return nil
 }
 
-// failed notes err if it is a failed connection attempt. The many
-// requests failing together at the start of an outage count once.
+// failed notes err if it is a failed connection attempt (not one refused
+// by before). The many requests failing together at the start of an
+// outage count once.
 func (g *reconnect) failed(err error) {
 	var ce *pgconn.ConnectError
-	if !errors.As(err, &ce) || errors.Is(err, context.Canceled) {
+	var bo *errBackingOff
+	if !errors.As(err, &ce) || errors.As(err, &bo) || errors.Is(err, context.Canceled) {
 		return
 	}
 	g.mu.Lock()
