@@ -16,7 +16,7 @@ import (
 // the waiting time fails at once without touching the network.
 const (
 	reconnectMin = 100 * time.Millisecond
-	reconnectMax = 5 * time.Second
+	reconnectMax = 2 * time.Second
 )
 
 // reconnect spaces out the pool's connection attempts after a failure.
