@@ -61,4 +61,41 @@ func (s *Server) sessionError(w http.ResponseWriter, r *http.Request, err error)
 		return
 	}
 	s.renderError(w, r, err)
+	if sw, ok := w.(*sessionWriter); ok {
+		sw.done = true
+	}
 }
+
+// withSession loads and saves the session around next (scs). scs saves
+// the session just before the response's first byte and, when that
+// fails, calls sessionError and then lets the handler write anyway; the
+// sessionWriter drops those writes, so the person gets the error page
+// alone rather than the page with the handler's answer appended.
+func (s *Server) withSession(next http.Handler) http.Handler {
+	h := s.sessions.LoadAndSave(next)
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		h.ServeHTTP(&sessionWriter{ResponseWriter: w}, r)
+	})
+}
+
+// sessionWriter passes writes through until sessionError has answered.
+type sessionWriter struct {
+	http.ResponseWriter
+	done bool
+}
+
+func (w *sessionWriter) WriteHeader(code int) {
+	if !w.done {
+		w.ResponseWriter.WriteHeader(code)
+	}
+}
+
+func (w *sessionWriter) Write(b []byte) (int, error) {
+	if w.done {
+		return len(b), nil
+	}
+	return w.ResponseWriter.Write(b)
+}
+
+// Unwrap lets http.ResponseController reach the underlying writer.
+func (w *sessionWriter) Unwrap() http.ResponseWriter { return w.ResponseWriter }

