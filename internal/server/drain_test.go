@@ -162,8 +162,9 @@ func TestUploadLimitsPage(t *testing.T) {
 		t.Fatalf("big upload: %d", res.StatusCode)
 	}
 	msg := byTestID(t, body, "error-message")
-	if len(msg) != 1 || !strings.Contains(msg[0], "4 MiB") || !strings.Contains(msg[0], "nothing was imported") {
-		t.Errorf("413 message = %q, want the 4 MiB limit named", msg)
+	if len(msg) != 1 || !strings.Contains(msg[0], "4 MiB") || !strings.Contains(msg[0], "nothing was imported") ||
+		!strings.Contains(msg[0], "wardload observations import --ward "+demo.WardCode) {
+		t.Errorf("413 message = %q, want the 4 MiB limit and the command-line import named", msg)
 	}
 	if !strings.Contains(body, f.users[pAdmin].Name) || strings.Contains(body, `href="/signin"`) {
 		t.Errorf("413 page shows the manager signed out")
@@ -180,6 +181,7 @@ func TestUploadLimitsPage(t *testing.T) {
 		t.Fatalf("slow upload: %d %s\n%.3000s\nlog:\n%s", res.StatusCode, res.Status, page, f.logs)
 	}
 	if !strings.Contains(page, "time limit of 1s") || !strings.Contains(page, "nothing was saved") ||
+		!strings.Contains(page, "wardload observations import --ward "+demo.WardCode) ||
 		!strings.Contains(page, f.users[pAdmin].Name) || strings.Count(page, "<html") != 1 {
 		t.Errorf("slow-upload page does not name the limit or shows the manager signed out:\n%s", page)
 	}

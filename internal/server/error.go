@@ -12,6 +12,8 @@ import (
 	"strings"
 	"time"
 
+	"github.com/go-chi/chi/v5"
+
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -152,25 +154,31 @@ func (s *Server) classify(r *http.Request, err error) error {
 	}
 	var ne net.Error
 	if errors.As(err, &ne) && ne.Timeout() && wardload.ErrorCode(err) == wardload.EINTERNAL {
-		return &wardload.Error{Code: eTimeout, Message: fmt.Sprintf(
-			"The upload did not arrive within the time limit of %s, so nothing was saved. "+
-				"On a slow connection, split the file by date and send the parts one by one.",
-			s.cfg.ReadTimeout.Round(time.Second))}
+		msg := fmt.Sprintf("The upload did not arrive within the time limit of %s, so nothing was saved. "+
+			"On a slow connection, split the file by date and send the parts one by one", s.cfg.ReadTimeout.Round(time.Second))
+		if ward := chi.URLParam(r, "ward"); strings.HasSuffix(r.URL.Path, "/observations/import") && ward != "" {
+			msg += ", or have an administrator import it on the server: " + cliImport(ward)
+		}
+		return &wardload.Error{Code: eTimeout, Message: msg + "."}
 	}
 	return err
 }
 
 // tooLarge is the 413 of a body over limit bytes, naming the limit; on
-// the import route it says how to bring in a bigger file. (There is no
-// command-line import yet to point to; when there is, name it here.)
+// the import route it says how to bring in a bigger file.
 func tooLarge(r *http.Request, limit int64) error {
-	msg := fmt.Sprintf("The request is larger than the limit of %s, so nothing was saved.", byteSize(limit))
-	if strings.HasSuffix(r.URL.Path, "/observations/import") {
-		msg = fmt.Sprintf("The file is larger than the import limit of %s, so nothing was imported. "+
-			"Split it by date into files under the limit and import them one by one.",
-			byteSize(maxImportBytes))
+	if ward := chi.URLParam(r, "ward"); strings.HasSuffix(r.URL.Path, "/observations/import") && ward != "" {
+		return &wardload.Error{Code: eTooLarge, Message: fmt.Sprintf(
+			"The file is larger than the web import's limit of %s, so nothing was imported. "+
+				"Split it by date into smaller files, or have an administrator import it on the server: %s.",
+			byteSize(maxImportBytes), cliImport(ward))}
 	}
-	return &wardload.Error{Code: eTooLarge, Message: msg}
+	return &wardload.Error{Code: eTooLarge, Message: fmt.Sprintf("The request is larger than the limit of %s, so nothing was saved.", byteSize(limit))}
+}
+
+// cliImport is the command that imports a file of any size for ward.
+func cliImport(ward string) string {
+	return "wardload observations import --ward " + ward + " FILE.csv"
 }
 
 // byteSize writes n bytes in binary units for people: "4 MiB", "16 KiB".
