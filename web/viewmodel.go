@@ -63,4 +63,7 @@ type ErrorVM struct {
 	Title     string
 	Message   string
 	RequestID string
+	// StillSignedIn says the person has not been signed out, when their
+	// session could not be read because the database is away.
+	StillSignedIn bool
 }

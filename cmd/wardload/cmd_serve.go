@@ -4,16 +4,17 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"log/slog"
 	"net"
 	"strconv"
 	"text/tabwriter"
 	"time"
 
-	"github.com/alexedwards/scs/pgxstore"
 	"github.com/alexedwards/scs/v2"
 
 	"wardload/internal/demo"
+	"wardload/internal/postgres"
 	"wardload/internal/server"
 	"wardload/internal/sqlite"
 )
@@ -42,11 +43,20 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	seed := fs.Bool("demo", false, "on first start, add a fictional demo ward with accounts and print their passwords once (env WARDLOAD_DEMO)")
 	secure := fs.Bool("secure-cookies", false, "mark cookies Secure; use when served over HTTPS (env WARDLOAD_SECURE_COOKIES)")
 	trustXFF := fs.Bool("trust-proxy", false, "count failed sign-ins by the X-Forwarded-For address; only behind a proxy that sets it (env WARDLOAD_TRUST_PROXY)")
+	logFormat := fs.String("log-format", "text", "log format: text or json, one line per request (env WARDLOAD_LOG_FORMAT)")
+	logLevel := fs.String("log-level", "info", "lowest level logged: debug, info, warn or error (env WARDLOAD_LOG_LEVEL)")
+	drain := fs.Duration("drain-timeout", server.DefaultConfig().DrainTimeout,
+		"on shutdown, how long imports in flight may finish while new ones are refused (env WARDLOAD_DRAIN_TIMEOUT)")
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
 	if fs.NArg() > 0 {
 		fmt.Fprintf(e.stderr, "wardload: serve takes no arguments\n")
+		return exitUsage
+	}
+	log, err := newLogger(e.stderr, *logFormat, *logLevel)
+	if err != nil {
+		fmt.Fprintf(e.stderr, "wardload: %v\n", err)
 		return exitUsage
 	}
 	if _, err := so.kind(); err != nil {
@@ -59,8 +69,6 @@ func runServe(ctx context.Context, e *env, args []string) int {
 		fmt.Fprintf(e.stderr, "wardload: --addr %q %v\n", *addr, err)
 		return exitUsage
 	}
-	log := slog.New(slog.NewTextHandler(e.stderr, nil))
-
 	for _, m := range so.looseModes() {
 		log.Warn(m.String())
 	}
@@ -88,6 +96,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	cfg.Logger = log
 	cfg.Now = time.Now
 	cfg.TrustForwardedFor = *trustXFF
+	cfg.DrainTimeout = *drain
 	sessions := sessionStore(st)
 	defer sessions.StopCleanup()
 	cfg.SessionStore = sessions
@@ -110,6 +119,23 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	}
 	log.Info("stopped")
 	return exitOK
+}
+
+// newLogger returns the server's logger: text (logfmt) or JSON lines, from
+// level up.
+func newLogger(w io.Writer, format, level string) (*slog.Logger, error) {
+	var lv slog.Level
+	if err := lv.UnmarshalText([]byte(level)); err != nil {
+		return nil, fmt.Errorf("--log-level %q must be debug, info, warn or error", level)
+	}
+	opts := &slog.HandlerOptions{Level: lv}
+	switch format {
+	case "text":
+		return slog.New(slog.NewTextHandler(w, opts)), nil
+	case "json":
+		return slog.New(slog.NewJSONHandler(w, opts)), nil
+	}
+	return nil, fmt.Errorf("--log-format %q must be text or json", format)
 }
 
 // printDemo shows the demo accounts' passwords, which exist only now: the
@@ -138,8 +164,8 @@ func sessionStore(st *openedStore) interface {
 	scs.Store
 	StopCleanup()
 } {
-	if st.PGPool != nil {
-		return pgxstore.NewWithCleanupInterval(st.PGPool, 5*time.Minute)
+	if pg, ok := st.Store.(*postgres.Store); ok {
+		return postgres.NewSessionStore(pg, 5*time.Minute)
 	}
 	return sqlite.NewSessionStore(st.SQLite, 5*time.Minute)
 }

@@ -37,7 +37,7 @@ type Config struct {
 
 // Store is a wardload.Store backed by a pgx connection pool.
 type Store struct {
-	pool    *pgxpool.Pool
+	pool    *pool
 	connCfg *pgx.ConnConfig // for the database/sql handle goose needs
 	now     wardload.Clock
 }
@@ -63,19 +63,21 @@ func Open(ctx context.Context, cfg Config) (*Store, error) {
 	if cfg.Schema != "" {
 		pcfg.ConnConfig.RuntimeParams["search_path"] = pgx.Identifier{cfg.Schema}.Sanitize()
 	}
-	pool, err := pgxpool.NewWithConfig(ctx, pcfg)
+	rc := &reconnect{}
+	pcfg.BeforeConnect, pcfg.AfterConnect = rc.before, rc.connected
+	pgxp, err := pgxpool.NewWithConfig(ctx, pcfg)
 	if err != nil {
 		return nil, connectError(pcfg.ConnConfig, err)
 	}
-	if err := pool.Ping(ctx); err != nil {
-		pool.Close()
+	if err := pgxp.Ping(ctx); err != nil {
+		pgxp.Close()
 		return nil, connectError(pcfg.ConnConfig, err)
 	}
 	now := cfg.Now
 	if now == nil {
 		now = time.Now
 	}
-	return &Store{pool: pool, connCfg: pcfg.ConnConfig, now: now}, nil
+	return &Store{pool: &pool{Pool: pgxp, reconnect: rc}, connCfg: pcfg.ConnConfig, now: now}, nil
 }
 
 // connectError describes a failed connection by host, port, database and
@@ -130,14 +132,11 @@ func (s *Store) Migrate(ctx context.Context) error {
 }
 
 // Pool returns the connection pool, e.g. for the scs session store.
-func (s *Store) Pool() *pgxpool.Pool { return s.pool }
+func (s *Store) Pool() *pgxpool.Pool { return s.pool.Pool }
 
-// Ping returns an error if the database cannot be reached.
+// Ping returns EUNAVAILABLE if the database cannot be reached.
 func (s *Store) Ping(ctx context.Context) error {
-	if err := s.pool.Ping(ctx); err != nil {
-		return connectError(s.connCfg, err)
-	}
-	return nil
+	return s.pool.Ping(ctx)
 }
 
 // Close releases the pool.

@@ -1,8 +1,12 @@
 package postgres
 
 import (
+	"context"
 	"errors"
 	"fmt"
+	"io"
+	"net"
+	"strings"
 
 	"github.com/jackc/pgx/v5/pgconn"
 
@@ -36,6 +40,9 @@ func formatError(err error) error {
 	}
 	var pgErr *pgconn.PgError
 	if !errors.As(err, &pgErr) {
+		if lostConnection(err) {
+			return wardload.Unavailable(wardload.EUNAVAILABLE, err)
+		}
 		return err
 	}
 	switch pgErr.Code {
@@ -50,9 +57,32 @@ func formatError(err error) error {
 		return wardload.Errorf(wardload.EINVALID, "A value is missing or out of range.")
 	case "40001", "40P01": // serialization_failure, deadlock_detected
 		return wardload.Errorf(wardload.ECONFLICT, "A concurrent change won; please try again.")
+	case "53100": // disk_full
+		return wardload.Unavailable(wardload.EFULL, err)
+	case "57P01", "57P02", "57P03", "53300": // admin_shutdown, crash_shutdown, cannot_connect_now, too_many_connections
+		return wardload.Unavailable(wardload.EUNAVAILABLE, err)
+	}
+	if strings.HasPrefix(pgErr.Code, "08") { // connection_exception
+		return wardload.Unavailable(wardload.EUNAVAILABLE, err)
 	}
 	// Keep the SQLSTATE for the log, never for the user.
 	return fmt.Errorf("postgres: SQLSTATE %s: %w", pgErr.Code, err)
+}
+
+// lostConnection reports whether err means the database could not be
+// reached or the connection broke: a failed connection attempt, one not
+// made during the back-off, a network error, or a connection closed under
+// a query. A request cancelled by its client is not one.
+func lostConnection(err error) bool {
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return false
+	}
+	var ce *pgconn.ConnectError
+	var bo *errBackingOff
+	var ne *net.OpError
+	return errors.As(err, &ce) || errors.As(err, &bo) || errors.As(err, &ne) ||
+		errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) ||
+		errors.Is(err, pgconn.ErrConnClosed) || errors.Is(err, net.ErrClosed)
 }
 
 func notFound(what string) error {

@@ -1,8 +1,11 @@
 package postgres
 
 import (
+	"context"
 	"errors"
 	"fmt"
+	"io"
+	"net"
 	"strings"
 	"testing"
 
@@ -30,6 +33,15 @@ func TestFormatError(t *testing.T) {
 		{"check", &pgconn.PgError{Code: "23514", ConstraintName: "census_revision_check"}, wardload.EINVALID, ""},
 		{"not null", &pgconn.PgError{Code: "23502"}, wardload.EINVALID, ""},
 		{"serialization", &pgconn.PgError{Code: "40001"}, wardload.ECONFLICT, ""},
+		{"disk full", &pgconn.PgError{Code: "53100", Message: "could not extend file"}, wardload.EFULL, ""},
+		{"server shutting down", &pgconn.PgError{Code: "57P01"}, wardload.EUNAVAILABLE, ""},
+		{"server starting up", &pgconn.PgError{Code: "57P03"}, wardload.EUNAVAILABLE, ""},
+		{"too many connections", &pgconn.PgError{Code: "53300"}, wardload.EUNAVAILABLE, ""},
+		{"connection exception class", &pgconn.PgError{Code: "08006"}, wardload.EUNAVAILABLE, ""},
+		{"connection closed under a query", fmt.Errorf("find: %w", io.ErrUnexpectedEOF), wardload.EUNAVAILABLE, ""},
+		{"network error", &net.OpError{Op: "read", Net: "tcp", Err: errors.New("connection reset by peer")}, wardload.EUNAVAILABLE, ""},
+		{"back-off refusal", &errBackingOff{cause: errors.New("dial tcp: connection refused")}, wardload.EUNAVAILABLE, ""},
+		{"client gone is not unavailable", fmt.Errorf("read: %w: %w", context.Canceled, io.ErrUnexpectedEOF), wardload.EINTERNAL, ""},
 		{"syntax error stays internal", &pgconn.PgError{Code: "42601", Message: "syntax error at or near"}, wardload.EINTERNAL, ""},
 		{"other error stays internal", errors.New("boom"), wardload.EINTERNAL, ""},
 		{"app error passes through", wardload.FieldErrorf(wardload.EINVALID, "date", "Date is required."), wardload.EINVALID, "date"},

@@ -92,11 +92,11 @@ func (s *Server) guard(rt Route, next http.Handler) http.Handler {
 	case a.Public && a.NoSession:
 		return next
 	case a.Public:
-		return s.sessions.LoadAndSave(s.optionalUser(next))
+		return s.withSession(s.optionalUser(next))
 	case a.API:
 		return s.requireToken(rt, next)
 	case len(a.Roles) > 0:
-		return s.sessions.LoadAndSave(s.requireUser(rt, next))
+		return s.withSession(s.requireUser(rt, next))
 	}
 	return s.handle(func(http.ResponseWriter, *http.Request) error {
 		return wardload.Errorf(wardload.EFORBIDDEN, "This page is not available.")

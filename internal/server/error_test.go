@@ -69,7 +69,8 @@ func TestErrorAdapterHTML(t *testing.T) {
 			if tc.notInBody != "" && strings.Contains(body, tc.notInBody) {
 				t.Errorf("body contains internal text %q", tc.notInBody)
 			}
-			logged := strings.Contains(logs.String(), "internal error")
+			// One request line, at ERROR with the error when it was internal.
+			logged := strings.Contains(logs.String(), "level=ERROR msg=request") && strings.Contains(logs.String(), " err=")
 			if logged != (tc.wantStatus == 500) {
 				t.Errorf("internal error logged = %v, want %v:\n%s", logged, tc.wantStatus == 500, logs)
 			}

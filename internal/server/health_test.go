@@ -31,7 +31,7 @@ func TestReadyz(t *testing.T) {
 	}{
 		{"ok", func(context.Context) error { return nil }, http.StatusOK, "ok\n", ""},
 		{"ping fails", func(context.Context) error { return errors.New("dial tcp: refused") },
-			http.StatusServiceUnavailable, "not ready\n", "dial tcp: refused"},
+			http.StatusServiceUnavailable, "not ready: database unreachable\n", "dial tcp: refused"},
 		{"ping has a deadline", func(ctx context.Context) error {
 			dl, ok := ctx.Deadline()
 			if !ok || time.Until(dl) > 2*time.Second {

@@ -4,7 +4,9 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/hex"
+	"errors"
 	"fmt"
+	"log/slog"
 	"net/http"
 	"runtime/debug"
 	"time"
@@ -35,20 +37,64 @@ func (s *Server) requestID(next http.Handler) http.Handler {
 	})
 }
 
-// logRequests writes one structured line per request.
+// requestNote is what the handlers tell the request's log line: the
+// error of a failed request and how it ended.
+type requestNote struct {
+	err     error
+	outcome string
+}
+
+type requestNoteKey struct{}
+
+// outcomeClientGone marks a request whose client went away before the
+// answer (its context was cancelled): not a server failure. The log line
+// shows status 499, as nginx does, since no answer was sent.
+const (
+	outcomeClientGone = "client_gone"
+	statusClientGone  = 499
+)
+
+// noteRequest records err and outcome for r's log line. Outside
+// logRequests (tests that call a handler directly) it does nothing.
+func noteRequest(r *http.Request, err error, outcome string) {
+	if n, ok := r.Context().Value(requestNoteKey{}).(*requestNote); ok {
+		n.err, n.outcome = err, outcome
+	}
+}
+
+// logRequests writes one structured line per request, at ERROR when the
+// request failed with an internal error (the error in the line), else at
+// INFO: refusals, client disconnects and failures the fault log counts
+// (the database away or full) are not errors of this request.
 func (s *Server) logRequests(next http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		start := time.Now() // for the log only; never shown or stored
 		ww := middleware.NewWrapResponseWriter(w, r.ProtoMajor)
+		note := &requestNote{}
+		r = r.WithContext(context.WithValue(r.Context(), requestNoteKey{}, note))
 		next.ServeHTTP(ww, r)
-		s.log.Info("request",
+		status, level := ww.Status(), slog.LevelInfo
+		if note.outcome == "" && errors.Is(r.Context().Err(), context.Canceled) {
+			note.outcome = outcomeClientGone
+		}
+		attrs := []any{
 			"request_id", RequestID(r.Context()),
 			"method", r.Method,
 			"path", r.URL.Path,
-			"status", ww.Status(),
-			"bytes", ww.BytesWritten(),
-			"duration_ms", time.Since(start).Milliseconds(),
-		)
+		}
+		switch {
+		case note.outcome == outcomeClientGone:
+			status = statusClientGone
+		case note.err != nil:
+			level = slog.LevelError
+			attrs = append(attrs, "err", note.err)
+		}
+		if note.outcome != "" {
+			attrs = append(attrs, "outcome", note.outcome)
+		}
+		attrs = append(attrs, "status", status, "bytes", ww.BytesWritten(),
+			"duration_ms", time.Since(start).Milliseconds())
+		s.log.Log(r.Context(), level, "request", attrs...)
 	})
 }
 
@@ -99,7 +145,7 @@ func securityHeaders(next http.Handler) http.Handler {
 func (s *Server) limitBody(limit int64, next http.Handler) http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		if r.ContentLength > limit {
-			s.renderError(w, r, &http.MaxBytesError{Limit: limit})
+			s.renderError(w, r, tooLarge(r, limit))
 			return
 		}
 		if r.Body != nil {

@@ -5,6 +5,8 @@ import (
 	"encoding/csv"
 	"errors"
 	"fmt"
+	"io"
+	"net"
 	"net/http"
 	"regexp"
 	"strconv"
@@ -60,6 +62,11 @@ func (s *Server) handleImportForm(w http.ResponseWriter, r *http.Request) error 
 
 // handleImport stores an uploaded file as one batch, all or nothing.
 func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
+	end, err := s.beginImport()
+	if err != nil {
+		return err
+	}
+	defer end()
 	vm, tiers, shifts, err := s.importVM(r)
 	if err != nil {
 		return err
@@ -70,8 +77,9 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 	}
 	if err := r.ParseMultipartForm(maxImportBytes); err != nil {
 		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			return err
+		var ne net.Error
+		if errors.As(err, &mbe) || errors.As(err, &ne) && ne.Timeout() {
+			return err // the adapter names the limit
 		}
 		return refuse("The upload could not be read. Choose a CSV file and try again.")
 	}
@@ -82,21 +90,18 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 	}
 	defer file.Close()
 	ward, u := principalFrom(r.Context()).Ward, principalFrom(r.Context()).User
-	obs, lines, err := parseObservationCSV(file, ward, tiers, shifts)
+	obs, lines, err := ParseObservationImport(file, ward, tiers, shifts, s.now())
 	if wardload.ErrorCode(err) == wardload.EINVALID {
 		return refuse(wardload.ErrorMessage(err))
 	} else if err != nil {
 		return fmt.Errorf("import: read: %w", err)
-	}
-	if err := checkObservationDates(obs, lines, ward, s.now()); err != nil {
-		return refuse(wardload.ErrorMessage(err))
 	}
 	for _, o := range obs {
 		o.EnteredBy = u.ID
 	}
 	batch, err := s.store.CreateObservations(r.Context(), obs)
 	if wardload.ErrorCode(err) == wardload.EINVALID {
-		return refuse(rowToLine(wardload.ErrorMessage(err), lines))
+		return refuse(RowToLine(wardload.ErrorMessage(err), lines))
 	} else if err != nil {
 		return fmt.Errorf("import: store: %w", err)
 	}
@@ -104,12 +109,28 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 	return seeOther(w, r, reviewURL(ward))
 }
 
+// ParseObservationImport reads an observation import file for ward, as
+// the web import and the command line's observations import both do: the
+// columns of parseObservationCSV, dates checked against now in the ward's
+// time zone. Every problem is EINVALID naming the file line; lines[i] is
+// the file line of obs[i], for RowToLine.
+func ParseObservationImport(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern, now time.Time) (obs []*wardload.Observation, lines []int, err error) {
+	obs, lines, err = parseObservationCSV(r, ward, tiers, shifts)
+	if err != nil {
+		return nil, nil, err
+	}
+	if err := checkObservationDates(obs, lines, ward, now); err != nil {
+		return nil, nil, err
+	}
+	return obs, lines, nil
+}
+
 // rowPrefix is how CreateObservations names the row it refused.
 var rowPrefix = regexp.MustCompile(`^Row ([0-9]+): `)
 
-// rowToLine rewrites the store's "Row N: …" (N 1-based in the batch) as the
+// RowToLine rewrites the store's "Row N: …" (N 1-based in the batch) as the
 // file line the person can find: "line L: …".
-func rowToLine(msg string, lines []int) string {
+func RowToLine(msg string, lines []int) string {
 	m := rowPrefix.FindStringSubmatch(msg)
 	if m == nil {
 		return msg

@@ -149,8 +149,8 @@ func TestRowToLine(t *testing.T) {
 		{"Row 4: out of range", "Row 4: out of range"},
 		{"Something else.", "Something else."},
 	} {
-		if got := rowToLine(c.in, lines); got != c.want {
-			t.Errorf("rowToLine(%q) = %q, want %q", c.in, got, c.want)
+		if got := RowToLine(c.in, lines); got != c.want {
+			t.Errorf("RowToLine(%q) = %q, want %q", c.in, got, c.want)
 		}
 	}
 }

@@ -134,7 +134,7 @@ func (s *Server) Routes() []Route {
 // request ID comes first so every log line has it; logging wraps the
 // recoverer so a panic is logged as a 500; security headers are set before
 // anything can write, so every response, 404s and refusals included,
-// carries them. The body limit is per route (see Route.MaxBodyBytes);
+// carries them. The body limit is per route (see Route.MaxBodyBytes), applied after the guard;
 // requests that match no route never have their body read.
 func (s *Server) router(routes []Route) http.Handler {
 	r := chi.NewRouter()
@@ -145,7 +145,7 @@ func (s *Server) router(routes []Route) http.Handler {
 	r.Use(middleware.GetHead)
 	// The 404 page reads the session (never requires it) so a signed-in
 	// person still sees their name and navigation.
-	r.NotFound(s.sessions.LoadAndSave(s.optionalUser(s.handle(func(http.ResponseWriter, *http.Request) error {
+	r.NotFound(s.withSession(s.optionalUser(s.handle(func(http.ResponseWriter, *http.Request) error {
 		return wardload.Errorf(wardload.ENOTFOUND, "There is no page at this address.")
 	}))).ServeHTTP)
 	r.MethodNotAllowed(s.handle(func(w http.ResponseWriter, r *http.Request) error {
@@ -157,7 +157,9 @@ func (s *Server) router(routes []Route) http.Handler {
 		if rt.MaxBodyBytes > 0 {
 			limit = rt.MaxBodyBytes
 		}
-		r.Method(rt.Method, rt.Pattern, s.limitBody(limit, s.guard(rt, s.handle(rt.Handler))))
+		// The guard goes first so that a refused body (413) is answered
+		// with the person still shown signed in; it reads no body.
+		r.Method(rt.Method, rt.Pattern, s.guard(rt, s.limitBody(limit, s.handle(rt.Handler))))
 	}
 	return r
 }

@@ -12,6 +12,7 @@ import (
 	"net"
 	"net/http"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/alexedwards/scs/v2"
@@ -80,8 +81,19 @@ type Config struct {
 	WriteTimeout      time.Duration
 	IdleTimeout       time.Duration
 	// ShutdownTimeout bounds how long Serve waits for in-flight requests
-	// after its context is cancelled.
+	// after its context is cancelled (and after imports have drained).
 	ShutdownTimeout time.Duration
+	// DrainTimeout bounds how long Serve lets observation imports in
+	// flight finish after its context is cancelled; meanwhile it serves
+	// as usual but refuses new imports with 503 and /readyz says not
+	// ready.
+	DrainTimeout time.Duration
+	// FaultLogInterval is how often a failure that repeats (the database
+	// away or full) is logged, with the number of requests it failed.
+	FaultLogInterval time.Duration
+	// ReadyHold is how long /readyz stays not ready after a write failed
+	// for lack of space, for a store that cannot check writes itself.
+	ReadyHold time.Duration
 }
 
 // DefaultConfig returns a Config with the limits and timeouts filled in.
@@ -98,6 +110,9 @@ func DefaultConfig() Config {
 		WriteTimeout:      30 * time.Second,
 		IdleTimeout:       120 * time.Second,
 		ShutdownTimeout:   10 * time.Second,
+		DrainTimeout:      90 * time.Second,
+		FaultLogInterval:  10 * time.Second,
+		ReadyHold:         30 * time.Second,
 		SessionIdle:       8 * time.Hour,
 		SessionLifetime:   12 * time.Hour,
 		HashConcurrency:   2,
@@ -138,6 +153,15 @@ type Server struct {
 	projections *projectionCache
 	// The layout's versioned asset URLs, fixed once the assets are loaded.
 	stylesheetURL, iconURL string
+
+	// faults logs the database being away or full once per interval;
+	// writes remembers a write that failed for lack of space, for /readyz.
+	faults *faultLog
+	writes writeHealth
+	// draining is set when shutdown begins; imports counts imports in
+	// flight, which shutdown waits for (import.go).
+	draining atomic.Bool
+	imports  atomic.Int64
 }
 
 // New checks cfg, fills zero limits from DefaultConfig and builds the
@@ -160,6 +184,9 @@ func New(cfg Config) (*Server, error) {
 		{&cfg.WriteTimeout, &def.WriteTimeout},
 		{&cfg.IdleTimeout, &def.IdleTimeout},
 		{&cfg.ShutdownTimeout, &def.ShutdownTimeout},
+		{&cfg.DrainTimeout, &def.DrainTimeout},
+		{&cfg.FaultLogInterval, &def.FaultLogInterval},
+		{&cfg.ReadyHold, &def.ReadyHold},
 		{&cfg.SessionIdle, &def.SessionIdle},
 		{&cfg.SessionLifetime, &def.SessionLifetime},
 		{&cfg.HashWait, &def.HashWait},
@@ -186,11 +213,10 @@ func New(cfg Config) (*Server, error) {
 		signin:       newSignInGuard(cfg),
 		sealKey:      newSealKey(),
 		projections:  newProjectionCache(projectionCacheSize),
+		faults:       newFaultLog(cfg.Logger, cfg.FaultLogInterval),
 	}
 	s.projector = &projector.Service{Store: cfg.Store, Now: cfg.Now, Draws: cfg.Draws}
-	s.sessions.ErrorFunc = func(w http.ResponseWriter, r *http.Request, err error) {
-		s.renderError(w, r, fmt.Errorf("session: %w", err))
-	}
+	s.sessions.ErrorFunc = s.sessionError
 	if s.cop, err = s.newCrossOriginProtection(); err != nil {
 		return nil, fmt.Errorf("server: %w", err)
 	}
@@ -253,8 +279,10 @@ func (s *Server) Serve(ctx context.Context) error {
 		return fmt.Errorf("server stopped: %w", err)
 	case <-ctx.Done():
 	}
+	s.drainImports()
 	sctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), s.cfg.ShutdownTimeout)
 	defer cancel()
+	defer s.faults.flushAll()
 	if err := s.http.Shutdown(sctx); err != nil {
 		s.http.Close()
 		return fmt.Errorf("shutdown: %w", err)

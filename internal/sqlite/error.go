@@ -44,6 +44,11 @@ func formatError(err error) error {
 	if !errors.As(err, &se) {
 		return err
 	}
+	if se.Code()&0xff == sqlite3.SQLITE_FULL {
+		// The disk (or max_page_count) is full: the transaction was
+		// rolled back, so nothing of it was saved.
+		return wardload.Unavailable(wardload.EFULL, err)
+	}
 	switch se.Code() {
 	case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
 		if m := uniqueColumns.FindStringSubmatch(se.Error()); m != nil {

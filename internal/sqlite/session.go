@@ -45,7 +45,7 @@ func (st *SessionStore) FindCtx(ctx context.Context, token string) ([]byte, bool
 	if errors.Is(err, sql.ErrNoRows) {
 		return nil, false, nil
 	} else if err != nil {
-		return nil, false, err
+		return nil, false, formatError(err)
 	}
 	return b, true, nil
 }
@@ -54,13 +54,13 @@ func (st *SessionStore) FindCtx(ctx context.Context, token string) ([]byte, bool
 func (st *SessionStore) CommitCtx(ctx context.Context, token string, b []byte, expiry time.Time) error {
 	_, err := st.s.w.ExecContext(ctx, `REPLACE INTO sessions (token, data, expiry) VALUES (?, ?, julianday(?))`,
 		token, b, expiry.UTC().Format(expiryFormat))
-	return err
+	return formatError(err)
 }
 
 // DeleteCtx removes a session.
 func (st *SessionStore) DeleteCtx(ctx context.Context, token string) error {
 	_, err := st.s.w.ExecContext(ctx, `DELETE FROM sessions WHERE token = ?`, token)
-	return err
+	return formatError(err)
 }
 
 // Find is FindCtx without a context.

@@ -161,6 +161,29 @@ func (s *Store) Ping(ctx context.Context) error {
 	return s.r.PingContext(ctx)
 }
 
+// writeCheckBytes is how much room CheckWrite asks for: more than a census
+// save with its projection and audit rows needs.
+const writeCheckBytes = 64 << 10
+
+// CheckWrite returns EFULL if the database cannot grow by writeCheckBytes:
+// it creates a table and fills it in a transaction that it always rolls
+// back, so nothing stays. It catches a page limit reached (max_page_count)
+// at once; a full disk shows when the pages reach the file, which a real
+// save does and this rolled-back check may not, so the server also counts
+// saves that fail.
+func (s *Store) CheckWrite(ctx context.Context) error {
+	tx, err := s.w.BeginTx(ctx, nil)
+	if err != nil {
+		return formatError(err)
+	}
+	defer tx.Rollback()
+	if _, err := tx.ExecContext(ctx, `CREATE TABLE wardload_write_check (b BLOB)`); err != nil {
+		return formatError(err)
+	}
+	_, err = tx.ExecContext(ctx, `INSERT INTO wardload_write_check VALUES (zeroblob(?))`, writeCheckBytes)
+	return formatError(err)
+}
+
 // Close closes both pools (one, for :memory:), statements first.
 func (s *Store) Close() error {
 	if s.r.DB == s.w {

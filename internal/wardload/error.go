@@ -21,7 +21,26 @@ const (
 	EUNAUTHORIZED = "unauthorized" // not signed in, or credentials are wrong
 	EFORBIDDEN    = "forbidden"    // signed in, but the role or ward does not allow it
 	ETOOMANY      = "too_many"     // throttled; try again later
+	EUNAVAILABLE  = "unavailable"  // the database cannot be reached just now; nothing was saved, try again shortly
+	EFULL         = "full"         // the database's disk is full; nothing was saved until space is freed
 )
+
+// The messages of EUNAVAILABLE and EFULL, the same from every store, so a
+// person reads the same words whichever database is behind wardload.
+const (
+	MessageUnavailable = "The database cannot be reached just now, so nothing was saved. Please try again in a minute."
+	MessageFull        = "The database has run out of disk space, so nothing was saved. What was saved before is safe; please tell your administrator."
+)
+
+// Unavailable returns an error of code (EUNAVAILABLE or EFULL) with that
+// code's message, which keeps cause in its chain for the log.
+func Unavailable(code string, cause error) error {
+	msg := MessageUnavailable
+	if code == EFULL {
+		msg = MessageFull
+	}
+	return fmt.Errorf("%w: %w", &Error{Code: code, Message: msg}, cause)
+}
 
 // Error is the application error. Message is written for the person using
 // wardload and may be shown to them; Field, when set, names the input that
