@@ -132,23 +132,54 @@ func MedianShiftTest(lower, upper []float64, level float64, reps int, seed uint6
 	m := MedianShift{Lower: medianOf(lower), Upper: medianOf(upper), Level: level, Reps: reps}
 	m.Difference = m.Upper - m.Lower
 	r := rand.New(rand.NewPCG(seed, 1))
-	a, b := make([]float64, len(lower)), make([]float64, len(upper))
+	lo, up := slices.Sorted(slices.Values(lower)), slices.Sorted(slices.Values(upper))
+	countLo, countUp := make([]int, len(lo)), make([]int, len(up))
 	diffs := make([]float64, reps)
 	for i := range diffs {
-		for j := range a {
-			a[j] = lower[r.IntN(len(lower))]
-		}
-		for j := range b {
-			b[j] = upper[r.IntN(len(upper))]
-		}
-		slices.Sort(a)
-		slices.Sort(b)
-		diffs[i] = HFQuantile(7, 0.5, b) - HFQuantile(7, 0.5, a)
+		// Resample the other tier first, then this one, drawing indices
+		// into the sorted values: the resample's median is found from
+		// the counts in O(n), without sorting it.
+		a := resampledMedian(r, lo, countLo)
+		diffs[i] = resampledMedian(r, up, countUp) - a
 	}
 	slices.Sort(diffs)
 	m.Low = HFQuantile(7, (1-level)/2, diffs)
 	m.High = HFQuantile(7, (1+level)/2, diffs)
 	return m, nil
+}
+
+// resampledMedian draws len(sorted) indices uniformly with replacement and
+// returns the type 7 median of the values they pick, walking the counts of
+// each index over the sorted values (the same number as sorting the
+// resample). count is scratch space of the same length.
+func resampledMedian(r *rand.Rand, sorted []float64, count []int) float64 {
+	n := len(sorted)
+	clear(count)
+	for range n {
+		count[r.IntN(n)]++
+	}
+	h := float64(n-1) * 0.5
+	k := int(h) // 0-based order statistics k and k+1
+	var xk, xk1 float64
+	seen := 0
+	found := false
+	for j, c := range count {
+		if c == 0 {
+			continue
+		}
+		if !found && seen+c > k {
+			xk, found = sorted[j], true
+		}
+		if seen+c > k+1 || k+1 >= n {
+			xk1 = sorted[j]
+			if k+1 >= n {
+				xk1 = xk
+			}
+			break
+		}
+		seen += c
+	}
+	return xk + (h-float64(k))*(xk1-xk)
 }
 
 // SeparationCaution is said wherever tier separation is shown.

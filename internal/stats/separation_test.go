@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"slices"
 	"strconv"
 	"testing"
 
@@ -157,5 +158,31 @@ func near(t *testing.T, what string, got, want, rel float64) {
 	t.Helper()
 	if math.Abs(got-want) > rel*math.Abs(want) {
 		t.Errorf("%s = %.15g, want %.15g (relative tolerance %g)", what, got, want, rel)
+	}
+}
+
+// resampledMedian gives the type 7 median of the very resample that
+// sorting would give: same random indices, any n, with ties.
+func TestResampledMedianMatchesSort(t *testing.T) {
+	for n := 1; n <= 40; n++ {
+		src := rand.New(rand.NewPCG(uint64(n), 3))
+		sorted := make([]float64, n)
+		for i := range sorted {
+			sorted[i] = float64(src.IntN(7)) // many ties
+		}
+		slices.Sort(sorted)
+		count := make([]int, n)
+		for seed := range uint64(20) {
+			r1, r2 := rand.New(rand.NewPCG(seed, 9)), rand.New(rand.NewPCG(seed, 9))
+			got := resampledMedian(r1, sorted, count)
+			re := make([]float64, n)
+			for i := range re {
+				re[i] = sorted[r2.IntN(n)]
+			}
+			slices.Sort(re)
+			if want := HFQuantile(7, 0.5, re); got != want {
+				t.Fatalf("n %d seed %d: %g, sorting gives %g", n, seed, got, want)
+			}
+		}
 	}
 }
