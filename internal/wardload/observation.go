@@ -111,3 +111,51 @@ func ValidExclusionReason(s string) error {
 	}
 	return nil
 }
+
+// ReviewChange changes an observation's review state: an exclusion or a
+// restoration. Make one with Exclusion or Restoration.
+type ReviewChange struct {
+	// Action is the change's audit action.
+	Action string
+	apply  func(o *Observation, at time.Time) error
+}
+
+// Apply returns a copy of o with the change made at at, or ECONFLICT if o
+// is already in the state the change leads to. o is not changed.
+func (c ReviewChange) Apply(o *Observation, at time.Time) (*Observation, error) {
+	out := *o
+	if err := c.apply(&out, at); err != nil {
+		return nil, err
+	}
+	return &out, nil
+}
+
+// Exclusion returns the change that excludes an observation from the
+// model, by user by, with reason trimmed. It returns EINVALID at once for a
+// reason ValidExclusionReason refuses, before any observation is read.
+func Exclusion(reason string, by int64) (ReviewChange, error) {
+	if err := ValidExclusionReason(reason); err != nil {
+		return ReviewChange{}, err
+	}
+	reason = strings.TrimSpace(reason)
+	return ReviewChange{Action: "observation.exclude", apply: func(o *Observation, at time.Time) error {
+		if o.Excluded {
+			return Errorf(ECONFLICT, "This observation is already excluded.")
+		}
+		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = true, reason, by, at
+		return nil
+	}}, nil
+}
+
+// Restoration returns the change that includes an excluded observation
+// again. Who restored it and when is kept in the audit log; the
+// observation keeps no trace of a past exclusion.
+func Restoration() ReviewChange {
+	return ReviewChange{Action: "observation.restore", apply: func(o *Observation, _ time.Time) error {
+		if !o.Excluded {
+			return Errorf(ECONFLICT, "This observation is not excluded.")
+		}
+		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = false, "", 0, time.Time{}
+		return nil
+	}}
+}

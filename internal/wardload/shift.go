@@ -79,6 +79,25 @@ type ShiftPatternUpdate struct {
 	NominalHours *float64
 }
 
+// Apply returns a copy of p with upd applied, or EINVALID naming the field
+// if the result is not a valid pattern. p is not changed.
+func (upd ShiftPatternUpdate) Apply(p *ShiftPattern) (*ShiftPattern, error) {
+	out := *p
+	if upd.Name != nil {
+		out.Name = *upd.Name
+	}
+	if upd.StartMinute != nil {
+		out.StartMinute = *upd.StartMinute
+	}
+	if upd.NominalHours != nil {
+		out.NominalHours = *upd.NominalHours
+	}
+	if err := out.Validate(); err != nil {
+		return nil, err
+	}
+	return &out, nil
+}
+
 // ShiftService manages the shift patterns of wards.
 type ShiftService interface {
 	// CreateShiftPattern returns EINVALID, ENOTFOUND (ward) or ECONFLICT (name taken in the ward).

@@ -98,6 +98,25 @@ type WardUpdate struct {
 	FactorNames []string // nil leaves them unchanged
 }
 
+// Apply returns a copy of w with upd applied, or EINVALID naming the field
+// if the result is not a valid ward. w is not changed.
+func (upd WardUpdate) Apply(w *Ward) (*Ward, error) {
+	out := *w
+	if upd.Name != nil {
+		out.Name = *upd.Name
+	}
+	if upd.TimeZone != nil {
+		out.TimeZone = *upd.TimeZone
+	}
+	if upd.FactorNames != nil {
+		out.FactorNames = append([]string(nil), upd.FactorNames...)
+	}
+	if err := out.Validate(); err != nil {
+		return nil, err
+	}
+	return &out, nil
+}
+
 // WardService manages wards.
 type WardService interface {
 	// CreateWard stores a new ward and sets its ID and CreatedAt.
@@ -157,6 +176,25 @@ type TierUpdate struct {
 	Label        *string
 	Description  *string
 	DisplayOrder *int
+}
+
+// Apply returns a copy of t with upd applied, or EINVALID naming the field
+// if the result is not a valid tier. t is not changed.
+func (upd TierUpdate) Apply(t *Tier) (*Tier, error) {
+	out := *t
+	if upd.Label != nil {
+		out.Label = *upd.Label
+	}
+	if upd.Description != nil {
+		out.Description = *upd.Description
+	}
+	if upd.DisplayOrder != nil {
+		out.DisplayOrder = *upd.DisplayOrder
+	}
+	if err := out.Validate(); err != nil {
+		return nil, err
+	}
+	return &out, nil
 }
 
 // TierService manages the acuity tiers of wards.
