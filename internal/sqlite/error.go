@@ -14,18 +14,18 @@ import (
 // uniqueColumns finds "table.column, table.column" in a UNIQUE failure.
 var uniqueColumns = regexp.MustCompile(`UNIQUE constraint failed: ([\w.]+(?:, [\w.]+)*)`)
 
-// uniqueConflicts names, per constrained column list, the field and the
-// message a user sees. The service code checks most of these first; this
-// catches the race where two writers pass the check together, and anything
-// a check forgot.
-var uniqueConflicts = map[string]*wardload.Error{
-	"wards.code":                                 wardload.FieldErrorf(wardload.ECONFLICT, "code", "A ward with this code already exists."),
-	"tiers.ward_id,tiers.code":                   wardload.FieldErrorf(wardload.ECONFLICT, "code", "The ward already has a tier with this code."),
-	"shift_patterns.ward_id,shift_patterns.name": wardload.FieldErrorf(wardload.ECONFLICT, "name", "The ward already has a shift with this name."),
-	"users.name":                                 wardload.FieldErrorf(wardload.ECONFLICT, "name", "A user with this name already exists."),
-	"api_tokens.name":                            wardload.FieldErrorf(wardload.ECONFLICT, "name", "A token with this name already exists."),
-	"api_tokens.hash":                            wardload.FieldErrorf(wardload.ECONFLICT, "hash", "This token secret is already in use; generate a new one."),
-	"census.ward_id,census.date,census.shift_id,census.revision": wardload.Errorf(wardload.ECONFLICT, "Someone else saved this census at the same moment; please try again."),
+// uniqueRules names, per constrained column list, the domain's unique
+// rule, whose error says what a user reads. The service code checks most
+// of these first; this catches the race where two writers pass the check
+// together, and anything a check forgot.
+var uniqueRules = map[string]string{
+	"wards.code":                                 wardload.UniqueWardCode,
+	"tiers.ward_id,tiers.code":                   wardload.UniqueTierCode,
+	"shift_patterns.ward_id,shift_patterns.name": wardload.UniqueShiftName,
+	"users.name":                                 wardload.UniqueUserName,
+	"api_tokens.name":                            wardload.UniqueTokenName,
+	"api_tokens.hash":                            wardload.UniqueTokenHash,
+	"census.ward_id,census.date,census.shift_id,census.revision": wardload.UniqueCensusRevision,
 }
 
 // formatError is the one place driver errors become domain errors. An
@@ -46,17 +46,16 @@ func formatError(err error) error {
 	}
 	switch se.Code() {
 	case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
+		var rule string
 		if m := uniqueColumns.FindStringSubmatch(se.Error()); m != nil {
-			if e, ok := uniqueConflicts[strings.ReplaceAll(m[1], ", ", ",")]; ok {
-				return e
-			}
+			rule = uniqueRules[strings.ReplaceAll(m[1], ", ", ",")]
 		}
-		return wardload.Errorf(wardload.ECONFLICT, "This entry already exists.")
+		return wardload.UniqueError(rule)
 	case sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY:
 		// SQLite does not say which reference failed.
-		return wardload.Errorf(wardload.ENOTFOUND, "A ward, tier, shift or user referred to does not exist.")
+		return wardload.ReferenceError()
 	case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
-		return wardload.Errorf(wardload.EINVALID, "A value is missing or out of range.")
+		return wardload.RangeError()
 	}
 	return err
 }
