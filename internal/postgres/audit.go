@@ -2,7 +2,6 @@ package postgres
 
 import (
 	"context"
-	"encoding/json"
 	"time"
 
 	"github.com/jackc/pgx/v5"
@@ -16,46 +15,33 @@ func (s *Store) AppendAudit(ctx context.Context, e *wardload.AuditEntry) error {
 		if e.At.IsZero() {
 			e.At = now
 		}
-		return insertAudit(ctx, tx, e)
+		b := &pgx.Batch{}
+		queueAudit(b, e)
+		return tx.SendBatch(ctx, b).Close()
 	})
 }
 
-func insertAudit(ctx context.Context, tx pgx.Tx, e *wardload.AuditEntry) error {
-	return tx.QueryRow(ctx, `
+// queueAudit queues the insert of e, which sets e.ID, in b.
+func queueAudit(b *pgx.Batch, e *wardload.AuditEntry) {
+	b.Queue(`
 		INSERT INTO audit_log (at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json)
 		VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
 		e.At.UTC(), e.UserID, e.Actor, e.Action, e.Entity, e.EntityID, e.WardID, e.Before, e.After,
-	).Scan(&e.ID)
+	).QueryRow(func(r pgx.Row) error { return r.Scan(&e.ID) })
 }
 
-// audit writes the audit row of a change made in tx by the actor in ctx.
-// before and after are domain values (nil for none) turned into JSON; the
-// callers pass views without password or token hashes.
-func audit(ctx context.Context, tx pgx.Tx, now time.Time, action, entity string, entityID, wardID int64, before, after any) error {
-	a := wardload.ActorFrom(ctx)
-	b, err := auditJSON(before)
+// audit writes in tx the audit rows wardload.NewAudit makes of a change
+// by the actor in ctx, in one pipelined batch.
+func audit(ctx context.Context, tx pgx.Tx, now time.Time, action string, before, after wardload.Audited) error {
+	es, err := wardload.NewAudit(ctx, now, action, before, after)
 	if err != nil {
 		return err
 	}
-	af, err := auditJSON(after)
-	if err != nil {
-		return err
+	b := &pgx.Batch{}
+	for _, e := range es {
+		queueAudit(b, e)
 	}
-	return insertAudit(ctx, tx, &wardload.AuditEntry{
-		At: now, UserID: a.UserID, Actor: a.Name, Action: action, Entity: entity,
-		EntityID: entityID, WardID: wardID, Before: b, After: af,
-	})
-}
-
-func auditJSON(v any) (string, error) {
-	if v == nil {
-		return "", nil
-	}
-	b, err := json.Marshal(v)
-	if err != nil {
-		return "", err
-	}
-	return string(b), nil
+	return tx.SendBatch(ctx, b).Close()
 }
 
 // FindAudit returns matches newest first and the total count.
