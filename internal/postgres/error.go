@@ -23,30 +23,29 @@ var uniqueRules = map[string]string{
 	"ratio_floors_key_idx":                      wardload.UniqueRatioFloor,
 }
 
+// sqlstateKinds maps the SQLSTATEs of constraint and concurrency failures
+// to the domain's kinds.
+var sqlstateKinds = map[string]wardload.ConstraintKind{
+	"23505": wardload.ConstraintUnique,      // unique_violation
+	"23503": wardload.ConstraintReference,   // foreign_key_violation
+	"23514": wardload.ConstraintRange,       // check_violation
+	"23502": wardload.ConstraintRange,       // not_null_violation
+	"40001": wardload.ConstraintConcurrency, // serialization_failure
+	"40P01": wardload.ConstraintConcurrency, // deadlock_detected
+}
+
 // formatError maps driver errors to wardload errors by SQLSTATE, the one
 // place that does so. Application errors pass through unchanged; anything
 // else stays an internal error whose text ErrorMessage never shows.
 func formatError(err error) error {
-	if err == nil {
-		return nil
-	}
-	var appErr *wardload.Error
-	if errors.As(err, &appErr) {
-		return err
-	}
 	var pgErr *pgconn.PgError
-	if !errors.As(err, &pgErr) {
+	// nil, an application error (its code is not EINTERNAL) and anything
+	// not from the server pass through.
+	if wardload.ErrorCode(err) != wardload.EINTERNAL || !errors.As(err, &pgErr) {
 		return err
 	}
-	switch pgErr.Code {
-	case "23505": // unique_violation
-		return wardload.UniqueError(uniqueRules[pgErr.ConstraintName])
-	case "23503": // foreign_key_violation
-		return wardload.ReferenceError()
-	case "23514", "23502": // check_violation, not_null_violation
-		return wardload.RangeError()
-	case "40001", "40P01": // serialization_failure, deadlock_detected
-		return wardload.ConcurrencyError()
+	if kind, ok := sqlstateKinds[pgErr.Code]; ok {
+		return wardload.ConstraintError(kind, uniqueRules[pgErr.ConstraintName])
 	}
 	// Keep the SQLSTATE for the log, never for the user.
 	return fmt.Errorf("postgres: SQLSTATE %s: %w", pgErr.Code, err)

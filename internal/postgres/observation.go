@@ -10,33 +10,23 @@ import (
 )
 
 // CreateObservations stores obs as one import batch, all or nothing, with
-// the checks and messages of wardload.CheckImport and CheckImportRefs.
+// the checks and messages of wardload.Import.
 func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observation) (string, error) {
-	if err := wardload.CheckImport(obs); err != nil {
-		return "", err
-	}
-	batchID, err := wardload.NewBatchID()
+	im, err := wardload.NewImport(obs)
 	if err != nil {
 		return "", err
 	}
-	err = s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
-		batch, err := wardload.CheckImportRefs(obs, batchID, func(id int64) (*wardload.WardRefs, error) {
-			return loadWardRefs(ctx, tx, id, "")
-		})
+	return im.Result(s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
+		err := im.CheckRefs(func(id int64) (*wardload.WardRefs, error) { return loadWardRefs(ctx, tx, id, "") })
+		if err == nil {
+			err = insertObservations(ctx, tx, obs, im.BatchID(), now)
+		}
 		if err != nil {
 			return err
 		}
-		if err := insertObservations(ctx, tx, obs, batchID, now); err != nil {
-			return err
-		}
-		wardload.Imported(obs, batchID, now)
-		return audit(ctx, tx, now, "observation.import", nil, batch)
-	})
-	if err != nil {
-		wardload.NotImported(obs)
-		return "", err
-	}
-	return batchID, nil
+		im.Stored(now)
+		return audit(ctx, tx, now, "observation.import", nil, im)
+	}))
 }
 
 // insertObservations stores the rows and their factors in two pipelined

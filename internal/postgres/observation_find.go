@@ -102,11 +102,7 @@ func queryObservations(ctx context.Context, q querier, sql string, args ...any) 
 
 // ExcludeObservation marks an observation as excluded with a reason.
 func (s *Store) ExcludeObservation(ctx context.Context, id int64, reason string, by int64) (*wardload.Observation, error) {
-	change, err := wardload.Exclusion(reason, by)
-	if err != nil {
-		return nil, err
-	}
-	return s.review(ctx, id, change)
+	return s.review(ctx, id, wardload.Exclusion(reason, by))
 }
 
 // RestoreObservation includes an excluded observation again.
@@ -117,6 +113,9 @@ func (s *Store) RestoreObservation(ctx context.Context, id int64, by int64) (*wa
 // review locks the observation, makes change to its review state, stores
 // it and writes the audit row.
 func (s *Store) review(ctx context.Context, id int64, change wardload.ReviewChange) (*wardload.Observation, error) {
+	if change.Err() != nil {
+		return nil, change.Err()
+	}
 	var out *wardload.Observation
 	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
 		before, err := findObservation(ctx, tx, id, " FOR UPDATE")

@@ -28,34 +28,35 @@ var uniqueRules = map[string]string{
 	"census.ward_id,census.date,census.shift_id,census.revision": wardload.UniqueCensusRevision,
 }
 
+// constraintKinds maps SQLite's extended result codes of constraint
+// failures to the domain's kinds.
+var constraintKinds = map[int]wardload.ConstraintKind{
+	sqlite3.SQLITE_CONSTRAINT_UNIQUE:     wardload.ConstraintUnique,
+	sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY: wardload.ConstraintUnique,
+	sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY: wardload.ConstraintReference,
+	sqlite3.SQLITE_CONSTRAINT_CHECK:      wardload.ConstraintRange,
+	sqlite3.SQLITE_CONSTRAINT_NOTNULL:    wardload.ConstraintRange,
+}
+
 // formatError is the one place driver errors become domain errors. An
 // *wardload.Error passes through; a constraint failure becomes a code and
 // a message of our own; anything else stays an internal error, whose text
 // wardload.ErrorMessage never shows to a user.
 func formatError(err error) error {
-	if err == nil {
-		return nil
-	}
-	var we *wardload.Error
-	if errors.As(err, &we) {
-		return err
-	}
 	var se *sqlite.Error
-	if !errors.As(err, &se) {
+	// nil, an application error (its code is not EINTERNAL) and anything
+	// not from the driver pass through, as do failures other than
+	// constraints.
+	if wardload.ErrorCode(err) != wardload.EINTERNAL || !errors.As(err, &se) {
 		return err
 	}
-	switch se.Code() {
-	case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
-		var rule string
-		if m := uniqueColumns.FindStringSubmatch(se.Error()); m != nil {
-			rule = uniqueRules[strings.ReplaceAll(m[1], ", ", ",")]
-		}
-		return wardload.UniqueError(rule)
-	case sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY:
-		// SQLite does not say which reference failed.
-		return wardload.ReferenceError()
-	case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
-		return wardload.RangeError()
+	kind, ok := constraintKinds[se.Code()]
+	if !ok {
+		return err
 	}
-	return err
+	var rule string
+	if m := uniqueColumns.FindStringSubmatch(se.Error()); kind == wardload.ConstraintUnique && m != nil {
+		rule = uniqueRules[strings.ReplaceAll(m[1], ", ", ",")]
+	}
+	return wardload.ConstraintError(kind, rule)
 }

@@ -9,35 +9,24 @@ import (
 )
 
 // CreateObservations stores obs as one batch, all or nothing, with the
-// checks and messages of wardload.CheckImport and CheckImportRefs.
+// checks and messages of wardload.Import.
 func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observation) (string, error) {
-	if err := wardload.CheckImport(obs); err != nil {
-		return "", err
-	}
-	batchID, err := wardload.NewBatchID()
+	im, err := wardload.NewImport(obs)
 	if err != nil {
 		return "", err
 	}
-	err = s.write(ctx, func(tx *Tx) error {
-		batch, err := wardload.CheckImportRefs(obs, batchID, func(id int64) (*wardload.WardRefs, error) {
-			return loadWardRefs(ctx, tx, id)
-		})
-		if err != nil {
+	return im.Result(s.write(ctx, func(tx *Tx) error {
+		if err := im.CheckRefs(func(id int64) (*wardload.WardRefs, error) { return loadWardRefs(ctx, tx, id) }); err != nil {
 			return err
 		}
 		for _, o := range obs {
-			if err := insertObservation(ctx, tx, o, batchID); err != nil {
+			if err := insertObservation(ctx, tx, o, im.BatchID()); err != nil {
 				return err
 			}
 		}
-		wardload.Imported(obs, batchID, tx.now)
-		return tx.audit("observation.import", nil, batch)
-	})
-	if err != nil {
-		wardload.NotImported(obs)
-		return "", err
-	}
-	return batchID, nil
+		im.Stored(tx.now)
+		return tx.audit("observation.import", nil, im)
+	}))
 }
 
 // insertObservation stores o and its factors and sets its ID.
@@ -72,11 +61,7 @@ func (s *Store) FindObservations(ctx context.Context, f wardload.ObservationFilt
 
 // ExcludeObservation marks an observation as excluded; it never deletes.
 func (s *Store) ExcludeObservation(ctx context.Context, id int64, reason string, by int64) (*wardload.Observation, error) {
-	change, err := wardload.Exclusion(reason, by)
-	if err != nil {
-		return nil, err
-	}
-	return s.review(ctx, id, change)
+	return s.review(ctx, id, wardload.Exclusion(reason, by))
 }
 
 // RestoreObservation includes an excluded observation again.
@@ -86,6 +71,9 @@ func (s *Store) RestoreObservation(ctx context.Context, id int64, by int64) (*wa
 
 // review makes change to observation id's review state and audits it.
 func (s *Store) review(ctx context.Context, id int64, change wardload.ReviewChange) (*wardload.Observation, error) {
+	if err := change.Err(); err != nil {
+		return nil, err
+	}
 	var out *wardload.Observation
 	err := s.write(ctx, func(tx *Tx) error {
 		before, err := findObservation(ctx, tx, id)

@@ -145,21 +145,3 @@ type tokenAudit struct {
 func (t *APIToken) auditRecord() auditRecord {
 	return auditRecord{"token", t.ID, t.WardIDs, tokenAudit{t.ID, t.Name, t.WardIDs, t.CreatedBy, t.CreatedAt, t.RevokedAt}}
 }
-
-// ObservationBatch is what the audit log keeps of one observation import:
-// one row per import, since the rows carry no more than the numbers and
-// an import of thousands would swamp the log.
-type ObservationBatch struct {
-	BatchID string
-	Rows    int
-	WardIDs []int64 // in order of first appearance
-}
-
-// auditRecord names the ward when the batch is of one ward, else ward 0.
-func (b *ObservationBatch) auditRecord() auditRecord {
-	r := auditRecord{"observation_batch", 0, nil, b}
-	if len(b.WardIDs) == 1 {
-		r.wards = b.WardIDs
-	}
-	return r
-}

@@ -25,29 +25,35 @@ var uniqueErrors = map[string]struct{ field, msg string }{
 	UniqueRatioFloor:     {"floors", "A shift has two ratio floors for the same tier."},
 }
 
-// UniqueError returns the ECONFLICT error for a broken unique rule (a
-// Unique* constant), naming the field that clashed; "" or an unknown rule
-// gives a general message.
-func UniqueError(rule string) error {
-	if u, ok := uniqueErrors[rule]; ok {
-		return FieldErrorf(ECONFLICT, u.field, "%s", u.msg)
+// ConstraintKind is a kind of database constraint failure.
+type ConstraintKind int
+
+// Kinds of constraint failure a store reports with ConstraintError.
+const (
+	ConstraintUnique      ConstraintKind = iota + 1 // a unique rule was broken
+	ConstraintReference                             // a referenced row does not exist
+	ConstraintRange                                 // a value is missing or out of range
+	ConstraintConcurrency                           // a concurrent change won
+)
+
+// ConstraintError returns the error a user reads for a database
+// constraint failure of kind (a Constraint* constant). For a unique
+// failure, rule is the Unique* rule broken, naming the field that clashed;
+// "" or an unknown rule gives a general message.
+func ConstraintError(kind ConstraintKind, rule string) error {
+	switch kind {
+	case ConstraintUnique:
+		if u, ok := uniqueErrors[rule]; ok {
+			return FieldErrorf(ECONFLICT, u.field, "%s", u.msg)
+		}
+		return Errorf(ECONFLICT, "This entry already exists.")
+	case ConstraintReference:
+		// The database does not always say which reference failed.
+		return Errorf(ENOTFOUND, "A ward, tier, shift or user referred to does not exist.")
+	case ConstraintRange:
+		return Errorf(EINVALID, "A value is missing or out of range.")
+	case ConstraintConcurrency:
+		return Errorf(ECONFLICT, "A concurrent change won; please try again.")
 	}
-	return Errorf(ECONFLICT, "This entry already exists.")
-}
-
-// ReferenceError is the error for a row referring to a ward, tier, shift
-// or user that does not exist, when the database cannot say which.
-func ReferenceError() error {
-	return Errorf(ENOTFOUND, "A ward, tier, shift or user referred to does not exist.")
-}
-
-// RangeError is the error for a value a database check refused: missing
-// or out of range.
-func RangeError() error {
-	return Errorf(EINVALID, "A value is missing or out of range.")
-}
-
-// ConcurrencyError is the error for a change that lost to a concurrent one.
-func ConcurrencyError() error {
-	return Errorf(ECONFLICT, "A concurrent change won; please try again.")
+	return Errorf(EINTERNAL, "Internal error.")
 }

@@ -117,12 +117,21 @@ func ValidExclusionReason(s string) error {
 type ReviewChange struct {
 	// Action is the change's audit action.
 	Action string
+	err    error
 	apply  func(o *Observation, at time.Time) error
 }
+
+// Err returns the change's own error, such as an exclusion reason
+// ValidExclusionReason refuses. Stores check it before reading the
+// observation, so a bad reason is EINVALID whatever the ID.
+func (c ReviewChange) Err() error { return c.err }
 
 // Apply returns a copy of o with the change made at at, or ECONFLICT if o
 // is already in the state the change leads to. o is not changed.
 func (c ReviewChange) Apply(o *Observation, at time.Time) (*Observation, error) {
+	if c.err != nil {
+		return nil, c.err
+	}
 	out := *o
 	if err := c.apply(&out, at); err != nil {
 		return nil, err
@@ -131,11 +140,11 @@ func (c ReviewChange) Apply(o *Observation, at time.Time) (*Observation, error) 
 }
 
 // Exclusion returns the change that excludes an observation from the
-// model, by user by, with reason trimmed. It returns EINVALID at once for a
-// reason ValidExclusionReason refuses, before any observation is read.
-func Exclusion(reason string, by int64) (ReviewChange, error) {
+// model, by user by, with reason trimmed. A reason ValidExclusionReason
+// refuses is the change's Err.
+func Exclusion(reason string, by int64) ReviewChange {
 	if err := ValidExclusionReason(reason); err != nil {
-		return ReviewChange{}, err
+		return ReviewChange{err: err}
 	}
 	reason = strings.TrimSpace(reason)
 	return ReviewChange{Action: "observation.exclude", apply: func(o *Observation, at time.Time) error {
@@ -144,7 +153,7 @@ func Exclusion(reason string, by int64) (ReviewChange, error) {
 		}
 		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = true, reason, by, at
 		return nil
-	}}, nil
+	}}
 }
 
 // Restoration returns the change that includes an excluded observation
