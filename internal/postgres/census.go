@@ -55,7 +55,7 @@ func createCensus(ctx context.Context, tx pgx.Tx, now time.Time, c *wardload.Cen
 			return out, err
 		}
 	}
-	return out, audit(ctx, tx, now, "census.create", nil, &out)
+	return out, audit(ctx, tx, now, wardload.ActionCensusCreate, nil, &out)
 }
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.

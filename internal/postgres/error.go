@@ -50,7 +50,3 @@ func formatError(err error) error {
 	// Keep the SQLSTATE for the log, never for the user.
 	return fmt.Errorf("postgres: SQLSTATE %s: %w", pgErr.Code, err)
 }
-
-func notFound(what string) error {
-	return wardload.Errorf(wardload.ENOTFOUND, "%s not found.", what)
-}

@@ -25,7 +25,7 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 			return err
 		}
 		im.Stored(now)
-		return audit(ctx, tx, now, "observation.import", nil, im)
+		return audit(ctx, tx, now, wardload.ActionObservationImport, nil, im)
 	}))
 }
 

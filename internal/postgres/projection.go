@@ -41,7 +41,7 @@ func (s *Store) CreateCensusProjection(ctx context.Context, c *wardload.Census, 
 		if stored, err = one(ps, err, "Projection"); err != nil {
 			return err
 		}
-		return audit(ctx, tx, now, "projection.create", nil, stored)
+		return audit(ctx, tx, now, wardload.ActionProjectionCreate, nil, stored)
 	})
 	if err != nil {
 		return err

@@ -95,6 +95,6 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			}
 		}
 		st.UpdatedAt = now
-		return audit(ctx, tx, now, "settings.save", before, st)
+		return audit(ctx, tx, now, wardload.ActionSettingsSave, before, st)
 	})
 }

@@ -23,7 +23,7 @@ func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern
 			p.WardID, p.Name, p.StartMinute, p.NominalHours).Scan(&p.ID); err != nil {
 			return err
 		}
-		return audit(ctx, tx, now, "shift.create", nil, p)
+		return audit(ctx, tx, now, wardload.ActionShiftCreate, nil, p)
 	})
 }
 
@@ -76,7 +76,7 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 			return err
 		}
 		out = p
-		return audit(ctx, tx, now, "shift.update", before, p)
+		return audit(ctx, tx, now, wardload.ActionShiftUpdate, before, p)
 	})
 	if err != nil {
 		return nil, err

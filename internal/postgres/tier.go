@@ -23,7 +23,7 @@ func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
 			t.WardID, t.Code, t.Label, t.Description, t.DisplayOrder).Scan(&t.ID); err != nil {
 			return err
 		}
-		return audit(ctx, tx, now, "tier.create", nil, t)
+		return audit(ctx, tx, now, wardload.ActionTierCreate, nil, t)
 	})
 }
 
@@ -87,7 +87,7 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 			return err
 		}
 		out = t
-		return audit(ctx, tx, now, "tier.update", before, t)
+		return audit(ctx, tx, now, wardload.ActionTierUpdate, before, t)
 	})
 	if err != nil {
 		return nil, err

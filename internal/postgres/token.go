@@ -24,7 +24,7 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 			return err
 		}
 		t.WardIDs, t.CreatedAt, t.LastUsedAt, t.RevokedAt = wards, now, time.Time{}, time.Time{}
-		return audit(ctx, tx, now, "token.create", nil, t)
+		return audit(ctx, tx, now, wardload.ActionTokenCreate, nil, t)
 	})
 }
 
@@ -92,7 +92,7 @@ func (s *Store) RevokeToken(ctx context.Context, id int64) error {
 		if _, err := tx.Exec(ctx, `UPDATE api_tokens SET revoked_at = $1 WHERE id = $2`, now, id); err != nil {
 			return err
 		}
-		return audit(ctx, tx, now, "token.revoke", before, after)
+		return audit(ctx, tx, now, wardload.ActionTokenRevoke, before, after)
 	})
 }
 
@@ -104,7 +104,7 @@ func (s *Store) TouchToken(ctx context.Context, id int64, at time.Time) error {
 		return formatError(err)
 	}
 	if tag.RowsAffected() == 0 {
-		return notFound("Token")
+		return wardload.NotFound("Token")
 	}
 	return nil
 }

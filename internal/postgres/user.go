@@ -24,7 +24,7 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 			return err
 		}
 		u.WardIDs, u.CreatedAt = wards, now
-		return audit(ctx, tx, now, "user.create", nil, u)
+		return audit(ctx, tx, now, wardload.ActionUserCreate, nil, u)
 	})
 }
 
@@ -154,7 +154,7 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 			}
 		}
 		out = u
-		return audit(ctx, tx, now, "user.update", before, u)
+		return audit(ctx, tx, now, wardload.ActionUserUpdate, before, u)
 	})
 	if err != nil {
 		return nil, err

@@ -23,7 +23,7 @@ func (s *Store) CreateWard(ctx context.Context, w *wardload.Ward) error {
 			return err
 		}
 		w.CreatedAt = now
-		return audit(ctx, tx, now, "ward.create", nil, w)
+		return audit(ctx, tx, now, wardload.ActionWardCreate, nil, w)
 	})
 }
 
@@ -125,7 +125,7 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 			}
 		}
 		out = w
-		return audit(ctx, tx, now, "ward.update", before, w)
+		return audit(ctx, tx, now, wardload.ActionWardUpdate, before, w)
 	})
 	if err != nil {
 		return nil, err

@@ -49,7 +49,7 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 		return err
 	}
 	c.ID, c.Revision, c.EnteredAt = id, rev, tx.now
-	return tx.audit("census.create", nil, stored)
+	return tx.audit(wardload.ActionCensusCreate, nil, stored)
 }
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.
@@ -69,7 +69,7 @@ func findOneCensus(ctx context.Context, q querier, id int64) (*wardload.Census, 
 		return nil, err
 	}
 	if len(cs) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Census entry not found.")
+		return nil, wardload.NotFound("Census entry")
 	}
 	return cs[0], nil
 }

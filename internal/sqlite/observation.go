@@ -25,7 +25,7 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 			}
 		}
 		im.Stored(tx.now)
-		return tx.audit("observation.import", nil, im)
+		return tx.audit(wardload.ActionObservationImport, nil, im)
 	}))
 }
 
@@ -103,7 +103,7 @@ func findObservation(ctx context.Context, q querier, id int64) (*wardload.Observ
 		return nil, err
 	}
 	if len(os) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Observation not found.")
+		return nil, wardload.NotFound("Observation")
 	}
 	return os[0], nil
 }

@@ -42,7 +42,7 @@ func (s *Store) CreateCensusProjection(ctx context.Context, c *wardload.Census, 
 			return err
 		}
 		p.Counts, p.Start, p.End = stored.Counts, stored.Start, stored.End
-		return tx.audit("projection.create", nil, stored)
+		return tx.audit(wardload.ActionProjectionCreate, nil, stored)
 	})
 	if err != nil {
 		*c, *p = c0, p0
@@ -74,7 +74,7 @@ func findOneProjection(ctx context.Context, q querier, id int64) (*wardload.Proj
 		return nil, err
 	}
 	if len(ps) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Projection not found.")
+		return nil, wardload.NotFound("Projection")
 	}
 	return ps[0], nil
 }

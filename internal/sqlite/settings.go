@@ -84,6 +84,6 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			}
 		}
 		st.UpdatedAt = tx.now
-		return tx.audit("settings.save", before, st)
+		return tx.audit(wardload.ActionSettingsSave, before, st)
 	})
 }

@@ -25,7 +25,7 @@ func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern
 		if p.ID, err = res.LastInsertId(); err != nil {
 			return err
 		}
-		return tx.audit("shift.create", nil, p)
+		return tx.audit(wardload.ActionShiftCreate, nil, p)
 	})
 }
 
@@ -70,7 +70,7 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 			return err
 		}
 		out = p
-		return tx.audit("shift.update", before, p)
+		return tx.audit(wardload.ActionShiftUpdate, before, p)
 	})
 	if err != nil {
 		return nil, err
@@ -91,7 +91,7 @@ func scanShift(r scanner) (*wardload.ShiftPattern, error) {
 func findShift(ctx context.Context, q querier, id int64) (*wardload.ShiftPattern, error) {
 	p, err := scanShift(q.QueryRowContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE id = ?`, id))
 	if errors.Is(err, sql.ErrNoRows) {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Shift pattern not found.")
+		return nil, wardload.NotFound("Shift pattern")
 	}
 	return p, err
 }

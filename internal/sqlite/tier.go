@@ -25,7 +25,7 @@ func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
 		if t.ID, err = res.LastInsertId(); err != nil {
 			return err
 		}
-		return tx.audit("tier.create", nil, t)
+		return tx.audit(wardload.ActionTierCreate, nil, t)
 	})
 }
 
@@ -69,7 +69,7 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 			return err
 		}
 		out = t
-		return tx.audit("tier.update", before, t)
+		return tx.audit(wardload.ActionTierUpdate, before, t)
 	})
 	if err != nil {
 		return nil, err
@@ -92,7 +92,7 @@ func scanTier(r scanner) (*wardload.Tier, error) {
 func findTier(ctx context.Context, q querier, id int64) (*wardload.Tier, error) {
 	t, err := scanTier(q.QueryRowContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE id = ?`, id))
 	if errors.Is(err, sql.ErrNoRows) {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Tier not found.")
+		return nil, wardload.NotFound("Tier")
 	}
 	return t, err
 }

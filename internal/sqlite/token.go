@@ -28,7 +28,7 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 			return err
 		}
 		t.ID, t.CreatedAt, t.WardIDs = id, tx.now, wards
-		return tx.audit("token.create", nil, t)
+		return tx.audit(wardload.ActionTokenCreate, nil, t)
 	})
 }
 
@@ -64,7 +64,7 @@ func (s *Store) RevokeToken(ctx context.Context, id int64) error {
 		if _, err := tx.ExecContext(ctx, `UPDATE api_tokens SET revoked_at = ? WHERE id = ?`, formatTime(tx.now), id); err != nil {
 			return err
 		}
-		return tx.audit("token.revoke", before, after)
+		return tx.audit(wardload.ActionTokenRevoke, before, after)
 	})
 }
 
@@ -79,7 +79,7 @@ func (s *Store) TouchToken(ctx context.Context, id int64, at time.Time) error {
 		if n, err := res.RowsAffected(); err != nil {
 			return err
 		} else if n == 0 {
-			return wardload.Errorf(wardload.ENOTFOUND, "Token not found.")
+			return wardload.NotFound("Token")
 		}
 		return nil
 	})
@@ -91,7 +91,7 @@ func findToken(ctx context.Context, q querier, cond string, arg any) (*wardload.
 		return nil, err
 	}
 	if len(ts) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Token not found.")
+		return nil, wardload.NotFound("Token")
 	}
 	return ts[0], nil
 }

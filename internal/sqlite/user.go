@@ -29,7 +29,7 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 			return err
 		}
 		u.ID, u.CreatedAt, u.WardIDs = id, tx.now, wards
-		return tx.audit("user.create", nil, u)
+		return tx.audit(wardload.ActionUserCreate, nil, u)
 	})
 }
 
@@ -90,7 +90,7 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 			}
 		}
 		out = u
-		return tx.audit("user.update", before, u)
+		return tx.audit(wardload.ActionUserUpdate, before, u)
 	})
 	if err != nil {
 		return nil, err
@@ -104,7 +104,7 @@ func findUser(ctx context.Context, q querier, f wardload.UserFilter) (*wardload.
 		return nil, err
 	}
 	if len(us) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "User not found.")
+		return nil, wardload.NotFound("User")
 	}
 	return us[0], nil
 }

@@ -28,7 +28,7 @@ func (s *Store) CreateWard(ctx context.Context, w *wardload.Ward) error {
 			return err
 		}
 		w.ID, w.CreatedAt = id, tx.now
-		return tx.audit("ward.create", nil, w)
+		return tx.audit(wardload.ActionWardCreate, nil, w)
 	})
 }
 
@@ -56,7 +56,7 @@ func (s *Store) FindWardByCode(ctx context.Context, code string) (*wardload.Ward
 		return nil, err
 	}
 	if len(ws) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Ward %q not found.", code)
+		return nil, wardload.NotFound("Ward")
 	}
 	return ws[0], nil
 }
@@ -87,7 +87,7 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 			}
 		}
 		out = w
-		return tx.audit("ward.update", before, w)
+		return tx.audit(wardload.ActionWardUpdate, before, w)
 	})
 	if err != nil {
 		return nil, err
@@ -101,7 +101,7 @@ func findWard(ctx context.Context, q querier, id int64) (*wardload.Ward, error) 
 		return nil, err
 	}
 	if len(ws) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Ward not found.")
+		return nil, wardload.NotFound("Ward")
 	}
 	return ws[0], nil
 }

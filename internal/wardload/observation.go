@@ -147,7 +147,7 @@ func Exclusion(reason string, by int64) ReviewChange {
 		return ReviewChange{err: err}
 	}
 	reason = strings.TrimSpace(reason)
-	return ReviewChange{Action: "observation.exclude", apply: func(o *Observation, at time.Time) error {
+	return ReviewChange{Action: ActionObservationExclude, apply: func(o *Observation, at time.Time) error {
 		if o.Excluded {
 			return Errorf(ECONFLICT, "This observation is already excluded.")
 		}
@@ -160,7 +160,7 @@ func Exclusion(reason string, by int64) ReviewChange {
 // again. Who restored it and when is kept in the audit log; the
 // observation keeps no trace of a past exclusion.
 func Restoration() ReviewChange {
-	return ReviewChange{Action: "observation.restore", apply: func(o *Observation, _ time.Time) error {
+	return ReviewChange{Action: ActionObservationRestore, apply: func(o *Observation, _ time.Time) error {
 		if !o.Excluded {
 			return Errorf(ECONFLICT, "This observation is not excluded.")
 		}
