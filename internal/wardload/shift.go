@@ -83,19 +83,10 @@ type ShiftPatternUpdate struct {
 // if the result is not a valid pattern. p is not changed.
 func (upd ShiftPatternUpdate) Apply(p *ShiftPattern) (*ShiftPattern, error) {
 	out := *p
-	if upd.Name != nil {
-		out.Name = *upd.Name
-	}
-	if upd.StartMinute != nil {
-		out.StartMinute = *upd.StartMinute
-	}
-	if upd.NominalHours != nil {
-		out.NominalHours = *upd.NominalHours
-	}
-	if err := out.Validate(); err != nil {
-		return nil, err
-	}
-	return &out, nil
+	setIf(&out.Name, upd.Name)
+	setIf(&out.StartMinute, upd.StartMinute)
+	setIf(&out.NominalHours, upd.NominalHours)
+	return validated(&out)
 }
 
 // ShiftService manages the shift patterns of wards.

@@ -85,22 +85,13 @@ type UserUpdate struct {
 // a valid user. u is not changed; the store checks that the wards exist.
 func (upd UserUpdate) Apply(u *User) (*User, error) {
 	out := *u
-	if upd.Role != nil {
-		out.Role = *upd.Role
-	}
-	if upd.PasswordHash != nil {
-		out.PasswordHash = *upd.PasswordHash
-	}
-	if upd.Disabled != nil {
-		out.Disabled = *upd.Disabled
-	}
+	setIf(&out.Role, upd.Role)
+	setIf(&out.PasswordHash, upd.PasswordHash)
+	setIf(&out.Disabled, upd.Disabled)
 	if upd.WardIDs != nil {
 		out.WardIDs = WardIDSet(upd.WardIDs)
 	}
-	if err := out.Validate(); err != nil {
-		return nil, err
-	}
-	return &out, nil
+	return validated(&out)
 }
 
 // WardIDSet returns the ward IDs a user or token is linked to: ascending

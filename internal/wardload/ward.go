@@ -102,19 +102,12 @@ type WardUpdate struct {
 // if the result is not a valid ward. w is not changed.
 func (upd WardUpdate) Apply(w *Ward) (*Ward, error) {
 	out := *w
-	if upd.Name != nil {
-		out.Name = *upd.Name
-	}
-	if upd.TimeZone != nil {
-		out.TimeZone = *upd.TimeZone
-	}
+	setIf(&out.Name, upd.Name)
+	setIf(&out.TimeZone, upd.TimeZone)
 	if upd.FactorNames != nil {
 		out.FactorNames = append([]string(nil), upd.FactorNames...)
 	}
-	if err := out.Validate(); err != nil {
-		return nil, err
-	}
-	return &out, nil
+	return validated(&out)
 }
 
 // WardService manages wards.
@@ -182,19 +175,10 @@ type TierUpdate struct {
 // if the result is not a valid tier. t is not changed.
 func (upd TierUpdate) Apply(t *Tier) (*Tier, error) {
 	out := *t
-	if upd.Label != nil {
-		out.Label = *upd.Label
-	}
-	if upd.Description != nil {
-		out.Description = *upd.Description
-	}
-	if upd.DisplayOrder != nil {
-		out.DisplayOrder = *upd.DisplayOrder
-	}
-	if err := out.Validate(); err != nil {
-		return nil, err
-	}
-	return &out, nil
+	setIf(&out.Label, upd.Label)
+	setIf(&out.Description, upd.Description)
+	setIf(&out.DisplayOrder, upd.DisplayOrder)
+	return validated(&out)
 }
 
 // TierService manages the acuity tiers of wards.
