@@ -15,33 +15,31 @@ func (s *Store) AppendAudit(ctx context.Context, e *wardload.AuditEntry) error {
 		if e.At.IsZero() {
 			e.At = now
 		}
-		b := &pgx.Batch{}
-		queueAudit(b, e)
-		return tx.SendBatch(ctx, b).Close()
+		return insertAudit(ctx, tx, e)
 	})
 }
 
-// queueAudit queues the insert of e, which sets e.ID, in b.
-func queueAudit(b *pgx.Batch, e *wardload.AuditEntry) {
-	b.Queue(`
-		INSERT INTO audit_log (at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json)
-		VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
-		e.At.UTC(), e.UserID, e.Actor, e.Action, e.Entity, e.EntityID, e.WardID, e.Before, e.After,
-	).QueryRow(func(r pgx.Row) error { return r.Scan(&e.ID) })
+// insertAudit stores es in tx in one pipelined batch and sets their IDs.
+func insertAudit(ctx context.Context, tx pgx.Tx, es ...*wardload.AuditEntry) error {
+	b := &pgx.Batch{}
+	for _, e := range es {
+		b.Queue(`
+			INSERT INTO audit_log (at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json)
+			VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
+			e.At.UTC(), e.UserID, e.Actor, e.Action, e.Entity, e.EntityID, e.WardID, e.Before, e.After,
+		).QueryRow(func(r pgx.Row) error { return r.Scan(&e.ID) })
+	}
+	return tx.SendBatch(ctx, b).Close()
 }
 
 // audit writes in tx the audit rows wardload.NewAudit makes of a change
-// by the actor in ctx, in one pipelined batch.
+// by the actor in ctx.
 func audit(ctx context.Context, tx pgx.Tx, now time.Time, action string, before, after wardload.Audited) error {
 	es, err := wardload.NewAudit(ctx, now, action, before, after)
 	if err != nil {
 		return err
 	}
-	b := &pgx.Batch{}
-	for _, e := range es {
-		queueAudit(b, e)
-	}
-	return tx.SendBatch(ctx, b).Close()
+	return insertAudit(ctx, tx, es...)
 }
 
 // FindAudit returns matches newest first and the total count.

@@ -102,12 +102,15 @@ func (s *Store) writeNested(ctx context.Context, stx *sql.Tx, fn func(tx *Tx) er
 // by the actor in the context.
 func (tx *Tx) audit(action string, before, after wardload.Audited) error {
 	es, err := wardload.NewAudit(tx.ctx, tx.now, action, before, after)
+	if err != nil {
+		return err
+	}
 	for _, e := range es {
-		if err == nil {
-			err = insertAudit(tx.ctx, tx, e)
+		if err := insertAudit(tx.ctx, tx, e); err != nil {
+			return err
 		}
 	}
-	return err
+	return nil
 }
 
 // timeFormat is fixed-width (always nine fractional digits, always UTC
