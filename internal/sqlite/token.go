@@ -27,7 +27,8 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 		if err := setMemberships(ctx, tx, `token_wards`, `token_id`, id, wards); err != nil {
 			return err
 		}
-		t.ID, t.CreatedAt, t.WardIDs = id, tx.now, wards
+		// A new token is unused and active whatever the caller set, as stored.
+		t.ID, t.CreatedAt, t.WardIDs, t.LastUsedAt, t.RevokedAt = id, tx.now, wards, time.Time{}, time.Time{}
 		return tx.audit(wardload.ActionTokenCreate, nil, t)
 	})
 }
