@@ -129,7 +129,16 @@ type userAudit struct {
 
 // auditRecord of a user is not ward-specific: ward 0.
 func (u *User) auditRecord() auditRecord {
-	return auditRecord{"user", u.ID, nil, userAudit{u.ID, u.Name, u.Role, u.Disabled, u.WardIDs, u.CreatedAt}}
+	return auditRecord{"user", u.ID, nil, userAudit{u.ID, u.Name, u.Role, u.Disabled, wardList(u.WardIDs), u.CreatedAt}}
+}
+
+// wardList is ids for the audit JSON, where no wards is [] whether a
+// store read them as nil or as empty.
+func wardList(ids []int64) []int64 {
+	if ids == nil {
+		return []int64{}
+	}
+	return ids
 }
 
 // tokenAudit is what the audit log keeps of a token: never its hash.
@@ -143,5 +152,5 @@ type tokenAudit struct {
 }
 
 func (t *APIToken) auditRecord() auditRecord {
-	return auditRecord{"token", t.ID, t.WardIDs, tokenAudit{t.ID, t.Name, t.WardIDs, t.CreatedBy, t.CreatedAt, t.RevokedAt}}
+	return auditRecord{"token", t.ID, t.WardIDs, tokenAudit{t.ID, t.Name, wardList(t.WardIDs), t.CreatedBy, t.CreatedAt, t.RevokedAt}}
 }
