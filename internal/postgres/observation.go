@@ -17,11 +17,10 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 		return "", err
 	}
 	return im.Result(s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
-		err := im.CheckRefs(func(id int64) (*wardload.WardRefs, error) { return loadWardRefs(ctx, tx, id, "") })
-		if err == nil {
-			err = insertObservations(ctx, tx, obs, im.BatchID(), now)
+		if err := im.CheckRefs(func(id int64) (*wardload.WardRefs, error) { return loadWardRefs(ctx, tx, id, "") }); err != nil {
+			return err
 		}
-		if err != nil {
+		if err := insertObservations(ctx, tx, obs, im.BatchID(), now); err != nil {
 			return err
 		}
 		im.Stored(now)
