@@ -81,7 +81,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	log.Info("database ready", "kind", st.Kind, "where", st.Where)
 
 	if *seed {
-		res, err := demo.Seed(ctx, st.Store, time.Now())
+		res, err := demo.Seed(ctx, st.Store, time.Now(), e.password)
 		if err != nil {
 			fmt.Fprintf(e.stderr, "wardload: cannot add demo data: %s\n", oneLine(err))
 			return exitFailure
@@ -97,6 +97,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	cfg.Now = time.Now
 	cfg.TrustForwardedFor = *trustXFF
 	cfg.DrainTimeout = *drain
+	cfg.Password = e.password
 	sessions := sessionStore(st)
 	defer sessions.StopCleanup()
 	cfg.SessionStore = sessions

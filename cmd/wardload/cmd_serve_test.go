@@ -57,7 +57,7 @@ func MustServe(tb testing.TB, args ...string) *serving {
 	tb.Helper()
 	ctx, cancel := context.WithCancel(context.Background())
 	s := &serving{stdout: &lockedBuffer{}, stderr: &lockedBuffer{}, cancel: cancel, done: make(chan int, 1)}
-	e := &env{stdin: strings.NewReader(""), stdout: s.stdout, stderr: s.stderr, getenv: func(string) string { return "" }}
+	e := &env{stdin: strings.NewReader(""), stdout: s.stdout, stderr: s.stderr, getenv: func(string) string { return "" }, password: testPassword}
 	go func() { s.done <- run(ctx, append([]string{"serve"}, args...), e) }()
 	deadline := time.After(60 * time.Second)
 	for s.URL == "" {

@@ -62,7 +62,7 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 	if u.WardIDs, err = wardIDs(ctx, st, *wards); err != nil {
 		return reportError(e, "user add", err)
 	}
-	if u.PasswordHash, err = password.Hash(pw); err != nil {
+	if u.PasswordHash, err = e.password.Hash(pw); err != nil {
 		return reportError(e, "user add", err)
 	}
 	ctx = wardload.WithActor(ctx, wardload.Actor{Name: "cli"})

@@ -14,12 +14,10 @@ import (
 	"wardload/internal/wardload"
 )
 
-func TestMain(m *testing.M) {
-	// Production argon2 parameters cost 64 MiB per hash; the hash itself
-	// is tested in internal/password.
-	password.DefaultParams = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
-	os.Exit(m.Run())
-}
+// testPassword are the argon2id parameters of the hashes the tests'
+// commands and servers make: production parameters cost 64 MiB per hash;
+// the hash itself is tested in internal/password.
+var testPassword = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
 
 // runCLI runs the command in args in-process against the SQLite database
 // in dir. --data-dir goes right after the command's name (one or two
@@ -27,7 +25,7 @@ func TestMain(m *testing.M) {
 func runCLI(t *testing.T, dir, stdin string, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	var out, errb bytes.Buffer
-	e := &env{stdin: strings.NewReader(stdin), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+	e := &env{stdin: strings.NewReader(stdin), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }, password: testPassword}
 	words := 1
 	if _, ok := commands[strings.Join(args[:min(2, len(args))], " ")]; ok && len(args) >= 2 {
 		words = 2
@@ -166,7 +164,7 @@ func TestWardList(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	res, err := demo.Seed(ctx, st, time.Date(2026, 11, 20, 9, 0, 0, 0, time.UTC))
+	res, err := demo.Seed(ctx, st, time.Date(2026, 11, 20, 9, 0, 0, 0, time.UTC), testPassword)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -199,7 +197,7 @@ func TestWardListNeedsDatabase(t *testing.T) {
 func TestUserAddFlagsAfterName(t *testing.T) {
 	dir := t.TempDir()
 	var out, errb bytes.Buffer
-	e := &env{stdin: strings.NewReader("a long password 1\n"), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+	e := &env{stdin: strings.NewReader("a long password 1\n"), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }, password: testPassword}
 	if code := run(context.Background(), []string{"user", "add", "ada.admin", "--role", "admin", "--data-dir", dir}, e); code != exitOK {
 		t.Fatalf("exit %d: %s", code, errb.String())
 	}

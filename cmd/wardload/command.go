@@ -8,6 +8,8 @@ import (
 	"sort"
 	"strings"
 	"time"
+
+	"wardload/internal/password"
 )
 
 // Exit statuses shared by every command.
@@ -25,6 +27,9 @@ type env struct {
 	stderr io.Writer
 	getenv func(string) string
 	now    func() time.Time // the clock; nil: time.Now
+	// password are the argon2id parameters of the password hashes
+	// commands make (zero: password.DefaultParams); tests pass cheap ones.
+	password password.Params
 }
 
 // clock returns the current time from e.now, or time.Now when unset.

@@ -5,7 +5,6 @@ import (
 	"crypto/rand"
 	"fmt"
 
-	"wardload/internal/password"
 	"wardload/internal/wardload"
 )
 
@@ -33,7 +32,7 @@ func (s *seeder) createUsers(ctx context.Context) error {
 	s.users = map[string]*wardload.User{}
 	for _, spec := range specs {
 		pw := rand.Text() // 26 base32 characters, about 130 bits
-		hash, err := password.Hash(pw)
+		hash, err := s.pw.Hash(pw)
 		if err != nil {
 			return fmt.Errorf("hash password of %s: %w", spec.name, err)
 		}

@@ -38,7 +38,7 @@ func TestSeedFailureLeavesNothing(t *testing.T) {
 		t.Fatal("the SQLite store does not implement demo.Atomic")
 	}
 	f := &failingStore{Store: st}
-	res, err := demo.Seed(ctx, f, now)
+	res, err := demo.Seed(ctx, f, now, testParams)
 	if !errors.Is(err, errInjected) || res != nil {
 		t.Fatalf("Seed = %v, %v; want the injected failure", res, err)
 	}

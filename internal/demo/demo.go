@@ -13,6 +13,7 @@ import (
 	"math/rand/v2"
 	"time"
 
+	"wardload/internal/password"
 	"wardload/internal/wardload"
 )
 
@@ -55,7 +56,10 @@ type Atomic interface {
 // transaction spanning its methods) a failure half-way leaves what was
 // created, and the next start finds the ward and reports it as present;
 // drop the demo database and start again.
-func Seed(ctx context.Context, st wardload.Store, now time.Time) (*Result, error) {
+//
+// pw are the argon2id parameters of the accounts' password hashes (zero:
+// password.DefaultParams); tests pass cheap ones.
+func Seed(ctx context.Context, st wardload.Store, now time.Time, pw password.Params) (*Result, error) {
 	existing, err := st.FindWardByCode(ctx, WardCode)
 	if err == nil {
 		return &Result{Created: false, Ward: existing}, nil
@@ -64,7 +68,7 @@ func Seed(ctx context.Context, st wardload.Store, now time.Time) (*Result, error
 	}
 
 	ctx = wardload.WithActor(ctx, wardload.Actor{Name: "demo"})
-	s := &seeder{st: st, rng: rand.New(rand.NewPCG(seedA, seedB))}
+	s := &seeder{st: st, rng: rand.New(rand.NewPCG(seedA, seedB)), pw: pw}
 	seed := func(ctx context.Context) error { return s.seed(ctx, now) }
 	if a, ok := st.(Atomic); ok {
 		err = a.Atomically(ctx, seed)
@@ -106,6 +110,7 @@ func (s *seeder) seed(ctx context.Context, now time.Time) error {
 type seeder struct {
 	st       wardload.Store
 	rng      *rand.Rand
+	pw       password.Params
 	ward     *wardload.Ward
 	tiers    []*wardload.Tier         // in tierSpecs order
 	shifts   []*wardload.ShiftPattern // in shiftSpecs order

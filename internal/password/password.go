@@ -20,7 +20,9 @@ import (
 	"wardload/internal/wardload"
 )
 
-// Params are argon2id cost parameters.
+// Params are argon2id cost parameters. The zero Params stands for
+// DefaultParams, so a configuration that leaves them unset gets production
+// strength; tests pass cheap ones of their own.
 type Params struct {
 	MemoryKiB uint32 // m
 	Time      uint32 // t, passes over memory
@@ -29,16 +31,14 @@ type Params struct {
 	KeyLen    uint32 // bytes
 }
 
-// DefaultParams are used by Hash: 64 MiB, one pass, two lanes. RFC 9106
-// section 4 recommends t=1 with 2 GiB, or t=3 with 64 MiB when memory is
-// constrained; we take 64 MiB with t=1 to keep a sign-in well under a second
-// on a small server (a trade-off, not the RFC's second option).
-//
-// It is a variable so that tests of packages that create many users can
-// lower the cost; production code must not change it.
-var DefaultParams = productionParams
-
-var productionParams = Params{MemoryKiB: 64 * 1024, Time: 1, Threads: 2, SaltLen: 16, KeyLen: 32}
+// DefaultParams returns the production parameters: 64 MiB, one pass, two
+// lanes. RFC 9106 section 4 recommends t=1 with 2 GiB, or t=3 with 64 MiB
+// when memory is constrained; we take 64 MiB with t=1 to keep a sign-in
+// well under a second on a small server (a trade-off, not the RFC's second
+// option).
+func DefaultParams() Params {
+	return Params{MemoryKiB: 64 * 1024, Time: 1, Threads: 2, SaltLen: 16, KeyLen: 32}
+}
 
 // MinLength is the shortest password ValidatePassword accepts, in characters.
 const MinLength = 10
@@ -64,12 +64,12 @@ func ValidatePassword(pw string) error {
 }
 
 // Hash returns the encoded argon2id hash of pw with a fresh random salt
-// and DefaultParams. It does not validate pw; callers do that first.
-func Hash(pw string) (string, error) {
-	return hashWith(pw, DefaultParams)
-}
-
-func hashWith(pw string, p Params) (string, error) {
+// and the parameters p (DefaultParams when p is zero). It does not
+// validate pw; callers do that first.
+func (p Params) Hash(pw string) (string, error) {
+	if p == (Params{}) {
+		p = DefaultParams()
+	}
 	salt := make([]byte, p.SaltLen)
 	if _, err := rand.Read(salt); err != nil {
 		return "", fmt.Errorf("password salt: %w", err)

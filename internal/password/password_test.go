@@ -11,11 +11,6 @@ import (
 // the same at any cost.
 var fastParams = Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
 
-func TestMain(m *testing.M) {
-	DefaultParams = fastParams
-	m.Run()
-}
-
 // Encoded hashes from the Argon2 reference implementation's test program,
 // phc-winner-argon2 src/test.c (argon2id, version 19, password "password",
 // salt "somesalt"). They pin our encoding and parameter parsing to an
@@ -41,14 +36,14 @@ func TestVerifyReferenceVectors(t *testing.T) {
 }
 
 func TestHashRoundTrip(t *testing.T) {
-	h1, err := Hash("correct horse battery")
+	h1, err := fastParams.Hash("correct horse battery")
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !strings.HasPrefix(h1, "$argon2id$v=19$m=64,t=1,p=1$") {
-		t.Errorf("Hash = %q; want the PHC prefix with DefaultParams", h1)
+		t.Errorf("Hash = %q; want the PHC prefix with the given parameters", h1)
 	}
-	h2, err := Hash("correct horse battery")
+	h2, err := fastParams.Hash("correct horse battery")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -71,11 +66,23 @@ func TestHashRoundTrip(t *testing.T) {
 }
 
 func TestDefaultParamsAreProductionStrength(t *testing.T) {
-	// TestMain lowered DefaultParams; this checks the value in the source
-	// by reading the literal that DefaultParams was initialised from.
 	want := Params{MemoryKiB: 64 * 1024, Time: 1, Threads: 2, SaltLen: 16, KeyLen: 32}
-	if productionParams != want {
-		t.Errorf("productionParams = %+v; want %+v", productionParams, want)
+	if got := DefaultParams(); got != want {
+		t.Errorf("DefaultParams() = %+v; want %+v", got, want)
+	}
+}
+
+// A configuration that leaves the parameters unset must not hash cheaply.
+func TestZeroParamsHashWithDefaults(t *testing.T) {
+	h, err := Params{}.Hash("correct horse battery")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.HasPrefix(h, "$argon2id$v=19$m=65536,t=1,p=2$") {
+		t.Errorf("zero Params hash = %q; want the production parameters", h)
+	}
+	if ok, err := Verify("correct horse battery", h); err != nil || !ok {
+		t.Errorf("Verify = %v, %v; want true, nil", ok, err)
 	}
 }
 

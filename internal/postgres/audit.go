@@ -2,7 +2,6 @@ package postgres
 
 import (
 	"context"
-	"encoding/json"
 	"time"
 
 	"github.com/jackc/pgx/v5"
@@ -20,42 +19,27 @@ func (s *Store) AppendAudit(ctx context.Context, e *wardload.AuditEntry) error {
 	})
 }
 
-func insertAudit(ctx context.Context, tx pgx.Tx, e *wardload.AuditEntry) error {
-	return tx.QueryRow(ctx, `
-		INSERT INTO audit_log (at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json)
-		VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
-		e.At.UTC(), e.UserID, e.Actor, e.Action, e.Entity, e.EntityID, e.WardID, e.Before, e.After,
-	).Scan(&e.ID)
+// insertAudit stores es in tx in one pipelined batch and sets their IDs.
+func insertAudit(ctx context.Context, tx pgx.Tx, es ...*wardload.AuditEntry) error {
+	b := &pgx.Batch{}
+	for _, e := range es {
+		b.Queue(`
+			INSERT INTO audit_log (at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json)
+			VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`,
+			e.At.UTC(), e.UserID, e.Actor, e.Action, e.Entity, e.EntityID, e.WardID, e.Before, e.After,
+		).QueryRow(func(r pgx.Row) error { return r.Scan(&e.ID) })
+	}
+	return tx.SendBatch(ctx, b).Close()
 }
 
-// audit writes the audit row of a change made in tx by the actor in ctx.
-// before and after are domain values (nil for none) turned into JSON; the
-// callers pass views without password or token hashes.
-func audit(ctx context.Context, tx pgx.Tx, now time.Time, action, entity string, entityID, wardID int64, before, after any) error {
-	a := wardload.ActorFrom(ctx)
-	b, err := auditJSON(before)
+// audit writes in tx the audit rows wardload.NewAudit makes of a change
+// by the actor in ctx.
+func audit(ctx context.Context, tx pgx.Tx, now time.Time, action string, before, after wardload.Audited) error {
+	es, err := wardload.NewAudit(ctx, now, action, before, after)
 	if err != nil {
 		return err
 	}
-	af, err := auditJSON(after)
-	if err != nil {
-		return err
-	}
-	return insertAudit(ctx, tx, &wardload.AuditEntry{
-		At: now, UserID: a.UserID, Actor: a.Name, Action: action, Entity: entity,
-		EntityID: entityID, WardID: wardID, Before: b, After: af,
-	})
-}
-
-func auditJSON(v any) (string, error) {
-	if v == nil {
-		return "", nil
-	}
-	b, err := json.Marshal(v)
-	if err != nil {
-		return "", err
-	}
-	return string(b), nil
+	return insertAudit(ctx, tx, es...)
 }
 
 // FindAudit returns matches newest first and the total count.

@@ -33,38 +33,13 @@ func createCensus(ctx context.Context, tx pgx.Tx, now time.Time, c *wardload.Cen
 	// Locking the ward row serialises census entries of one ward, so two
 	// charge nurses saving at once get revisions n and n+1 rather than a
 	// unique violation. NO KEY UPDATE still lets other rows refer to it.
-	var one int
-	err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR NO KEY UPDATE`, c.WardID).Scan(&one)
-	if err == pgx.ErrNoRows {
-		return out, wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
-	} else if err != nil {
-		return out, err
-	}
-	shifts, err := idSet(ctx, tx, `SELECT id FROM shift_patterns WHERE ward_id = $1`, c.WardID)
+	refs, err := loadWardRefs(ctx, tx, c.WardID, " FOR NO KEY UPDATE")
 	if err != nil {
 		return out, err
 	}
-	if !shifts[c.ShiftID] {
-		return out, wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found on this ward.")
-	}
-	tiers, err := findTiers(ctx, tx, c.WardID)
+	counts, err := c.CountsFor(refs)
 	if err != nil {
 		return out, err
-	}
-	given := map[int64]int{}
-	for _, tc := range c.Counts {
-		given[tc.TierID] = tc.Patients
-	}
-	counts := make([]wardload.TierCount, 0, len(tiers))
-	for _, t := range tiers {
-		n, ok := given[t.ID]
-		if ok {
-			delete(given, t.ID)
-		}
-		counts = append(counts, wardload.TierCount{TierID: t.ID, Patients: n})
-	}
-	if len(given) > 0 {
-		return out, wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "A counted tier is not a tier of this ward.")
 	}
 	out = wardload.Census{WardID: c.WardID, Date: c.Date, ShiftID: c.ShiftID, Counts: counts, EnteredBy: c.EnteredBy, EnteredAt: now}
 	if err := tx.QueryRow(ctx, `
@@ -80,7 +55,7 @@ func createCensus(ctx context.Context, tx pgx.Tx, now time.Time, c *wardload.Cen
 			return out, err
 		}
 	}
-	return out, audit(ctx, tx, now, "census.create", "census", out.ID, out.WardID, nil, &out)
+	return out, audit(ctx, tx, now, wardload.ActionCensusCreate, nil, &out)
 }
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.

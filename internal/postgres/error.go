@@ -13,50 +13,49 @@ import (
 	"wardload/internal/wardload"
 )
 
-// uniqueFields names, for each unique constraint, the input that clashed
-// and the message a user sees. Constraint names are fixed in the migrations.
-var uniqueFields = map[string]struct{ field, msg string }{
-	// Wording as internal/sqlite's, so users read the same on either backend.
-	"wards_code_key":                            {"code", "A ward with this code already exists."},
-	"tiers_ward_id_code_key":                    {"code", "The ward already has a tier with this code."},
-	"shift_patterns_ward_id_name_key":           {"name", "The ward already has a shift with this name."},
-	"users_name_key":                            {"name", "A user with this name already exists."},
-	"api_tokens_name_key":                       {"name", "A token with this name already exists."},
-	"api_tokens_hash_key":                       {"hash", "This token secret is already in use; generate a new one."},
-	"census_ward_id_date_shift_id_revision_key": {"", "Someone else saved this census at the same moment; please try again."},
-	"ratio_floors_key_idx":                      {"floors", "A shift has two ratio floors for the same tier."},
+// uniqueRules names, for each unique constraint, the domain's unique
+// rule, whose error says what a user reads. Constraint names are fixed in
+// the migrations.
+var uniqueRules = map[string]string{
+	"wards_code_key":                            wardload.UniqueWardCode,
+	"tiers_ward_id_code_key":                    wardload.UniqueTierCode,
+	"shift_patterns_ward_id_name_key":           wardload.UniqueShiftName,
+	"users_name_key":                            wardload.UniqueUserName,
+	"api_tokens_name_key":                       wardload.UniqueTokenName,
+	"api_tokens_hash_key":                       wardload.UniqueTokenHash,
+	"census_ward_id_date_shift_id_revision_key": wardload.UniqueCensusRevision,
+	"ratio_floors_key_idx":                      wardload.UniqueRatioFloor,
+}
+
+// sqlstateKinds maps the SQLSTATEs of constraint and concurrency failures
+// to the domain's kinds.
+var sqlstateKinds = map[string]wardload.ConstraintKind{
+	"23505": wardload.ConstraintUnique,      // unique_violation
+	"23503": wardload.ConstraintReference,   // foreign_key_violation
+	"23514": wardload.ConstraintRange,       // check_violation
+	"23502": wardload.ConstraintRange,       // not_null_violation
+	"40001": wardload.ConstraintConcurrency, // serialization_failure
+	"40P01": wardload.ConstraintConcurrency, // deadlock_detected
 }
 
 // formatError maps driver errors to wardload errors by SQLSTATE, the one
 // place that does so. Application errors pass through unchanged; anything
 // else stays an internal error whose text ErrorMessage never shows.
 func formatError(err error) error {
-	if err == nil {
-		return nil
-	}
-	var appErr *wardload.Error
-	if errors.As(err, &appErr) {
-		return err
-	}
 	var pgErr *pgconn.PgError
+	if wardload.ErrorCode(err) != wardload.EINTERNAL {
+		return err // nil or an application error
+	}
 	if !errors.As(err, &pgErr) {
 		if lostConnection(err) {
 			return wardload.Unavailable(wardload.EUNAVAILABLE, err)
 		}
 		return err
 	}
+	if kind, ok := sqlstateKinds[pgErr.Code]; ok {
+		return wardload.ConstraintError(kind, uniqueRules[pgErr.ConstraintName])
+	}
 	switch pgErr.Code {
-	case "23505": // unique_violation
-		if u, ok := uniqueFields[pgErr.ConstraintName]; ok {
-			return wardload.FieldErrorf(wardload.ECONFLICT, u.field, "%s", u.msg)
-		}
-		return wardload.Errorf(wardload.ECONFLICT, "This entry already exists.")
-	case "23503": // foreign_key_violation
-		return wardload.Errorf(wardload.ENOTFOUND, "A ward, tier, shift or user referred to does not exist.")
-	case "23514", "23502": // check_violation, not_null_violation
-		return wardload.Errorf(wardload.EINVALID, "A value is missing or out of range.")
-	case "40001", "40P01": // serialization_failure, deadlock_detected
-		return wardload.Errorf(wardload.ECONFLICT, "A concurrent change won; please try again.")
 	case "53100": // disk_full
 		return wardload.Unavailable(wardload.EFULL, err)
 	case "57P01", "57P02", "57P03", "53300": // admin_shutdown, crash_shutdown, cannot_connect_now, too_many_connections

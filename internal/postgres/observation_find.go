@@ -2,7 +2,6 @@ package postgres
 
 import (
 	"context"
-	"strings"
 	"time"
 
 	"github.com/jackc/pgx/v5"
@@ -103,51 +102,34 @@ func queryObservations(ctx context.Context, q querier, sql string, args ...any) 
 
 // ExcludeObservation marks an observation as excluded with a reason.
 func (s *Store) ExcludeObservation(ctx context.Context, id int64, reason string, by int64) (*wardload.Observation, error) {
-	if err := wardload.ValidExclusionReason(reason); err != nil {
-		return nil, err
-	}
-	reason = strings.TrimSpace(reason)
-	return s.setExcluded(ctx, id, "observation.exclude", func(o *wardload.Observation, now time.Time) error {
-		if o.Excluded {
-			return wardload.Errorf(wardload.ECONFLICT, "This observation is already excluded.")
-		}
-		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = true, reason, by, now
-		return nil
-	})
+	return s.review(ctx, id, wardload.Exclusion(reason, by))
 }
 
 // RestoreObservation includes an excluded observation again.
 func (s *Store) RestoreObservation(ctx context.Context, id int64, by int64) (*wardload.Observation, error) {
-	return s.setExcluded(ctx, id, "observation.restore", func(o *wardload.Observation, now time.Time) error {
-		if !o.Excluded {
-			return wardload.Errorf(wardload.ECONFLICT, "This observation is not excluded.")
-		}
-		// The restore itself is attributed in the audit row; the
-		// observation keeps no trace of a past exclusion.
-		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = false, "", 0, time.Time{}
-		return nil
-	})
+	return s.review(ctx, id, wardload.Restoration())
 }
 
-// setExcluded locks the observation, lets change alter its review state,
-// stores it and writes the audit row.
-func (s *Store) setExcluded(ctx context.Context, id int64, action string, change func(*wardload.Observation, time.Time) error) (*wardload.Observation, error) {
+// review locks the observation, makes change to its review state, stores
+// it and writes the audit row.
+func (s *Store) review(ctx context.Context, id int64, change wardload.ReviewChange) (*wardload.Observation, error) {
+	if change.Err() != nil {
+		return nil, change.Err()
+	}
 	var out *wardload.Observation
 	err := s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
 		before, err := findObservation(ctx, tx, id, " FOR UPDATE")
 		if err != nil {
 			return err
 		}
-		o := *before
-		if err := change(&o, now); err != nil {
+		if out, err = change.Apply(before, now); err != nil {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `UPDATE observations SET excluded = $1, excluded_reason = $2, excluded_by = $3, excluded_at = $4 WHERE id = $5`,
-			o.Excluded, o.ExcludedReason, o.ExcludedBy, timeArg(o.ExcludedAt), id); err != nil {
+			out.Excluded, out.ExcludedReason, out.ExcludedBy, timeArg(out.ExcludedAt), id); err != nil {
 			return err
 		}
-		out = &o
-		return audit(ctx, tx, now, action, "observation", id, o.WardID, before, &o)
+		return audit(ctx, tx, now, change.Action, before, out)
 	})
 	if err != nil {
 		return nil, err

@@ -13,17 +13,8 @@ import (
 // CreateCensusProjection stores c as the next census revision and p as its
 // projection in one transaction.
 func (s *Store) CreateCensusProjection(ctx context.Context, c *wardload.Census, p *wardload.Projection) error {
-	if err := c.Validate(); err != nil {
+	if err := wardload.ValidateCensusProjection(c, p); err != nil {
 		return err
-	}
-	if err := p.Validate(); err != nil {
-		return err
-	}
-	if p.WardID != c.WardID || p.ShiftID != c.ShiftID || p.Date != c.Date {
-		return wardload.FieldErrorf(wardload.EINVALID, "projection", "The projection is not of this census's ward, date and shift.")
-	}
-	if p.TotalPatients != c.Total() {
-		return wardload.FieldErrorf(wardload.EINVALID, "projection", "The projection's patient total differs from the census.")
 	}
 	var census wardload.Census
 	var stored *wardload.Projection
@@ -50,9 +41,7 @@ func (s *Store) CreateCensusProjection(ctx context.Context, c *wardload.Census, 
 		if stored, err = one(ps, err, "Projection"); err != nil {
 			return err
 		}
-		view := *stored
-		view.Input, view.Result = "", "" // stored once, in the projection
-		return audit(ctx, tx, now, "projection.create", "projection", stored.ID, stored.WardID, nil, &view)
+		return audit(ctx, tx, now, wardload.ActionProjectionCreate, nil, stored)
 	})
 	if err != nil {
 		return err

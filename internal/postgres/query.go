@@ -84,7 +84,7 @@ func one[T any](items []T, err error, what string) (T, error) {
 		return zero, err
 	}
 	if len(items) == 0 {
-		return zero, notFound(what)
+		return zero, wardload.NotFound(what)
 	}
 	return items[0], nil
 }

@@ -63,21 +63,12 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 		if err != nil {
 			return err
 		}
-		shifts, err := idSet(ctx, tx, `SELECT id FROM shift_patterns WHERE ward_id = $1`, st.WardID)
+		refs, err := loadWardRefs(ctx, tx, st.WardID, "")
 		if err != nil {
 			return err
 		}
-		tiers, err := idSet(ctx, tx, `SELECT id FROM tiers WHERE ward_id = $1`, st.WardID)
-		if err != nil {
+		if err := st.CheckRefs(refs); err != nil {
 			return err
-		}
-		for _, f := range st.Floors {
-			if !shifts[f.ShiftID] {
-				return wardload.FieldErrorf(wardload.ENOTFOUND, "floors", "A ratio floor names a shift that is not on this ward.")
-			}
-			if f.TierID != 0 && !tiers[f.TierID] {
-				return wardload.FieldErrorf(wardload.ENOTFOUND, "floors", "A ratio floor names a tier that is not on this ward.")
-			}
 		}
 		if _, err := tx.Exec(ctx, `
 			INSERT INTO ward_settings (ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at)
@@ -104,10 +95,6 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			}
 		}
 		st.UpdatedAt = now
-		var b any
-		if !before.UpdatedAt.IsZero() { // defaults were never saved: nothing before
-			b = before
-		}
-		return audit(ctx, tx, now, "settings.save", "settings", st.WardID, st.WardID, b, st)
+		return audit(ctx, tx, now, wardload.ActionSettingsSave, before, st)
 	})
 }

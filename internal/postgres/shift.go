@@ -23,7 +23,7 @@ func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern
 			p.WardID, p.Name, p.StartMinute, p.NominalHours).Scan(&p.ID); err != nil {
 			return err
 		}
-		return audit(ctx, tx, now, "shift.create", "shift", p.ID, p.WardID, nil, p)
+		return audit(ctx, tx, now, wardload.ActionShiftCreate, nil, p)
 	})
 }
 
@@ -67,25 +67,16 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 		if err != nil {
 			return err
 		}
-		p := *before
-		if upd.Name != nil {
-			p.Name = *upd.Name
-		}
-		if upd.StartMinute != nil {
-			p.StartMinute = *upd.StartMinute
-		}
-		if upd.NominalHours != nil {
-			p.NominalHours = *upd.NominalHours
-		}
-		if err := p.Validate(); err != nil {
+		p, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `UPDATE shift_patterns SET name = $1, start_minute = $2, nominal_hours = $3 WHERE id = $4`,
 			p.Name, p.StartMinute, p.NominalHours, id); err != nil {
 			return err
 		}
-		out = &p
-		return audit(ctx, tx, now, "shift.update", "shift", id, p.WardID, before, &p)
+		out = p
+		return audit(ctx, tx, now, wardload.ActionShiftUpdate, before, p)
 	})
 	if err != nil {
 		return nil, err

@@ -23,7 +23,7 @@ func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
 			t.WardID, t.Code, t.Label, t.Description, t.DisplayOrder).Scan(&t.ID); err != nil {
 			return err
 		}
-		return audit(ctx, tx, now, "tier.create", "tier", t.ID, t.WardID, nil, t)
+		return audit(ctx, tx, now, wardload.ActionTierCreate, nil, t)
 	})
 }
 
@@ -33,7 +33,7 @@ func wardExists(ctx context.Context, q querier, id int64) error {
 	var one int
 	err := q.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1`, id).Scan(&one)
 	if err == pgx.ErrNoRows {
-		return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
+		return wardload.WardNotFound()
 	}
 	return err
 }
@@ -62,11 +62,7 @@ func findTier(ctx context.Context, q querier, id int64, lock string) (*wardload.
 
 // FindTiers returns the ward's tiers by DisplayOrder then Code.
 func (s *Store) FindTiers(ctx context.Context, wardID int64) ([]*wardload.Tier, error) {
-	return findTiers(ctx, s.pool, wardID)
-}
-
-func findTiers(ctx context.Context, q querier, wardID int64) ([]*wardload.Tier, error) {
-	rows, err := q.Query(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = $1 ORDER BY display_order, code`, wardID)
+	rows, err := s.pool.Query(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = $1 ORDER BY display_order, code`, wardID)
 	if err != nil {
 		return nil, formatError(err)
 	}
@@ -82,25 +78,16 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 		if err != nil {
 			return err
 		}
-		t := *before
-		if upd.Label != nil {
-			t.Label = *upd.Label
-		}
-		if upd.Description != nil {
-			t.Description = *upd.Description
-		}
-		if upd.DisplayOrder != nil {
-			t.DisplayOrder = *upd.DisplayOrder
-		}
-		if err := t.Validate(); err != nil {
+		t, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `UPDATE tiers SET label = $1, description = $2, display_order = $3 WHERE id = $4`,
 			t.Label, t.Description, t.DisplayOrder, id); err != nil {
 			return err
 		}
-		out = &t
-		return audit(ctx, tx, now, "tier.update", "tier", id, t.WardID, before, &t)
+		out = t
+		return audit(ctx, tx, now, wardload.ActionTierUpdate, before, t)
 	})
 	if err != nil {
 		return nil, err

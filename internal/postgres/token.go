@@ -9,20 +9,6 @@ import (
 	"wardload/internal/wardload"
 )
 
-// tokenAudit is what the audit log keeps of a token: never its hash.
-type tokenAudit struct {
-	ID        int64
-	Name      string
-	WardIDs   []int64
-	CreatedBy int64
-	CreatedAt time.Time
-	RevokedAt time.Time
-}
-
-func auditToken(t *wardload.APIToken) tokenAudit {
-	return tokenAudit{t.ID, t.Name, t.WardIDs, t.CreatedBy, t.CreatedAt, t.RevokedAt}
-}
-
 // CreateToken returns EINVALID, ENOTFOUND (a ward) or ECONFLICT (name taken).
 func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 	if err := t.Validate(); err != nil {
@@ -33,18 +19,12 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 			VALUES ($1, $2, $3, $4) RETURNING id`, t.Name, t.Hash, t.CreatedBy, now).Scan(&t.ID); err != nil {
 			return err
 		}
-		wards, err := setMemberships(ctx, tx, `token_wards`, `token_id`, t.ID, t.WardIDs)
-		if err != nil {
+		wards := wardload.WardIDSet(t.WardIDs)
+		if err := setMemberships(ctx, tx, `token_wards`, `token_id`, t.ID, wards); err != nil {
 			return err
 		}
 		t.WardIDs, t.CreatedAt, t.LastUsedAt, t.RevokedAt = wards, now, time.Time{}, time.Time{}
-		// One row per ward, so each ward's managers see the token in their audit log.
-		for _, w := range wards {
-			if err := audit(ctx, tx, now, "token.create", "token", t.ID, w, nil, auditToken(t)); err != nil {
-				return err
-			}
-		}
-		return nil
+		return audit(ctx, tx, now, wardload.ActionTokenCreate, nil, t)
 	})
 }
 
@@ -105,20 +85,14 @@ func (s *Store) RevokeToken(ctx context.Context, id int64) error {
 		if err != nil {
 			return err
 		}
-		if !before.Active() {
-			return wardload.Errorf(wardload.ECONFLICT, "This token is already revoked.")
+		after, err := before.Revoked(now)
+		if err != nil {
+			return err
 		}
 		if _, err := tx.Exec(ctx, `UPDATE api_tokens SET revoked_at = $1 WHERE id = $2`, now, id); err != nil {
 			return err
 		}
-		after := *before
-		after.RevokedAt = now
-		for _, w := range before.WardIDs {
-			if err := audit(ctx, tx, now, "token.revoke", "token", id, w, auditToken(before), auditToken(&after)); err != nil {
-				return err
-			}
-		}
-		return nil
+		return audit(ctx, tx, now, wardload.ActionTokenRevoke, before, after)
 	})
 }
 
@@ -130,7 +104,7 @@ func (s *Store) TouchToken(ctx context.Context, id int64, at time.Time) error {
 		return formatError(err)
 	}
 	if tag.RowsAffected() == 0 {
-		return notFound("Token")
+		return wardload.NotFound("Token")
 	}
 	return nil
 }

@@ -2,27 +2,12 @@ package postgres
 
 import (
 	"context"
-	"slices"
 	"time"
 
 	"github.com/jackc/pgx/v5"
 
 	"wardload/internal/wardload"
 )
-
-// userAudit is what the audit log keeps of a user: never the password hash.
-type userAudit struct {
-	ID        int64
-	Name      string
-	Role      string
-	Disabled  bool
-	WardIDs   []int64
-	CreatedAt time.Time
-}
-
-func auditUser(u *wardload.User) userAudit {
-	return userAudit{u.ID, u.Name, u.Role, u.Disabled, u.WardIDs, u.CreatedAt}
-}
 
 // CreateUser returns EINVALID, ENOTFOUND (a ward) or ECONFLICT (name taken).
 func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
@@ -34,40 +19,37 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 			VALUES ($1, $2, $3, $4, $5) RETURNING id`, u.Name, u.Role, u.PasswordHash, u.Disabled, now).Scan(&u.ID); err != nil {
 			return err
 		}
-		wards, err := setMemberships(ctx, tx, `user_wards`, `user_id`, u.ID, u.WardIDs)
-		if err != nil {
+		wards := wardload.WardIDSet(u.WardIDs)
+		if err := setMemberships(ctx, tx, `user_wards`, `user_id`, u.ID, wards); err != nil {
 			return err
 		}
 		u.WardIDs, u.CreatedAt = wards, now
-		return audit(ctx, tx, now, "user.create", "user", u.ID, 0, nil, auditUser(u))
+		return audit(ctx, tx, now, wardload.ActionUserCreate, nil, u)
 	})
 }
 
-// setMemberships replaces the ward links of a user or token and returns the
-// ward IDs ascending and without repeats. Returns ENOTFOUND for a missing ward.
-func setMemberships(ctx context.Context, tx pgx.Tx, table, column string, id int64, wardIDs []int64) ([]int64, error) {
+// setMemberships replaces the ward links of a user or token with wardIDs,
+// a wardload.WardIDSet. An unknown ward is wardload.UnknownWard.
+func setMemberships(ctx context.Context, tx pgx.Tx, table, column string, id int64, wardIDs []int64) error {
 	if _, err := tx.Exec(ctx, `DELETE FROM `+table+` WHERE `+column+` = $1`, id); err != nil {
-		return nil, err
+		return err
 	}
-	ids := slices.Clone(wardIDs)
-	slices.Sort(ids)
-	ids = slices.Compact(ids)
-	if len(ids) == 0 {
-		return nil, nil
+	if len(wardIDs) == 0 {
+		return nil
 	}
-	known, err := idSet(ctx, tx, `SELECT id FROM wards WHERE id = ANY($1)`, ids)
+	known, err := idSet(ctx, tx, `SELECT id FROM wards WHERE id = ANY($1)`, wardIDs)
 	if err != nil {
-		return nil, err
+		return err
 	}
-	for _, w := range ids {
+	for _, w := range wardIDs {
 		if !known[w] {
-			return nil, wardload.FieldErrorf(wardload.ENOTFOUND, "wards", "Ward %d not found.", w)
+			return wardload.UnknownWard(w)
 		}
 		if _, err := tx.Exec(ctx, `INSERT INTO `+table+` (`+column+`, ward_id) VALUES ($1, $2)`, id, w); err != nil {
-			return nil, err
+			return err
 		}
 	}
-	return ids, nil
+	return nil
 }
 
 // FindUserByID returns ENOTFOUND if there is no such user.
@@ -158,17 +140,8 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 		if err != nil {
 			return err
 		}
-		u := *before
-		if upd.Role != nil {
-			u.Role = *upd.Role
-		}
-		if upd.PasswordHash != nil {
-			u.PasswordHash = *upd.PasswordHash
-		}
-		if upd.Disabled != nil {
-			u.Disabled = *upd.Disabled
-		}
-		if err := u.Validate(); err != nil {
+		u, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `UPDATE users SET role = $1, password_hash = $2, disabled = $3 WHERE id = $4`,
@@ -176,12 +149,12 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 			return err
 		}
 		if upd.WardIDs != nil {
-			if u.WardIDs, err = setMemberships(ctx, tx, `user_wards`, `user_id`, id, upd.WardIDs); err != nil {
+			if err := setMemberships(ctx, tx, `user_wards`, `user_id`, id, u.WardIDs); err != nil {
 				return err
 			}
 		}
-		out = &u
-		return audit(ctx, tx, now, "user.update", "user", id, 0, auditUser(before), auditUser(&u))
+		out = u
+		return audit(ctx, tx, now, wardload.ActionUserUpdate, before, u)
 	})
 	if err != nil {
 		return nil, err

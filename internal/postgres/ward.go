@@ -23,7 +23,7 @@ func (s *Store) CreateWard(ctx context.Context, w *wardload.Ward) error {
 			return err
 		}
 		w.CreatedAt = now
-		return audit(ctx, tx, now, "ward.create", "ward", w.ID, w.ID, nil, w)
+		return audit(ctx, tx, now, wardload.ActionWardCreate, nil, w)
 	})
 }
 
@@ -112,17 +112,8 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 		if err != nil {
 			return err
 		}
-		w := *before
-		if upd.Name != nil {
-			w.Name = *upd.Name
-		}
-		if upd.TimeZone != nil {
-			w.TimeZone = *upd.TimeZone
-		}
-		if upd.FactorNames != nil {
-			w.FactorNames = append([]string(nil), upd.FactorNames...)
-		}
-		if err := w.Validate(); err != nil {
+		w, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `UPDATE wards SET name = $1, time_zone = $2 WHERE id = $3`, w.Name, w.TimeZone, id); err != nil {
@@ -133,11 +124,27 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 				return err
 			}
 		}
-		out = &w
-		return audit(ctx, tx, now, "ward.update", "ward", id, id, before, &w)
+		out = w
+		return audit(ctx, tx, now, wardload.ActionWardUpdate, before, w)
 	})
 	if err != nil {
 		return nil, err
 	}
 	return out, nil
+}
+
+// loadWardRefs returns what the rows of ward id may refer to, in one
+// query, or wardload.WardNotFound; lock is a locking clause for the ward
+// row, or "".
+func loadWardRefs(ctx context.Context, q querier, id int64, lock string) (*wardload.WardRefs, error) {
+	r := &wardload.WardRefs{WardID: id}
+	err := q.QueryRow(ctx, `SELECT
+		ARRAY(SELECT id FROM tiers WHERE ward_id = w.id ORDER BY display_order, code),
+		ARRAY(SELECT id FROM shift_patterns WHERE ward_id = w.id ORDER BY start_minute, name),
+		ARRAY(SELECT name FROM ward_factors WHERE ward_id = w.id ORDER BY position)
+		FROM wards w WHERE w.id = $1`+lock, id).Scan(&r.Tiers, &r.Shifts, &r.Factors)
+	if err == pgx.ErrNoRows {
+		return nil, wardload.WardNotFound()
+	}
+	return r, err
 }

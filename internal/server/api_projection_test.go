@@ -29,7 +29,7 @@ func newAPIFixture(t *testing.T) *apiFixture {
 	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
 	f := &apiFixture{st: MustOpenSQLite(t)}
 	now := time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)
-	res, err := demo.Seed(ctx, f.st, now)
+	res, err := demo.Seed(ctx, f.st, now, testPassword)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -6,7 +6,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"net/url"
-	"os"
 	"strings"
 	"sync"
 	"testing"
@@ -19,12 +18,10 @@ import (
 	"wardload/internal/wardload"
 )
 
-func TestMain(m *testing.M) {
-	// Production argon2 parameters cost 64 MiB per hash; the hash itself
-	// is tested in internal/password.
-	password.DefaultParams = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
-	os.Exit(m.Run())
-}
+// testPassword are the argon2id parameters of the tests' servers and
+// users: production parameters cost 64 MiB per hash; the hash itself is
+// tested in internal/password.
+var testPassword = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
 
 // testClock is a settable clock for sessions and throttling.
 type testClock struct {
@@ -92,6 +89,7 @@ func newFixture(tb testing.TB) *fixture {
 	}
 
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	cfg.Store = f.st
 	cfg.Logger = slog.New(slog.NewTextHandler(f.logs, &slog.HandlerOptions{Level: slog.LevelDebug}))
 	cfg.Now = f.clock.Now
@@ -108,7 +106,7 @@ func newFixture(tb testing.TB) *fixture {
 // MustUser creates a user; p names the principal ("" for none).
 func (f *fixture) MustUser(tb testing.TB, p, name, role, pw string, wards ...int64) *wardload.User {
 	tb.Helper()
-	h, err := password.Hash(pw)
+	h, err := testPassword.Hash(pw)
 	if err != nil {
 		tb.Fatal(err)
 	}

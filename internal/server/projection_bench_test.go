@@ -30,10 +30,11 @@ func newBenchPage(b *testing.B) *benchPage {
 	ctx := context.Background()
 	now := time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)
 	st := MustOpenSQLite(b)
-	if _, err := demo.Seed(ctx, st, now); err != nil {
+	if _, err := demo.Seed(ctx, st, now, testPassword); err != nil {
 		b.Fatal(err)
 	}
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	cfg.Store = st
 	cfg.Logger = slog.New(slog.NewTextHandler(io.Discard, nil))
 	cfg.Now = func() time.Time { return now }

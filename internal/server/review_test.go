@@ -28,7 +28,7 @@ type reviewFixture struct {
 func newReviewFixture(tb testing.TB) *reviewFixture {
 	tb.Helper()
 	f := &reviewFixture{fixture: newFixture(tb)}
-	res, err := demo.Seed(context.Background(), f.st, f.clock.Now())
+	res, err := demo.Seed(context.Background(), f.st, f.clock.Now(), testPassword)
 	if err != nil {
 		tb.Fatal(err)
 	}

@@ -17,6 +17,7 @@ import (
 
 	"github.com/alexedwards/scs/v2"
 
+	"wardload/internal/password"
 	"wardload/internal/projector"
 	"wardload/internal/wardload"
 	"wardload/web"
@@ -70,6 +71,10 @@ type Config struct {
 	HashConcurrency int
 	HashQueue       int
 	HashWait        time.Duration
+	// Password are the argon2id parameters of the hashes the server makes
+	// (new and reset passwords); zero means password.DefaultParams. Tests
+	// pass cheap ones. Existing hashes carry their own parameters.
+	Password password.Params
 
 	// MaxBodyBytes caps every request body; larger bodies fail with 413.
 	MaxBodyBytes int64
@@ -118,6 +123,7 @@ func DefaultConfig() Config {
 		HashConcurrency:   2,
 		HashQueue:         8,
 		HashWait:          2 * time.Second,
+		Password:          password.DefaultParams(),
 	}
 }
 

@@ -105,6 +105,7 @@ func MustNew(tb testing.TB, st wardload.Store) (*Server, *logBuffer) {
 	tb.Helper()
 	logs := &logBuffer{}
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	cfg.Store = st
 	cfg.Logger = slog.New(slog.NewTextHandler(logs, &slog.HandlerOptions{Level: slog.LevelDebug}))
 	cfg.Now = func() time.Time { return time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC) }
@@ -166,6 +167,7 @@ func text(n *html.Node) string {
 
 func TestNewRequiresStoreAndLogger(t *testing.T) {
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	if _, err := New(cfg); err == nil {
 		t.Error("New without Store: want error")
 	}
@@ -222,6 +224,7 @@ func TestNewRefusesUndeclaredRoute(t *testing.T) {
 
 func TestServeAndShutdown(t *testing.T) {
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	cfg.Addr = "127.0.0.1:0"
 	cfg.Store = newFakeStore()
 	cfg.Logger = slog.New(slog.NewTextHandler(io.Discard, nil))

@@ -256,7 +256,7 @@ func (s *Server) writeFailureRows(ctx context.Context, rows []*wardload.AuditEnt
 func (s *Server) dummyHash() string {
 	s.dummyOnce.Do(func() {
 		secret, _ := NewTokenSecret()
-		h, err := password.Hash(secret)
+		h, err := s.cfg.Password.Hash(secret)
 		if err != nil {
 			h = "$argon2id$v=19$m=65536,t=1,p=2$AAAAAAAAAAAAAAAAAAAAAA$AAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAA"
 		}

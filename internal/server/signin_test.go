@@ -80,6 +80,7 @@ func withCookie(req *http.Request, f *fixture, token string) *http.Request {
 func TestSecureCookies(t *testing.T) {
 	st := MustOpenSQLite(t)
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	cfg.Store, cfg.Logger, cfg.SecureCookies = st, newFixture(t).s.log, true
 	s, err := New(cfg)
 	if err != nil {

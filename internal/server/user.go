@@ -82,7 +82,7 @@ func (s *Server) handleUserCreate(w http.ResponseWriter, r *http.Request) error 
 	if err := password.ValidatePassword(pw); err != nil {
 		return invalid(err)
 	}
-	if u.PasswordHash, err = password.Hash(pw); err != nil {
+	if u.PasswordHash, err = s.cfg.Password.Hash(pw); err != nil {
 		return fmt.Errorf("user create: %w", err)
 	}
 	if err := s.store.CreateUser(r.Context(), u); err != nil {
@@ -141,7 +141,7 @@ func (s *Server) handleUserUpdate(w http.ResponseWriter, r *http.Request) error 
 		if err := password.ValidatePassword(pw); err != nil {
 			return rowError(err)
 		}
-		h, err := password.Hash(pw)
+		h, err := s.cfg.Password.Hash(pw)
 		if err != nil {
 			return fmt.Errorf("user update: %w", err)
 		}

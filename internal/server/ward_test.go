@@ -13,7 +13,6 @@ import (
 
 	"github.com/alexedwards/scs/sqlite3store"
 
-	"wardload/internal/password"
 	"wardload/internal/wardload"
 )
 
@@ -214,7 +213,7 @@ func TestWardCreateBadInput(t *testing.T) {
 // pattern and a tier on its settings page, and the census page is ready.
 func TestNewWardJourney(t *testing.T) {
 	st := MustOpenSQLite(t)
-	h, err := password.Hash("first admin password")
+	h, err := testPassword.Hash("first admin password")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -223,6 +222,7 @@ func TestNewWardJourney(t *testing.T) {
 		t.Fatal(err)
 	}
 	cfg := DefaultConfig()
+	cfg.Password = testPassword
 	cfg.Store = st
 	cfg.Logger = slog.New(slog.NewTextHandler(&logBuffer{}, nil))
 	// 09:00 in Dublin on a Monday in March (GMT): inside the day shift.

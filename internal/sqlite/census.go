@@ -2,7 +2,6 @@ package sqlite
 
 import (
 	"context"
-	"slices"
 	"strings"
 
 	"wardload/internal/wardload"
@@ -18,24 +17,13 @@ func (s *Store) CreateCensus(ctx context.Context, c *wardload.Census) error {
 
 // createCensus is CreateCensus inside tx, shared with CreateCensusProjection.
 func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
-	if err := wardExists(ctx, tx, c.WardID); err != nil {
-		return err
-	}
-	if ok, err := shiftOfWard(ctx, tx, c.WardID, c.ShiftID); err != nil {
-		return err
-	} else if !ok {
-		return wardload.FieldErrorf(wardload.ENOTFOUND, "shift", "Shift not found for this ward.")
-	}
-	tiers, err := idList(ctx, tx, `SELECT id FROM tiers WHERE ward_id = ? ORDER BY id`, c.WardID)
+	refs, err := loadWardRefs(ctx, tx, c.WardID)
 	if err != nil {
 		return err
 	}
-	given := map[int64]int{}
-	for _, tc := range c.Counts {
-		if !slices.Contains(tiers, tc.TierID) {
-			return wardload.FieldErrorf(wardload.ENOTFOUND, "tier", "Tier not found for this ward.")
-		}
-		given[tc.TierID] = tc.Patients
+	counts, err := c.CountsFor(refs)
+	if err != nil {
+		return err
 	}
 	var rev int
 	if err := tx.QueryRowContext(ctx, `SELECT COALESCE(MAX(revision), 0) + 1 FROM census WHERE ward_id = ? AND date = ? AND shift_id = ?`,
@@ -51,9 +39,8 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 	if err != nil {
 		return err
 	}
-	// Every tier of the ward gets a row: a tier left out was counted as empty.
-	for _, tid := range tiers {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES (?, ?, ?)`, id, tid, given[tid]); err != nil {
+	for _, tc := range counts {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO census_counts (census_id, tier_id, patients) VALUES (?, ?, ?)`, id, tc.TierID, tc.Patients); err != nil {
 			return err
 		}
 	}
@@ -62,7 +49,7 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 		return err
 	}
 	c.ID, c.Revision, c.EnteredAt = id, rev, tx.now
-	return tx.audit("census.create", "census", id, c.WardID, nil, stored)
+	return tx.audit(wardload.ActionCensusCreate, nil, stored)
 }
 
 // FindCensusByID returns ENOTFOUND if there is no such entry.
@@ -82,7 +69,7 @@ func findOneCensus(ctx context.Context, q querier, id int64) (*wardload.Census, 
 		return nil, err
 	}
 	if len(cs) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Census entry not found.")
+		return nil, wardload.NotFound("Census entry")
 	}
 	return cs[0], nil
 }

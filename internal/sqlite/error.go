@@ -14,18 +14,28 @@ import (
 // uniqueColumns finds "table.column, table.column" in a UNIQUE failure.
 var uniqueColumns = regexp.MustCompile(`UNIQUE constraint failed: ([\w.]+(?:, [\w.]+)*)`)
 
-// uniqueConflicts names, per constrained column list, the field and the
-// message a user sees. The service code checks most of these first; this
-// catches the race where two writers pass the check together, and anything
-// a check forgot.
-var uniqueConflicts = map[string]*wardload.Error{
-	"wards.code":                                 wardload.FieldErrorf(wardload.ECONFLICT, "code", "A ward with this code already exists."),
-	"tiers.ward_id,tiers.code":                   wardload.FieldErrorf(wardload.ECONFLICT, "code", "The ward already has a tier with this code."),
-	"shift_patterns.ward_id,shift_patterns.name": wardload.FieldErrorf(wardload.ECONFLICT, "name", "The ward already has a shift with this name."),
-	"users.name":                                 wardload.FieldErrorf(wardload.ECONFLICT, "name", "A user with this name already exists."),
-	"api_tokens.name":                            wardload.FieldErrorf(wardload.ECONFLICT, "name", "A token with this name already exists."),
-	"api_tokens.hash":                            wardload.FieldErrorf(wardload.ECONFLICT, "hash", "This token secret is already in use; generate a new one."),
-	"census.ward_id,census.date,census.shift_id,census.revision": wardload.Errorf(wardload.ECONFLICT, "Someone else saved this census at the same moment; please try again."),
+// uniqueRules names, per constrained column list, the domain's unique
+// rule, whose error says what a user reads. The service code checks most
+// of these first; this catches the race where two writers pass the check
+// together, and anything a check forgot.
+var uniqueRules = map[string]string{
+	"wards.code":                                 wardload.UniqueWardCode,
+	"tiers.ward_id,tiers.code":                   wardload.UniqueTierCode,
+	"shift_patterns.ward_id,shift_patterns.name": wardload.UniqueShiftName,
+	"users.name":                                 wardload.UniqueUserName,
+	"api_tokens.name":                            wardload.UniqueTokenName,
+	"api_tokens.hash":                            wardload.UniqueTokenHash,
+	"census.ward_id,census.date,census.shift_id,census.revision": wardload.UniqueCensusRevision,
+}
+
+// constraintKinds maps SQLite's extended result codes of constraint
+// failures to the domain's kinds.
+var constraintKinds = map[int]wardload.ConstraintKind{
+	sqlite3.SQLITE_CONSTRAINT_UNIQUE:     wardload.ConstraintUnique,
+	sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY: wardload.ConstraintUnique,
+	sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY: wardload.ConstraintReference,
+	sqlite3.SQLITE_CONSTRAINT_CHECK:      wardload.ConstraintRange,
+	sqlite3.SQLITE_CONSTRAINT_NOTNULL:    wardload.ConstraintRange,
 }
 
 // formatError is the one place driver errors become domain errors. An
@@ -33,15 +43,11 @@ var uniqueConflicts = map[string]*wardload.Error{
 // a message of our own; anything else stays an internal error, whose text
 // wardload.ErrorMessage never shows to a user.
 func formatError(err error) error {
-	if err == nil {
-		return nil
-	}
-	var we *wardload.Error
-	if errors.As(err, &we) {
-		return err
-	}
 	var se *sqlite.Error
-	if !errors.As(err, &se) {
+	// nil, an application error (its code is not EINTERNAL) and anything
+	// not from the driver pass through, as do failures other than
+	// constraints.
+	if wardload.ErrorCode(err) != wardload.EINTERNAL || !errors.As(err, &se) {
 		return err
 	}
 	if se.Code()&0xff == sqlite3.SQLITE_FULL {
@@ -49,19 +55,13 @@ func formatError(err error) error {
 		// rolled back, so nothing of it was saved.
 		return wardload.Unavailable(wardload.EFULL, err)
 	}
-	switch se.Code() {
-	case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
-		if m := uniqueColumns.FindStringSubmatch(se.Error()); m != nil {
-			if e, ok := uniqueConflicts[strings.ReplaceAll(m[1], ", ", ",")]; ok {
-				return e
-			}
-		}
-		return wardload.Errorf(wardload.ECONFLICT, "This entry already exists.")
-	case sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY:
-		// SQLite does not say which reference failed.
-		return wardload.Errorf(wardload.ENOTFOUND, "A ward, tier, shift or user referred to does not exist.")
-	case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
-		return wardload.Errorf(wardload.EINVALID, "A value is missing or out of range.")
+	kind, ok := constraintKinds[se.Code()]
+	if !ok {
+		return err
 	}
-	return err
+	var rule string
+	if m := uniqueColumns.FindStringSubmatch(se.Error()); kind == wardload.ConstraintUnique && m != nil {
+		rule = uniqueRules[strings.ReplaceAll(m[1], ", ", ",")]
+	}
+	return wardload.ConstraintError(kind, rule)
 }

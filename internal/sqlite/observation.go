@@ -2,92 +2,34 @@ package sqlite
 
 import (
 	"context"
-	"crypto/rand"
 	"database/sql"
-	"encoding/hex"
-	"errors"
-	"fmt"
 	"strings"
-	"time"
 
 	"wardload/internal/wardload"
 )
 
-// CreateObservations stores obs as one batch, all or nothing. Unknown
-// wards, tiers and shifts are EINVALID naming the column, because an
-// import row is input to correct, not a missing page.
+// CreateObservations stores obs as one batch, all or nothing, with the
+// checks and messages of wardload.Import.
 func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observation) (string, error) {
-	if len(obs) == 0 {
-		return "", wardload.Errorf(wardload.EINVALID, "There are no observations to import.")
-	}
-	for i, o := range obs {
-		if err := o.Validate(); err != nil {
-			return "", rowError(i, err)
-		}
-	}
-	batch, err := newBatchID()
+	im, err := wardload.NewImport(obs)
 	if err != nil {
 		return "", err
 	}
-	err = s.write(ctx, func(tx *Tx) error {
-		factors := map[int64]map[string]bool{} // ward → named factors; nil when the ward is unknown
-		wards := []int64{}
-		for i, o := range obs {
-			named, seen := factors[o.WardID]
-			if !seen {
-				w, err := findWard(ctx, tx, o.WardID)
-				if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-					return rowError(i, wardload.FieldErrorf(wardload.EINVALID, "ward", "Unknown ward."))
-				} else if err != nil {
-					return err
-				}
-				named = map[string]bool{}
-				for _, n := range w.FactorNames {
-					named[n] = true
-				}
-				factors[o.WardID] = named
-				wards = append(wards, o.WardID)
-			}
-			if ok, err := tierOfWard(ctx, tx, o.WardID, o.TierID); err != nil {
-				return err
-			} else if !ok {
-				return rowError(i, wardload.FieldErrorf(wardload.EINVALID, "tier", "Unknown tier for this ward."))
-			}
-			if ok, err := shiftOfWard(ctx, tx, o.WardID, o.ShiftID); err != nil {
-				return err
-			} else if !ok {
-				return rowError(i, wardload.FieldErrorf(wardload.EINVALID, "shift", "Unknown shift for this ward."))
-			}
-			for k := range o.Factors {
-				if !named[k] {
-					return rowError(i, wardload.FieldErrorf(wardload.EINVALID, "factors", "The ward does not record a factor named %q.", k))
-				}
-			}
-			if err := insertObservation(ctx, tx, o, batch); err != nil {
-				return err
-			}
+	return im.Result(s.write(ctx, func(tx *Tx) error {
+		if err := im.CheckRefs(func(id int64) (*wardload.WardRefs, error) { return loadWardRefs(ctx, tx, id) }); err != nil {
+			return err
 		}
-		var wardID int64
-		if len(wards) == 1 {
-			wardID = wards[0]
-		}
-		after := struct {
-			BatchID string
-			Rows    int
-			WardIDs []int64
-		}{batch, len(obs), wards}
-		return tx.audit("observation.import", "observation_batch", 0, wardID, nil, after)
-	})
-	if err != nil {
-		// Nothing was stored, so nothing the rolled-back inserts set may remain.
 		for _, o := range obs {
-			o.ID, o.BatchID, o.EnteredAt = 0, "", time.Time{}
+			if err := insertObservation(ctx, tx, o, im.BatchID()); err != nil {
+				return err
+			}
 		}
-		return "", err
-	}
-	return batch, nil
+		im.Stored(tx.now)
+		return tx.audit(wardload.ActionObservationImport, nil, im)
+	}))
 }
 
+// insertObservation stores o and its factors and sets its ID.
 func insertObservation(ctx context.Context, tx *Tx, o *wardload.Observation, batch string) error {
 	res, err := tx.ExecContext(ctx, `INSERT INTO observations
 		(ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at, batch_id)
@@ -96,38 +38,15 @@ func insertObservation(ctx context.Context, tx *Tx, o *wardload.Observation, bat
 	if err != nil {
 		return err
 	}
-	id, err := res.LastInsertId()
-	if err != nil {
+	if o.ID, err = res.LastInsertId(); err != nil {
 		return err
 	}
 	for k, v := range o.Factors {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO observation_factors (observation_id, name, value) VALUES (?, ?, ?)`, id, k, v); err != nil {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO observation_factors (observation_id, name, value) VALUES (?, ?, ?)`, o.ID, k, v); err != nil {
 			return err
 		}
 	}
-	o.ID, o.EnteredAt, o.BatchID = id, tx.now, batch
-	o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = false, "", 0, time.Time{}
 	return nil
-}
-
-// rowError prefixes a domain error's message with its 1-based row number,
-// keeping code and field.
-func rowError(i int, err error) error {
-	var e *wardload.Error
-	if !errors.As(err, &e) {
-		return err
-	}
-	return &wardload.Error{Code: e.Code, Field: e.Field, Message: fmt.Sprintf("Row %d: %s", i+1, e.Message)}
-}
-
-// newBatchID returns a random identifier for an import batch. It is an
-// identifier, not a sample, so it needs no seed.
-func newBatchID() (string, error) {
-	b := make([]byte, 8)
-	if _, err := rand.Read(b); err != nil {
-		return "", fmt.Errorf("batch id: %w", err)
-	}
-	return hex.EncodeToString(b), nil
 }
 
 // FindObservationByID returns ENOTFOUND if there is no such observation.
@@ -142,48 +61,35 @@ func (s *Store) FindObservations(ctx context.Context, f wardload.ObservationFilt
 
 // ExcludeObservation marks an observation as excluded; it never deletes.
 func (s *Store) ExcludeObservation(ctx context.Context, id int64, reason string, by int64) (*wardload.Observation, error) {
-	if err := wardload.ValidExclusionReason(reason); err != nil {
+	return s.review(ctx, id, wardload.Exclusion(reason, by))
+}
+
+// RestoreObservation includes an excluded observation again.
+func (s *Store) RestoreObservation(ctx context.Context, id int64, by int64) (*wardload.Observation, error) {
+	return s.review(ctx, id, wardload.Restoration())
+}
+
+// review makes change to observation id's review state and audits it.
+func (s *Store) review(ctx context.Context, id int64, change wardload.ReviewChange) (*wardload.Observation, error) {
+	if err := change.Err(); err != nil {
 		return nil, err
 	}
-	reason = strings.TrimSpace(reason)
-	return s.setExcluded(ctx, id, "observation.exclude", func(tx *Tx, o *wardload.Observation) error {
-		if o.Excluded {
-			return wardload.Errorf(wardload.ECONFLICT, "This observation is already excluded.")
-		}
-		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = true, reason, by, tx.now
-		return nil
-	})
-}
-
-// RestoreObservation includes an excluded observation again. Who restored
-// it and when is kept in the audit log.
-func (s *Store) RestoreObservation(ctx context.Context, id int64, by int64) (*wardload.Observation, error) {
-	return s.setExcluded(ctx, id, "observation.restore", func(tx *Tx, o *wardload.Observation) error {
-		if !o.Excluded {
-			return wardload.Errorf(wardload.ECONFLICT, "This observation is not excluded.")
-		}
-		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = false, "", 0, time.Time{}
-		return nil
-	})
-}
-
-func (s *Store) setExcluded(ctx context.Context, id int64, action string, change func(tx *Tx, o *wardload.Observation) error) (*wardload.Observation, error) {
 	var out *wardload.Observation
 	err := s.write(ctx, func(tx *Tx) error {
 		before, err := findObservation(ctx, tx, id)
 		if err != nil {
 			return err
 		}
-		o := *before
-		if err := change(tx, &o); err != nil {
+		o, err := change.Apply(before, tx.now)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `UPDATE observations SET excluded = ?, excluded_reason = ?, excluded_by = ?, excluded_at = ? WHERE id = ?`,
 			boolInt(o.Excluded), o.ExcludedReason, o.ExcludedBy, nullTime(o.ExcludedAt), id); err != nil {
 			return err
 		}
-		out = &o
-		return tx.audit(action, "observation", id, o.WardID, before, &o)
+		out = o
+		return tx.audit(change.Action, before, o)
 	})
 	if err != nil {
 		return nil, err
@@ -197,7 +103,7 @@ func findObservation(ctx context.Context, q querier, id int64) (*wardload.Observ
 		return nil, err
 	}
 	if len(os) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Observation not found.")
+		return nil, wardload.NotFound("Observation")
 	}
 	return os[0], nil
 }

@@ -12,13 +12,7 @@ import (
 // CreateCensusProjection stores c as the next census revision and p as its
 // projection in one write transaction.
 func (s *Store) CreateCensusProjection(ctx context.Context, c *wardload.Census, p *wardload.Projection) error {
-	if err := c.Validate(); err != nil {
-		return err
-	}
-	if err := p.Validate(); err != nil {
-		return err
-	}
-	if err := projectionMatches(c, p); err != nil {
+	if err := wardload.ValidateCensusProjection(c, p); err != nil {
 		return err
 	}
 	// A failed transaction must leave the caller's values as they were.
@@ -48,31 +42,12 @@ func (s *Store) CreateCensusProjection(ctx context.Context, c *wardload.Census, 
 			return err
 		}
 		p.Counts, p.Start, p.End = stored.Counts, stored.Start, stored.End
-		return tx.audit("projection.create", "projection", p.ID, p.WardID, nil, projectionAuditView(stored))
+		return tx.audit(wardload.ActionProjectionCreate, nil, stored)
 	})
 	if err != nil {
 		*c, *p = c0, p0
 	}
 	return err
-}
-
-// projectionMatches checks that p is a projection of c.
-func projectionMatches(c *wardload.Census, p *wardload.Projection) error {
-	if p.WardID != c.WardID || p.ShiftID != c.ShiftID || p.Date != c.Date {
-		return wardload.FieldErrorf(wardload.EINVALID, "projection", "The projection is not of this census's ward, date and shift.")
-	}
-	if p.TotalPatients != c.Total() {
-		return wardload.FieldErrorf(wardload.EINVALID, "projection", "The projection's patient total differs from the census.")
-	}
-	return nil
-}
-
-// projectionAuditView is p without Input and Result, which are large and
-// stored once, in the projection itself.
-func projectionAuditView(p *wardload.Projection) *wardload.Projection {
-	v := *p
-	v.Input, v.Result = "", ""
-	return &v
 }
 
 func nullInt(v *int) any {
@@ -99,7 +74,7 @@ func findOneProjection(ctx context.Context, q querier, id int64) (*wardload.Proj
 		return nil, err
 	}
 	if len(ps) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Projection not found.")
+		return nil, wardload.NotFound("Projection")
 	}
 	return ps[0], nil
 }

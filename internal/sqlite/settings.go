@@ -56,19 +56,12 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 		if err != nil {
 			return err
 		}
-		for _, f := range st.Floors {
-			if ok, err := shiftOfWard(ctx, tx, st.WardID, f.ShiftID); err != nil {
-				return err
-			} else if !ok {
-				return wardload.FieldErrorf(wardload.ENOTFOUND, "floors", "A ratio floor names a shift that is not one of this ward's.")
-			}
-			if f.TierID != 0 {
-				if ok, err := tierOfWard(ctx, tx, st.WardID, f.TierID); err != nil {
-					return err
-				} else if !ok {
-					return wardload.FieldErrorf(wardload.ENOTFOUND, "floors", "A ratio floor names a tier that is not one of this ward's.")
-				}
-			}
+		refs, err := loadWardRefs(ctx, tx, st.WardID)
+		if err != nil {
+			return err
+		}
+		if err := st.CheckRefs(refs); err != nil {
+			return err
 		}
 		if _, err := tx.ExecContext(ctx, `INSERT INTO ward_settings
 			(ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at)
@@ -91,10 +84,6 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			}
 		}
 		st.UpdatedAt = tx.now
-		var b any
-		if !before.UpdatedAt.IsZero() { // defaults were never saved: nothing before
-			b = before
-		}
-		return tx.audit("settings.save", "settings", st.WardID, st.WardID, b, st)
+		return tx.audit(wardload.ActionSettingsSave, before, st)
 	})
 }

@@ -25,7 +25,7 @@ func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern
 		if p.ID, err = res.LastInsertId(); err != nil {
 			return err
 		}
-		return tx.audit("shift.create", "shift", p.ID, p.WardID, nil, p)
+		return tx.audit(wardload.ActionShiftCreate, nil, p)
 	})
 }
 
@@ -61,25 +61,16 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 		if err != nil {
 			return err
 		}
-		p := *before
-		if upd.Name != nil {
-			p.Name = *upd.Name
-		}
-		if upd.StartMinute != nil {
-			p.StartMinute = *upd.StartMinute
-		}
-		if upd.NominalHours != nil {
-			p.NominalHours = *upd.NominalHours
-		}
-		if err := p.Validate(); err != nil {
+		p, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `UPDATE shift_patterns SET name = ?, start_minute = ?, nominal_hours = ? WHERE id = ?`,
 			p.Name, p.StartMinute, p.NominalHours, id); err != nil {
 			return err
 		}
-		out = &p
-		return tx.audit("shift.update", "shift", id, p.WardID, before, &p)
+		out = p
+		return tx.audit(wardload.ActionShiftUpdate, before, p)
 	})
 	if err != nil {
 		return nil, err
@@ -100,17 +91,7 @@ func scanShift(r scanner) (*wardload.ShiftPattern, error) {
 func findShift(ctx context.Context, q querier, id int64) (*wardload.ShiftPattern, error) {
 	p, err := scanShift(q.QueryRowContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE id = ?`, id))
 	if errors.Is(err, sql.ErrNoRows) {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Shift pattern not found.")
+		return nil, wardload.NotFound("Shift pattern")
 	}
 	return p, err
-}
-
-// shiftOfWard reports whether shift id exists and belongs to ward wardID.
-func shiftOfWard(ctx context.Context, q querier, wardID, id int64) (bool, error) {
-	var one int
-	err := q.QueryRowContext(ctx, `SELECT 1 FROM shift_patterns WHERE id = ? AND ward_id = ?`, id, wardID).Scan(&one)
-	if errors.Is(err, sql.ErrNoRows) {
-		return false, nil
-	}
-	return err == nil, err
 }

@@ -25,7 +25,7 @@ func (s *Store) CreateTier(ctx context.Context, t *wardload.Tier) error {
 		if t.ID, err = res.LastInsertId(); err != nil {
 			return err
 		}
-		return tx.audit("tier.create", "tier", t.ID, t.WardID, nil, t)
+		return tx.audit(wardload.ActionTierCreate, nil, t)
 	})
 }
 
@@ -60,25 +60,16 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 		if err != nil {
 			return err
 		}
-		t := *before
-		if upd.Label != nil {
-			t.Label = *upd.Label
-		}
-		if upd.Description != nil {
-			t.Description = *upd.Description
-		}
-		if upd.DisplayOrder != nil {
-			t.DisplayOrder = *upd.DisplayOrder
-		}
-		if err := t.Validate(); err != nil {
+		t, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `UPDATE tiers SET label = ?, description = ?, display_order = ? WHERE id = ?`,
 			t.Label, t.Description, t.DisplayOrder, id); err != nil {
 			return err
 		}
-		out = &t
-		return tx.audit("tier.update", "tier", id, t.WardID, before, &t)
+		out = t
+		return tx.audit(wardload.ActionTierUpdate, before, t)
 	})
 	if err != nil {
 		return nil, err
@@ -101,18 +92,7 @@ func scanTier(r scanner) (*wardload.Tier, error) {
 func findTier(ctx context.Context, q querier, id int64) (*wardload.Tier, error) {
 	t, err := scanTier(q.QueryRowContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE id = ?`, id))
 	if errors.Is(err, sql.ErrNoRows) {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Tier not found.")
+		return nil, wardload.NotFound("Tier")
 	}
 	return t, err
-}
-
-// tierOfWard reports whether tier id exists and belongs to ward wardID;
-// a tier of another ward counts as unknown.
-func tierOfWard(ctx context.Context, q querier, wardID, id int64) (bool, error) {
-	var one int
-	err := q.QueryRowContext(ctx, `SELECT 1 FROM tiers WHERE id = ? AND ward_id = ?`, id, wardID).Scan(&one)
-	if errors.Is(err, sql.ErrNoRows) {
-		return false, nil
-	}
-	return err == nil, err
 }

@@ -8,20 +8,6 @@ import (
 	"wardload/internal/wardload"
 )
 
-// tokenAudit is what the audit log keeps of a token: never its hash.
-type tokenAudit struct {
-	ID        int64
-	Name      string
-	WardIDs   []int64
-	CreatedBy int64
-	CreatedAt time.Time
-	RevokedAt time.Time
-}
-
-func auditToken(t *wardload.APIToken) tokenAudit {
-	return tokenAudit{t.ID, t.Name, t.WardIDs, t.CreatedBy, t.CreatedAt, t.RevokedAt}
-}
-
 // CreateToken stores a token and the wards it may read.
 func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 	if err := t.Validate(); err != nil {
@@ -37,18 +23,13 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 		if err != nil {
 			return err
 		}
-		wards, err := setMemberships(ctx, tx, `token_wards`, `token_id`, id, t.WardIDs)
-		if err != nil {
+		wards := wardload.WardIDSet(t.WardIDs)
+		if err := setMemberships(ctx, tx, `token_wards`, `token_id`, id, wards); err != nil {
 			return err
 		}
-		t.ID, t.CreatedAt, t.WardIDs = id, tx.now, wards
-		// One row per ward, so each ward's managers see the token in their audit log.
-		for _, w := range wards {
-			if err := tx.audit("token.create", "token", id, w, nil, auditToken(t)); err != nil {
-				return err
-			}
-		}
-		return nil
+		// A new token is unused and active whatever the caller set, as stored.
+		t.ID, t.CreatedAt, t.WardIDs, t.LastUsedAt, t.RevokedAt = id, tx.now, wards, time.Time{}, time.Time{}
+		return tx.audit(wardload.ActionTokenCreate, nil, t)
 	})
 }
 
@@ -77,20 +58,14 @@ func (s *Store) RevokeToken(ctx context.Context, id int64) error {
 		if err != nil {
 			return err
 		}
-		if !before.Active() {
-			return wardload.Errorf(wardload.ECONFLICT, "This token is already revoked.")
+		after, err := before.Revoked(tx.now)
+		if err != nil {
+			return err
 		}
 		if _, err := tx.ExecContext(ctx, `UPDATE api_tokens SET revoked_at = ? WHERE id = ?`, formatTime(tx.now), id); err != nil {
 			return err
 		}
-		after := *before
-		after.RevokedAt = tx.now
-		for _, w := range before.WardIDs {
-			if err := tx.audit("token.revoke", "token", id, w, auditToken(before), auditToken(&after)); err != nil {
-				return err
-			}
-		}
-		return nil
+		return tx.audit(wardload.ActionTokenRevoke, before, after)
 	})
 }
 
@@ -105,7 +80,7 @@ func (s *Store) TouchToken(ctx context.Context, id int64, at time.Time) error {
 		if n, err := res.RowsAffected(); err != nil {
 			return err
 		} else if n == 0 {
-			return wardload.Errorf(wardload.ENOTFOUND, "Token not found.")
+			return wardload.NotFound("Token")
 		}
 		return nil
 	})
@@ -117,7 +92,7 @@ func findToken(ctx context.Context, q querier, cond string, arg any) (*wardload.
 		return nil, err
 	}
 	if len(ts) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Token not found.")
+		return nil, wardload.NotFound("Token")
 	}
 	return ts[0], nil
 }

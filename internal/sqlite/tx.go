@@ -3,7 +3,6 @@ package sqlite
 import (
 	"context"
 	"database/sql"
-	"encoding/json"
 	"fmt"
 	"time"
 
@@ -99,33 +98,19 @@ func (s *Store) writeNested(ctx context.Context, stx *sql.Tx, fn func(tx *Tx) er
 	return formatError(err)
 }
 
-// audit appends an audit row in tx for the actor in the context. before
-// and after are marshalled to JSON; nil gives "".
-func (tx *Tx) audit(action, entity string, entityID, wardID int64, before, after any) error {
-	b, err := auditJSON(before)
+// audit appends in tx the audit rows wardload.NewAudit makes of a change
+// by the actor in the context.
+func (tx *Tx) audit(action string, before, after wardload.Audited) error {
+	es, err := wardload.NewAudit(tx.ctx, tx.now, action, before, after)
 	if err != nil {
 		return err
 	}
-	a, err := auditJSON(after)
-	if err != nil {
-		return err
+	for _, e := range es {
+		if err := insertAudit(tx.ctx, tx, e); err != nil {
+			return err
+		}
 	}
-	actor := wardload.ActorFrom(tx.ctx)
-	return insertAudit(tx.ctx, tx, &wardload.AuditEntry{
-		At: tx.now, UserID: actor.UserID, Actor: actor.Name, Action: action,
-		Entity: entity, EntityID: entityID, WardID: wardID, Before: b, After: a,
-	})
-}
-
-func auditJSON(v any) (string, error) {
-	if v == nil {
-		return "", nil
-	}
-	b, err := json.Marshal(v)
-	if err != nil {
-		return "", fmt.Errorf("audit json: %w", err)
-	}
-	return string(b), nil
+	return nil
 }
 
 // timeFormat is fixed-width (always nine fractional digits, always UTC

@@ -3,28 +3,11 @@ package sqlite
 import (
 	"context"
 	"database/sql"
-	"slices"
 	"strconv"
 	"strings"
-	"time"
 
 	"wardload/internal/wardload"
 )
-
-// userAudit is what the audit log keeps of a user: everything but the
-// password hash, which must never be copied anywhere else.
-type userAudit struct {
-	ID        int64
-	Name      string
-	Role      string
-	Disabled  bool
-	WardIDs   []int64
-	CreatedAt time.Time
-}
-
-func auditUser(u *wardload.User) userAudit {
-	return userAudit{u.ID, u.Name, u.Role, u.Disabled, u.WardIDs, u.CreatedAt}
-}
 
 // CreateUser stores a user and their ward memberships.
 func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
@@ -41,37 +24,33 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 		if err != nil {
 			return err
 		}
-		wards, err := setMemberships(ctx, tx, `user_wards`, `user_id`, id, u.WardIDs)
-		if err != nil {
+		wards := wardload.WardIDSet(u.WardIDs)
+		if err := setMemberships(ctx, tx, `user_wards`, `user_id`, id, wards); err != nil {
 			return err
 		}
 		u.ID, u.CreatedAt, u.WardIDs = id, tx.now, wards
-		return tx.audit("user.create", "user", id, 0, nil, auditUser(u))
+		return tx.audit(wardload.ActionUserCreate, nil, u)
 	})
 }
 
 // setMemberships replaces the ward links of a user or token (table and its
-// owner column) and returns the ward IDs ascending and without repeats. An
-// unknown ward is ENOTFOUND naming field "wards", as in PostgreSQL.
-func setMemberships(ctx context.Context, tx *Tx, table, column string, id int64, wardIDs []int64) ([]int64, error) {
-	ids := slices.Clone(wardIDs)
-	slices.Sort(ids)
-	ids = slices.Compact(ids)
+// owner column) with wardIDs, a wardload.WardIDSet. An unknown ward is
+// wardload.UnknownWard.
+func setMemberships(ctx context.Context, tx *Tx, table, column string, id int64, wardIDs []int64) error {
 	if _, err := tx.ExecContext(ctx, `DELETE FROM `+table+` WHERE `+column+` = ?`, id); err != nil {
-		return nil, err
+		return err
 	}
-	for _, w := range ids {
-		if err := wardExists(ctx, tx, w); err != nil {
-			if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-				return nil, wardload.FieldErrorf(wardload.ENOTFOUND, "wards", "Ward %d not found.", w)
-			}
-			return nil, err
+	for _, w := range wardIDs {
+		if err := wardExists(ctx, tx, w); wardload.ErrorCode(err) == wardload.ENOTFOUND {
+			return wardload.UnknownWard(w)
+		} else if err != nil {
+			return err
 		}
 		if _, err := tx.ExecContext(ctx, `INSERT INTO `+table+` (`+column+`, ward_id) VALUES (?, ?)`, id, w); err != nil {
-			return nil, err
+			return err
 		}
 	}
-	return ids, nil
+	return nil
 }
 
 // FindUserByID returns ENOTFOUND if there is no such user.
@@ -97,17 +76,8 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 		if err != nil {
 			return err
 		}
-		u := *before
-		if upd.Role != nil {
-			u.Role = *upd.Role
-		}
-		if upd.PasswordHash != nil {
-			u.PasswordHash = *upd.PasswordHash
-		}
-		if upd.Disabled != nil {
-			u.Disabled = *upd.Disabled
-		}
-		if err := u.Validate(); err != nil {
+		u, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `UPDATE users SET role = ?, password_hash = ?, disabled = ? WHERE id = ?`,
@@ -115,12 +85,12 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 			return err
 		}
 		if upd.WardIDs != nil {
-			if u.WardIDs, err = setMemberships(ctx, tx, `user_wards`, `user_id`, id, upd.WardIDs); err != nil {
+			if err := setMemberships(ctx, tx, `user_wards`, `user_id`, id, u.WardIDs); err != nil {
 				return err
 			}
 		}
-		out = &u
-		return tx.audit("user.update", "user", id, 0, auditUser(before), auditUser(&u))
+		out = u
+		return tx.audit(wardload.ActionUserUpdate, before, u)
 	})
 	if err != nil {
 		return nil, err
@@ -134,7 +104,7 @@ func findUser(ctx context.Context, q querier, f wardload.UserFilter) (*wardload.
 		return nil, err
 	}
 	if len(us) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "User not found.")
+		return nil, wardload.NotFound("User")
 	}
 	return us[0], nil
 }
@@ -199,7 +169,7 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter) ([]*wardlo
 }
 
 // parseIDs reads a comma-joined list of IDs from group_concat; "" (no
-// rows) is an empty, non-nil list, as idList returns.
+// rows) is an empty, non-nil list.
 func parseIDs(s string) ([]int64, error) {
 	ids := []int64{}
 	if s == "" {
@@ -213,22 +183,4 @@ func parseIDs(s string) ([]int64, error) {
 		ids = append(ids, id)
 	}
 	return ids, nil
-}
-
-// idList runs a one-column query of IDs.
-func idList(ctx context.Context, q querier, query string, args ...any) ([]int64, error) {
-	rows, err := q.QueryContext(ctx, query, args...)
-	if err != nil {
-		return nil, err
-	}
-	defer rows.Close()
-	ids := []int64{}
-	for rows.Next() {
-		var id int64
-		if err := rows.Scan(&id); err != nil {
-			return nil, err
-		}
-		ids = append(ids, id)
-	}
-	return ids, rows.Err()
 }

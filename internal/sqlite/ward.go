@@ -28,7 +28,7 @@ func (s *Store) CreateWard(ctx context.Context, w *wardload.Ward) error {
 			return err
 		}
 		w.ID, w.CreatedAt = id, tx.now
-		return tx.audit("ward.create", "ward", id, id, nil, w)
+		return tx.audit(wardload.ActionWardCreate, nil, w)
 	})
 }
 
@@ -56,7 +56,7 @@ func (s *Store) FindWardByCode(ctx context.Context, code string) (*wardload.Ward
 		return nil, err
 	}
 	if len(ws) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Ward %q not found.", code)
+		return nil, wardload.NotFound("Ward")
 	}
 	return ws[0], nil
 }
@@ -74,17 +74,8 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 		if err != nil {
 			return err
 		}
-		w := *before
-		if upd.Name != nil {
-			w.Name = *upd.Name
-		}
-		if upd.TimeZone != nil {
-			w.TimeZone = *upd.TimeZone
-		}
-		if upd.FactorNames != nil {
-			w.FactorNames = append([]string(nil), upd.FactorNames...)
-		}
-		if err := w.Validate(); err != nil {
+		w, err := upd.Apply(before)
+		if err != nil {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `UPDATE wards SET name = ?, time_zone = ? WHERE id = ?`, w.Name, w.TimeZone, id); err != nil {
@@ -95,8 +86,8 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 				return err
 			}
 		}
-		out = &w
-		return tx.audit("ward.update", "ward", id, id, before, &w)
+		out = w
+		return tx.audit(wardload.ActionWardUpdate, before, w)
 	})
 	if err != nil {
 		return nil, err
@@ -110,7 +101,7 @@ func findWard(ctx context.Context, q querier, id int64) (*wardload.Ward, error) 
 		return nil, err
 	}
 	if len(ws) == 0 {
-		return nil, wardload.Errorf(wardload.ENOTFOUND, "Ward not found.")
+		return nil, wardload.NotFound("Ward")
 	}
 	return ws[0], nil
 }
@@ -176,7 +167,35 @@ func wardExists(ctx context.Context, q querier, id int64) error {
 	var one int
 	err := q.QueryRowContext(ctx, `SELECT 1 FROM wards WHERE id = ?`, id).Scan(&one)
 	if errors.Is(err, sql.ErrNoRows) {
-		return wardload.FieldErrorf(wardload.ENOTFOUND, "ward", "Ward not found.")
+		return wardload.WardNotFound()
 	}
 	return err
+}
+
+// loadWardRefs returns what the rows of ward id may refer to, in one
+// query, or wardload.WardNotFound. IDs and names are joined with ',' and
+// U+001F, which neither can contain.
+func loadWardRefs(ctx context.Context, q querier, id int64) (*wardload.WardRefs, error) {
+	var tiers, shifts, factors sql.NullString
+	err := q.QueryRowContext(ctx, `SELECT
+		(SELECT group_concat(id, ',' ORDER BY display_order, code) FROM tiers WHERE ward_id = wards.id),
+		(SELECT group_concat(id, ',' ORDER BY start_minute, name) FROM shift_patterns WHERE ward_id = wards.id),
+		(SELECT group_concat(name, char(31) ORDER BY position) FROM ward_factors WHERE ward_id = wards.id)
+		FROM wards WHERE id = ?`, id).Scan(&tiers, &shifts, &factors)
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil, wardload.WardNotFound()
+	} else if err != nil {
+		return nil, err
+	}
+	r := &wardload.WardRefs{WardID: id}
+	if r.Tiers, err = parseIDs(tiers.String); err != nil {
+		return nil, err
+	}
+	if r.Shifts, err = parseIDs(shifts.String); err != nil {
+		return nil, err
+	}
+	if factors.String != "" {
+		r.Factors = strings.Split(factors.String, "\x1f")
+	}
+	return r, nil
 }

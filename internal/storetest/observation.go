@@ -1,6 +1,7 @@
 package storetest
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 	"time"
@@ -227,6 +228,37 @@ func observationCases() []testCase {
 			}
 			_, err = f.store.RestoreObservation(f.ctx, o.ID, 8)
 			wantErr(t, err, wardload.ECONFLICT, "")
+		}},
+	}
+}
+
+// importCases pin what an import leaves on the caller's rows and how a
+// batch of several wards is audited.
+func importCases() []testCase {
+	return []testCase{
+		{"Observation/FailedImportLeavesRowsBare", func(t *testing.T, f *fixture) {
+			sw := f.seedWard("w1")
+			d := date(2026, 3, 2)
+			os := []*wardload.Observation{sw.obs(d, 10), sw.obs(d, 20), sw.obs(d, 30)}
+			os[2].TierID = 99999
+			_, err := f.store.CreateObservations(f.ctx, os)
+			wantErr(t, err, wardload.EINVALID, "tier")
+			for i, o := range os {
+				if o.ID != 0 || o.BatchID != "" || !o.EnteredAt.IsZero() {
+					t.Fatalf("row %d after a failed import: ID %d, batch %q, entered %v; want none", i+1, o.ID, o.BatchID, o.EnteredAt)
+				}
+			}
+		}},
+		{"Observation/ImportOfTwoWardsAuditsNoWard", func(t *testing.T, f *fixture) {
+			w1, w2 := f.seedWard("w1"), f.seedWard("w2")
+			d := date(2026, 3, 2)
+			batch, err := f.store.CreateObservations(f.ctx, []*wardload.Observation{w2.obs(d, 10), w1.obs(d, 20), w2.obs(d, 30)})
+			noErr(t, err)
+			e := f.checkAudit("observation.import", "observation_batch", 0, 0)
+			want := fmt.Sprintf(`{"BatchID":%q,"Rows":3,"WardIDs":[%d,%d]}`, batch, w2.ward.ID, w1.ward.ID)
+			if e.Before != "" || e.After != want {
+				t.Fatalf("import audit %q / %q, want none / %s", e.Before, e.After, want)
+			}
 		}},
 	}
 }

@@ -24,6 +24,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		tierCases(),
 		shiftCases(),
 		observationCases(),
+		importCases(),
 		censusCases(),
 		projectionCases(),
 		settingsCases(),

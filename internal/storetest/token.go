@@ -125,5 +125,17 @@ func tokenCases() []testCase {
 				t.Fatalf("FindTokens must load all wards of each token: %+v", ts)
 			}
 		}},
+		{"Token/CreateIgnoresCallerTimes", func(t *testing.T, f *fixture) {
+			w := f.seedWard("w1")
+			past := startTime.Add(-time.Hour)
+			tok := &wardload.APIToken{Name: "planner", Hash: hashOf("a"), WardIDs: []int64{w.ward.ID}, LastUsedAt: past, RevokedAt: past}
+			noErr(t, f.store.CreateToken(f.ctx, tok))
+			if !tok.Active() || !tok.LastUsedAt.IsZero() {
+				t.Fatalf("new token returned revoked %v, last used %v; want active and unused, as stored", tok.RevokedAt, tok.LastUsedAt)
+			}
+			if e := f.lastAudit("token.create"); !strings.Contains(e.After, `"RevokedAt":"0001-01-01T00:00:00Z"`) {
+				t.Fatalf("token.create audit %q: want the token as stored, not revoked", e.After)
+			}
+		}},
 	}
 }

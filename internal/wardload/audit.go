@@ -20,6 +20,27 @@ type AuditEntry struct {
 	After    string // JSON, "" when nothing remains
 }
 
+// Audit actions of the changes stores make; the server adds its own for
+// events such as sign-ins (AppendAudit).
+const (
+	ActionWardCreate         = "ward.create"
+	ActionWardUpdate         = "ward.update"
+	ActionTierCreate         = "tier.create"
+	ActionTierUpdate         = "tier.update"
+	ActionShiftCreate        = "shift.create"
+	ActionShiftUpdate        = "shift.update"
+	ActionUserCreate         = "user.create"
+	ActionUserUpdate         = "user.update"
+	ActionTokenCreate        = "token.create"
+	ActionTokenRevoke        = "token.revoke"
+	ActionObservationImport  = "observation.import"
+	ActionObservationExclude = "observation.exclude"
+	ActionObservationRestore = "observation.restore"
+	ActionCensusCreate       = "census.create"
+	ActionProjectionCreate   = "projection.create"
+	ActionSettingsSave       = "settings.save"
+)
+
 // AuditFilter selects audit entries. Zero fields do not filter.
 type AuditFilter struct {
 	WardIDs  []int64 // any of these wards

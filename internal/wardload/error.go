@@ -101,3 +101,10 @@ func ErrorField(err error) string {
 	}
 	return ""
 }
+
+// NotFound returns the ENOTFOUND error of a lookup that found nothing:
+// "<what> not found.", e.g. NotFound("Shift pattern"). Both stores word
+// their misses with it, so users read the same on either backend.
+func NotFound(what string) error {
+	return Errorf(ENOTFOUND, "%s not found.", what)
+}

@@ -111,3 +111,60 @@ func ValidExclusionReason(s string) error {
 	}
 	return nil
 }
+
+// ReviewChange changes an observation's review state: an exclusion or a
+// restoration. Make one with Exclusion or Restoration.
+type ReviewChange struct {
+	// Action is the change's audit action.
+	Action string
+	err    error
+	apply  func(o *Observation, at time.Time) error
+}
+
+// Err returns the change's own error, such as an exclusion reason
+// ValidExclusionReason refuses. Stores check it before reading the
+// observation, so a bad reason is EINVALID whatever the ID.
+func (c ReviewChange) Err() error { return c.err }
+
+// Apply returns a copy of o with the change made at at, or ECONFLICT if o
+// is already in the state the change leads to. o is not changed.
+func (c ReviewChange) Apply(o *Observation, at time.Time) (*Observation, error) {
+	if c.err != nil {
+		return nil, c.err
+	}
+	out := *o
+	if err := c.apply(&out, at); err != nil {
+		return nil, err
+	}
+	return &out, nil
+}
+
+// Exclusion returns the change that excludes an observation from the
+// model, by user by, with reason trimmed. A reason ValidExclusionReason
+// refuses is the change's Err.
+func Exclusion(reason string, by int64) ReviewChange {
+	if err := ValidExclusionReason(reason); err != nil {
+		return ReviewChange{err: err}
+	}
+	reason = strings.TrimSpace(reason)
+	return ReviewChange{Action: ActionObservationExclude, apply: func(o *Observation, at time.Time) error {
+		if o.Excluded {
+			return Errorf(ECONFLICT, "This observation is already excluded.")
+		}
+		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = true, reason, by, at
+		return nil
+	}}
+}
+
+// Restoration returns the change that includes an excluded observation
+// again. Who restored it and when is kept in the audit log; the
+// observation keeps no trace of a past exclusion.
+func Restoration() ReviewChange {
+	return ReviewChange{Action: ActionObservationRestore, apply: func(o *Observation, _ time.Time) error {
+		if !o.Excluded {
+			return Errorf(ECONFLICT, "This observation is not excluded.")
+		}
+		o.Excluded, o.ExcludedReason, o.ExcludedBy, o.ExcludedAt = false, "", 0, time.Time{}
+		return nil
+	}}
+}

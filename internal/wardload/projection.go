@@ -136,3 +136,23 @@ type ProjectionService interface {
 	// has one. An unknown ward, date or shift gives an empty list.
 	FindShiftRevisions(ctx context.Context, wardID int64, d Date, shiftID int64) ([]*ShiftRevision, error)
 }
+
+// ValidateCensusProjection checks a census and its projection before a
+// store saves them together: each valid, and p a projection of c (same
+// ward, date and shift, and c's patient total). It returns EINVALID naming
+// the field.
+func ValidateCensusProjection(c *Census, p *Projection) error {
+	if err := c.Validate(); err != nil {
+		return err
+	}
+	if err := p.Validate(); err != nil {
+		return err
+	}
+	if p.WardID != c.WardID || p.ShiftID != c.ShiftID || p.Date != c.Date {
+		return FieldErrorf(EINVALID, "projection", "The projection is not of this census's ward, date and shift.")
+	}
+	if p.TotalPatients != c.Total() {
+		return FieldErrorf(EINVALID, "projection", "The projection's patient total differs from the census.")
+	}
+	return nil
+}

@@ -79,6 +79,16 @@ type ShiftPatternUpdate struct {
 	NominalHours *float64
 }
 
+// Apply returns a copy of p with upd applied, or EINVALID naming the field
+// if the result is not a valid pattern. p is not changed.
+func (upd ShiftPatternUpdate) Apply(p *ShiftPattern) (*ShiftPattern, error) {
+	out := *p
+	setIf(&out.Name, upd.Name)
+	setIf(&out.StartMinute, upd.StartMinute)
+	setIf(&out.NominalHours, upd.NominalHours)
+	return validated(&out)
+}
+
 // ShiftService manages the shift patterns of wards.
 type ShiftService interface {
 	// CreateShiftPattern returns EINVALID, ENOTFOUND (ward) or ECONFLICT (name taken in the ward).

@@ -21,6 +21,17 @@ type APIToken struct {
 // Active reports whether the token may still be used.
 func (t *APIToken) Active() bool { return t.RevokedAt.IsZero() }
 
+// Revoked returns a copy of t revoked at at, or ECONFLICT if t is already
+// revoked. t is not changed.
+func (t *APIToken) Revoked(at time.Time) (*APIToken, error) {
+	if !t.Active() {
+		return nil, Errorf(ECONFLICT, "This token is already revoked.")
+	}
+	out := *t
+	out.RevokedAt = at
+	return &out, nil
+}
+
 // Validate checks the token's own fields.
 func (t *APIToken) Validate() error {
 	// The name itself, not a trimmed copy: the name is stored as given.

@@ -3,6 +3,7 @@ package wardload
 import (
 	"context"
 	"regexp"
+	"slices"
 	"time"
 )
 
@@ -77,6 +78,35 @@ type UserUpdate struct {
 	PasswordHash *string
 	Disabled     *bool
 	WardIDs      []int64 // nil leaves memberships unchanged; empty clears them
+}
+
+// Apply returns a copy of u with upd applied, its ward memberships as
+// WardIDSet gives them, or EINVALID naming the field if the result is not
+// a valid user. u is not changed; the store checks that the wards exist.
+func (upd UserUpdate) Apply(u *User) (*User, error) {
+	out := *u
+	setIf(&out.Role, upd.Role)
+	setIf(&out.PasswordHash, upd.PasswordHash)
+	setIf(&out.Disabled, upd.Disabled)
+	if upd.WardIDs != nil {
+		out.WardIDs = WardIDSet(upd.WardIDs)
+	}
+	return validated(&out)
+}
+
+// WardIDSet returns the ward IDs a user or token is linked to: ascending
+// and without repeats; nil stays nil and empty stays empty. ids is not
+// changed.
+func WardIDSet(ids []int64) []int64 {
+	out := slices.Clone(ids)
+	slices.Sort(out)
+	return slices.Compact(out)
+}
+
+// UnknownWard is the error for a membership naming a ward that does not
+// exist: ENOTFOUND naming the field "wards".
+func UnknownWard(id int64) error {
+	return FieldErrorf(ENOTFOUND, "wards", "Ward %d not found.", id)
 }
 
 // UserService manages staff accounts.

@@ -98,6 +98,18 @@ type WardUpdate struct {
 	FactorNames []string // nil leaves them unchanged
 }
 
+// Apply returns a copy of w with upd applied, or EINVALID naming the field
+// if the result is not a valid ward. w is not changed.
+func (upd WardUpdate) Apply(w *Ward) (*Ward, error) {
+	out := *w
+	setIf(&out.Name, upd.Name)
+	setIf(&out.TimeZone, upd.TimeZone)
+	if upd.FactorNames != nil {
+		out.FactorNames = append([]string(nil), upd.FactorNames...)
+	}
+	return validated(&out)
+}
+
 // WardService manages wards.
 type WardService interface {
 	// CreateWard stores a new ward and sets its ID and CreatedAt.
@@ -157,6 +169,16 @@ type TierUpdate struct {
 	Label        *string
 	Description  *string
 	DisplayOrder *int
+}
+
+// Apply returns a copy of t with upd applied, or EINVALID naming the field
+// if the result is not a valid tier. t is not changed.
+func (upd TierUpdate) Apply(t *Tier) (*Tier, error) {
+	out := *t
+	setIf(&out.Label, upd.Label)
+	setIf(&out.Description, upd.Description)
+	setIf(&out.DisplayOrder, upd.DisplayOrder)
+	return validated(&out)
 }
 
 // TierService manages the acuity tiers of wards.
