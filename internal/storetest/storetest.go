@@ -34,6 +34,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 	for _, g := range groups {
 		for _, tc := range g {
 			t.Run(tc.name, func(t *testing.T) {
+				t.Parallel()
 				clk := &Clock{now: startTime}
 				f := &fixture{t: t, clock: clk, store: newStore(t, clk.Now)}
 				f.ctx = wardload.WithActor(context.Background(), testActor)
