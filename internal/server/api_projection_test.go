@@ -6,9 +6,7 @@ import (
 	"net/http/httptest"
 	"strings"
 	"testing"
-	"time"
 
-	"wardload/internal/demo"
 	"wardload/internal/export"
 	"wardload/internal/sqlite"
 	"wardload/internal/wardload"
@@ -27,13 +25,9 @@ type apiFixture struct {
 func newAPIFixture(t *testing.T) *apiFixture {
 	t.Helper()
 	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
-	f := &apiFixture{st: MustOpenSQLite(t)}
-	now := time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)
-	res, err := demo.Seed(ctx, f.st, now)
-	if err != nil {
-		t.Fatal(err)
-	}
-	f.ward = res.Ward
+	f := &apiFixture{}
+	f.st, f.ward = MustOpenDemo(t)
+	now := demoNow
 	f.other = &wardload.Ward{Code: "w-other", Name: "Other", TimeZone: "Europe/Dublin"}
 	if err := f.st.CreateWard(ctx, f.other); err != nil {
 		t.Fatal(err)
