@@ -184,7 +184,6 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		return vm, nil
 	}
 	if errs == nil {
-		errs = map[string]string{}
 		// On a GET the choice is checked here, window included, so that
 		// a date out of range is explained before anything is typed.
 		day, _, choiceErrs := parseShiftChoice(d, date, shift)
