@@ -398,8 +398,8 @@ func compareGolden(t *testing.T, path, got string) {
 
 func TestProjectCommandHelp(t *testing.T) {
 	code, out, errs := runProjectCLI(t, "", "--help")
-	if code != exitOK || out != "" || !strings.Contains(errs, "Usage: wardload project") || !strings.Contains(errs, "-census") ||
-		!strings.Contains(errs, "-date") || !strings.Contains(errs, "log scale") || strings.Contains(errs, "bootstrap") {
+	if code != exitOK || errs != "" || !strings.Contains(out, "Usage: wardload project") || !strings.Contains(out, "-census") ||
+		!strings.Contains(out, "-date") || !strings.Contains(out, "log scale") || strings.Contains(out, "bootstrap") {
 		t.Errorf("--help: exit %d, stdout %q, stderr %q", code, out, errs)
 	}
 }
