@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"slices"
 	"sort"
+	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -356,11 +357,11 @@ func dump(t *testing.T, st wardload.Store, wardID int64) []string {
 		t.Fatal(err)
 	}
 	for _, c := range cs {
-		counts := ""
+		var counts strings.Builder
 		for _, tc := range c.Counts {
-			counts += fmt.Sprintf(" %d", tc.Patients)
+			counts.WriteString(fmt.Sprintf(" %d", tc.Patients))
 		}
-		out = append(out, fmt.Sprintf("census %s %s r%d%s", c.Date, shiftName(t, st, c.ShiftID), c.Revision, counts))
+		out = append(out, fmt.Sprintf("census %s %s r%d%s", c.Date, shiftName(t, st, c.ShiftID), c.Revision, counts.String()))
 	}
 	ps, _, err := st.FindProjections(context.Background(), wardload.ProjectionFilter{WardID: &wardID})
 	if err != nil {

@@ -2,6 +2,7 @@ package server
 
 import (
 	"fmt"
+	"maps"
 	"net/http"
 	"net/url"
 	"strconv"
@@ -106,9 +107,7 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	}
 	day, shiftID, errs := parseShiftChoice(d, date, shift)
 	counts, countErrs := parseCensusForm(form, d.tiers)
-	for k, v := range countErrs {
-		errs[k] = v
-	}
+	maps.Copy(errs, countErrs)
 	if len(errs) > 0 {
 		return rerender(http.StatusBadRequest, errs)
 	}

@@ -127,7 +127,8 @@ func sameTime(t *testing.T, what string, got, want time.Time) {
 	}
 }
 
-func ptr[T any](v T) *T { return &v }
+//go:fix inline
+func ptr[T any](v T) *T { return new(v) }
 
 // auditCount returns the number of audit rows with the given action.
 func (f *fixture) auditCount(action string) int {
