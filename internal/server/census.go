@@ -35,12 +35,6 @@ func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
 	return d, nil
 }
 
-func censusURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/census" }
-
-func projectionURL(ward *wardload.Ward, id int64) string {
-	return fmt.Sprintf("/wards/%s/projections/%d", ward.Code, id)
-}
-
 // handleCensusForm shows the census form. Without query parameters it
 // preselects the first of projector.ShiftChoices in the ward's time zone:
 // within projector.ChangeoverWindow of a shift's start, that shift, offered

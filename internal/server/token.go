@@ -117,9 +117,6 @@ func (s *Server) handleTokenRevoke(w http.ResponseWriter, r *http.Request) error
 	return seeOther(w, r, tokensURL(ward))
 }
 
-// tokensURL is the address of a ward's token page.
-func tokensURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/tokens" }
-
 // wardCodes maps every ward's ID to its code.
 func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
