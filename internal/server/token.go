@@ -135,12 +135,3 @@ func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 func formatAt(t time.Time) string {
 	return t.UTC().Format("2006-01-02 15:04 UTC")
 }
-
-// clip shortens user input that is shown back, so a huge field cannot
-// blow up a page.
-func clip(s string, n int) string {
-	if len(s) <= n {
-		return s
-	}
-	return strings.ToValidUTF8(s[:n], "")
-}
