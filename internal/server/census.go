@@ -7,7 +7,6 @@ import (
 	"net/url"
 	"strconv"
 	"strings"
-	"time"
 
 	"wardload/internal/projector"
 	"wardload/internal/wardload"
@@ -283,13 +282,4 @@ func (s *Server) latestCensus(r *http.Request, d *censusData, date string, shift
 // 19:30, 12 hours".
 func shiftLabel(p *wardload.ShiftPattern) string {
 	return fmt.Sprintf("%s, from %s, %s hours", p.Name, p.StartClock(), strconv.FormatFloat(p.NominalHours, 'f', -1, 64))
-}
-
-// formatLocal shows an instant in the ward's time zone to the minute,
-// naming the zone.
-func formatLocal(t time.Time, ward *wardload.Ward) string {
-	if loc, err := ward.Location(); err == nil {
-		t = t.In(loc)
-	}
-	return t.Format("2006-01-02 15:04") + " (" + ward.TimeZone + ")"
 }

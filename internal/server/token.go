@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"net/http"
 	"strings"
-	"time"
 
 	"github.com/go-chi/chi/v5"
 
@@ -128,10 +127,4 @@ func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 		m[w.ID] = w.Code
 	}
 	return m, nil
-}
-
-// formatAt shows an instant in UTC to the minute; pages that show audit
-// or token times say they are UTC.
-func formatAt(t time.Time) string {
-	return t.UTC().Format("2006-01-02 15:04 UTC")
 }
