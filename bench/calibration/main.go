@@ -51,7 +51,7 @@ func run(w io.Writer, reps, draws, truth int, seed uint64, names string, quantil
 	if names == "all" {
 		scenarios = simstudy.Scenarios()
 	} else {
-		for _, name := range strings.Split(names, ",") {
+		for name := range strings.SplitSeq(names, ",") {
 			s := simstudy.Find(strings.TrimSpace(name))
 			if s == nil {
 				return fmt.Errorf("no scenario %q", name)

@@ -113,7 +113,7 @@ func TestBacktestJump(t *testing.T) {
 	}
 	_, out, _ := runCSVCommand(t, csv, "backtest", "FILE", "--shift-hours", "12", "--weeks", "4")
 	flagged := false
-	for _, line := range strings.Split(out, "\n") {
+	for line := range strings.SplitSeq(out, "\n") {
 		flagged = flagged || strings.HasPrefix(line, "shift totals  ") && strings.Contains(line, "more than 5 points short")
 	}
 	if !strings.Contains(out, "That is more than 5 points short") || !flagged {

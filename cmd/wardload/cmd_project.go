@@ -357,7 +357,7 @@ func parseCensus(s string, known []string) (map[string]int, error) {
 	if strings.TrimSpace(s) == "" {
 		return nil, bad("give patients per tier, e.g. t1=4,t2=10.")
 	}
-	for _, item := range strings.Split(s, ",") {
+	for item := range strings.SplitSeq(s, ",") {
 		tier, num, found := strings.Cut(item, "=")
 		tier, num = strings.TrimSpace(tier), strings.TrimSpace(num)
 		if !found || tier == "" {
@@ -391,7 +391,7 @@ func parseLevels(s string) ([]float64, error) {
 		return nil, nil
 	}
 	var out []float64
-	for _, f := range strings.Split(s, ",") {
+	for f := range strings.SplitSeq(s, ",") {
 		v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
 		if err != nil {
 			return nil, wardload.FieldErrorf(wardload.EINVALID, "levels", "%q is not a number.", clip(f))

@@ -54,7 +54,7 @@ func dayOnly(csv string) string {
 // withoutOccurrences drops the date and shift columns of a historyCSV file.
 func withoutOccurrences(csv string) string {
 	var b strings.Builder
-	for _, l := range strings.Split(strings.TrimSuffix(csv, "\n"), "\n") {
+	for l := range strings.SplitSeq(strings.TrimSuffix(csv, "\n"), "\n") {
 		f := strings.Split(l, ",")
 		b.WriteString(strings.Join(f[2:], ",") + "\n")
 	}
@@ -124,8 +124,8 @@ func TestProjectCommandDeclinedJSON(t *testing.T) {
 		want  *int
 	}{
 		{"no floor", nil, nil},
-		{"floor", []string{"--patients-per-nurse", "4"}, ptr(3)},
-		{"floor, nurse in charge counts", []string{"--patients-per-nurse", "4", "--charge-nurse-counts"}, ptr(2)},
+		{"floor", []string{"--patients-per-nurse", "4"}, new(3)},
+		{"floor, nurse in charge counts", []string{"--patients-per-nurse", "4", "--charge-nurse-counts"}, new(2)},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			code, out, errs := runProjectCLI(t, handCSV, append(base, tc.extra...)...)
@@ -398,17 +398,18 @@ func compareGolden(t *testing.T, path, got string) {
 
 func TestProjectCommandHelp(t *testing.T) {
 	code, out, errs := runProjectCLI(t, "", "--help")
-	if code != exitOK || out != "" || !strings.Contains(errs, "Usage: wardload project") || !strings.Contains(errs, "-census") ||
-		!strings.Contains(errs, "-date") || !strings.Contains(errs, "log scale") || strings.Contains(errs, "bootstrap") {
+	if code != exitOK || errs != "" || !strings.Contains(out, "Usage: wardload project") || !strings.Contains(out, "-census") ||
+		!strings.Contains(out, "-date") || !strings.Contains(out, "log scale") || strings.Contains(out, "bootstrap") {
 		t.Errorf("--help: exit %d, stdout %q, stderr %q", code, out, errs)
 	}
 }
 
 func TestProjectCommandBadInput(t *testing.T) {
 	base := []string{"--shift-hours", "8", "--direct-care", "0.5"}
-	dated := "date,shift,tier,care_minutes,window_hours\n"
+	var dated strings.Builder
+	dated.WriteString("date,shift,tier,care_minutes,window_hours\n")
 	for i := range 9 {
-		dated += fmt.Sprintf("2026-03-%02d,Day,a,%d,8\n", i+1, 10+3*i)
+		dated.WriteString(fmt.Sprintf("2026-03-%02d,Day,a,%d,8\n", i+1, 10+3*i))
 	}
 	equal := "tier,care_minutes,window_hours\n" + strings.Repeat("a,20,8\n", 9) + strings.Repeat("b,5,8\n", 3)
 	tests := []struct {
@@ -445,20 +446,20 @@ func TestProjectCommandBadInput(t *testing.T) {
 		{"draws not a number", handCSV, append([]string{"-", "--census", "a=1", "--draws", "many"}, base...), "-draws"},
 		{"unknown flag", handCSV, append([]string{"-", "--census", "a=1", "--beds", "3"}, base...), "-beds"},
 		{"missing file", "", append([]string{filepath.Join(t.TempDir(), "nope.csv"), "--census", "a=1"}, base...), "cannot open the file"},
-		{"date not a date", strings.Replace(dated, "2026-03-04", "2026-02-30", 1), append([]string{"-", "--census", "a=1"}, base...),
+		{"date not a date", strings.Replace(dated.String(), "2026-03-04", "2026-02-30", 1), append([]string{"-", "--census", "a=1"}, base...),
 			`-: line 5, column "date": "2026-02-30" is not a date (YYYY-MM-DD`},
-		{"date in another format", strings.Replace(dated, "2026-03-04", "04/03/2026", 1), append([]string{"-", "--census", "a=1"}, base...),
+		{"date in another format", strings.Replace(dated.String(), "2026-03-04", "04/03/2026", 1), append([]string{"-", "--census", "a=1"}, base...),
 			`line 5, column "date": "04/03/2026" is not a date`},
-		{"date empty", strings.Replace(dated, "2026-03-04", "", 1), append([]string{"-", "--census", "a=1"}, base...), `line 5, column "date"`},
-		{"date too old", strings.Replace(dated, "2026-03-04", "1026-03-04", 1), append([]string{"-", "--census", "a=1"}, base...), `line 5, column "date"`},
-		{"shift empty", strings.Replace(dated, "2026-03-04,Day", "2026-03-04,", 1), append([]string{"-", "--census", "a=1"}, base...),
+		{"date empty", strings.Replace(dated.String(), "2026-03-04", "", 1), append([]string{"-", "--census", "a=1"}, base...), `line 5, column "date"`},
+		{"date too old", strings.Replace(dated.String(), "2026-03-04", "1026-03-04", 1), append([]string{"-", "--census", "a=1"}, base...), `line 5, column "date"`},
+		{"shift empty", strings.Replace(dated.String(), "2026-03-04,Day", "2026-03-04,", 1), append([]string{"-", "--census", "a=1"}, base...),
 			`line 5, column "shift": "" is not a shift name`},
-		{"shift too long", strings.Replace(dated, "2026-03-04,Day", "2026-03-04,"+strings.Repeat("x", 41), 1), append([]string{"-", "--census", "a=1"}, base...),
+		{"shift too long", strings.Replace(dated.String(), "2026-03-04,Day", "2026-03-04,"+strings.Repeat("x", 41), 1), append([]string{"-", "--census", "a=1"}, base...),
 			`line 5, column "shift"`},
 		{"shift without date", "shift,tier,care_minutes,window_hours\nDay,a,10,8\nDay,a,12,8\n", append([]string{"-", "--census", "a=1"}, base...),
 			`there is a "shift" column but no "date" column`},
-		{"--date not a date", dated, append([]string{"-", "--census", "a=1", "--date", "tomorrow"}, base...), `--date: "tomorrow" is not a date`},
-		{"--date before the observations", dated, append([]string{"-", "--census", "a=1", "--date", "2026-03-05"}, base...), "--date: Tier a: observation date 2026-03-06 is after the projected date"},
+		{"--date not a date", dated.String(), append([]string{"-", "--census", "a=1", "--date", "tomorrow"}, base...), `--date: "tomorrow" is not a date`},
+		{"--date before the observations", dated.String(), append([]string{"-", "--census", "a=1", "--date", "2026-03-05"}, base...), "--date: Tier a: observation date 2026-03-06 is after the projected date"},
 		{"--date without dates", handCSV, append([]string{"-", "--census", "a=1", "--date", "2026-03-05"}, base...), `--date: - has no "date" column`},
 		{"zero spread", equal, append([]string{"-", "--census", "a=2"}, base...),
 			`-: column "care_minutes": Tier a: all 9 usable observations are equal, so its spread cannot be estimated`},

@@ -34,7 +34,7 @@ func TestTokenCreateAndRevoke(t *testing.T) {
 	if tok.Hash != server.TokenHash(secret) || tok.Hash == secret || len(tok.WardIDs) != 2 || !tok.Active() {
 		t.Errorf("stored token = %+v; want the hash of the printed secret, two wards, active", tok)
 	}
-	es, _, err := st.FindAudit(ctx, wardload.AuditFilter{Action: ptr("token.create")})
+	es, _, err := st.FindAudit(ctx, wardload.AuditFilter{Action: new("token.create")})
 	// One row per ward of the token (w2 and w3), each by cli.
 	if err != nil || len(es) != 2 || es[0].Actor != "cli" || es[1].Actor != "cli" || es[0].WardID == es[1].WardID {
 		t.Fatalf("audit of token.create = %+v, %v; want one row by cli for each ward", es, err)
@@ -87,5 +87,3 @@ func TestTokenBadInput(t *testing.T) {
 		t.Errorf("a refused token was stored: %v", err)
 	}
 }
-
-func ptr[T any](v T) *T { return &v }

@@ -82,7 +82,7 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 // wardIDs resolves a comma-separated list of ward codes.
 func wardIDs(ctx context.Context, st wardload.WardService, codes string) ([]int64, error) {
 	var ids []int64
-	for _, code := range strings.Split(codes, ",") {
+	for code := range strings.SplitSeq(codes, ",") {
 		if code = strings.TrimSpace(code); code == "" {
 			continue
 		}

@@ -206,23 +206,49 @@ func TestUserAddFlagsAfterName(t *testing.T) {
 	}
 }
 
-// A command group answers --help with its sub-commands; bare, it is a
-// usage error that still lists them.
+// A command group answers --help with its sub-commands on standard output;
+// bare, it is a usage error that lists them on standard error. The same
+// holds for wardload itself.
 func TestGroupHelp(t *testing.T) {
 	for _, tc := range []struct {
-		args []string
-		code int
-		want string
+		args   []string
+		code   int
+		stdout bool // the listing on standard output, and nothing on standard error
+		want   string
 	}{
-		{[]string{"user", "--help"}, exitOK, "user add"},
-		{[]string{"token", "-h"}, exitOK, "token revoke"},
-		{[]string{"export"}, exitUsage, "export projections"},
-		{[]string{"ward", "help"}, exitOK, "ward list"},
+		{[]string{"user", "--help"}, exitOK, true, "user add"},
+		{[]string{"token", "-h"}, exitOK, true, "token revoke"},
+		{[]string{"export"}, exitUsage, false, "export projections"},
+		{[]string{"ward", "help"}, exitOK, true, "ward list"},
+		{[]string{"--help"}, exitOK, true, "user add"},
+		{[]string{"help"}, exitOK, true, "--version"},
+		{nil, exitUsage, false, "user add"},
 	} {
 		var out, errb bytes.Buffer
 		e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
-		if code := run(context.Background(), tc.args, e); code != tc.code || !strings.Contains(errb.String(), tc.want) {
-			t.Errorf("%q: exit %d, stderr %q; want %d listing %q", tc.args, code, errb.String(), tc.code, tc.want)
+		code := run(context.Background(), tc.args, e)
+		listing, other := errb.String(), out.String()
+		if tc.stdout {
+			listing, other = other, listing
 		}
+		if code != tc.code || !strings.Contains(listing, tc.want) || other != "" {
+			t.Errorf("%q: exit %d, stdout %q, stderr %q; want %d listing %q on stdout=%v", tc.args, code, out.String(), errb.String(), tc.code, tc.want, tc.stdout)
+		}
+	}
+}
+
+// wardload --version is the version command.
+func TestVersionFlag(t *testing.T) {
+	for _, args := range [][]string{{"--version"}, {"version"}} {
+		var out, errb bytes.Buffer
+		e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+		if code := run(context.Background(), args, e); code != exitOK || out.String() != "wardload "+version+"\n" || errb.Len() != 0 {
+			t.Errorf("%q: exit %d, stdout %q, stderr %q", args, code, out.String(), errb.String())
+		}
+	}
+	var out, errb bytes.Buffer
+	e := &env{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, getenv: func(string) string { return "" }}
+	if code := run(context.Background(), []string{"--version", "extra"}, e); code != exitUsage || out.Len() != 0 {
+		t.Errorf("--version extra: exit %d, stdout %q", code, out.String())
 	}
 }

@@ -147,12 +147,12 @@ func TestWardAddBadInputCreatesNoDatabase(t *testing.T) {
 
 func TestWardAddHelp(t *testing.T) {
 	code, out, errs := runCLI(t, t.TempDir(), "", "ward", "add", "--help")
-	if code != exitOK || out != "" {
-		t.Fatalf("--help = %d, %q", code, out)
+	if code != exitOK || errs != "" {
+		t.Fatalf("--help = %d, stderr %q", code, errs)
 	}
 	for _, s := range []string{"Usage: wardload ward add", "-code", "-name", "-time-zone", "-beds", "WARDLOAD_<FLAG>"} {
-		if !strings.Contains(errs, s) {
-			t.Errorf("help does not mention %q:\n%s", s, errs)
+		if !strings.Contains(out, s) {
+			t.Errorf("help does not mention %q:\n%s", s, out)
 		}
 	}
 }

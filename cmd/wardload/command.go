@@ -58,13 +58,23 @@ func register(c command) {
 	commands[c.name] = c
 }
 
+// isHelp reports whether arg asks for help.
+func isHelp(arg string) bool { return arg == "-h" || arg == "--help" || arg == "help" }
+
+// run runs the command args name. Help that was asked for goes to standard
+// output with exit 0; usage shown because the command line was incomplete
+// goes to standard error with exit 2.
 func run(ctx context.Context, args []string, e *env) int {
-	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
+	if len(args) == 0 {
 		usage(e.stderr)
-		if len(args) == 0 {
-			return exitUsage
-		}
+		return exitUsage
+	}
+	if isHelp(args[0]) {
+		usage(e.stdout)
 		return exitOK
+	}
+	if args[0] == "--version" || args[0] == "-version" {
+		return runVersion(ctx, e, args[1:])
 	}
 	if len(args) >= 2 {
 		if c, ok := commands[args[0]+" "+args[1]]; ok {
@@ -77,14 +87,15 @@ func run(ctx context.Context, args []string, e *env) int {
 	if sub := groupCommands(args[0]); len(sub) > 0 {
 		// "wardload user --help" (or a bare "wardload user") lists the
 		// group's sub-commands.
-		fmt.Fprintf(e.stderr, "Usage: wardload %s COMMAND [flags]   (each has --help)\n\nCommands:\n", args[0])
+		w, code := e.stderr, exitUsage
+		if len(args) >= 2 && isHelp(args[1]) {
+			w, code = e.stdout, exitOK
+		}
+		fmt.Fprintf(w, "Usage: wardload %s COMMAND [flags]   (each has --help)\n\nCommands:\n", args[0])
 		for _, n := range sub {
-			fmt.Fprintf(e.stderr, "  %-20s %s\n", n, commands[n].summary)
+			fmt.Fprintf(w, "  %-20s %s\n", n, commands[n].summary)
 		}
-		if len(args) >= 2 && (args[1] == "-h" || args[1] == "--help" || args[1] == "help") {
-			return exitOK
-		}
-		return exitUsage
+		return code
 	}
 	fmt.Fprintf(e.stderr, "wardload: unknown command %q (try wardload --help)\n", strings.Join(args[:min(2, len(args))], " "))
 	return exitUsage
@@ -106,7 +117,7 @@ func groupCommands(group string) []string {
 func usage(w io.Writer) {
 	fmt.Fprintln(w, "wardload estimates nurse staffing workload from census and timed care observations.")
 	fmt.Fprintln(w, "Its figures are estimates; they defer to local staffing law, agreements and clinical judgement.")
-	fmt.Fprintln(w, "\nUsage: wardload COMMAND [flags]   (every command has --help)\n\nCommands:")
+	fmt.Fprintln(w, "\nUsage: wardload COMMAND [flags]   (every command has --help)\n       wardload --version\n\nCommands:")
 	names := make([]string, 0, len(commands))
 	for n := range commands {
 		names = append(names, n)
@@ -118,13 +129,14 @@ func usage(w io.Writer) {
 }
 
 // newFlagSet returns a flag set that reports errors instead of exiting and
-// prints a usage line for the command on --help.
+// prints a usage line for the command: on --help to standard output
+// (parseFlags), after a usage error to standard error.
 func newFlagSet(e *env, name, argsUsage, summary string) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(e.stderr)
 	fs.Usage = func() {
-		fmt.Fprintf(e.stderr, "Usage: wardload %s [flags] %s\n\n%s\n\n", name, argsUsage, summary)
-		fmt.Fprintf(e.stderr, "Every flag may also be set in the environment as WARDLOAD_<FLAG> (--data-dir: WARDLOAD_DATA_DIR);\na flag on the command line wins.\n\nFlags:\n")
+		fmt.Fprintf(fs.Output(), "Usage: wardload %s [flags] %s\n\n%s\n\n", name, argsUsage, summary)
+		fmt.Fprintf(fs.Output(), "Every flag may also be set in the environment as WARDLOAD_<FLAG> (--data-dir: WARDLOAD_DATA_DIR);\na flag on the command line wins.\n\nFlags:\n")
 		fs.PrintDefaults()
 	}
 	return fs
@@ -147,7 +159,9 @@ func parseFlags(e *env, fs *flag.FlagSet, args []string) (int, bool) {
 	fs.SetOutput(out)
 	fs.Usage = help
 	if err == flag.ErrHelp {
+		fs.SetOutput(e.stdout)
 		help()
+		fs.SetOutput(out)
 		return exitOK, false
 	}
 	if err != nil {

@@ -29,10 +29,10 @@ func TestEveryCommandRefusesUnknownFlagInOneLine(t *testing.T) {
 			t.Errorf("%s: %q does not name the command and the flag", name, errOut)
 		}
 	}
-	// --help still prints the usage, exit 0.
-	code, _, errOut := runCSVCommand(t, "", "summarize", "--help")
-	if code != exitOK || !strings.Contains(errOut, "Usage: wardload summarize") || !strings.Contains(errOut, "-quartiles") {
-		t.Errorf("summarize --help: %d %q", code, errOut)
+	// --help still prints the usage, to standard output, exit 0.
+	code, out, errOut := runCSVCommand(t, "", "summarize", "--help")
+	if code != exitOK || errOut != "" || !strings.Contains(out, "Usage: wardload summarize") || !strings.Contains(out, "-quartiles") {
+		t.Errorf("summarize --help: %d stdout %q stderr %q", code, out, errOut)
 	}
 }
 

@@ -5,9 +5,12 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"os"
 	"path/filepath"
 	"slices"
 	"sort"
+	"strings"
+	"sync"
 	"testing"
 	"time"
 
@@ -22,6 +25,17 @@ import (
 // 64 MiB each would dominate the test time; the hashing itself is tested
 // in internal/password.
 var testParams = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if seeded.st != nil {
+		seeded.st.(*sqlite.Store).Close()
+	}
+	if seeded.dir != "" {
+		os.RemoveAll(seeded.dir)
+	}
+	os.Exit(code)
+}
 
 // now is a fixed clock whose ten-week period spans the end of British
 // Summer Time on 2026-10-25.
@@ -50,14 +64,55 @@ func mustSeed(t *testing.T, st wardload.Store) *demo.Result {
 	return res
 }
 
+// seeded is one fresh SQLite store seeded for now, shared by the tests
+// that only read it: seeding costs seconds, most of it projections.
+var seeded struct {
+	once sync.Once
+	st   wardload.Store
+	res  *demo.Result
+	err  error
+	dir  string // removed by TestMain
+}
+
+// mustSeeded returns the shared seeded store and its seed's result.
+func mustSeeded(t *testing.T) (wardload.Store, *demo.Result) {
+	t.Helper()
+	seeded.once.Do(func() {
+		ctx := context.Background()
+		if seeded.dir, seeded.err = os.MkdirTemp("", "wardload-demo-"); seeded.err != nil {
+			return
+		}
+		st, err := sqlite.Open(ctx, sqlite.Config{Path: filepath.Join(seeded.dir, "demo.db"), Now: func() time.Time { return now }})
+		if err != nil {
+			seeded.err = err
+			return
+		}
+		seeded.st = st
+		if seeded.err = st.Migrate(ctx); seeded.err == nil {
+			seeded.res, seeded.err = demo.Seed(ctx, st, now, testParams)
+		}
+	})
+	if seeded.err != nil {
+		t.Fatal(seeded.err)
+	}
+	return seeded.st, seeded.res
+}
+
 func TestSeed(t *testing.T) {
-	checkSeed(t, mustOpen(t))
+	st, res := mustSeeded(t)
+	checkSeeded(t, st, res)
 }
 
 // checkSeed seeds st, a fresh store, and checks the scenario.
 func checkSeed(t *testing.T, st wardload.Store) {
+	t.Helper()
+	checkSeeded(t, st, mustSeed(t, st))
+}
+
+// checkSeeded checks the scenario in st, which res says was just seeded
+// into a fresh store.
+func checkSeeded(t *testing.T, st wardload.Store, res *demo.Result) {
 	ctx := context.Background()
-	res := mustSeed(t, st)
 	if !res.Created || res.Ward == nil || res.Ward.Code != demo.WardCode {
 		t.Fatalf("Seed = %+v; want Created with the demo ward", res)
 	}
@@ -268,8 +323,9 @@ func checkSeed(t *testing.T, st wardload.Store) {
 }
 
 func TestSeedIsDeterministic(t *testing.T) {
-	a, b := mustOpen(t), mustOpen(t)
-	ra, rb := mustSeed(t, a), mustSeed(t, b)
+	a, ra := mustSeeded(t)
+	b := mustOpen(t)
+	rb := mustSeed(t, b)
 	da, db := dump(t, a, ra.Ward.ID), dump(t, b, rb.Ward.ID)
 	if len(da) == 0 {
 		t.Fatal("no observations seeded")
@@ -303,11 +359,11 @@ func dump(t *testing.T, st wardload.Store, wardID int64) []string {
 		t.Fatal(err)
 	}
 	for _, c := range cs {
-		counts := ""
+		var counts strings.Builder
 		for _, tc := range c.Counts {
-			counts += fmt.Sprintf(" %d", tc.Patients)
+			counts.WriteString(fmt.Sprintf(" %d", tc.Patients))
 		}
-		out = append(out, fmt.Sprintf("census %s %s r%d%s", c.Date, shiftName(t, st, c.ShiftID), c.Revision, counts))
+		out = append(out, fmt.Sprintf("census %s %s r%d%s", c.Date, shiftName(t, st, c.ShiftID), c.Revision, counts.String()))
 	}
 	ps, _, err := st.FindProjections(context.Background(), wardload.ProjectionFilter{WardID: &wardID})
 	if err != nil {

@@ -69,8 +69,7 @@ func TestSeedPostgres(t *testing.T) {
 	pg := mustOpenPostgres(t)
 	checkSeed(t, pg)
 
-	lite := mustOpen(t)
-	res := mustSeed(t, lite)
+	lite, res := mustSeeded(t)
 	again, err := pg.FindWardByCode(context.Background(), res.Ward.Code)
 	if err != nil {
 		t.Fatal(err)

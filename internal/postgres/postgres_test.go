@@ -8,6 +8,7 @@ import (
 	neturl "net/url"
 	"os"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 
@@ -49,47 +50,162 @@ func testURL(t *testing.T) string {
 func MustOpenStore(tb testing.TB, url string, now wardload.Clock) (*postgres.Store, string) {
 	tb.Helper()
 	ctx := context.Background()
-	b := make([]byte, 8)
-	if _, err := rand.Read(b); err != nil {
-		tb.Fatal(err)
-	}
-	schema := "wl_" + hex.EncodeToString(b)
-	admin, err := pgx.Connect(ctx, url)
-	if err != nil {
-		tb.Fatalf("connect: %v", err)
-	}
-	defer admin.Close(ctx)
-	if _, err := admin.Exec(ctx, `CREATE SCHEMA `+pgx.Identifier{schema}.Sanitize()); err != nil {
-		tb.Fatalf("create schema: %v", err)
-	}
+	schema := newSchemaName(tb)
+	mustExec(tb, url, func(c *pgx.Conn) error {
+		_, err := c.Exec(ctx, `CREATE SCHEMA `+pgx.Identifier{schema}.Sanitize())
+		return err
+	})
 	tb.Cleanup(func() {
-		c, err := pgx.Connect(context.Background(), url)
-		if err != nil {
-			tb.Errorf("cleanup connect: %v", err)
-			return
-		}
-		defer c.Close(context.Background())
-		if _, err := c.Exec(context.Background(), `DROP SCHEMA `+pgx.Identifier{schema}.Sanitize()+` CASCADE`); err != nil {
-			tb.Errorf("drop schema %s: %v", schema, err)
-		}
+		mustExec(tb, url, func(c *pgx.Conn) error {
+			_, err := c.Exec(context.Background(), `DROP SCHEMA `+pgx.Identifier{schema}.Sanitize()+` CASCADE`)
+			return err
+		})
 	})
 	s, err := postgres.Open(ctx, postgres.Config{URL: url, Now: now, Schema: schema})
 	if err != nil {
 		tb.Fatalf("open: %v", err)
 	}
 	tb.Cleanup(func() { s.Close() })
-	if err := s.Migrate(ctx); err != nil {
+	// goose's advisory lock is one per database, not per schema: parallel
+	// tests migrating their own schemas would queue on it and poll once a
+	// second. Taking turns here makes the wait as short as the migration.
+	migrateTurn.Lock()
+	err = s.Migrate(ctx)
+	migrateTurn.Unlock()
+	if err != nil {
 		tb.Fatalf("migrate: %v", err)
 	}
 	return s, schema
 }
 
+// migrateTurn lets one test of this package migrate at a time.
+var migrateTurn sync.Mutex
+
+// newSchemaName returns a random schema name.
+func newSchemaName(tb testing.TB) string {
+	tb.Helper()
+	b := make([]byte, 8)
+	if _, err := rand.Read(b); err != nil {
+		tb.Fatal(err)
+	}
+	return "wl_" + hex.EncodeToString(b)
+}
+
+// mustExec runs do on a connection of its own, outside any store, and
+// fails tb on an error.
+func mustExec(tb testing.TB, url string, do func(*pgx.Conn) error) {
+	tb.Helper()
+	ctx := context.Background()
+	c, err := pgx.Connect(ctx, url)
+	if err != nil {
+		tb.Fatalf("connect: %v", err)
+	}
+	defer c.Close(ctx)
+	if err := do(c); err != nil {
+		tb.Fatal(err)
+	}
+}
+
 func TestStore(t *testing.T) {
 	url := testURL(t)
+	schemas := newSchemaPool(t, url)
 	storetest.Run(t, func(t *testing.T, now wardload.Clock) wardload.Store {
-		s, _ := MustOpenStore(t, url, now)
+		schema := schemas.get(t)
+		t.Cleanup(func() { schemas.put(t, schema) }) // runs after Close below
+		s, err := postgres.Open(context.Background(), postgres.Config{URL: url, Now: now, Schema: schema})
+		if err != nil {
+			t.Fatalf("open: %v", err)
+		}
+		t.Cleanup(func() { s.Close() })
 		return s
 	})
+}
+
+// schemaPool hands the contract suite's parallel cases migrated, empty
+// schemas. Creating and migrating a schema costs most of a case's time, so
+// a returned schema is emptied (TRUNCATE … RESTART IDENTITY, which also
+// restarts the id sequences) and handed out again: the migrations insert
+// no rows, so an emptied schema is the same as a fresh one. The pool holds
+// as many schemas as cases ran at once and drops them all at the end.
+type schemaPool struct {
+	url       string
+	mu        sync.Mutex
+	all, free []string
+}
+
+// newSchemaPool returns a pool whose schemas are dropped when t ends.
+func newSchemaPool(t *testing.T, url string) *schemaPool {
+	p := &schemaPool{url: url}
+	t.Cleanup(func() {
+		p.mu.Lock()
+		defer p.mu.Unlock()
+		mustExec(t, url, func(c *pgx.Conn) error {
+			for _, schema := range p.all {
+				if _, err := c.Exec(context.Background(), `DROP SCHEMA `+pgx.Identifier{schema}.Sanitize()+` CASCADE`); err != nil {
+					return err
+				}
+			}
+			return nil
+		})
+	})
+	return p
+}
+
+// get returns a free schema, or a new migrated one.
+func (p *schemaPool) get(t *testing.T) string {
+	t.Helper()
+	p.mu.Lock()
+	if n := len(p.free); n > 0 {
+		schema := p.free[n-1]
+		p.free = p.free[:n-1]
+		p.mu.Unlock()
+		return schema
+	}
+	p.mu.Unlock()
+	schema := newSchemaName(t)
+	mustExec(t, p.url, func(c *pgx.Conn) error {
+		_, err := c.Exec(context.Background(), `CREATE SCHEMA `+pgx.Identifier{schema}.Sanitize())
+		return err
+	})
+	p.mu.Lock()
+	p.all = append(p.all, schema) // before migrating, so a failed one is dropped too
+	p.mu.Unlock()
+	s, err := postgres.Open(context.Background(), postgres.Config{URL: p.url, Schema: schema})
+	if err != nil {
+		t.Fatalf("open: %v", err)
+	}
+	defer s.Close()
+	migrateTurn.Lock()
+	err = s.Migrate(context.Background())
+	migrateTurn.Unlock()
+	if err != nil {
+		t.Fatalf("migrate: %v", err)
+	}
+	return schema
+}
+
+// put empties schema and makes it free again.
+func (p *schemaPool) put(t *testing.T, schema string) {
+	mustExec(t, p.url, func(c *pgx.Conn) error {
+		ctx := context.Background()
+		rows, err := c.Query(ctx, `SELECT tablename FROM pg_tables WHERE schemaname = $1 AND tablename <> 'goose_db_version'`, schema)
+		if err != nil {
+			return err
+		}
+		tables, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (string, error) {
+			var name string
+			err := r.Scan(&name)
+			return pgx.Identifier{schema, name}.Sanitize(), err
+		})
+		if err != nil {
+			return err
+		}
+		_, err = c.Exec(ctx, `TRUNCATE `+strings.Join(tables, ", ")+` RESTART IDENTITY`)
+		return err
+	})
+	p.mu.Lock()
+	p.free = append(p.free, schema)
+	p.mu.Unlock()
 }
 
 // TestMigrateIntoSchema checks that tables and goose's version table land

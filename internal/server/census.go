@@ -2,11 +2,11 @@ package server
 
 import (
 	"fmt"
+	"maps"
 	"net/http"
 	"net/url"
 	"strconv"
 	"strings"
-	"time"
 
 	"wardload/internal/projector"
 	"wardload/internal/wardload"
@@ -32,12 +32,6 @@ func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
 		return nil, err
 	}
 	return d, nil
-}
-
-func censusURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/census" }
-
-func projectionURL(ward *wardload.Ward, id int64) string {
-	return fmt.Sprintf("/wards/%s/projections/%d", ward.Code, id)
 }
 
 // handleCensusForm shows the census form. Without query parameters it
@@ -106,9 +100,7 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	}
 	day, shiftID, errs := parseShiftChoice(d, date, shift)
 	counts, countErrs := parseCensusForm(form, d.tiers)
-	for k, v := range countErrs {
-		errs[k] = v
-	}
+	maps.Copy(errs, countErrs)
 	if len(errs) > 0 {
 		return rerender(http.StatusBadRequest, errs)
 	}
@@ -184,7 +176,6 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		return vm, nil
 	}
 	if errs == nil {
-		errs = map[string]string{}
 		// On a GET the choice is checked here, window included, so that
 		// a date out of range is explained before anything is typed.
 		day, _, choiceErrs := parseShiftChoice(d, date, shift)
@@ -291,13 +282,4 @@ func (s *Server) latestCensus(r *http.Request, d *censusData, date string, shift
 // 19:30, 12 hours".
 func shiftLabel(p *wardload.ShiftPattern) string {
 	return fmt.Sprintf("%s, from %s, %s hours", p.Name, p.StartClock(), strconv.FormatFloat(p.NominalHours, 'f', -1, 64))
-}
-
-// formatLocal shows an instant in the ward's time zone to the minute,
-// naming the zone.
-func formatLocal(t time.Time, ward *wardload.Ward) string {
-	if loc, err := ward.Location(); err == nil {
-		t = t.In(loc)
-	}
-	return t.Format("2006-01-02 15:04") + " (" + ward.TimeZone + ")"
 }

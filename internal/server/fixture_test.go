@@ -6,6 +6,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"net/url"
+	"os"
 	"strings"
 	"sync"
 	"testing"
@@ -22,6 +23,14 @@ import (
 // users: production parameters cost 64 MiB per hash; the hash itself is
 // tested in internal/password.
 var testPassword = password.Params{MemoryKiB: 64, Time: 1, Threads: 1, SaltLen: 16, KeyLen: 32}
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if demoTemplate.dir != "" {
+		os.RemoveAll(demoTemplate.dir)
+	}
+	os.Exit(code)
+}
 
 // testClock is a settable clock for sessions and throttling.
 type testClock struct {
@@ -65,8 +74,14 @@ const (
 
 func newFixture(tb testing.TB) *fixture {
 	tb.Helper()
+	return newFixtureOn(tb, MustOpenSQLite(tb))
+}
+
+// newFixtureOn is newFixture on the migrated store st.
+func newFixtureOn(tb testing.TB, st *sqlite.Store) *fixture {
+	tb.Helper()
 	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
-	f := &fixture{st: MustOpenSQLite(tb), clock: &testClock{t: time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)},
+	f := &fixture{st: st, clock: &testClock{t: time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)},
 		users: map[string]*wardload.User{}, passwords: map[string]string{}, logs: &logBuffer{}}
 	f.wardA = &wardload.Ward{Code: "w-a", Name: "Ward A", TimeZone: "Europe/Dublin"}
 	f.wardB = &wardload.Ward{Code: "w-b", Name: "Ward B", TimeZone: "Europe/Dublin"}

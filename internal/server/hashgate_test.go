@@ -9,7 +9,8 @@ import (
 func TestHashGate(t *testing.T) {
 	ctx := context.Background()
 	g := newHashGate(2, 1, 1<<62) // waits "forever": only a free slot or ctx ends a wait
-	if !g.enter(ctx) || !g.enter(ctx) {
+	// Two separate calls: each takes a slot.
+	if first, second := g.enter(ctx), g.enter(ctx); !first || !second {
 		t.Fatal("two slots, two entries refused")
 	}
 	// Both slots taken. A waiter whose request ends gives up.

@@ -21,13 +21,6 @@ import (
 // is a few kilobytes; ten years of one ward fit well under it.
 const maxImportBytes = 4 << 20
 
-func importURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/observations/import" }
-
-// templateURL is the address of the ward's blank import file.
-func templateURL(ward *wardload.Ward) string {
-	return "/wards/" + ward.Code + "/observations/template.csv"
-}
-
 // importVM describes the upload form for ward.
 func (s *Server) importVM(r *http.Request) (web.ImportVM, []*wardload.Tier, []*wardload.ShiftPattern, error) {
 	ward := principalFrom(r.Context()).Ward

@@ -2,215 +2,121 @@ package server
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
-	"regexp"
+	"io"
+	"net/http"
+	"net/http/httptest"
 	"slices"
 	"sort"
 	"strings"
 	"testing"
-	"time"
+
+	"github.com/getkin/kin-openapi/openapi3"
+	"github.com/getkin/kin-openapi/openapi3filter"
+	"github.com/getkin/kin-openapi/routers"
 )
 
-// This file holds a small validator for the subset of OpenAPI 3.0 schema
-// keywords openapi.json uses: $ref (local), type, nullable, required,
-// properties, additionalProperties (false or a schema), items, enum,
-// pattern and format date / date-time. Anything else in a schema fails
-// the check, so the document cannot drift past what is validated.
-
-// openAPI is the parsed document.
-type openAPI map[string]any
-
-func loadOpenAPI(t *testing.T) openAPI {
+// loadOpenAPI parses openapi.json with kin-openapi and fails unless the
+// library finds it a valid OpenAPI 3.0 document.
+func loadOpenAPI(t *testing.T) *openapi3.T {
 	t.Helper()
-	var doc openAPI
-	if err := json.Unmarshal(openAPIDoc, &doc); err != nil {
+	loader := openapi3.NewLoader()
+	doc, err := loader.LoadFromData(openAPIDoc)
+	if err != nil {
 		t.Fatalf("openapi.json: %v", err)
+	}
+	if err := doc.Validate(loader.Context, openapi3.EnableSchemaFormatValidation(), openapi3.EnableSchemaPatternValidation()); err != nil {
+		t.Fatalf("openapi.json is not a valid OpenAPI document: %v", err)
 	}
 	return doc
 }
 
-// at follows a local JSON pointer such as "#/components/schemas/Error".
-func (doc openAPI) at(ref string) (any, error) {
-	if !strings.HasPrefix(ref, "#/") {
-		return nil, fmt.Errorf("non-local $ref %q", ref)
-	}
-	var cur any = map[string]any(doc)
-	for _, part := range strings.Split(ref[2:], "/") {
-		m, ok := cur.(map[string]any)
-		if !ok {
-			return nil, fmt.Errorf("$ref %q: %q is not in an object", ref, part)
-		}
-		if cur, ok = m[part]; !ok {
-			return nil, fmt.Errorf("$ref %q: no %q", ref, part)
-		}
-	}
-	return cur, nil
-}
+// errorSchemaRef is the one schema every error response uses.
+const errorSchemaRef = "#/components/schemas/Error"
 
-// deref resolves v while it is a {"$ref": ...} object.
-func (doc openAPI) deref(v any) (map[string]any, error) {
-	for range 10 {
-		m, ok := v.(map[string]any)
-		if !ok {
-			return nil, fmt.Errorf("not an object: %v", v)
-		}
-		ref, ok := m["$ref"].(string)
-		if !ok {
-			return m, nil
-		}
-		var err error
-		if v, err = doc.at(ref); err != nil {
-			return nil, err
-		}
-	}
-	return nil, fmt.Errorf("$ref chain too long")
-}
-
-// responseSchema returns the schema of the response of method path with
-// status and media type, failing if the document does not declare it.
-func (doc openAPI) responseSchema(method, path string, status int, media string) (map[string]any, error) {
-	// Paths are looked up directly: in a JSON pointer their "/" would
-	// need escaping.
-	paths, _ := doc["paths"].(map[string]any)
-	item, ok := paths[path].(map[string]any)
-	if !ok {
-		return nil, fmt.Errorf("path %s is not in the document", path)
-	}
-	op, ok := item[strings.ToLower(method)].(map[string]any)
-	if !ok {
-		return nil, fmt.Errorf("%s %s is not in the document", method, path)
-	}
-	responses, _ := op["responses"].(map[string]any)
-	res, ok := responses[fmt.Sprint(status)]
-	if !ok {
-		return nil, fmt.Errorf("%s %s: status %d is not documented", method, path, status)
-	}
-	r, err := doc.deref(res)
-	if err != nil {
-		return nil, err
-	}
-	content, _ := r["content"].(map[string]any)
-	mt, ok := content[media].(map[string]any)
-	if !ok {
-		return nil, fmt.Errorf("%s %s %d: media type %s is not documented", method, path, status, media)
-	}
-	return doc.deref(mt["schema"])
-}
-
-var (
-	dateRE     = regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`)
-	schemaKeys = []string{"$ref", "type", "nullable", "required", "properties", "additionalProperties", "items",
-		"enum", "pattern", "format", "description", "default"}
-)
-
-// validate checks v (decoded with UseNumber) against schema and returns
-// every violation, each prefixed with its location in v.
-func (doc openAPI) validate(schema any, v any, where string) []string {
-	s, err := doc.deref(schema)
-	if err != nil {
-		return []string{where + ": " + err.Error()}
-	}
-	var errs []string
-	fail := func(format string, args ...any) { errs = append(errs, where+": "+fmt.Sprintf(format, args...)) }
-	for k := range s {
-		if !slices.Contains(schemaKeys, k) {
-			fail("schema keyword %q is not supported by this validator", k)
-		}
-	}
-	if v == nil {
-		if s["nullable"] != true {
-			fail("null where the schema does not allow it")
-		}
-		return errs
-	}
-	switch typ, _ := s["type"].(string); typ {
-	case "object":
-		obj, ok := v.(map[string]any)
-		if !ok {
-			fail("want an object, got %T", v)
-			return errs
-		}
-		props, _ := s["properties"].(map[string]any)
-		req, _ := s["required"].([]any)
-		for _, r := range req {
-			if _, ok := obj[r.(string)]; !ok {
-				fail("missing required property %q", r)
+// TestOpenAPILint holds the document to rules beyond validity: every
+// operation is named and summarised; every response is JSON with a
+// schema; every error status uses the Error schema; an operation behind
+// the bearer token documents 401 and every operation but the public
+// document documents 500; and every schema is complete (a type, and for
+// objects required properties and additionalProperties stated, so a
+// client generator knows the whole shape).
+func TestOpenAPILint(t *testing.T) {
+	doc := loadOpenAPI(t)
+	for path, item := range doc.Paths.Map() {
+		for method, op := range item.Operations() {
+			where := method + " " + path
+			if op.OperationID == "" || op.Summary == "" {
+				t.Errorf("%s: operationId and summary are required", where)
 			}
-		}
-		keys := make([]string, 0, len(obj))
-		for k := range obj {
-			keys = append(keys, k)
-		}
-		sort.Strings(keys)
-		for _, k := range keys {
-			if ps, ok := props[k]; ok {
-				errs = append(errs, doc.validate(ps, obj[k], where+"."+k)...)
-				continue
+			secured := len(doc.Security) > 0
+			if op.Security != nil {
+				secured = len(*op.Security) > 0
 			}
-			switch ap := s["additionalProperties"].(type) {
-			case bool:
-				if !ap {
-					fail("property %q is not allowed", k)
+			var statuses []string
+			for status, r := range op.Responses.Map() {
+				statuses = append(statuses, status)
+				mt := r.Value.Content.Get("application/json")
+				if mt == nil || mt.Schema == nil {
+					t.Errorf("%s %s: no application/json schema", where, status)
+					continue
 				}
-			case map[string]any:
-				errs = append(errs, doc.validate(ap, obj[k], where+"."+k)...)
+				if status[0] >= '4' && mt.Schema.Ref != errorSchemaRef {
+					t.Errorf("%s %s: error responses must use %s, not %q", where, status, errorSchemaRef, mt.Schema.Ref)
+				}
+			}
+			if secured && !slices.Contains(statuses, "401") {
+				t.Errorf("%s: behind the token but no 401 response", where)
+			}
+			if secured && !slices.Contains(statuses, "500") {
+				t.Errorf("%s: no 500 response", where)
 			}
 		}
-	case "array":
-		arr, ok := v.([]any)
-		if !ok {
-			fail("want an array, got %T", v)
-			return errs
-		}
-		for i, item := range arr {
-			errs = append(errs, doc.validate(s["items"], item, fmt.Sprintf("%s[%d]", where, i))...)
-		}
-	case "string":
-		str, ok := v.(string)
-		if !ok {
-			fail("want a string, got %T", v)
-			return errs
-		}
-		switch f := s["format"]; f {
-		case nil:
-		case "date":
-			if _, err := time.Parse("2006-01-02", str); err != nil || !dateRE.MatchString(str) {
-				fail("%q is not a date", str)
-			}
-		case "date-time":
-			if _, err := time.Parse(time.RFC3339, str); err != nil {
-				fail("%q is not an RFC 3339 date-time", str)
-			}
-		default:
-			fail("format %v is not supported by this validator", f)
-		}
-		if p, ok := s["pattern"].(string); ok && !regexp.MustCompile(p).MatchString(str) {
-			fail("%q does not match %s", str, p)
-		}
-	case "integer", "number":
-		n, ok := v.(json.Number)
-		if !ok {
-			fail("want a %s, got %T", typ, v)
-			return errs
-		}
-		if _, err := n.Float64(); err != nil {
-			fail("%s is not a number", n)
-		}
-		if typ == "integer" && strings.ContainsAny(n.String(), ".eE") {
-			fail("%s is not an integer", n)
-		}
-	case "boolean":
-		if _, ok := v.(bool); !ok {
-			fail("want a boolean, got %T", v)
-		}
-	default:
-		fail("schema without a supported type: %v", s["type"])
 	}
-	if enum, ok := s["enum"].([]any); ok && !slices.ContainsFunc(enum, func(e any) bool { return fmt.Sprint(e) == fmt.Sprint(v) }) {
-		fail("%v is not one of %v", v, enum)
+	for name, s := range doc.Components.Schemas {
+		lintSchema(t, "#/components/schemas/"+name, s)
 	}
-	return errs
+}
+
+// lintSchema checks s and the schemas inside it for completeness.
+func lintSchema(t *testing.T, where string, s *openapi3.SchemaRef) {
+	t.Helper()
+	if s.Ref != "" {
+		return // checked where it is defined
+	}
+	v := s.Value
+	if v.Type == nil || len(*v.Type) != 1 {
+		t.Errorf("%s: want exactly one type, got %v", where, v.Type)
+		return
+	}
+	switch {
+	case v.Type.Is("object"):
+		if v.AdditionalProperties.Has == nil && v.AdditionalProperties.Schema == nil {
+			t.Errorf("%s: additionalProperties must be stated (false, or a schema for a map)", where)
+		}
+		if len(v.Properties) > 0 && len(v.Required) == 0 {
+			t.Errorf("%s: properties but none required", where)
+		}
+		for _, r := range v.Required {
+			if _, ok := v.Properties[r]; !ok {
+				t.Errorf("%s: required %q is not a property", where, r)
+			}
+		}
+		for name, p := range v.Properties {
+			lintSchema(t, where+"/properties/"+name, p)
+		}
+		if v.AdditionalProperties.Schema != nil {
+			lintSchema(t, where+"/additionalProperties", v.AdditionalProperties.Schema)
+		}
+	case v.Type.Is("array"):
+		if v.Items == nil {
+			t.Errorf("%s: an array without items", where)
+			return
+		}
+		lintSchema(t, where+"/items", v.Items)
+	}
 }
 
 // decodeJSON decodes body keeping numbers as written.
@@ -225,13 +131,38 @@ func decodeJSON(t *testing.T, body []byte) any {
 	return v
 }
 
-// TestOpenAPIValidatorRejects makes sure the validator can fail: each
-// document below breaks one rule the API's schemas rely on.
+// validateResponse checks a response to GET target against the operation
+// of path (the route pattern) with kin-openapi's openapi3filter: the
+// status must be documented, and the media type and body must match it.
+func validateResponse(t *testing.T, doc *openapi3.T, path, target string, res *http.Response, body []byte) error {
+	t.Helper()
+	item := doc.Paths.Value(path)
+	if item == nil || item.Get == nil {
+		return fmt.Errorf("GET %s is not in the document", path)
+	}
+	req := httptest.NewRequest("GET", target, nil)
+	in := &openapi3filter.ResponseValidationInput{
+		RequestValidationInput: &openapi3filter.RequestValidationInput{
+			Request: req,
+			Route:   &routers.Route{Spec: doc, Path: path, PathItem: item, Method: "GET", Operation: item.Get},
+		},
+		Status:  res.StatusCode,
+		Header:  res.Header,
+		Body:    io.NopCloser(bytes.NewReader(body)),
+		Options: &openapi3filter.Options{IncludeResponseStatus: true, MultiError: true},
+	}
+	return openapi3filter.ValidateResponse(context.Background(), in)
+}
+
+// TestOpenAPIValidatorRejects makes sure the library's validation can fail
+// on the rules the API's schemas rely on: each row below breaks one.
+// (A whole number written as 3.0 is an integer to JSON Schema, so it is
+// not among them; the API writes integers with encoding/json.)
 func TestOpenAPIValidatorRejects(t *testing.T) {
 	doc := loadOpenAPI(t)
-	row, err := doc.at("#/components/schemas/ProjectionRow")
-	if err != nil {
-		t.Fatal(err)
+	row := doc.Components.Schemas["ProjectionRow"]
+	if row == nil {
+		t.Fatal("no ProjectionRow schema")
 	}
 	good := `{"ward":"w","date":"2026-03-01","shift":"Night","start":"2026-03-01T19:30:00Z","end":"2026-03-02T07:30:00Z",
 		"shift_hours":12.00,"census_revision":1,"census_total":3,"census":{"t1":3},"cover_level":0.9,
@@ -241,13 +172,13 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"care_giving_nurses":1,"shortfall_method":"simulated_predictive","shortfall_simulated_share":0,
 		"shortfall_wilson95_low":0,"shortfall_wilson95_high":0.001917,"shortfall_text":"< 0.19%",
 		"method_version":"m1","generated_at":"2026-03-01T19:00:00+01:00","caution":"c"}`
-	if errs := doc.validate(row, decodeJSON(t, []byte(good)), "row"); len(errs) > 0 {
-		t.Fatalf("valid row rejected: %v", errs)
+	if err := row.Value.VisitJSON(decodeJSON(t, []byte(good)), openapi3.MultiErrors()); err != nil {
+		t.Fatalf("valid row rejected: %v", err)
 	}
 	for name, bad := range map[string]string{
 		"missing required":  strings.Replace(good, `"caution":"c"`, `"x_caution":"c"`, 1),
 		"extra property":    strings.Replace(good, `"caution":"c"`, `"caution":"c","patient":"x"`, 1),
-		"integer with .":    strings.Replace(good, `"census_total":3`, `"census_total":3.0`, 1),
+		"fraction for int":  strings.Replace(good, `"census_total":3`, `"census_total":3.5`, 1),
 		"string for number": strings.Replace(good, `"shift_hours":12.00`, `"shift_hours":"12.00"`, 1),
 		"bad enum":          strings.Replace(good, `"decided_by":"cover"`, `"decided_by":"law"`, 1),
 		"bad date":          strings.Replace(good, `"date":"2026-03-01"`, `"date":"2026-02-30"`, 1),
@@ -257,7 +188,7 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"bad band method":   strings.Replace(good, `"band_method":"predictive_equal_tailed"`, `"band_method":"guess"`, 1),
 		"census not int":    strings.Replace(good, `"census":{"t1":3}`, `"census":{"t1":"3"}`, 1),
 	} {
-		if errs := doc.validate(row, decodeJSON(t, []byte(bad)), "row"); len(errs) == 0 {
+		if err := row.Value.VisitJSON(decodeJSON(t, []byte(bad))); err == nil {
 			t.Errorf("%s: accepted", name)
 		}
 	}
@@ -277,9 +208,8 @@ func TestOpenAPIListsExactlyTheAPIRoutes(t *testing.T) {
 			}
 		}
 	}
-	paths, _ := doc["paths"].(map[string]any)
-	for p, item := range paths {
-		for m := range item.(map[string]any) {
+	for p, item := range doc.Paths.Map() {
+		for m := range item.Operations() {
 			fromDoc = append(fromDoc, strings.ToUpper(m)+" "+p)
 		}
 	}
@@ -288,10 +218,10 @@ func TestOpenAPIListsExactlyTheAPIRoutes(t *testing.T) {
 	if !slices.Equal(fromTable, fromDoc) {
 		t.Errorf("route table API routes %q\nOpenAPI paths           %q", fromTable, fromDoc)
 	}
-	if doc["openapi"] != "3.0.3" {
-		t.Errorf("openapi = %v", doc["openapi"])
+	if doc.OpenAPI != "3.0.3" {
+		t.Errorf("openapi = %v", doc.OpenAPI)
 	}
-	if _, err := doc.at("#/components/securitySchemes/bearer"); err != nil {
-		t.Error(err)
+	if doc.Components.SecuritySchemes["bearer"] == nil {
+		t.Error("no bearer security scheme")
 	}
 }

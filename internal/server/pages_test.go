@@ -147,7 +147,7 @@ func TestAuditPaging(t *testing.T) {
 	// Failed sign-ins are summarised per source and window, and names that
 	// match no account are not stored: one failure each for known accounts
 	// x00, x01, ..., each from its own address, makes one row each.
-	for i := 0; i < auditPageSize+5; i++ {
+	for i := range auditPageSize + 5 {
 		name := fmt.Sprintf("x%02d", i)
 		f.MustUser(t, "", name, wardload.RoleChargeNurse, "pw of "+name+" 123", f.wardA.ID)
 		req := signInForm(name, "pw", "/")

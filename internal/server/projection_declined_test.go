@@ -12,6 +12,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/getkin/kin-openapi/openapi3"
+
 	"wardload/internal/export"
 	"wardload/internal/projector"
 	"wardload/internal/stats"
@@ -148,12 +150,9 @@ func TestDeclinedProjection(t *testing.T) {
 	}
 	_, jsonBody := f.do(t, f.as(t, pManagerA, httptest.NewRequest("GET", "/wards/w-a/projections.json?from=2026-03-01&to=2026-03-02", nil)))
 	doc := loadOpenAPI(t)
-	schema, err := doc.responseSchema("GET", "/api/v1/projections", 200, "application/json")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if errs := doc.validate(schema, decodeJSON(t, []byte(jsonBody)), "body"); len(errs) > 0 {
-		t.Errorf("declined rows do not conform to openapi.json:\n%s", strings.Join(errs, "\n"))
+	schema := doc.Paths.Value("/api/v1/projections").Get.Responses.Status(200).Value.Content.Get("application/json").Schema
+	if err := schema.Value.VisitJSON(decodeJSON(t, []byte(jsonBody)), openapi3.MultiErrors()); err != nil {
+		t.Errorf("declined rows do not conform to openapi.json:\n%v", err)
 	}
 	var got struct{ Rows []map[string]json.RawMessage }
 	if err := json.Unmarshal([]byte(jsonBody), &got); err != nil {

@@ -22,8 +22,6 @@ const (
 	listDaysAhead = projector.MaxDaysAhead
 )
 
-func projectionsURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/projections" }
-
 // listRange reads ?from=&to= (YYYY-MM-DD), each defaulting to the range
 // above; a bad date is EINVALID naming "from" or "to".
 func (s *Server) listRange(r *http.Request, ward *wardload.Ward) (from, to wardload.Date, err error) {

@@ -355,11 +355,11 @@ func byTestIDAttr(tb testing.TB, page, id string) string {
 	}
 	start := strings.LastIndex(page[:i], "<")
 	tag := page[start:i]
-	j := strings.Index(tag, `href="`)
-	if j < 0 {
+	_, after, ok := strings.Cut(tag, `href="`)
+	if !ok {
 		tb.Fatalf("%s has no href", id)
 	}
-	href := tag[j+6:]
+	href := after
 	return strings.ReplaceAll(href[:strings.Index(href, `"`)], "&amp;", "&")
 }
 

@@ -222,11 +222,3 @@ func pageWarnings(res *stats.Projection) []string {
 	}
 	return out
 }
-
-// minutes formats care minutes, "–" when undefined.
-func minutes(n stats.Number) string {
-	if !n.Defined || math.IsNaN(n.Value) {
-		return "–"
-	}
-	return strconv.FormatFloat(n.Value, 'f', 1, 64)
-}

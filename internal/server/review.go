@@ -33,8 +33,6 @@ type reviewData struct {
 	excluded []*wardload.Observation
 }
 
-func reviewURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/review" }
-
 // reviewWeeks reads a weeks parameter: a whole number of weeks the
 // settings' lookback could also be.
 func reviewWeeks(s string) (int, bool) {

@@ -18,7 +18,8 @@ import (
 
 // reviewFixture is the access fixture plus the demo ward, seeded for the
 // fixture's clock (2 March 2026): ten weeks of observations ending
-// 1 March, with the demo's planted entry errors.
+// 1 March, with the demo's planted entry errors. The demo is seeded
+// before the fixture's wards and users (MustOpenDemo).
 type reviewFixture struct {
 	*fixture
 	ward    *wardload.Ward
@@ -27,12 +28,12 @@ type reviewFixture struct {
 
 func newReviewFixture(tb testing.TB) *reviewFixture {
 	tb.Helper()
-	f := &reviewFixture{fixture: newFixture(tb)}
-	res, err := demo.Seed(context.Background(), f.st, f.clock.Now(), testPassword)
-	if err != nil {
-		tb.Fatal(err)
+	st, ward := MustOpenDemo(tb)
+	f := &reviewFixture{fixture: newFixtureOn(tb, st), ward: ward}
+	if !f.clock.Now().Equal(demoNow) {
+		tb.Fatalf("fixture clock %v, demo seeded for %v", f.clock.Now(), demoNow)
 	}
-	f.ward = res.Ward
+	var err error
 	if f.planted, err = demo.PlantedErrors(f.clock.Now()); err != nil {
 		tb.Fatal(err)
 	}

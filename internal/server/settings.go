@@ -61,9 +61,6 @@ func (s *Server) shiftsAndTiers(ctx context.Context, ward *wardload.Ward, page s
 	return shifts, tiers, nil
 }
 
-// settingsURL is the page's address; the forms post below it.
-func settingsURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/settings" }
-
 // settingsVM shows every form with what is stored. A failed post then
 // replaces its own form with the input as typed.
 func (s *Server) settingsVM(r *http.Request, d *settingsData) (web.SettingsVM, error) {

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"net/http"
 	"net/url"
-	"strconv"
 	"strings"
 
 	"wardload/internal/wardload"
@@ -124,13 +123,4 @@ func (s *Server) handleFloorsSave(w http.ResponseWriter, r *http.Request) error 
 		return fmt.Errorf("floors save: %w", err)
 	}
 	return s.settingsSaved(w, r, "ratio floors", "floors")
-}
-
-// idParam reads a positive ID from the URL; anything else is ENOTFOUND.
-func idParam(v, what string) (int64, error) {
-	id, err := strconv.ParseInt(v, 10, 64)
-	if err != nil || id <= 0 {
-		return 0, wardload.Errorf(wardload.ENOTFOUND, "There is no such %s.", what)
-	}
-	return id, nil
 }

@@ -61,7 +61,3 @@ func (p formParser) whole(field, v string, blankOK bool) int {
 func digits(s string) bool {
 	return strings.Trim(s, "0123456789") == ""
 }
-
-// formatDecimal shows a stored number in the shortest form that reads
-// back exactly, so a saved form shows what was typed (12, 7.5).
-func formatDecimal(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }

@@ -7,7 +7,6 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"net"
 	"net/http"
@@ -338,14 +337,4 @@ func (s *Server) auditEvent(r *http.Request, a wardload.Actor, action, entity st
 	if err := s.appendAudit(r, a, action, entity, entityID, wardID, details); err != nil {
 		s.log.Error("audit failed", "request_id", RequestID(r.Context()), "action", action, "err", err)
 	}
-}
-
-// formError turns a form that cannot be read into a plain refusal; an
-// oversized body keeps its *http.MaxBytesError so the adapter says 413.
-func formError(err error) error {
-	var mbe *http.MaxBytesError
-	if errors.As(err, &mbe) {
-		return err
-	}
-	return wardload.Errorf(wardload.EINVALID, "The form could not be read.")
 }

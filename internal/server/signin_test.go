@@ -156,7 +156,7 @@ func TestSignInNextIsLocal(t *testing.T) {
 func TestSignInThrottle(t *testing.T) {
 	f := newFixture(t)
 	right := f.passwords["n.nurse"]
-	for i := 0; i < 3; i++ {
+	for i := range 3 {
 		if res, _ := f.do(t, signInForm("n.nurse", "wrong password x", "/")); res.StatusCode != 401 {
 			t.Fatalf("failure %d: status %d", i+1, res.StatusCode)
 		}

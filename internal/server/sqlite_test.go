@@ -15,9 +15,16 @@ import (
 // MustOpenSQLite returns a migrated SQLite store in a temporary directory.
 func MustOpenSQLite(tb testing.TB) *sqlite.Store {
 	tb.Helper()
+	return mustOpenSQLiteAt(tb, filepath.Join(tb.TempDir(), "wardload.db"))
+}
+
+// mustOpenSQLiteAt opens and migrates the SQLite file at path, with the
+// fixtures' fixed clock.
+func mustOpenSQLiteAt(tb testing.TB, path string) *sqlite.Store {
+	tb.Helper()
 	ctx := context.Background()
 	now := func() time.Time { return time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC) }
-	st, err := sqlite.Open(ctx, sqlite.Config{Path: filepath.Join(tb.TempDir(), "wardload.db"), Now: now})
+	st, err := sqlite.Open(ctx, sqlite.Config{Path: path, Now: now})
 	if err != nil {
 		tb.Fatal(err)
 	}

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"net/http"
 	"strings"
-	"time"
 
 	"github.com/go-chi/chi/v5"
 
@@ -117,9 +116,6 @@ func (s *Server) handleTokenRevoke(w http.ResponseWriter, r *http.Request) error
 	return seeOther(w, r, tokensURL(ward))
 }
 
-// tokensURL is the address of a ward's token page.
-func tokensURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/tokens" }
-
 // wardCodes maps every ward's ID to its code.
 func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
@@ -131,19 +127,4 @@ func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 		m[w.ID] = w.Code
 	}
 	return m, nil
-}
-
-// formatAt shows an instant in UTC to the minute; pages that show audit
-// or token times say they are UTC.
-func formatAt(t time.Time) string {
-	return t.UTC().Format("2006-01-02 15:04 UTC")
-}
-
-// clip shortens user input that is shown back, so a huge field cannot
-// blow up a page.
-func clip(s string, n int) string {
-	if len(s) <= n {
-		return s
-	}
-	return strings.ToValidUTF8(s[:n], "")
 }

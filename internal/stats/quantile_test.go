@@ -48,7 +48,7 @@ func readReference(t *testing.T, name string) []map[string]string {
 func floatList(t *testing.T, s string) []float64 {
 	t.Helper()
 	var v []float64
-	for _, f := range strings.Fields(s) {
+	for f := range strings.FieldsSeq(s) {
 		x, err := strconv.ParseFloat(f, 64)
 		if err != nil {
 			t.Fatal(err)

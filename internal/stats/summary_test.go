@@ -303,7 +303,7 @@ func TestStRDUnivariateCertified(t *testing.T) {
 			t.Fatal(err)
 		}
 		var x []float64
-		for _, line := range strings.Split(string(raw), "\n") {
+		for line := range strings.SplitSeq(string(raw), "\n") {
 			if line = strings.TrimSpace(line); line != "" && !strings.HasPrefix(line, "#") {
 				v, err := strconv.ParseFloat(line, 64)
 				if err != nil {

@@ -48,10 +48,10 @@ func auditCases() []testCase {
 				{"wards", wardload.AuditFilter{WardIDs: []int64{7, 8}}, []int64{e3.ID, e2.ID}, 2},
 				{"one ward", wardload.AuditFilter{WardIDs: []int64{8}}, []int64{e3.ID}, 1},
 				{"user", wardload.AuditFilter{UserID: &uid}, []int64{e3.ID, e2.ID}, 2},
-				{"action", wardload.AuditFilter{Action: ptr("signin.fail")}, []int64{e1.ID}, 1},
-				{"entity", wardload.AuditFilter{Entity: ptr("census")}, []int64{e3.ID, e2.ID}, 2},
-				{"from inclusive", wardload.AuditFilter{From: ptr(startTime)}, []int64{e3.ID, e1.ID}, 2},
-				{"to exclusive", wardload.AuditFilter{To: ptr(startTime)}, []int64{e2.ID}, 1},
+				{"action", wardload.AuditFilter{Action: new("signin.fail")}, []int64{e1.ID}, 1},
+				{"entity", wardload.AuditFilter{Entity: new("census")}, []int64{e3.ID, e2.ID}, 2},
+				{"from inclusive", wardload.AuditFilter{From: new(startTime)}, []int64{e3.ID, e1.ID}, 2},
+				{"to exclusive", wardload.AuditFilter{To: new(startTime)}, []int64{e2.ID}, 1},
 				{"page", wardload.AuditFilter{Offset: 1, Limit: 1}, []int64{e1.ID}, 3},
 			} {
 				es, n, err := f.store.FindAudit(f.ctx, tc.f)
@@ -72,7 +72,7 @@ func auditCases() []testCase {
 			if !json.Valid([]byte(e.After)) {
 				t.Fatalf("After is not JSON: %q", e.After)
 			}
-			_, err := f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: ptr("W2")})
+			_, err := f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: new("W2")})
 			noErr(t, err)
 			e = f.lastAudit("ward.update")
 			if !json.Valid([]byte(e.Before)) || !json.Valid([]byte(e.After)) {

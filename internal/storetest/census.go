@@ -71,12 +71,10 @@ func censusCases() []testCase {
 			var wg sync.WaitGroup
 			errs := make([]error, n)
 			for i := range n {
-				wg.Add(1)
-				go func() {
-					defer wg.Done()
+				wg.Go(func() {
 					c := &wardload.Census{WardID: sw.ward.ID, Date: date(2026, 3, 2), ShiftID: sw.day.ID, Counts: []wardload.TierCount{{TierID: sw.tiers[0].ID, Patients: i}}}
 					errs[i] = f.store.CreateCensus(f.ctx, c)
-				}()
+				})
 			}
 			wg.Wait()
 			for _, err := range errs {

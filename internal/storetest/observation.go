@@ -61,7 +61,7 @@ func observationCases() []testCase {
 			d := date(2026, 3, 2)
 			rows := func(bad func(o *wardload.Observation)) []*wardload.Observation {
 				var os []*wardload.Observation
-				for i := 0; i < 5; i++ {
+				for i := range 5 {
 					os = append(os, sw.obs(d, float64(10+i)))
 				}
 				bad(os[2])
@@ -144,9 +144,9 @@ func observationCases() []testCase {
 				{"ward", wardload.ObservationFilter{WardID: &wid}, 4},
 				{"tier", wardload.ObservationFilter{WardID: &wid, TierID: &sw.tiers[1].ID}, 2},
 				{"shift", wardload.ObservationFilter{ShiftID: &sw.night.ID}, 2},
-				{"from", wardload.ObservationFilter{WardID: &wid, From: ptr(date(2026, 3, 2))}, 3},
-				{"to inclusive", wardload.ObservationFilter{WardID: &wid, To: ptr(date(2026, 3, 2))}, 3},
-				{"from-to one day", wardload.ObservationFilter{From: ptr(date(2026, 3, 2)), To: ptr(date(2026, 3, 2))}, 3},
+				{"from", wardload.ObservationFilter{WardID: &wid, From: new(date(2026, 3, 2))}, 3},
+				{"to inclusive", wardload.ObservationFilter{WardID: &wid, To: new(date(2026, 3, 2))}, 3},
+				{"from-to one day", wardload.ObservationFilter{From: new(date(2026, 3, 2)), To: new(date(2026, 3, 2))}, 3},
 				{"batch", wardload.ObservationFilter{BatchID: &b2}, 2},
 			} {
 				if n, os := count(tc.f); n != tc.want || len(os) != tc.want {

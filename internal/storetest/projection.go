@@ -50,7 +50,7 @@ func projectionCases() []testCase {
 			// create: a store may overwrite p with its own re-read, and a read
 			// compared with a read cannot catch a column mixed up on the way in.
 			given := *p
-			given.Floor = ptr(*p.Floor)
+			given.Floor = new(*p.Floor)
 			noErr(t, f.store.CreateCensusProjection(f.ctx, c, p))
 			if c.ID == 0 || c.Revision != 1 || p.ID == 0 || p.CensusID != c.ID || p.CensusRevision != 1 {
 				t.Fatalf("census ID %d rev %d, projection ID %d census %d rev %d", c.ID, c.Revision, p.ID, p.CensusID, p.CensusRevision)

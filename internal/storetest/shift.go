@@ -23,7 +23,7 @@ func shiftCases() []testCase {
 			}
 			f.checkAudit("shift.create", "shift", sw.day.ID, sw.ward.ID)
 
-			up, err := f.store.UpdateShiftPattern(f.ctx, sw.night.ID, wardload.ShiftPatternUpdate{Name: ptr("Late"), StartMinute: ptr(300), NominalHours: ptr(7.5)})
+			up, err := f.store.UpdateShiftPattern(f.ctx, sw.night.ID, wardload.ShiftPatternUpdate{Name: new("Late"), StartMinute: new(300), NominalHours: new(7.5)})
 			noErr(t, err)
 			if up.Name != "Late" || up.StartMinute != 300 || up.NominalHours != 7.5 || up.WardID != sw.ward.ID {
 				t.Fatalf("updated = %+v", up)
@@ -46,11 +46,11 @@ func shiftCases() []testCase {
 			wantErr(t, f.store.CreateShiftPattern(f.ctx, &wardload.ShiftPattern{WardID: wid, Name: "X", StartMinute: 0, NominalHours: 25}), wardload.EINVALID, "hours")
 			wantErr(t, f.store.CreateShiftPattern(f.ctx, &wardload.ShiftPattern{WardID: 9999, Name: "X", StartMinute: 0, NominalHours: 8}), wardload.ENOTFOUND, "")
 			wantErr(t, f.store.CreateShiftPattern(f.ctx, &wardload.ShiftPattern{WardID: wid, Name: "Day", StartMinute: 0, NominalHours: 8}), wardload.ECONFLICT, "name")
-			_, err := f.store.UpdateShiftPattern(f.ctx, sw.night.ID, wardload.ShiftPatternUpdate{Name: ptr("Day")})
+			_, err := f.store.UpdateShiftPattern(f.ctx, sw.night.ID, wardload.ShiftPatternUpdate{Name: new("Day")})
 			wantErr(t, err, wardload.ECONFLICT, "name")
-			_, err = f.store.UpdateShiftPattern(f.ctx, sw.night.ID, wardload.ShiftPatternUpdate{NominalHours: ptr(0.0)})
+			_, err = f.store.UpdateShiftPattern(f.ctx, sw.night.ID, wardload.ShiftPatternUpdate{NominalHours: new(0.0)})
 			wantErr(t, err, wardload.EINVALID, "hours")
-			_, err = f.store.UpdateShiftPattern(f.ctx, 9999, wardload.ShiftPatternUpdate{Name: ptr("Z")})
+			_, err = f.store.UpdateShiftPattern(f.ctx, 9999, wardload.ShiftPatternUpdate{Name: new("Z")})
 			wantErr(t, err, wardload.ENOTFOUND, "")
 			_, err = f.store.FindShiftPatternByID(f.ctx, 9999)
 			wantErr(t, err, wardload.ENOTFOUND, "")

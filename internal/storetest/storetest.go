@@ -35,6 +35,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 	for _, g := range groups {
 		for _, tc := range g {
 			t.Run(tc.name, func(t *testing.T) {
+				t.Parallel()
 				clk := &Clock{now: startTime}
 				f := &fixture{t: t, clock: clk, store: newStore(t, clk.Now)}
 				f.ctx = wardload.WithActor(context.Background(), testActor)
@@ -127,7 +128,8 @@ func sameTime(t *testing.T, what string, got, want time.Time) {
 	}
 }
 
-func ptr[T any](v T) *T { return &v }
+//go:fix inline
+func ptr[T any](v T) *T { return new(v) }
 
 // auditCount returns the number of audit rows with the given action.
 func (f *fixture) auditCount(action string) int {

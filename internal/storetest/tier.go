@@ -24,7 +24,7 @@ func tierCases() []testCase {
 			}
 			f.checkAudit("tier.create", "tier", sw.tiers[2].ID, sw.ward.ID)
 
-			up, err := f.store.UpdateTier(f.ctx, t1.ID, wardload.TierUpdate{Label: ptr("High"), Description: ptr("Needs two nurses to turn"), DisplayOrder: ptr(9)})
+			up, err := f.store.UpdateTier(f.ctx, t1.ID, wardload.TierUpdate{Label: new("High"), Description: new("Needs two nurses to turn"), DisplayOrder: new(9)})
 			noErr(t, err)
 			if up.Label != "High" || up.Description != "Needs two nurses to turn" || up.DisplayOrder != 9 || up.Code != "t1" || up.WardID != sw.ward.ID {
 				t.Fatalf("updated = %+v", up)
@@ -37,7 +37,7 @@ func tierCases() []testCase {
 			if !strings.Contains(e.Before, "Tier 1") || !strings.Contains(e.After, "High") {
 				t.Fatalf("audit = %q / %q", e.Before, e.After)
 			}
-			_, err = f.store.UpdateTier(f.ctx, t1.ID, wardload.TierUpdate{Label: ptr("")})
+			_, err = f.store.UpdateTier(f.ctx, t1.ID, wardload.TierUpdate{Label: new("")})
 			wantErr(t, err, wardload.EINVALID, "label")
 			if n := f.auditCount("tier.update"); n != 1 {
 				t.Fatalf("tier.update rows = %d after failed update", n)
@@ -70,7 +70,7 @@ func tierCases() []testCase {
 			wantErr(t, f.store.CreateTier(f.ctx, &wardload.Tier{WardID: sw.ward.ID, Code: "t1", Label: "x"}), wardload.ECONFLICT, "code")
 			_, err := f.store.FindTierByID(f.ctx, 9999)
 			wantErr(t, err, wardload.ENOTFOUND, "")
-			_, err = f.store.UpdateTier(f.ctx, 9999, wardload.TierUpdate{Label: ptr("x")})
+			_, err = f.store.UpdateTier(f.ctx, 9999, wardload.TierUpdate{Label: new("x")})
 			wantErr(t, err, wardload.ENOTFOUND, "")
 			if n := f.totalAudit(); n != before {
 				t.Fatalf("audit rows %d -> %d after failures", before, n)

@@ -40,7 +40,7 @@ func userCases() []testCase {
 
 			f.clock.Advance(time.Hour)
 			newHash := "$argon2id$v=19$second-secret-hash"
-			got, err := f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{Role: ptr(wardload.RoleManager), PasswordHash: &newHash, Disabled: ptr(true), WardIDs: []int64{w2.ward.ID}})
+			got, err := f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{Role: ptr(wardload.RoleManager), PasswordHash: &newHash, Disabled: new(true), WardIDs: []int64{w2.ward.ID}})
 			noErr(t, err)
 			if got.Role != wardload.RoleManager || got.PasswordHash != newHash || !got.Disabled || !reflect.DeepEqual(got.WardIDs, []int64{w2.ward.ID}) {
 				t.Fatalf("updated = %+v", got)
@@ -53,7 +53,7 @@ func userCases() []testCase {
 				}
 			}
 			// nil WardIDs leaves them; empty clears them.
-			got, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{Disabled: ptr(false)})
+			got, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{Disabled: new(false)})
 			noErr(t, err)
 			if got.Disabled || !reflect.DeepEqual(got.WardIDs, []int64{w2.ward.ID}) {
 				t.Fatalf("after nil wards = %+v", got)
@@ -80,12 +80,12 @@ func userCases() []testCase {
 			wantErr(t, err, wardload.ENOTFOUND, "")
 			_, err = f.store.FindUserByID(f.ctx, 9999)
 			wantErr(t, err, wardload.ENOTFOUND, "")
-			_, err = f.store.UpdateUser(f.ctx, 9999, wardload.UserUpdate{Disabled: ptr(true)})
+			_, err = f.store.UpdateUser(f.ctx, 9999, wardload.UserUpdate{Disabled: new(true)})
 			wantErr(t, err, wardload.ENOTFOUND, "")
 			u, _ := f.store.FindUserByName(f.ctx, "b.one")
-			_, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{Role: ptr("boss")})
+			_, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{Role: new("boss")})
 			wantErr(t, err, wardload.EINVALID, "role")
-			_, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{PasswordHash: ptr("")})
+			_, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{PasswordHash: new("")})
 			wantErr(t, err, wardload.EINVALID, "password")
 			_, err = f.store.UpdateUser(f.ctx, u.ID, wardload.UserUpdate{WardIDs: []int64{9999}})
 			wantErr(t, err, wardload.ENOTFOUND, "wards")
@@ -126,14 +126,14 @@ func userCases() []testCase {
 				{"all by name", wardload.UserFilter{}, "a.admin,b.nurse,c.manager,d.nurse", 4},
 				{"role", wardload.UserFilter{Role: ptr(wardload.RoleChargeNurse)}, "b.nurse,d.nurse", 2},
 				{"ward", wardload.UserFilter{WardID: &w1.ward.ID}, "c.manager,d.nurse", 2},
-				{"name", wardload.UserFilter{Name: ptr("c.manager")}, "c.manager", 1},
+				{"name", wardload.UserFilter{Name: new("c.manager")}, "c.manager", 1},
 				{"page", wardload.UserFilter{Offset: 1, Limit: 2}, "b.nurse,c.manager", 4},
 			} {
 				if names, n := find(tc.f); names != tc.names || n != tc.total {
 					t.Errorf("%s: %q %d, want %q %d", tc.name, names, n, tc.names, tc.total)
 				}
 			}
-			us, _, err := f.store.FindUsers(f.ctx, wardload.UserFilter{Name: ptr("c.manager")})
+			us, _, err := f.store.FindUsers(f.ctx, wardload.UserFilter{Name: new("c.manager")})
 			noErr(t, err)
 			if len(us) != 1 || !reflect.DeepEqual(us[0].WardIDs, []int64{w1.ward.ID, w2.ward.ID}) {
 				t.Fatalf("FindUsers does not load ward memberships: %+v", us)

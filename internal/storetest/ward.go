@@ -43,7 +43,7 @@ func wardCases() []testCase {
 			wantErr(t, err, wardload.ENOTFOUND, "")
 			_, err = f.store.FindWardByCode(f.ctx, "nope")
 			wantErr(t, err, wardload.ENOTFOUND, "")
-			_, err = f.store.UpdateWard(f.ctx, 999, wardload.WardUpdate{Name: ptr("X")})
+			_, err = f.store.UpdateWard(f.ctx, 999, wardload.WardUpdate{Name: new("X")})
 			wantErr(t, err, wardload.ENOTFOUND, "")
 		}},
 		{"Ward/Invalid", func(t *testing.T, f *fixture) {
@@ -82,14 +82,14 @@ func wardCases() []testCase {
 			w := &wardload.Ward{Code: "w1", Name: "One", TimeZone: "UTC", FactorNames: []string{"a"}}
 			noErr(t, f.store.CreateWard(f.ctx, w))
 			f.clock.Advance(time.Hour)
-			got, err := f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: ptr("Renamed"), TimeZone: ptr("Asia/Kolkata"), FactorNames: []string{"b", "c"}})
+			got, err := f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: new("Renamed"), TimeZone: new("Asia/Kolkata"), FactorNames: []string{"b", "c"}})
 			noErr(t, err)
 			if got.Name != "Renamed" || got.TimeZone != "Asia/Kolkata" || !reflect.DeepEqual(got.FactorNames, []string{"b", "c"}) || got.Code != "w1" {
 				t.Fatalf("updated = %+v", got)
 			}
 			sameTime(t, "CreatedAt after update", got.CreatedAt, startTime)
 			// nil FactorNames leaves them; an update is persisted.
-			got, err = f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: ptr("Again")})
+			got, err = f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: new("Again")})
 			noErr(t, err)
 			if !reflect.DeepEqual(got.FactorNames, []string{"b", "c"}) {
 				t.Fatalf("FactorNames after nil update = %v", got.FactorNames)
@@ -104,9 +104,9 @@ func wardCases() []testCase {
 				t.Fatalf("audit before/after = %q / %q", e.Before, e.After)
 			}
 			// Invalid updates change nothing and are not audited.
-			_, err = f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{TimeZone: ptr("Nowhere/Land")})
+			_, err = f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{TimeZone: new("Nowhere/Land")})
 			wantErr(t, err, wardload.EINVALID, "time_zone")
-			_, err = f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: ptr("")})
+			_, err = f.store.UpdateWard(f.ctx, w.ID, wardload.WardUpdate{Name: new("")})
 			wantErr(t, err, wardload.EINVALID, "name")
 			if n := f.auditCount("ward.update"); n != 2 {
 				t.Fatalf("ward.update rows = %d, want 2", n)
@@ -133,7 +133,7 @@ func wardCases() []testCase {
 			if n != 4 || codes(ws) != "b,c" {
 				t.Fatalf("page = %d %s, want total 4 and b,c", n, codes(ws))
 			}
-			ws, n, err = f.store.FindWards(f.ctx, wardload.WardFilter{Code: ptr("d")})
+			ws, n, err = f.store.FindWards(f.ctx, wardload.WardFilter{Code: new("d")})
 			noErr(t, err)
 			if n != 1 || codes(ws) != "d" {
 				t.Fatalf("by code = %d %s", n, codes(ws))
