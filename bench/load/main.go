@@ -50,7 +50,12 @@ func main() {
 	flag.IntVar(&cfg.conns, "c", 200, "concurrent connections (1–1000)")
 	flag.DurationVar(&cfg.duration, "d", 60*time.Second, "duration of the run (1s–10m)")
 	flag.Uint64Var(&cfg.seed, "seed", 1, "seed of the request mix")
+	hostile := flag.Int("hostile", 0, "instead of the mix, send this many wrong-password sign-ins at once (1–1000) and print their answers")
 	flag.Parse()
+	if *hostile > 0 {
+		hostileSignIns(cfg, min(*hostile, 1000))
+		return
+	}
 	cfg.conns = min(max(cfg.conns, 1), 1000)
 	cfg.duration = min(max(cfg.duration, time.Second), 10*time.Minute)
 	if cfg.password == "" || cfg.token == "" {
@@ -396,3 +401,36 @@ func quantile(d []time.Duration, p float64) time.Duration {
 }
 
 func ms(d time.Duration) string { return fmt.Sprintf("%.1fms", float64(d)/float64(time.Millisecond)) }
+
+// hostileSignIns sends n sign-ins with wrong passwords at once, half to
+// the given account and half to names that match none, and prints how
+// they were answered. The script reads the server's memory meanwhile.
+func hostileSignIns(cfg config, n int) {
+	c := &http.Client{Transport: &http.Transport{MaxConnsPerHost: n, MaxIdleConnsPerHost: n}, Timeout: 60 * time.Second}
+	var mu sync.Mutex
+	answers := map[string]int{}
+	var wg sync.WaitGroup
+	start := time.Now()
+	for i := range n {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			name := cfg.user
+			if i%2 == 1 {
+				name = fmt.Sprintf("nobody%d", i)
+			}
+			res, err := c.PostForm(cfg.base+"/signin", url.Values{"name": {name}, "password": {fmt.Sprintf("wrong-password-%d", i)}})
+			code := 0
+			if err == nil {
+				io.Copy(io.Discard, res.Body)
+				res.Body.Close()
+				code = res.StatusCode
+			}
+			mu.Lock()
+			answers[statusText(code)]++
+			mu.Unlock()
+		}()
+	}
+	wg.Wait()
+	fmt.Printf("hostile sign-ins: %d at once, all answered in %.1fs: %v\n", n, time.Since(start).Seconds(), answers)
+}
