@@ -25,39 +25,9 @@ base="http://127.0.0.1:${port}"
 ward=w7-east
 user=demo.charge1
 
-work=$(mktemp -d)
-server_pid=""
-cleanup() {
-	if [ -n "$server_pid" ]; then
-		kill "$server_pid" 2>/dev/null || true
-		wait "$server_pid" 2>/dev/null || true
-	fi
-	rm -rf "$work"
-}
-trap cleanup EXIT INT TERM
-
-echo "== build"
-go build -o "$work/wardload" ./cmd/wardload
+. bench/demo-server.sh
+start_demo_server "$port"
 go build -o "$work/load" ./bench/load
-
-if [ -n "${DB:-}" ]; then
-	store=(--db "$DB")
-	echo "== store: PostgreSQL"
-else
-	mkdir "$work/data"
-	store=(--data-dir "$work/data")
-	echo "== store: SQLite"
-fi
-
-echo "== start server on $base"
-"$work/wardload" serve --demo --addr "127.0.0.1:${port}" "${store[@]}" >"$work/serve.out" 2>"$work/serve.log" &
-server_pid=$!
-for _ in $(seq 1 300); do
-	grep -q '^listening on' "$work/serve.out" 2>/dev/null && break
-	kill -0 "$server_pid" 2>/dev/null || { echo "bench: server exited" >&2; cat "$work/serve.log" >&2; exit 1; }
-	sleep 0.1
-done
-grep -q '^listening on' "$work/serve.out" || { echo "bench: server did not start" >&2; exit 1; }
 password=$(awk -v u="$user" '$1 == u { print $3 }' "$work/serve.out")
 [ -n "$password" ] || { echo "bench: no password for $user in the demo output (was the database empty?)" >&2; exit 1; }
 token=$("$work/wardload" token create --ward "$ward" --name "load-$$-$(date +%s)" "${store[@]}" 2>/dev/null)

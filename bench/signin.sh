@@ -16,28 +16,9 @@ n="${N:-200}"
 bound_mib=1024
 base="http://127.0.0.1:${port}"
 
-work=$(mktemp -d)
-server_pid=""
-cleanup() {
-	if [ -n "$server_pid" ]; then
-		kill "$server_pid" 2>/dev/null || true
-		wait "$server_pid" 2>/dev/null || true
-	fi
-	rm -rf "$work"
-}
-trap cleanup EXIT INT TERM
-
-go build -o "$work/wardload" ./cmd/wardload
+. bench/demo-server.sh
+start_demo_server "$port"
 go build -o "$work/load" ./bench/load
-if [ -n "${DB:-}" ]; then store=(--db "$DB"); else mkdir "$work/data"; store=(--data-dir "$work/data"); fi
-"$work/wardload" serve --demo --addr "127.0.0.1:${port}" "${store[@]}" >"$work/serve.out" 2>"$work/serve.log" &
-server_pid=$!
-for _ in $(seq 1 300); do
-	grep -q '^listening on' "$work/serve.out" 2>/dev/null && break
-	kill -0 "$server_pid" 2>/dev/null || { echo "bench: server exited" >&2; cat "$work/serve.log" >&2; exit 1; }
-	sleep 0.1
-done
-grep -q '^listening on' "$work/serve.out" || { echo "bench: server did not start" >&2; exit 1; }
 rss() { awk -v f="$1" '$1 == f":" { print int($2 / 1024) }' "/proc/$server_pid/status"; }
 echo "server resident memory before: $(rss VmRSS) MiB (peak so far $(rss VmHWM) MiB, demo seeding included)"
 "$work/load" -base "$base" -user demo.charge1 -hostile "$n" &
