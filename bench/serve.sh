@@ -29,31 +29,11 @@ for tool in wrk curl; do
 	command -v "$tool" >/dev/null || { echo "bench: $tool is required" >&2; exit 2; }
 done
 
-work=$(mktemp -d)
-server_pid=""
-cleanup() {
-	if [ -n "$server_pid" ]; then
-		kill "$server_pid" 2>/dev/null || true
-		wait "$server_pid" 2>/dev/null || true
-	fi
-	rm -rf "$work"
-}
-trap cleanup EXIT INT TERM
-
+. bench/demo-server.sh
+unset DB # this script compares with its own SQLite numbers
 echo "== build"
-go build -o "$work/wardload" ./cmd/wardload
+start_demo_server "$port"
 go build -o "$work/censussave" ./bench/censussave
-
-echo "== start server on $base"
-mkdir "$work/data"
-"$work/wardload" serve --demo --addr "127.0.0.1:${port}" --data-dir "$work/data" >"$work/serve.out" 2>"$work/serve.log" &
-server_pid=$!
-for _ in $(seq 1 300); do
-	grep -q '^listening on' "$work/serve.out" 2>/dev/null && break
-	kill -0 "$server_pid" 2>/dev/null || { echo "bench: server exited" >&2; cat "$work/serve.log" >&2; exit 1; }
-	sleep 0.1
-done
-grep -q '^listening on' "$work/serve.out" || { echo "bench: server did not start" >&2; exit 1; }
 user=demo.charge1
 password=$(awk -v u="$user" '$1 == u { print $3 }' "$work/serve.out")
 [ -n "$password" ] || { echo "bench: no password for $user in the demo output" >&2; exit 1; }

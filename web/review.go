@@ -29,10 +29,21 @@ type ReviewVM struct {
 	TrendWeeks  []string // ISO week labels, oldest first
 	TrendRanges []string // their first and last day in the window
 	Trend       []ReviewTrendRowVM
-	Flagged     []ReviewObservationVM
-	Excluded    []ReviewObservationVM
-	Reasons     []string       // the exclusion reasons offered
-	Calibration *CalibrationVM // the ward's backtest; nil when it could not be run
+	Flagged     []ReviewObservationVM // one page of them
+	// The flagged list's paging: FlaggedRange is e.g. "51–100 of 123",
+	// FlaggedPageSize "50"; Prev and Next are "" at either end.
+	FlaggedRange, FlaggedPageSize string
+	FlaggedPrev, FlaggedNext      string
+	FlaggedOrders                 []ReviewOrderVM
+	Excluded                      []ReviewObservationVM
+	Reasons                       []string       // the exclusion reasons offered
+	Calibration                   *CalibrationVM // the ward's backtest; nil when it could not be run
+}
+
+// ReviewOrderVM is one order the flagged list can be sorted in.
+type ReviewOrderVM struct {
+	Label, URL string
+	Current    bool
 }
 
 // ReviewShiftVM is one choice of the shift filter.

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 
+	"wardload/internal/csvfile"
 	"wardload/internal/stats"
 )
 
@@ -25,19 +26,15 @@ func runCorrelate(_ context.Context, e *env, args []string) int {
 		fmt.Fprintln(e.stderr, "wardload correlate: --x and --y are required")
 		return exitUsage
 	}
-	tab, code, ok := readCSV(e, "correlate", file)
+	var cols []*csvfile.Column
+	code, ok = readCSV(e, "correlate", file, func(r io.Reader) (err error) {
+		cols, err = csvfile.ReadColumns(r, *xName, *yName)
+		return err
+	})
 	if !ok {
 		return code
 	}
-	x, err := tab.Floats(*xName)
-	if err != nil {
-		return inputError(e, "correlate", err)
-	}
-	y, err := tab.Floats(*yName)
-	if err != nil {
-		return inputError(e, "correlate", err)
-	}
-	rel, err := stats.Relate(x.Values, y.Values)
+	rel, err := stats.Relate(cols[0].Values, cols[1].Values)
 	if err != nil {
 		return inputError(e, "correlate", err)
 	}

@@ -42,13 +42,14 @@ func runSummarize(_ context.Context, e *env, args []string) int {
 		fmt.Fprintf(e.stderr, "wardload summarize: --quartiles %q is not a known convention (use hinges, hf6, hf7 or halves)\n", *quartiles)
 		return exitUsage
 	}
-	tab, code, ok := readCSV(e, "summarize", file)
+	var groups []csvfile.Group
+	var lines *csvfile.Lines
+	code, ok = readCSV(e, "summarize", file, func(r io.Reader) (err error) {
+		groups, lines, err = csvfile.ReadGroups(r, *column)
+		return err
+	})
 	if !ok {
 		return code
-	}
-	groups, err := tab.Groups(*column)
-	if err != nil {
-		return inputError(e, "summarize", err)
 	}
 	out := summaryJSON{Quartiles: *quartiles, Column: *column}
 	for _, g := range groups {
@@ -56,7 +57,7 @@ func runSummarize(_ context.Context, e *env, args []string) int {
 		if err != nil {
 			return inputError(e, "summarize", err)
 		}
-		out.Tiers = append(out.Tiers, tierJSONOf(g, s, tab))
+		out.Tiers = append(out.Tiers, tierJSONOf(g, s, lines))
 	}
 	if *asJSON {
 		return writeJSON(e, out)
@@ -83,32 +84,41 @@ func parseWithFile(e *env, fs *flag.FlagSet, args []string) (string, int, bool) 
 // errCannotOpen is readTable's error for a FILE that cannot be opened.
 var errCannotOpen = errors.New("cannot open the file")
 
-// readTable reads the CSV file FILE, or standard input for "-". Each
-// command words its own messages.
-func readTable(e *env, file string) (*csvfile.Table, error) {
-	var r io.Reader = e.stdin
-	if file != "-" {
-		f, err := os.Open(file)
-		if err != nil {
-			return nil, errCannotOpen
-		}
-		defer f.Close()
-		r = f
+// readFile calls read with the file FILE, or standard input for "-".
+func readFile(e *env, file string, read func(io.Reader) error) error {
+	if file == "-" {
+		return read(e.stdin)
 	}
-	return csvfile.Read(r)
+	f, err := os.Open(file)
+	if err != nil {
+		return errCannotOpen
+	}
+	defer f.Close()
+	return read(f)
 }
 
-// readCSV reads FILE, or stdin for "-", for summarize and correlate.
-func readCSV(e *env, name, file string) (*csvfile.Table, int, bool) {
-	tab, err := readTable(e, file)
+// readTable reads the whole CSV file FILE, or standard input for "-".
+// Each command words its own messages.
+func readTable(e *env, file string) (tab *csvfile.Table, err error) {
+	err = readFile(e, file, func(r io.Reader) error {
+		tab, err = csvfile.Read(r)
+		return err
+	})
+	return tab, err
+}
+
+// readCSV streams FILE, or stdin for "-", through read for summarize and
+// correlate, which keep only the columns they use, and prints a failure.
+func readCSV(e *env, name, file string, read func(io.Reader) error) (int, bool) {
+	err := readFile(e, file, read)
 	if errors.Is(err, errCannotOpen) {
 		fmt.Fprintf(e.stderr, "wardload %s: cannot open %s\n", name, file)
-		return nil, exitUsage, false
+		return exitUsage, false
 	}
 	if err != nil {
-		return nil, inputError(e, name, err), false
+		return inputError(e, name, err), false
 	}
-	return tab, 0, true
+	return 0, true
 }
 
 // inputError prints a bad-input message: EINVALID is the user's data
@@ -175,7 +185,7 @@ type tierJSON struct {
 	Bins        binsJSON      `json:"bins"`
 }
 
-func tierJSONOf(g csvfile.Group, s *stats.Summary, tab *csvfile.Table) tierJSON {
+func tierJSONOf(g csvfile.Group, s *stats.Summary, lines *csvfile.Lines) tierJSON {
 	name := g.Tier
 	if name == "" {
 		name = "all" // a file without a tier column is one group, named as in project
@@ -188,7 +198,7 @@ func tierJSONOf(g csvfile.Group, s *stats.Summary, tab *csvfile.Table) tierJSON 
 	}
 	for _, o := range s.Outliers {
 		row := g.Rows[o.Index]
-		t.Outliers = append(t.Outliers, outlierJSON{Row: row, Line: tab.Line(row), Value: o.Value, Kind: o.Kind})
+		t.Outliers = append(t.Outliers, outlierJSON{Row: row, Line: lines.Line(row), Value: o.Value, Kind: o.Kind})
 	}
 	return t
 }

@@ -9,5 +9,5 @@ func (t *Table) Float(i int, name string) (float64, error) {
 	if err != nil {
 		return 0, err
 	}
-	return t.parse(i, name, t.Records[i][c])
+	return parseCell(t.Lines[i], name, t.Records[i][c])
 }

@@ -48,7 +48,7 @@ func (t *Table) Floats(name string) (*Column, error) {
 	}
 	col := &Column{Name: name, Values: make([]float64, len(t.Records)), Rows: make([]int, len(t.Records))}
 	for i, rec := range t.Records {
-		v, err := t.parse(i, name, rec[c])
+		v, err := parseCell(t.Lines[i], name, rec[c])
 		if err != nil {
 			return nil, err
 		}
@@ -70,48 +70,67 @@ func (t *Table) Groups(name string) ([]Group, error) {
 	if tc < 0 {
 		return []Group{{Column: *col}}, nil
 	}
-	var groups []Group
-	at := map[string]int{}
+	g := grouper{name: name}
 	for i, rec := range t.Records {
-		tier := strings.TrimSpace(rec[tc])
-		if tier == "" {
-			return nil, wardload.FieldErrorf(wardload.EINVALID, TierColumn, "line %d, column %q: the tier is empty.", t.Lines[i], TierColumn)
+		if err := g.add(rec[tc], t.Lines[i], col.Values[i], col.Rows[i]); err != nil {
+			return nil, err
 		}
-		g, ok := at[tier]
-		if !ok {
-			g = len(groups)
-			at[tier] = g
-			groups = append(groups, Group{Tier: tier, Column: Column{Name: name}})
-		}
-		groups[g].Values = append(groups[g].Values, col.Values[i])
-		groups[g].Rows = append(groups[g].Rows, col.Rows[i])
 	}
-	return groups, nil
+	return g.groups, nil
+}
+
+// grouper splits a column's values by tier, tiers in order of first
+// appearance.
+type grouper struct {
+	name   string
+	groups []Group
+	at     map[string]int
+}
+
+// add files value v of data row row (on file line line) under the tier
+// in cell tierCell. An empty tier is EINVALID.
+func (g *grouper) add(tierCell string, line int, v float64, row int) error {
+	tier := strings.TrimSpace(tierCell)
+	if tier == "" {
+		return wardload.FieldErrorf(wardload.EINVALID, TierColumn, "line %d, column %q: the tier is empty.", line, TierColumn)
+	}
+	k, ok := g.at[tier]
+	if !ok {
+		if g.at == nil {
+			g.at = map[string]int{}
+		}
+		k = len(g.groups)
+		g.at[tier] = k
+		g.groups = append(g.groups, Group{Tier: tier, Column: Column{Name: g.name}})
+	}
+	g.groups[k].Values = append(g.groups[k].Values, v)
+	g.groups[k].Rows = append(g.groups[k].Rows, row)
+	return nil
 }
 
 // parse reads one cell as a finite decimal number. strconv.ParseFloat
 // also accepts "NaN", "Inf", hexadecimal and '_' separators; a care-time
 // sheet never means those, so only digits, sign, point and exponent pass.
-func (t *Table) parse(i int, name, cell string) (float64, error) {
+func parseCell(line int, name, cell string) (float64, error) {
 	s := strings.TrimSpace(cell)
 	if s == "" {
-		return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: the cell is empty; a number is required.", t.Lines[i], name)
+		return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: the cell is empty; a number is required.", line, name)
 	}
 	if len(s) > 64 || strings.Trim(s, "0123456789+-.eE") != "" {
-		return 0, notNumber(t.Lines[i], name, s)
+		return 0, notNumber(line, name, s)
 	}
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil {
 		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
-			return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is too large to be a number wardload can use.", t.Lines[i], name, s)
+			return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is too large to be a number wardload can use.", line, name, s)
 		}
-		return 0, notNumber(t.Lines[i], name, s)
+		return 0, notNumber(line, name, s)
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, notNumber(t.Lines[i], name, s)
+		return 0, notNumber(line, name, s)
 	}
 	if math.Abs(v) > MaxAbs {
-		return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is too large to be a number wardload can use (at most %g in size).", t.Lines[i], name, clipCell(s), MaxAbs)
+		return 0, wardload.FieldErrorf(wardload.EINVALID, name, "line %d, column %q: %q is too large to be a number wardload can use (at most %g in size).", line, name, clipCell(s), MaxAbs)
 	}
 	return v, nil
 }

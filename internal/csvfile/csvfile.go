@@ -6,14 +6,12 @@
 package csvfile
 
 import (
-	"bufio"
-	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
-	"unicode/utf8"
 
 	"wardload/internal/wardload"
 )
@@ -50,60 +48,25 @@ type Table struct {
 // row with a different number of fields than the header, a line longer
 // than MaxLineBytes, more than MaxFields columns or more than MaxRecords
 // rows. Leading and trailing spaces around header names are ignored.
+//
+// Read keeps every cell; commands that need only a column or two use
+// ReadGroups or ReadColumns, whose memory does not grow with row width.
 func Read(r io.Reader) (*Table, error) {
-	br := bufio.NewReader(&lineLimitReader{r: r})
-	if bom, err := br.Peek(3); err == nil && bytes.Equal(bom, []byte("\xef\xbb\xbf")) {
-		br.Discard(3)
+	s, err := NewStream(r)
+	if err != nil {
+		return nil, err
 	}
-	cr := csv.NewReader(br)
-	header, err := cr.Read()
-	if err == io.EOF {
-		return nil, wardload.Errorf(wardload.EINVALID, "The file is empty: it needs a header row and at least one data row.")
-	} else if err != nil {
-		return nil, readError(err)
-	}
-	if len(header) > MaxFields {
-		return nil, wardload.Errorf(wardload.EINVALID, "line 1: the header has %d columns; at most %d are allowed.", len(header), MaxFields)
-	}
-	seen := make(map[string]bool, len(header))
-	for i, h := range header {
-		if !utf8.ValidString(h) {
-			return nil, wardload.Errorf(wardload.EINVALID, "line 1, column %d: the header is not valid UTF-8 text.", i+1)
-		}
-		h = strings.TrimSpace(h)
-		if h == "" {
-			return nil, wardload.Errorf(wardload.EINVALID, "line 1, column %d: the column name is blank.", i+1)
-		}
-		if seen[h] {
-			return nil, wardload.FieldErrorf(wardload.EINVALID, h, "line 1: column %q appears twice.", h)
-		}
-		seen[h] = true
-		header[i] = h
-	}
-	t := &Table{Header: header}
+	t := &Table{Header: s.Header}
 	for {
-		rec, err := cr.Read()
+		rec, line, err := s.Next()
 		if err == io.EOF {
-			break
+			return t, nil
 		} else if err != nil {
-			return nil, readError(err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
-		for i, f := range rec {
-			if !utf8.ValidString(f) {
-				return nil, wardload.FieldErrorf(wardload.EINVALID, header[i], "line %d, column %q: the cell is not valid UTF-8 text.", line, header[i])
-			}
-		}
-		if len(t.Records) == MaxRecords {
-			return nil, wardload.Errorf(wardload.EINVALID, "line %d: the file has more than %d data rows.", line, MaxRecords)
-		}
-		t.Records = append(t.Records, rec)
+		t.Records = append(t.Records, slices.Clone(rec))
 		t.Lines = append(t.Lines, line)
 	}
-	if len(t.Records) == 0 {
-		return nil, wardload.Errorf(wardload.EINVALID, "The file has a header row but no data rows.")
-	}
-	return t, nil
 }
 
 // readError turns encoding/csv and line-limit errors into EINVALID with the
@@ -138,12 +101,7 @@ func (t *Table) Index(name string) int {
 
 // mustIndex returns the column position or EINVALID naming the column and
 // the columns that do exist.
-func (t *Table) mustIndex(name string) (int, error) {
-	if i := t.Index(name); i >= 0 {
-		return i, nil
-	}
-	return -1, wardload.FieldErrorf(wardload.EINVALID, name, "line 1: there is no column %q (the columns are %s).", name, quoteList(t.Header))
-}
+func (t *Table) mustIndex(name string) (int, error) { return index(t.Header, name) }
 
 func quoteList(names []string) string {
 	q := make([]string, len(names))

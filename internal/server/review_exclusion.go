@@ -78,7 +78,9 @@ func (s *Server) reviewWithExcludeError(w http.ResponseWriter, r *http.Request, 
 	if err != nil {
 		return err
 	}
-	vm, err := s.reviewVM(r, d)
+	// The list page holding the observation, in the default order, so
+	// that its message stands beside its form.
+	vm, err := s.reviewVM(r, d, flaggedPaging{show: o.ID})
 	if err != nil {
 		return err
 	}

@@ -36,7 +36,7 @@ func conventionText(name string) string {
 }
 
 // reviewVM builds the page from d.
-func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) {
+func (s *Server) reviewVM(r *http.Request, d *reviewData, pg flaggedPaging) (web.ReviewVM, error) {
 	ward, p := d.ward, d.params
 	vm := web.ReviewVM{
 		WardName:       ward.Name,
@@ -82,6 +82,7 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 	if err != nil {
 		return vm, err
 	}
+	var flagged []flaggedObs
 	for _, tr := range trs {
 		kinds := map[int]string{}
 		if tr.summary != nil {
@@ -90,16 +91,16 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData) (web.ReviewVM, error) 
 			}
 		}
 		for i, o := range tr.obs {
-			kind := kinds[i]
-			if kind == "" && tr.logKind[i] == "" {
-				continue
+			if kinds[i] != "" || tr.logKind[i] != "" {
+				flagged = append(flagged, flaggedObs{o: o, tier: tr.tier, kind: kinds[i], logKind: tr.logKind[i], value: tr.values[i]})
 			}
-			ov := d.observationVM(o, tr.tier)
-			ov.Kind, ov.LogKind = kind, tr.logKind[i]
-			vm.Flagged = append(vm.Flagged, ov)
 		}
 	}
-	sortFlagged(vm.Flagged)
+	for _, f := range pageFlagged(&vm, flagged, pg) {
+		ov := d.observationVM(f.o, f.tier)
+		ov.Kind, ov.LogKind = f.kind, f.logKind
+		vm.Flagged = append(vm.Flagged, ov)
+	}
 	if vm.Calibration, err = s.calibrationVM(r, ward, p.to.AddDays(1)); err != nil {
 		return vm, err
 	}
@@ -189,33 +190,6 @@ func (s *Server) userName(r *http.Request, cache map[int64]string, id int64) (st
 	return u.Name, nil
 }
 
-// sortFlagged puts observations outside an outer fence (on either scale)
-// first, then orders by date and ID (insertion sort: the lists are short).
-func sortFlagged(xs []web.ReviewObservationVM) {
-	rank := func(o web.ReviewObservationVM) int {
-		if o.Kind == stats.OutlierExtreme || o.LogKind == stats.OutlierExtreme {
-			return 0
-		}
-		return 1
-	}
-	less := func(a, b web.ReviewObservationVM) bool {
-		if ra, rb := rank(a), rank(b); ra != rb {
-			return ra < rb
-		}
-		if a.Date != b.Date {
-			return a.Date < b.Date
-		}
-		ai, _ := strconv.ParseInt(a.ID, 10, 64)
-		bi, _ := strconv.ParseInt(b.ID, 10, 64)
-		return ai < bi
-	}
-	for i := 1; i < len(xs); i++ {
-		for j := i; j > 0 && less(xs[j], xs[j-1]); j-- {
-			xs[j], xs[j-1] = xs[j-1], xs[j]
-		}
-	}
-}
-
 // trend returns the ISO weeks of the window, oldest first, and each
 // tier's median per week (the median is the same under every quartile
 // convention).
@@ -276,7 +250,11 @@ func (s *Server) handleReview(w http.ResponseWriter, r *http.Request) error {
 	if err != nil {
 		return err
 	}
-	vm, err := s.reviewVM(r, d)
+	pg, err := parseFlaggedPaging(q.Get("order"), q.Get("page"))
+	if err != nil {
+		return err
+	}
+	vm, err := s.reviewVM(r, d, pg)
 	if err != nil {
 		return err
 	}
