@@ -55,9 +55,15 @@ type serving struct {
 // end of the test if Stop was not called.
 func MustServe(tb testing.TB, args ...string) *serving {
 	tb.Helper()
+	return mustServeAt(tb, nil, args...)
+}
+
+// mustServeAt is MustServe with the server's clock (nil: time.Now).
+func mustServeAt(tb testing.TB, now func() time.Time, args ...string) *serving {
+	tb.Helper()
 	ctx, cancel := context.WithCancel(context.Background())
 	s := &serving{stdout: &lockedBuffer{}, stderr: &lockedBuffer{}, cancel: cancel, done: make(chan int, 1)}
-	e := &env{stdin: strings.NewReader(""), stdout: s.stdout, stderr: s.stderr, getenv: func(string) string { return "" }}
+	e := &env{stdin: strings.NewReader(""), stdout: s.stdout, stderr: s.stderr, getenv: func(string) string { return "" }, now: now}
 	go func() { s.done <- run(ctx, append([]string{"serve"}, args...), e) }()
 	deadline := time.After(60 * time.Second)
 	for s.URL == "" {
