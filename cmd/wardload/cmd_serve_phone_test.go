@@ -31,14 +31,7 @@ const phoneWidth, phoneHeight = 390, 844
 // On failure the first screen is saved as a PNG in $WARDLOAD_TEST_ARTIFACTS
 // (or the test's temporary directory, named in the log).
 func TestPhoneChangeover(t *testing.T) {
-	t.Run("sqlite", func(t *testing.T) {
-		dir := t.TempDir()
-		phoneJourney(t, &storeOptions{DataDir: dir}, "--data-dir", dir)
-	})
-	t.Run("postgres", func(t *testing.T) {
-		dbURL := mustCreateDatabase(t)
-		phoneJourney(t, &storeOptions{DB: dbURL}, "--db", dbURL, "--data-dir", t.TempDir())
-	})
+	onEachStore(t, phoneJourney)
 }
 
 // changeoverClock runs from the next 06:45 in London (the demo ward's
