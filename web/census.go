@@ -25,6 +25,17 @@ type CensusVM struct {
 	Tiers        []TierFieldVM
 	Latest       *LatestCensusVM // nil when the shift has no census yet
 	NextRevision int
+	// Carried is the ward's newest census of an earlier shift whose counts
+	// fill the fields when this shift has none (nil: nothing carried).
+	Carried *CarriedCensusVM
+	// Beds is the ward's bed count (0: not set); TotalText the sentence
+	// "11 patients of 28 beds." for the counts shown, TotalOver set when
+	// they exceed the beds. ScriptURL is the versioned census.js, which
+	// keeps the sentence current while typing.
+	Beds      int
+	TotalText string
+	TotalOver bool
+	ScriptURL string
 
 	// Choices are the large shift choices at a change-over: the shift
 	// about to start first, the one running second (empty when there is
@@ -77,6 +88,7 @@ type TierFieldVM struct {
 	Description string
 	Value       string // as typed, or from the latest census
 	Error       string
+	Carried     bool // Value came from another shift's census
 }
 
 // DescID is the id of the tier's description, for aria-describedby.
@@ -104,6 +116,14 @@ type LatestCensusVM struct {
 	EnteredAt     string
 	Total         int
 	ProjectionURL string // "" when that revision has no projection
+}
+
+// CarriedCensusVM names the census whose counts were carried forward.
+type CarriedCensusVM struct {
+	From      string // "Night shift, Thu 3 Dec 2026"
+	Revision  int
+	EnteredAt string
+	Total     int
 }
 
 // FormErrorVM is one entry of an error summary.

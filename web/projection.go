@@ -1,5 +1,7 @@
 package web
 
+import "strconv"
+
 // ProjectionVM is the page of one stored projection. Figures that the
 // roster export also carries are already formatted with the export's
 // helpers, so page and export agree to the last digit.
@@ -156,4 +158,18 @@ type ProjectionRowVM struct {
 	ExpectedNurseHours string // "–" when declined
 	Declined           bool   // too few observations: the floor alone, or nothing
 	URL                string
+}
+
+// oneDecimalText rounds a formatted figure ("31.76") to one decimal
+// ("31.8") for the page; anything that is not a number is shown as it is.
+func oneDecimalText(s string) string {
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		return s
+	}
+	out := strconv.FormatFloat(v, 'f', 1, 64)
+	if out == "-0.0" {
+		return "0.0"
+	}
+	return out
 }

@@ -81,7 +81,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	log.Info("database ready", "kind", st.Kind, "where", st.Where)
 
 	if *seed {
-		res, err := demo.Seed(ctx, st.Store, time.Now(), e.password)
+		res, err := demo.Seed(ctx, st.Store, e.clock(), e.password)
 		if err != nil {
 			fmt.Fprintf(e.stderr, "wardload: cannot add demo data: %s\n", oneLine(err))
 			return exitFailure
@@ -94,7 +94,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	cfg.SecureCookies = *secure
 	cfg.Store = st.Store
 	cfg.Logger = log
-	cfg.Now = time.Now
+	cfg.Now = e.clock
 	cfg.TrustForwardedFor = *trustXFF
 	cfg.DrainTimeout = *drain
 	cfg.Password = e.password

@@ -55,13 +55,20 @@ func newBrowser(t *testing.T) context.Context {
 // It runs once per store: on the embedded SQLite store, and on PostgreSQL
 // when WARDLOAD_TEST_DATABASE_URL is set (required under CI=true).
 func TestBrowserCensusToProjection(t *testing.T) {
+	onEachStore(t, browserJourney)
+}
+
+// onEachStore runs a journey as two subtests: on the embedded SQLite
+// store, and on PostgreSQL when WARDLOAD_TEST_DATABASE_URL is set. The
+// journey gets the store for reading back and the arguments for serve.
+func onEachStore(t *testing.T, journey func(t *testing.T, so *storeOptions, storeArgs ...string)) {
 	t.Run("sqlite", func(t *testing.T) {
 		dir := t.TempDir()
-		browserJourney(t, &storeOptions{DataDir: dir}, "--data-dir", dir)
+		journey(t, &storeOptions{DataDir: dir}, "--data-dir", dir)
 	})
 	t.Run("postgres", func(t *testing.T) {
 		dbURL := mustCreateDatabase(t)
-		browserJourney(t, &storeOptions{DB: dbURL}, "--db", dbURL, "--data-dir", t.TempDir())
+		journey(t, &storeOptions{DB: dbURL}, "--db", dbURL, "--data-dir", t.TempDir())
 	})
 }
 

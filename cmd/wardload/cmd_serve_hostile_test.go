@@ -34,12 +34,10 @@ func TestServeHostileSignInMemory(t *testing.T) {
 	if _, err := os.Stat("/proc/self/status"); err != nil {
 		t.Skip("needs /proc")
 	}
-	// TestMain lowers the argon2 cost for speed; this test is about the
-	// production cost, so the demo accounts are hashed with it.
-	fast := password.DefaultParams
-	password.DefaultParams = password.Params{MemoryKiB: 64 * 1024, Time: 1, Threads: 2, SaltLen: 16, KeyLen: 32}
-	t.Cleanup(func() { password.DefaultParams = fast })
-	s := MustServe(t, "--addr", "127.0.0.1:0", "--data-dir", t.TempDir(), "--demo")
+	// The other tests hash with cheap parameters for speed; this one is
+	// about the production cost (zero parameters), for the demo accounts
+	// and every sign-in.
+	s := mustServeWith(t, nil, password.Params{}, "--addr", "127.0.0.1:0", "--data-dir", t.TempDir(), "--demo")
 	// Reset the peak (VmHWM) so it covers the burst only; where the kernel
 	// refuses, the peak since start is a stricter measure.
 	os.WriteFile("/proc/self/clear_refs", []byte("5"), 0)

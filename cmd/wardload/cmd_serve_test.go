@@ -19,6 +19,7 @@ import (
 	"github.com/jackc/pgx/v5"
 
 	"wardload/internal/demo"
+	"wardload/internal/password"
 )
 
 // lockedBuffer is an output stream the serving goroutine writes while the
@@ -55,9 +56,22 @@ type serving struct {
 // end of the test if Stop was not called.
 func MustServe(tb testing.TB, args ...string) *serving {
 	tb.Helper()
+	return mustServeAt(tb, nil, args...)
+}
+
+// mustServeAt is MustServe with the server's clock (nil: time.Now).
+func mustServeAt(tb testing.TB, now func() time.Time, args ...string) *serving {
+	tb.Helper()
+	return mustServeWith(tb, now, testPassword, args...)
+}
+
+// mustServeWith is mustServeAt with the given argon2 parameters (zero:
+// production strength).
+func mustServeWith(tb testing.TB, now func() time.Time, params password.Params, args ...string) *serving {
+	tb.Helper()
 	ctx, cancel := context.WithCancel(context.Background())
 	s := &serving{stdout: &lockedBuffer{}, stderr: &lockedBuffer{}, cancel: cancel, done: make(chan int, 1)}
-	e := &env{stdin: strings.NewReader(""), stdout: s.stdout, stderr: s.stderr, getenv: func(string) string { return "" }, password: testPassword}
+	e := &env{stdin: strings.NewReader(""), stdout: s.stdout, stderr: s.stderr, getenv: func(string) string { return "" }, now: now, password: params}
 	go func() { s.done <- run(ctx, append([]string{"serve"}, args...), e) }()
 	deadline := time.After(60 * time.Second)
 	for s.URL == "" {

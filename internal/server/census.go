@@ -39,7 +39,9 @@ func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
 // within projector.ChangeoverWindow of a shift's start, that shift, offered
 // with the running one as two large choices; otherwise the shift running
 // now (or the next one). ?date=&shift= chooses another dated shift. The
-// counts start from the newest census of the chosen shift, if there is one.
+// counts start from the newest census of the chosen shift, if there is
+// one; otherwise they are carried from the ward's newest census of any
+// shift that started no later, marked as carried.
 func (s *Server) handleCensusForm(w http.ResponseWriter, r *http.Request) error {
 	d, err := s.loadCensusData(r)
 	if err != nil {
@@ -214,6 +216,20 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 	}
 	prefill := map[int64]int{}
 	vm.NextRevision = 1
+	var carried *wardload.Census
+	if latest == nil && form == nil {
+		if day, err := wardload.ParseDate(date); err == nil {
+			if carried, err = s.carriedCensus(r, d, day, chosen); err != nil {
+				return vm, err
+			}
+		}
+	}
+	if carried != nil {
+		vm.Carried = carriedVM(carried, d)
+		for _, tc := range carried.Counts {
+			prefill[tc.TierID] = tc.Patients
+		}
+	}
 	if latest != nil {
 		vm.Latest = &web.LatestCensusVM{Revision: latest.census.Revision, EnteredAt: formatLocal(latest.census.EnteredAt, d.ward), Total: latest.census.Total()}
 		if latest.projectionID != 0 {
@@ -229,14 +245,22 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		switch {
 		case form != nil:
 			f.Value = clip(strings.TrimSpace(form.Get(f.Name)), 12)
-		case latest != nil:
+		case latest != nil || carried != nil:
 			f.Value = strconv.Itoa(prefill[t.ID])
+			f.Carried = carried != nil
 		}
 		if f.Error != "" {
 			vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#" + f.InputID, Message: t.Label + ": " + f.Error})
 		}
 		vm.Tiers = append(vm.Tiers, f)
 	}
+	settings, err := s.store.FindSettings(r.Context(), d.ward.ID)
+	if err != nil {
+		return vm, fmt.Errorf("census: settings: %w", err)
+	}
+	vm.Beds = settings.Beds
+	_, vm.TotalText, vm.TotalOver = censusTotal(vm.Tiers, settings.Beds)
+	vm.ScriptURL = s.assets.URL("census.js")
 	for _, k := range []string{"patients", "tier"} {
 		if msg := errs[k]; msg != "" {
 			vm.CountError = msg

@@ -97,11 +97,7 @@ func TestDeclinedProjection(t *testing.T) {
 					t.Errorf("caution %q", got)
 				}
 				// The page and the export agree.
-				for id, want := range exportedOnPage(tc.row) {
-					if got := byTestID(t, body, id); !slices.Equal(got, []string{want}) {
-						t.Errorf("%s: page %q, export %q", id, got, want)
-					}
-				}
+				checkExportedOnPage(t, "declined", body, tc.row)
 			}
 			r := tc.row
 			if r.DataSufficient || r.DecidedBy != stats.DecidedByInsufficient || r.Shortfall != nil || r.BandLowNurseHours != nil ||
@@ -201,11 +197,7 @@ func TestMethod1ProjectionRenders(t *testing.T) {
 		if got := byTestID(t, body, "method-1"); len(got) != 1 || !strings.Contains(got[0], "Made with method 1") {
 			t.Errorf("method 1 notice %q", got)
 		}
-		for id, want := range exportedOnPage(rows[0]) {
-			if got := byTestID(t, body, id); !slices.Equal(got, []string{want}) {
-				t.Errorf("%s: page %q, export %q", id, got, want)
-			}
-		}
+		checkExportedOnPage(t, "method 1", body, rows[0])
 		if got := byTestID(t, body, "band-name"); !slices.Equal(got, []string{"90% normal band"}) {
 			t.Errorf("band name %q", got)
 		}

@@ -90,11 +90,8 @@ func TestProjectionPageShowsTheExportsFigures(t *testing.T) {
 	for i, p := range []*wardload.Projection{noFloor, withFloor} { // rows are oldest first
 		row := rows[i]
 		_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", fmt.Sprintf("/wards/w-a/projections/%d", p.ID), nil)))
-		for id, want := range exportedOnPage(row) {
-			if got := byTestID(t, body, id); !slices.Equal(got, []string{want}) {
-				t.Errorf("%s %s: page %q, export %q", row.Shift, id, got, want)
-			}
-		}
+		checkExportedOnPage(t, row.Shift, body, row)
+
 		if !row.DataSufficient || row.Shortfall == nil || row.BandLevel == nil {
 			t.Fatalf("%s: the fixture's projections have enough data: %+v", row.Shift, row)
 		}
@@ -346,21 +343,54 @@ func TestShiftListAndDownloads(t *testing.T) {
 	}
 }
 
+// checkExportedOnPage checks that each figure the export carries is on
+// the page with the export's digits. Nurse-hours are shown to one decimal
+// in an element whose value is the export's figure; the decision is an
+// attribute, since the sentence beside it says it in words.
+func checkExportedOnPage(tb testing.TB, what, body string, row export.Row) {
+	tb.Helper()
+	for id, want := range exportedOnPage(row) {
+		switch id {
+		case "decided-by":
+			if got := testIDAttr(tb, body, "decided-text", "data-decided-by"); got != want {
+				tb.Errorf("%s decided-by: page %q, export %q", what, got, want)
+			}
+		case "expected-nurse-hours", "band-low", "band-high":
+			got := testIDAttr(tb, body, id, "value")
+			v, _ := strconv.ParseFloat(want, 64)
+			if text := byTestID(tb, body, id); got != want || !slices.Equal(text, []string{strconv.FormatFloat(v, 'f', 1, 64)}) {
+				tb.Errorf("%s %s: page value %q shown as %q, export %q", what, id, got, text, want)
+			}
+		default:
+			if got := byTestID(tb, body, id); !slices.Equal(got, []string{want}) {
+				tb.Errorf("%s %s: page %q, export %q", what, id, got, want)
+			}
+		}
+	}
+}
+
 // byTestIDAttr returns the href of the first element with data-testid=id.
 func byTestIDAttr(tb testing.TB, page, id string) string {
+	tb.Helper()
+	return testIDAttr(tb, page, id, "href")
+}
+
+// testIDAttr returns the attribute attr of the first element with
+// data-testid=id.
+func testIDAttr(tb testing.TB, page, id, attr string) string {
 	tb.Helper()
 	i := strings.Index(page, `data-testid="`+id+`"`)
 	if i < 0 {
 		tb.Fatalf("no %s", id)
 	}
 	start := strings.LastIndex(page[:i], "<")
-	tag := page[start:i]
-	_, after, ok := strings.Cut(tag, `href="`)
-	if !ok {
-		tb.Fatalf("%s has no href", id)
+	tag := page[start : i+strings.Index(page[i:], ">")]
+	j := strings.Index(tag, " "+attr+`="`)
+	if j < 0 {
+		tb.Fatalf("%s has no %s", id, attr)
 	}
-	href := after
-	return strings.ReplaceAll(href[:strings.Index(href, `"`)], "&amp;", "&")
+	v := tag[j+len(attr)+3:]
+	return strings.ReplaceAll(v[:strings.Index(v, `"`)], "&amp;", "&")
 }
 
 // bareZero reports whether a probability text says a flat 0%: "0%" alone

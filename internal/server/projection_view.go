@@ -95,7 +95,7 @@ func method2VM(vm *web.ProjectionVM, row *export.Row, p *wardload.Projection, re
 	}
 	vm.ExpectedCareHours = export.FormatHours(res.ExpectedMinutes.Value / 60)
 	vm.ExpectedNurseHours = export.FormatHours(*row.ExpectedNurseHours)
-	vm.MedianNurseHours = export.FormatHours(res.NurseHours.Median.Value) + " nurse-hours"
+	vm.MedianNurseHours = oneDecimal(res.NurseHours.Median.Value) + " nurse-hours"
 	vm.CoverNurseHours = export.FormatHours(p.CoverNurseHours)
 	vm.BandLevel = coverPercent(*row.BandLevel)
 	vm.BandName = vm.BandLevel + " band"
@@ -112,7 +112,7 @@ func method2VM(vm *web.ProjectionVM, row *export.Row, p *wardload.Projection, re
 	for _, sf := range res.Shortfall {
 		vm.Shortfall = append(vm.Shortfall, web.ShortfallRowVM{
 			Nurses: strconv.Itoa(sf.Nurses), CareGiving: strconv.Itoa(sf.CareGivingNurses),
-			Capacity: export.FormatHours(nh(sf.CapacityMinutes)), Chance: sf.Text, Recommended: sf.Nurses == rec,
+			Capacity: oneDecimal(nh(sf.CapacityMinutes)), Chance: sf.Text, Recommended: sf.Nurses == rec,
 		})
 	}
 }
@@ -130,7 +130,7 @@ func method1VM(vm *web.ProjectionVM, row *export.Row, p *wardload.Projection, re
 	vm.NursesCover = strconv.Itoa(p.NursesCover)
 	vm.ExpectedCareHours = export.FormatHours(res.ExpectedMinutes / 60)
 	vm.ExpectedNurseHours = export.FormatHours(*row.ExpectedNurseHours)
-	vm.MedianNurseHours = export.FormatHours(nh(res.Simulation.P50)) + " nurse-hours"
+	vm.MedianNurseHours = oneDecimal(nh(res.Simulation.P50)) + " nurse-hours"
 	vm.CoverNurseHours = export.FormatHours(p.CoverNurseHours)
 	vm.BandLevel = coverPercent(*row.BandLevel)
 	vm.BandName = vm.BandLevel + " normal band"
@@ -152,7 +152,7 @@ func method1VM(vm *web.ProjectionVM, row *export.Row, p *wardload.Projection, re
 			chance = export.ShortfallV1(sf.Nurses, sf.SimulatedProbability, res.Simulation.Draws).Text
 		}
 		vm.Shortfall = append(vm.Shortfall, web.ShortfallRowVM{Nurses: strconv.Itoa(sf.Nurses), CareGiving: strconv.Itoa(sf.Nurses),
-			Capacity: export.FormatHours(nh(sf.CapacityMinutes)), Chance: chance, Recommended: sf.Nurses == rec})
+			Capacity: oneDecimal(nh(sf.CapacityMinutes)), Chance: chance, Recommended: sf.Nurses == rec})
 	}
 
 	observations := 0
@@ -221,4 +221,14 @@ func pageWarnings(res *stats.Projection) []string {
 		}
 	}
 	return out
+}
+
+// oneDecimal is how the page shows nurse-hours it does not share with the
+// export: to one decimal, never "-0.0".
+func oneDecimal(v float64) string {
+	s := strconv.FormatFloat(v, 'f', 1, 64)
+	if s == "-0.0" {
+		return "0.0"
+	}
+	return s
 }
