@@ -57,7 +57,7 @@ func newChangeoverClock(t *testing.T) *changeoverClock {
 
 func (c *changeoverClock) set(h, m int) {
 	at := time.Date(c.day.Year(), c.day.Month(), c.day.Day(), h, m, 0, 0, c.day.Location())
-	c.offset.Store(int64(at.Sub(time.Now())))
+	c.offset.Store(int64(time.Until(at)))
 }
 
 func (c *changeoverClock) now() time.Time { return time.Now().Add(time.Duration(c.offset.Load())) }

@@ -83,7 +83,3 @@ func lostConnection(err error) bool {
 		errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) ||
 		errors.Is(err, pgconn.ErrConnClosed) || errors.Is(err, net.ErrClosed)
 }
-
-func notFound(what string) error {
-	return wardload.Errorf(wardload.ENOTFOUND, "%s not found.", what)
-}
