@@ -24,10 +24,11 @@ type ReviewVM struct {
 	UnitNote       string // how the unit is computed
 
 	Tiers       []ReviewTierVM
-	Order       []string // warnings: a higher tier's median not above the lower one's
-	OrderOK     bool     // every pair of neighbouring tiers with data is in order
-	TrendWeeks  []string // ISO week labels, oldest first
-	TrendRanges []string // their first and last day in the window
+	Order       []string      // warnings: a higher tier's median not above the lower one's
+	OrderOK     bool          // every pair of neighbouring tiers with data is in order
+	Separation  *SeparationVM // nil with fewer than two tiers with observations
+	TrendWeeks  []string      // ISO week labels, oldest first
+	TrendRanges []string      // their first and last day in the window
 	Trend       []ReviewTrendRowVM
 	Flagged     []ReviewObservationVM // one page of them
 	// The flagged list's paging: FlaggedRange is e.g. "51–100 of 123",
@@ -103,4 +104,16 @@ type ImportVM struct {
 	Tiers       []string // "code (label)"
 	Shifts      []string // shift pattern names
 	Error       string   // why the last upload was refused; nothing was stored
+}
+
+// SeparationVM is the statistical check that the tiers differ in care
+// time: the Kruskal–Wallis test over all tiers with observations and, for
+// each pair of neighbouring tiers, the difference of medians with its
+// bootstrap interval and a one-sentence verdict.
+type SeparationVM struct {
+	Overall string   // one sentence: H, df, p, ε², n
+	Pairs   []string // one verdict per pair of neighbouring tiers
+	Unclear int      // pairs whose interval does not show the higher tier above
+	Method  string   // how the figures were found
+	Caution string   // separation is not validity
 }

@@ -78,6 +78,7 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData, pg flaggedPaging) (web
 	}
 	vm.Order = orderWarnings(trs, reviewUnit)
 	vm.OrderOK = len(vm.Order) == 0
+	vm.Separation = separationVM(d, trs)
 	vm.TrendWeeks, vm.TrendRanges, vm.Trend, err = trend(d, trs)
 	if err != nil {
 		return vm, err

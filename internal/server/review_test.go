@@ -100,6 +100,7 @@ func TestReviewSummariesEqualStats(t *testing.T) {
 		t.Errorf("unit %q", got)
 	}
 	f2 := web.FormatValue
+	var groups [][]float64
 	var want struct{ n, min, q1, med, q3, max, iqr, innerLo, innerHi, outerLo, outerHi, mean, sd []string }
 	for _, tier := range tiers {
 		var x []float64
@@ -112,6 +113,7 @@ func TestReviewSummariesEqualStats(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		groups = append(groups, x)
 		want.n = append(want.n, strconv.Itoa(s.N))
 		want.min, want.q1, want.med = append(want.min, f2(s.Min)), append(want.q1, f2(s.Q1)), append(want.med, f2(s.Median))
 		want.q3, want.max, want.iqr = append(want.q3, f2(s.Q3)), append(want.max, f2(s.Max)), append(want.iqr, f2(s.IQR))
@@ -156,6 +158,30 @@ func TestReviewSummariesEqualStats(t *testing.T) {
 	// The demo tiers are built to rise; the order check agrees.
 	if len(byTestID(t, body, "order-ok")) != 1 || len(byTestID(t, body, "order-warning")) != 0 {
 		t.Error("demo tiers rise, but the order check warns")
+	}
+	// Tier separation: the Kruskal–Wallis figures of the same values, and
+	// one verdict per pair of neighbouring tiers; the demo's tiers rise
+	// clearly, so every pair says so.
+	kw, err := stats.KruskalWallisTest(groups)
+	if err != nil {
+		t.Fatal(err)
+	}
+	overall := byTestID(t, body, "separation-overall")
+	wantStart := fmt.Sprintf("Across %d tiers and %d observations, the tiers differ", kw.Groups, kw.N)
+	if len(overall) != 1 || !strings.HasPrefix(overall[0], wantStart) || !strings.Contains(overall[0], fmt.Sprintf("H = %.1f, %d degrees", kw.H, kw.DF)) {
+		t.Errorf("separation %q, want %q… H = %.1f", overall, wantStart, kw.H)
+	}
+	pairs := byTestID(t, body, "separation-pair")
+	if len(pairs) != len(tiers)-1 {
+		t.Errorf("%d separation verdicts, want %d", len(pairs), len(tiers)-1)
+	}
+	for _, pr := range pairs {
+		if !strings.Contains(pr, "needs clearly more care time than") {
+			t.Errorf("verdict %q: the demo tiers rise clearly", pr)
+		}
+	}
+	if c := byTestID(t, body, "separation-caution"); len(c) != 1 || c[0] != stats.SeparationCaution {
+		t.Errorf("caution %q", c)
 	}
 	// Eleven ISO weeks touch the ten-week window starting on a Monday?
 	// 22 Dec 2025 is a Monday, so exactly ten, 2025-W52 to 2026-W09.
