@@ -113,7 +113,6 @@ type ImportVM struct {
 type SeparationVM struct {
 	Overall string   // one sentence: H, df, p, ε², n
 	Pairs   []string // one verdict per pair of neighbouring tiers
-	Unclear int      // pairs whose interval does not show the higher tier above
 	Method  string   // how the figures were found
 	Caution string   // separation is not validity
 }

@@ -63,11 +63,7 @@ func Seed(wardID int64, date wardload.Date, shiftID int64) uint64 {
 // byte for byte. It returns EINVALID for a projection made by a method
 // version this build does not have, or with an unreadable input.
 func Recompute(p *wardload.Projection) (any, error) {
-	project := map[string]func(stats.ProjectionInput) (any, error){
-		stats.MethodVersion:   func(in stats.ProjectionInput) (any, error) { return stats.Project(in) },
-		stats.MethodVersionV2: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV2(in) },
-		stats.MethodVersionV1: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV1(in) },
-	}[p.MethodVersion]
+	project := byVersion[p.MethodVersion]
 	if project == nil {
 		return nil, wardload.FieldErrorf(wardload.EINVALID, "method_version",
 			"This projection was made with method %s; this version of wardload has %s and cannot reproduce it exactly.",
@@ -78,4 +74,12 @@ func Recompute(p *wardload.Projection) (any, error) {
 		return nil, wardload.FieldErrorf(wardload.EINVALID, "input", "The stored input of projection %d cannot be read.", p.ID)
 	}
 	return project(in.Model)
+}
+
+// byVersion runs the model of each method version this build can
+// reproduce.
+var byVersion = map[string]func(stats.ProjectionInput) (any, error){
+	stats.MethodVersion:   func(in stats.ProjectionInput) (any, error) { return stats.Project(in) },
+	stats.MethodVersionV2: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV2(in) },
+	stats.MethodVersionV1: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV1(in) },
 }

@@ -37,3 +37,13 @@ func minutes(n stats.Number) string {
 	}
 	return strconv.FormatFloat(n.Value, 'f', 1, 64)
 }
+
+// oneDecimal is how the page shows nurse-hours it does not share with the
+// export: to one decimal, never "-0.0".
+func oneDecimal(v float64) string {
+	s := strconv.FormatFloat(v, 'f', 1, 64)
+	if s == "-0.0" {
+		return "0.0"
+	}
+	return s
+}

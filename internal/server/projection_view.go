@@ -222,13 +222,3 @@ func pageWarnings(res *stats.Projection) []string {
 	}
 	return out
 }
-
-// oneDecimal is how the page shows nurse-hours it does not share with the
-// export: to one decimal, never "-0.0".
-func oneDecimal(v float64) string {
-	s := strconv.FormatFloat(v, 'f', 1, 64)
-	if s == "-0.0" {
-		return "0.0"
-	}
-	return s
-}

@@ -58,9 +58,6 @@ func separationVM(d *reviewData, trs []*tierReview) *web.SeparationVM {
 		if err != nil {
 			continue
 		}
-		if m.Low <= 0 {
-			vm.Unclear++
-		}
 		if len(lo.values) < 10 || len(up.values) < 10 {
 			small = true
 		}

@@ -106,10 +106,6 @@ type MedianShift struct {
 	Reps         int
 }
 
-// Clear reports whether the interval excludes 0: the upper tier's median
-// care time is then clearly above (or below) the lower tier's.
-func (m MedianShift) Clear() bool { return m.Low > 0 || m.High < 0 }
-
 // MedianShiftTest estimates median(upper) − median(lower) (type 7
 // medians) and its percentile bootstrap interval at the given level:
 // each of reps replicates resamples each tier with replacement to its own
