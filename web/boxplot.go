@@ -39,14 +39,65 @@ type BoxAxisVM struct {
 // BoxPlotVM is the geometry of one box plot in its viewBox, ready for the
 // template.
 type BoxPlotVM struct {
-	ViewBox              string
 	Title, Desc          string
 	BoxX, BoxW           string
 	MedianX              string
 	WhiskerLo, WhiskerHi string
 	Points               []BoxPointVM
-	OffScale             string // label of the values beyond the axis, "" if none
-	Ticks                []BoxTickVM
+	// OffScale is the short mark in the gutter for values beyond the
+	// axis ("→ 2600", or "→ 3" for three values), OffScaleNote the
+	// sentence under the figure; both "" if none.
+	OffScale, OffScaleNote string
+}
+
+// BoxPlotsVM is every tier's box plot in one figure: a row per tier and
+// one axis under them, so that tiers are compared on one scale.
+type BoxPlotsVM struct {
+	ViewBox   string
+	Rows      []BoxRowVM
+	AxisY     string // y of the axis line
+	TickEndY  string // lower end of the tick marks
+	TickY     string // baseline of the tick labels
+	TitleY    string // baseline of the unit's name
+	Ticks     []BoxTickVM
+	AxisTitle string
+	Notes     []string // values past the end of the scale, per tier
+}
+
+// BoxRowVM is one tier's row: moved down by Transform; Plot nil when the
+// tier has no observations.
+type BoxRowVM struct {
+	Code, Label string
+	Transform   string
+	Plot        *BoxPlotVM
+}
+
+// NewBoxPlots stacks plots (one per tier, nil for a tier without
+// observations, labelled by labels and keyed by codes) above axis a,
+// whose values are in unit. It returns nil when no tier has a plot.
+func NewBoxPlots(a BoxAxisVM, codes, labels []string, plots []*BoxPlotVM, unit string) *BoxPlotsVM {
+	if !slices.ContainsFunc(plots, func(p *BoxPlotVM) bool { return p != nil }) {
+		return nil
+	}
+	axisY := float64(len(plots)) * boxRowH
+	v := &BoxPlotsVM{
+		ViewBox:   fmt.Sprintf("0 0 %g %g", boxW, axisY+boxAxisH),
+		AxisY:     frameNum(axisY),
+		TickEndY:  frameNum(axisY + 5),
+		TickY:     frameNum(axisY + 18),
+		TitleY:    frameNum(axisY + 38),
+		AxisTitle: unit,
+	}
+	for i, p := range plots {
+		v.Rows = append(v.Rows, BoxRowVM{Code: codes[i], Label: labels[i], Transform: fmt.Sprintf("translate(0 %g)", float64(i)*boxRowH), Plot: p})
+		if p != nil && p.OffScaleNote != "" {
+			v.Notes = append(v.Notes, p.OffScaleNote)
+		}
+	}
+	for _, t := range a.Ticks {
+		v.Ticks = append(v.Ticks, BoxTickVM{X: oneDecimal(a.x(t)), Label: FormatValue(t)})
+	}
+	return v
 }
 
 // BoxPointVM is one outlier mark.
@@ -60,16 +111,19 @@ type BoxTickVM struct {
 	X, Label string
 }
 
-// Frame of a box plot, in viewBox units; x beyond boxRight is the
+// Frame of the box plots, in viewBox units; x beyond boxRight is the
 // "off scale" gutter for values past the axis, labelled from boxGutterX.
-// The template draws the box from y 8 to 34 and the axis at boxAxisY.
+// The frame is 360 units wide, so that its 12-unit text is about 12 px
+// where a 390 px phone draws it at its own width. Each tier is a row
+// boxRowH high: its label on top, the box from y 18 to 38; the shared
+// axis is under the last row.
 const (
-	boxW       = 680.0
-	boxH       = 66.0
-	boxLeft    = 16.0
-	boxRight   = 520.0
-	boxAxisY   = 44.0
-	boxGutterX = boxRight + 10
+	boxW       = 360.0
+	boxLeft    = 12.0
+	boxRight   = 296.0
+	boxGutterX = boxRight + 6
+	boxRowH    = 48.0
+	boxAxisH   = 44.0 // the axis line, tick labels and the unit's name
 )
 
 // frameNum writes a frame constant for the template: 16, not 16.0.
@@ -112,7 +166,6 @@ func NewBoxPlot(a BoxAxisVM, in BoxInput) *BoxPlotVM {
 	}
 	clamp := func(v float64) string { return oneDecimal(a.x(math.Min(v, a.Hi))) }
 	p := &BoxPlotVM{
-		ViewBox:   fmt.Sprintf("0 0 %g %g", boxW, boxH),
 		Title:     "Box plot of " + in.Label,
 		BoxX:      clamp(in.Q1),
 		BoxW:      oneDecimal(a.x(math.Min(in.Q3, a.Hi)) - a.x(math.Min(in.Q1, a.Hi))),
@@ -136,11 +189,10 @@ func NewBoxPlot(a BoxAxisVM, in BoxInput) *BoxPlotVM {
 	}
 	if len(beyond) == 1 {
 		p.OffScale = "→ " + FormatValue(beyond[0])
+		p.OffScaleNote = fmt.Sprintf("%s: 1 value past the end of the scale, %s.", in.Label, FormatValue(beyond[0]))
 	} else if len(beyond) > 1 {
-		p.OffScale = fmt.Sprintf("→ %d values up to %s", len(beyond), FormatValue(slices.Max(beyond)))
-	}
-	for _, t := range a.Ticks {
-		p.Ticks = append(p.Ticks, BoxTickVM{X: oneDecimal(a.x(t)), Label: FormatValue(t)})
+		p.OffScale = fmt.Sprintf("→ %d", len(beyond))
+		p.OffScaleNote = fmt.Sprintf("%s: %d values past the end of the scale, up to %s.", in.Label, len(beyond), FormatValue(slices.Max(beyond)))
 	}
 	var d strings.Builder
 	fmt.Fprintf(&d, "%s, %s, %d observations (quartiles: %s): minimum %s, Q1 %s, median %s, Q3 %s, maximum %s; whiskers %s to %s",

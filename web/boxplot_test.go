@@ -30,18 +30,26 @@ func TestNewBoxAxis(t *testing.T) {
 }
 
 func TestNewBoxPlot(t *testing.T) {
-	a := NewBoxAxis(100) // x = 16 + v/100 × 504
+	a := NewBoxAxis(100) // x = 12 + v/100 × 284 (the 360-unit phone frame)
 	p := NewBoxPlot(a, BoxInput{Label: "T1", N: 9, Min: 0, Q1: 25, Median: 50, Q3: 75, Max: 300,
 		WhiskerLo: 0, WhiskerHi: 90, Outliers: []BoxPoint{{Value: 95}, {Value: 200, Extreme: true}, {Value: 300, Extreme: true}},
 		Unit: "minutes", Convention: "Tukey's hinges"})
-	if p.BoxX != "142.0" || p.BoxW != "252.0" || p.MedianX != "268.0" || p.WhiskerLo != "16.0" || p.WhiskerHi != "469.6" {
+	if p.BoxX != "83.0" || p.BoxW != "142.0" || p.MedianX != "154.0" || p.WhiskerLo != "12.0" || p.WhiskerHi != "267.6" {
 		t.Errorf("geometry %+v", p)
 	}
-	if len(p.Points) != 1 || p.Points[0].X != "494.8" || p.Points[0].Extreme {
+	if len(p.Points) != 1 || p.Points[0].X != "281.8" || p.Points[0].Extreme {
 		t.Errorf("points %+v, want the mild one at 95 only", p.Points)
 	}
-	if p.OffScale != "→ 2 values up to 300" {
-		t.Errorf("off scale %q", p.OffScale)
+	if p.OffScale != "→ 2" || p.OffScaleNote != "T1: 2 values past the end of the scale, up to 300." {
+		t.Errorf("off scale %q, note %q", p.OffScale, p.OffScaleNote)
+	}
+	all := NewBoxPlots(a, []string{"t1", "t2"}, []string{"T1", "T2"}, []*BoxPlotVM{p, nil}, "minutes")
+	if all.ViewBox != "0 0 360 140" || all.AxisY != "96" || len(all.Rows) != 2 || all.Rows[1].Transform != "translate(0 48)" ||
+		all.Rows[1].Plot != nil || !slices.Equal(all.Notes, []string{p.OffScaleNote}) || len(all.Ticks) != 6 {
+		t.Errorf("stacked plots %+v", all)
+	}
+	if NewBoxPlots(a, []string{"t1"}, []string{"T1"}, []*BoxPlotVM{nil}, "minutes") != nil {
+		t.Error("stacked plots of no observations")
 	}
 	for _, want := range []string{"9 observations", "median 50", "Q3 75", "maximum 300", "1 mild and 2 extreme", "2 beyond the axis end of 100"} {
 		if !strings.Contains(p.Desc, want) {

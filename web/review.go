@@ -24,13 +24,20 @@ type ReviewVM struct {
 	UnitNote       string // how the unit is computed
 
 	Tiers       []ReviewTierVM
-	Order       []string      // warnings: a higher tier's median not above the lower one's
-	OrderOK     bool          // every pair of neighbouring tiers with data is in order
-	Separation  *SeparationVM // nil with fewer than two tiers with observations
-	TrendWeeks  []string      // ISO week labels, oldest first
-	TrendRanges []string      // their first and last day in the window
-	Trend       []ReviewTrendRowVM
-	Flagged     []ReviewObservationVM // one page of them
+	BoxPlots    *BoxPlotsVM // every tier on one axis; nil without observations
+	Order       []string           // warnings: a higher tier's median not above the lower one's
+	OrderOK     bool               // every pair of neighbouring tiers with data is in order
+	Separation  *SeparationVM      // nil with fewer than two tiers with observations
+	TrendWeeks  []string           // ISO week labels, oldest first
+	TrendRanges []string           // their first and last day in the window
+	Trend       []ReviewTrendRowVM // columns newest week first
+	TrendCharts []ReviewTrendChartVM
+	// The histograms' scale, the links that switch it (plain links, so
+	// the switch works without JavaScript) and how the bins were chosen.
+	LogScale                    bool
+	ScaleLinearURL, ScaleLogURL string
+	HistMethod                  string
+	Flagged                     []ReviewObservationVM // one page of them
 	// The flagged list's paging: FlaggedRange is e.g. "51–100 of 123",
 	// FlaggedPageSize "50"; Prev and Next are "" at either end.
 	FlaggedRange, FlaggedPageSize string
@@ -64,6 +71,14 @@ type ReviewTierVM struct {
 	OuterLo, OuterHi string // outer fences
 	Mean, SD         string
 	Plot             *BoxPlotVM
+	Hist             *HistogramVM // on the page's scale; nil without data
+}
+
+// ReviewTrendChartVM is one tier's small multiple of the weekly trend;
+// Chart is nil when the tier has no observations in the window.
+type ReviewTrendChartVM struct {
+	Label string
+	Chart *TrendChartVM
 }
 
 // ReviewTrendRowVM is one tier's median per ISO week; "" where the week has

@@ -132,6 +132,10 @@ type tierReview struct {
 	values  []float64
 	summary *stats.Summary // nil with no observations
 	logKind map[int]string // index in obs → outlier kind on log-minutes
+	// The natural logarithms of the values above 0, and their summary
+	// (nil when there are none).
+	logs       []float64
+	logSummary *stats.Summary
 }
 
 // reviewTiers summarises each tier's included observations with the
@@ -178,6 +182,7 @@ func (d *reviewData) reviewTiers() ([]*tierReview, error) {
 			for _, o := range ls.Outliers {
 				tr.logKind[at[o.Index]] = o.Kind
 			}
+			tr.logs, tr.logSummary = logs, ls
 		}
 	}
 	return out, nil

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"net/http"
+	"slices"
 	"strconv"
 	"time"
 
@@ -73,15 +74,37 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData, pg flaggedPaging) (web
 		}
 	}
 	axis := web.NewBoxAxis(hi)
+	logScale := histScale(r.URL.Query()) == "log"
+	var codes, labels []string
+	var plots []*web.BoxPlotVM
 	for _, tr := range trs {
-		vm.Tiers = append(vm.Tiers, tierVM(tr, axis, d.settings.Quartiles))
+		t := tierVM(tr, axis, d.settings.Quartiles)
+		t.Hist = tierHistogram(tr, logScale)
+		vm.Tiers = append(vm.Tiers, t)
+		codes, labels, plots = append(codes, t.Code), append(labels, t.Label), append(plots, t.Plot)
 	}
+	vm.BoxPlots = web.NewBoxPlots(axis, codes, labels, plots, reviewUnit)
 	vm.Order = orderWarnings(trs, reviewUnit)
 	vm.OrderOK = len(vm.Order) == 0
 	vm.Separation = separationVM(d, trs)
-	vm.TrendWeeks, vm.TrendRanges, vm.Trend, err = trend(d, trs)
+	var trendIns []web.TrendInput
+	vm.TrendWeeks, vm.TrendRanges, vm.Trend, trendIns, err = trend(d, trs)
 	if err != nil {
 		return vm, err
+	}
+	// Each tier on its own axis from 0: drift within a tier is what the
+	// charts are for (the box plots compare tiers on one scale), and an
+	// axis from 0 keeps a small change from looking like a large one.
+	for _, in := range trendIns {
+		top := web.TrendAxisTop([]web.TrendInput{in})
+		vm.TrendCharts = append(vm.TrendCharts, web.ReviewTrendChartVM{Label: in.Label, Chart: web.NewTrendChart(in, top)})
+	}
+	vm.LogScale = histScale(r.URL.Query()) == "log"
+	vm.ScaleLinearURL, vm.ScaleLogURL = histScaleURLs(r, vm.URL)
+	vm.HistMethod = "Bins by the Freedman–Diaconis rule: width 2 × IQR × n^(−1/3), with the IQR by " + conventionName(d.settings.Quartiles) +
+		" (Sturges' rule when the IQR is 0), at most " + strconv.Itoa(maxHistBars) + " bars. Values past the outer fences are counted under the chart, not drawn."
+	if vm.LogScale {
+		vm.HistMethod = "On the log scale the bins are equal steps of log-minutes, so each bar covers the same ratio (for example 40 to 50 minutes, then 50 to 62). " + vm.HistMethod
 	}
 	var flagged []flaggedObs
 	for _, tr := range trs {
@@ -194,7 +217,11 @@ func (s *Server) userName(r *http.Request, cache map[int64]string, id int64) (st
 // trend returns the ISO weeks of the window, oldest first, and each
 // tier's median per week (the median is the same under every quartile
 // convention).
-func trend(d *reviewData, trs []*tierReview) (weeks, ranges []string, rows []web.ReviewTrendRowVM, err error) {
+//
+// The table's columns run newest week first, so that the week a manager
+// reviews on Monday is in view without scrolling; the charts (ins, oldest
+// first) put it at the right edge.
+func trend(d *reviewData, trs []*tierReview) (weeks, ranges []string, rows []web.ReviewTrendRowVM, ins []web.TrendInput, err error) {
 	type span struct{ first, last wardload.Date }
 	index := map[string]int{}
 	var spans []span
@@ -218,21 +245,28 @@ func trend(d *reviewData, trs []*tierReview) (weeks, ranges []string, rows []web
 			byWeek[w] = append(byWeek[w], tr.values[i])
 		}
 		row := web.ReviewTrendRowVM{Label: tr.tier.Label}
+		in := web.TrendInput{Label: tr.tier.Label, Unit: reviewUnit, Weeks: weeks}
 		for _, xs := range byWeek {
 			row.Counts = append(row.Counts, strconv.Itoa(len(xs)))
 			if len(xs) == 0 {
 				row.Medians = append(row.Medians, "")
+				in.Q1, in.Median, in.Q3 = append(in.Q1, math.NaN()), append(in.Median, math.NaN()), append(in.Q3, math.NaN())
 				continue
 			}
 			q, err := stats.QuartilesOf(xs, d.settings.Quartiles)
 			if err != nil {
-				return nil, nil, nil, fmt.Errorf("review: trend: %w", err)
+				return nil, nil, nil, nil, fmt.Errorf("review: trend: %w", err)
 			}
 			row.Medians = append(row.Medians, web.FormatValue(q.Median))
+			in.Q1, in.Median, in.Q3 = append(in.Q1, q.Q1), append(in.Median, q.Median), append(in.Q3, q.Q3)
 		}
+		slices.Reverse(row.Medians)
+		slices.Reverse(row.Counts)
 		rows = append(rows, row)
+		ins = append(ins, in)
 	}
-	return weeks, ranges, rows, nil
+	newestFirst := func(xs []string) []string { ys := slices.Clone(xs); slices.Reverse(ys); return ys }
+	return newestFirst(weeks), newestFirst(ranges), rows, ins, nil
 }
 
 func isoWeek(d wardload.Date) string {

@@ -3,8 +3,10 @@ package server
 import (
 	"context"
 	"fmt"
+	"math"
 	"net/http/httptest"
 	"net/url"
+	"regexp"
 	"slices"
 	"strconv"
 	"strings"
@@ -146,9 +148,35 @@ func TestReviewSummariesEqualStats(t *testing.T) {
 	if strings.Contains(body, "style=") {
 		t.Error("page has an inline style attribute; the CSP forbids them")
 	}
-	// One box plot per tier and the backtest's PIT histogram.
-	if n := strings.Count(body, `role="img"`); n != len(tiers)+1 || len(byTestID(t, body, "pit-svg")) != 1 {
-		t.Errorf("%d role=img, want %d (a box plot per tier and the PIT histogram)", n, len(tiers)+1)
+	// One figure of every tier's box plot; per tier a histogram and a
+	// trend chart; and the backtest's PIT histogram.
+	if n := strings.Count(body, `role="img"`); n != 2*len(tiers)+2 || len(byTestID(t, body, "pit-svg")) != 1 || len(byTestID(t, body, "boxplot-svg")) != 1 {
+		t.Errorf("%d role=img, want %d (one box plot figure, histogram and trend chart per tier, and the PIT histogram)", n, 2*len(tiers)+2)
+	}
+	// Each histogram's bars are the Freedman–Diaconis bins of the tier's
+	// values up to the outer fence (stats.Counts is checked against R);
+	// the bars and the note of values beyond the axis account for all n.
+	hists := histogramBars(t, body)
+	if len(hists) != len(tiers) {
+		t.Fatalf("%d histograms, want %d", len(hists), len(tiers))
+	}
+	for i, x := range groups {
+		s, _ := stats.Summarize(x, settings.Quartiles)
+		b := stats.BinsFor(s.N, s.IQR, s.Min, math.Min(s.Max, s.OuterFences.Upper))
+		counts, _, above := stats.Counts(x, b)
+		var want []int
+		for _, c := range counts {
+			if c > 0 {
+				want = append(want, c)
+			}
+		}
+		total := above
+		for _, c := range hists[i] {
+			total += c
+		}
+		if !slices.Equal(hists[i], want) || total != len(x) {
+			t.Errorf("tier %d histogram bars %v (+%d beyond), want %v summing with them to n = %d", i, hists[i], above, want, len(x))
+		}
 	}
 	// The backtest says how the projections held, with its table.
 	if len(byTestID(t, body, "calibration-sentence"))+len(byTestID(t, body, "calibration-warning")) != 1 ||
@@ -184,9 +212,62 @@ func TestReviewSummariesEqualStats(t *testing.T) {
 		t.Errorf("caution %q", c)
 	}
 	// Eleven ISO weeks touch the ten-week window starting on a Monday?
-	// 22 Dec 2025 is a Monday, so exactly ten, 2025-W52 to 2026-W09.
-	if weeks := byTestID(t, body, "trend-week"); len(weeks) != 10 || !strings.HasPrefix(weeks[0], "2025-W52") || !strings.HasPrefix(weeks[9], "2026-W09") {
-		t.Errorf("trend weeks %q", weeks)
+	// 22 Dec 2025 is a Monday, so exactly ten, 2025-W52 to 2026-W09; the
+	// table puts the newest first so that it is in view.
+	if weeks := byTestID(t, body, "trend-week"); len(weeks) != 10 || !strings.HasPrefix(weeks[0], "2026-W09") || !strings.HasPrefix(weeks[9], "2025-W52") {
+		t.Errorf("trend weeks %q, want 2026-W09 first", weeks)
+	}
+	if charts := byTestID(t, body, "trend-desc"); len(charts) != len(tiers) || !strings.Contains(charts[0], "2025-W52 to 2026-W09") {
+		t.Errorf("trend charts %q", charts)
+	}
+}
+
+var histBarCount = regexp.MustCompile(`data-testid="hist-bar" data-count="(\d+)"`)
+
+// histogramBars returns the bar counts of each histogram on the page.
+func histogramBars(t *testing.T, body string) [][]int {
+	t.Helper()
+	var out [][]int
+	for _, svg := range strings.Split(body, `data-testid="histogram-svg"`)[1:] {
+		svg, _, _ = strings.Cut(svg, "</svg>")
+		var counts []int
+		for _, m := range histBarCount.FindAllStringSubmatch(svg, -1) {
+			n, _ := strconv.Atoi(m[1])
+			counts = append(counts, n)
+		}
+		out = append(out, counts)
+	}
+	return out
+}
+
+// TestReviewHistogramScale: the log switch is a plain link that keeps the
+// other choices, the filter form keeps the scale, and the log histograms
+// say so on their axis.
+func TestReviewHistogramScale(t *testing.T) {
+	f := newReviewFixture(t)
+	_, body := f.do(t, f.as(t, pAdmin, httptest.NewRequest("GET", "/wards/"+demo.WardCode+"/review?weeks=6", nil)))
+	if !strings.Contains(body, `href="/wards/`+demo.WardCode+`/review?scale=log&amp;weeks=6#histograms"`) {
+		t.Error("linear page lacks the link to the log scale keeping weeks=6")
+	}
+	res, body := f.do(t, f.as(t, pAdmin, httptest.NewRequest("GET", "/wards/"+demo.WardCode+"/review?weeks=6&scale=log", nil)))
+	if res.StatusCode != 200 {
+		t.Fatalf("status %d", res.StatusCode)
+	}
+	if !strings.Contains(body, `<input type="hidden" name="scale" value="log">`) ||
+		!strings.Contains(body, `href="/wards/`+demo.WardCode+`/review?weeks=6#histograms"`) {
+		t.Error("log page lacks the hidden scale field or the link back to linear")
+	}
+	descs := byTestID(t, body, "histogram-desc")
+	if len(descs) == 0 {
+		t.Fatal("no histograms on the log page")
+	}
+	for _, d := range descs {
+		if !strings.Contains(d, "on a logarithmic axis") {
+			t.Errorf("log histogram description %q", d)
+		}
+	}
+	if !strings.Contains(body, "(log scale)") || !strings.Contains(byTestID(t, body, "hist-method")[0], "log-minutes") {
+		t.Error("log page does not say the axis is logarithmic")
 	}
 }
 

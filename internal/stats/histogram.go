@@ -54,3 +54,52 @@ func BinsFor(n int, iqr, min, max float64) Binning {
 	k := int(math.Ceil(math.Log2(float64(n)) + 1))
 	return Binning{Rule: BinsSturges, Bins: k, Width: span / float64(k), Start: min}
 }
+
+// Counts returns how many values of x fall in each of b's bins, with the
+// bins closed on the right as in R's hist(right = TRUE, include.lowest =
+// TRUE): the first bin is [Start, Start+Width], bin i > 0 is
+// (Start+i·Width, Start+(i+1)·Width]. As in R, a value within
+// 1e-7·Width of a break counts as on it, so that a break computed with
+// rounding error does not move a value that lies on it to the next bin.
+// Values below Start or above the last break are counted in below and
+// above (none are when b was made by BinsFor from x's own range). A
+// binning of Width 0 has one bin holding every value equal to Start.
+// NaN values are counted in neither.
+//
+// Reference: R Core Team, hist.default (package graphics), whose counts
+// come from findInterval on the breaks shifted by that fuzz.
+func Counts(x []float64, b Binning) (counts []int, below, above int) {
+	counts = make([]int, max(b.Bins, 1))
+	if b.Width == 0 {
+		for _, v := range x {
+			switch {
+			case v == b.Start:
+				counts[0]++
+			case v < b.Start:
+				below++
+			case v > b.Start:
+				above++
+			}
+		}
+		return counts, below, above
+	}
+	fuzz := 1e-7 * b.Width
+	last := b.Start + float64(len(counts))*b.Width
+	for _, v := range x {
+		switch {
+		case math.IsNaN(v):
+			continue
+		case v < b.Start-fuzz:
+			below++
+			continue
+		case v > last+fuzz:
+			above++
+			continue
+		}
+		// The smallest i with v ≤ Start + (i+1)·Width + fuzz.
+		i := int(math.Ceil((v-b.Start-fuzz)/b.Width)) - 1
+		i = min(max(i, 0), len(counts)-1)
+		counts[i]++
+	}
+	return counts, below, above
+}
