@@ -9,6 +9,8 @@ import (
 	"net/url"
 	"strings"
 	"testing"
+
+	"wardload/internal/session"
 )
 
 // TestNoPlainSecretInDatabase creates users, signs in and fails to, makes
@@ -103,7 +105,7 @@ func TestTokenSecretSealedInSession(t *testing.T) {
 		t.Fatal(err)
 	}
 	name, sealed, _ := strings.Cut(f.s.sessions.GetString(ctx, sessSecret), ":")
-	secret, err := f.s.unseal(sealed)
+	secret, err := f.s.sealer.Unseal(sealed)
 	if err != nil || name != "planner" {
 		t.Fatalf("unseal: %q %v", name, err)
 	}
@@ -115,7 +117,7 @@ func TestTokenSecretSealedInSession(t *testing.T) {
 		t.Errorf("secret in the database before it was shown: %q", hits)
 	}
 	// A server with another seal key (a restart) cannot show it.
-	f.s.sealKey = newSealKey()
+	f.s.sealer = session.NewSealer()
 	_, body := f.do(t, withCookie(httptest.NewRequest("GET", "/wards/w-a/tokens", nil), f, c.Value))
 	if len(byTestID(t, body, "token-secret-lost")) != 1 || strings.Contains(body, secret) {
 		t.Error("after a restart the page should say the secret is lost")

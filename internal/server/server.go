@@ -19,6 +19,7 @@ import (
 
 	"wardload/internal/password"
 	"wardload/internal/projector"
+	"wardload/internal/session"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -145,7 +146,7 @@ type Server struct {
 	// may reach wardload through one address.
 	acctThrottle *throttle
 	addrThrottle *throttle
-	sealKey      []byte // seals one-time token secrets kept in the session
+	sealer       *session.Sealer // seals one-time token secrets kept in the session
 	dummyOnce    sync.Once
 	dummy        string
 	// signin bounds password hashing and holds device cookies and the
@@ -217,7 +218,7 @@ func New(cfg Config) (*Server, error) {
 		acctThrottle: newThrottle(3, 15*time.Minute),
 		addrThrottle: newThrottle(20, 15*time.Minute),
 		signin:       newSignInGuard(cfg),
-		sealKey:      newSealKey(),
+		sealer:       session.NewSealer(),
 		projections:  newProjectionCache(projectionCacheSize),
 		faults:       newFaultLog(cfg.Logger, cfg.FaultLogInterval),
 	}
