@@ -60,6 +60,9 @@ func newSessions(cfg Config) *scs.SessionManager {
 	if cfg.SessionStore != nil {
 		sm.Store = cfg.SessionStore
 	}
+	// Every store, the in-memory default too, keeps sessions under the
+	// hash of their token: a copy of the sessions table signs nobody in.
+	sm.Store = session.Hashed(sm.Store)
 	sm.Codec = session.Codec{}
 	sm.Lifetime = cfg.SessionLifetime
 	// No scs IdleTimeout: scs would then mark every loaded session

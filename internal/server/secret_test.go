@@ -16,7 +16,7 @@ import (
 // TestNoPlainSecretInDatabase creates users, signs in and fails to, makes
 // an API token through the page and uses it, then reads every column of
 // every table of the SQLite file (sessions included) and finds neither a
-// password nor the token secret anywhere.
+// password, the token secret nor a session cookie anywhere.
 func TestNoPlainSecretInDatabase(t *testing.T) {
 	f := newFixture(t)
 	admin := f.as(t, pAdmin, post("/admin/users", url.Values{
@@ -74,6 +74,8 @@ func TestNoPlainSecretInDatabase(t *testing.T) {
 		t.Errorf("token last used not recorded: %+v %v", tok, err)
 	}
 	secrets = append(secrets, secret, strings.TrimPrefix(secret, tokenPrefix))
+	// The session cookie is a secret too: the table holds only its hash.
+	secrets = append(secrets, c.Value)
 
 	var sessions int
 	if err := f.st.DB().QueryRow(`SELECT COUNT(*) FROM sessions`).Scan(&sessions); err != nil || sessions < 3 {

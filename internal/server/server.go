@@ -35,7 +35,8 @@ type Config struct {
 	SecureCookies bool
 	// SessionStore keeps sign-in sessions: cmd/wardload passes scs's
 	// sqlite3store or pgxstore on the same database. Nil keeps sessions in
-	// memory, which only tests should do.
+	// memory, which only tests should do. The server stores each session
+	// under the hash of its token (session.Hashed), never the token.
 	SessionStore scs.Store
 	// SessionIdle signs a user out after this long without a request;
 	// SessionLifetime after this long in any case. The defaults, 8 and 12
