@@ -2,12 +2,14 @@ package main
 
 import (
 	"context"
-	"io"
 	"net/http"
+	"net/http/cookiejar"
 	"net/url"
 	"slices"
 	"strings"
 	"testing"
+
+	"github.com/jackc/pgx/v5"
 
 	"wardload/internal/session"
 )
@@ -55,21 +57,12 @@ func TestSessionRowNotReplayable(t *testing.T) {
 
 		home := func(token string) (int, string) {
 			t.Helper()
-			req, err := http.NewRequest("GET", s.URL+"/", nil)
+			jar, err := cookiejar.New(nil)
 			if err != nil {
 				t.Fatal(err)
 			}
-			req.AddCookie(&http.Cookie{Name: "wardload_session", Value: token})
-			res, err := http.DefaultClient.Do(req)
-			if err != nil {
-				t.Fatal(err)
-			}
-			defer res.Body.Close()
-			b, err := io.ReadAll(res.Body)
-			if err != nil {
-				t.Fatal(err)
-			}
-			return res.StatusCode, string(b)
+			jar.SetCookies(base, []*http.Cookie{{Name: "wardload_session", Value: token}})
+			return getWith(t, &http.Client{Jar: jar}, s.URL+"/")
 		}
 		for _, key := range stored {
 			code, body := home(key)
@@ -120,14 +113,7 @@ func storedSessionKeys(t *testing.T, so *storeOptions) []string {
 		if err != nil {
 			t.Fatal(err)
 		}
-		for rows.Next() {
-			var k string
-			if err := rows.Scan(&k); err != nil {
-				t.Fatal(err)
-			}
-			keys = append(keys, k)
-		}
-		if err := rows.Err(); err != nil {
+		if keys, err = pgx.CollectRows(rows, pgx.RowTo[string]); err != nil {
 			t.Fatal(err)
 		}
 	}
