@@ -120,8 +120,16 @@ func openStore(ctx context.Context, o *storeOptions, migrate bool) (*openedStore
 			return nil, errors.New("--data-dir must not be empty")
 		}
 		// 0700: the database holds password hashes and the audit log.
+		// A directory created here gets exactly that whatever the umask;
+		// an existing one keeps the operator's mode (looseModes warns).
+		_, statErr := os.Stat(o.DataDir)
 		if err := os.MkdirAll(o.DataDir, 0o700); err != nil {
 			return nil, fmt.Errorf("cannot create data directory: %s", oneLine(err))
+		}
+		if errors.Is(statErr, fs.ErrNotExist) {
+			if err := os.Chmod(o.DataDir, 0o700); err != nil {
+				return nil, fmt.Errorf("cannot set the data directory's mode: %s", oneLine(err))
+			}
 		}
 		path := o.sqlitePath()
 		db, err := sqlite.Open(ctx, sqlite.Config{Path: path, Now: time.Now})

@@ -13,26 +13,29 @@ import (
 )
 
 // Issue 15 item 4: a data directory wardload creates is 0700 and its
-// database 0600 even with a permissive umask, and start-up says nothing.
+// database 0600 whatever the umask: a permissive one (0) does not widen
+// them, and one that takes the owner's write bit (0277) does not narrow
+// them into a directory wardload itself cannot use. Start-up says nothing.
 func TestMigrateCreatesPrivateDataDir(t *testing.T) {
-	old := syscall.Umask(0)
-	t.Cleanup(func() { syscall.Umask(old) })
-
-	dir := filepath.Join(t.TempDir(), "data")
-	code, _, errs := runStdin(t, "", "migrate", "--data-dir", dir)
-	if code != exitOK {
-		t.Fatalf("migrate: exit %d, stderr %q", code, errs)
-	}
-	if strings.Contains(errs, "warning") {
-		t.Errorf("fresh data directory: stderr %q, want no warning", errs)
-	}
-	for p, want := range map[string]os.FileMode{dir: 0o700, filepath.Join(dir, "wardload.db"): 0o600} {
-		fi, err := os.Stat(p)
-		if err != nil {
-			t.Fatal(err)
+	for _, mask := range []int{0, 0o277} {
+		old := syscall.Umask(mask)
+		dir := filepath.Join(t.TempDir(), "data")
+		code, _, errs := runStdin(t, "", "migrate", "--data-dir", dir)
+		syscall.Umask(old)
+		if code != exitOK {
+			t.Fatalf("umask %#o: migrate: exit %d, stderr %q", mask, code, errs)
 		}
-		if got := fi.Mode().Perm(); got != want {
-			t.Errorf("%s: mode %#o, want %#o", p, got, want)
+		if strings.Contains(errs, "warning") {
+			t.Errorf("umask %#o: fresh data directory: stderr %q, want no warning", mask, errs)
+		}
+		for p, want := range map[string]os.FileMode{dir: 0o700, filepath.Join(dir, "wardload.db"): 0o600} {
+			fi, err := os.Stat(p)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := fi.Mode().Perm(); got != want {
+				t.Errorf("umask %#o: %s: mode %#o, want %#o", mask, p, got, want)
+			}
 		}
 	}
 }
@@ -91,8 +94,8 @@ func TestLooseDataModesWarn(t *testing.T) {
 			t.Errorf("serve stderr %q lacks %q", errb.String(), w)
 		}
 	}
-	if !strings.Contains(errb.String(), "level=WARN") {
-		t.Errorf("serve stderr %q: want the warning at level WARN", errb.String())
+	if n := strings.Count(errb.String(), "level=WARN"); n != 2 || strings.Count(errb.String(), "is open to other users") != 2 {
+		t.Errorf("serve stderr %q: want two warnings at level WARN, once per path; %d WARN lines", errb.String(), n)
 	}
 
 	for p, want := range map[string]os.FileMode{dir: 0o755, db: 0o644} {

@@ -14,6 +14,8 @@ import (
 
 	"github.com/alexedwards/scs/pgxstore"
 	"github.com/jackc/pgx/v5"
+	"github.com/jackc/pgx/v5/stdlib"
+	"github.com/pressly/goose/v3"
 
 	"wardload/internal/postgres"
 	"wardload/internal/storetest"
@@ -50,17 +52,7 @@ func testURL(t *testing.T) string {
 func MustOpenStore(tb testing.TB, url string, now wardload.Clock) (*postgres.Store, string) {
 	tb.Helper()
 	ctx := context.Background()
-	schema := newSchemaName(tb)
-	mustExec(tb, url, func(c *pgx.Conn) error {
-		_, err := c.Exec(ctx, `CREATE SCHEMA `+pgx.Identifier{schema}.Sanitize())
-		return err
-	})
-	tb.Cleanup(func() {
-		mustExec(tb, url, func(c *pgx.Conn) error {
-			_, err := c.Exec(context.Background(), `DROP SCHEMA `+pgx.Identifier{schema}.Sanitize()+` CASCADE`)
-			return err
-		})
-	})
+	schema := mustCreateSchema(tb, url)
 	s, err := postgres.Open(ctx, postgres.Config{URL: url, Now: now, Schema: schema})
 	if err != nil {
 		tb.Fatalf("open: %v", err)
@@ -76,6 +68,24 @@ func MustOpenStore(tb testing.TB, url string, now wardload.Clock) (*postgres.Sto
 		tb.Fatalf("migrate: %v", err)
 	}
 	return s, schema
+}
+
+// mustCreateSchema creates a schema with a random name, dropped when the
+// test ends, and returns its name.
+func mustCreateSchema(tb testing.TB, url string) string {
+	tb.Helper()
+	schema := newSchemaName(tb)
+	mustExec(tb, url, func(c *pgx.Conn) error {
+		_, err := c.Exec(context.Background(), `CREATE SCHEMA `+pgx.Identifier{schema}.Sanitize())
+		return err
+	})
+	tb.Cleanup(func() {
+		mustExec(tb, url, func(c *pgx.Conn) error {
+			_, err := c.Exec(context.Background(), `DROP SCHEMA `+pgx.Identifier{schema}.Sanitize()+` CASCADE`)
+			return err
+		})
+	})
+	return schema
 }
 
 // migrateTurn lets one test of this package migrate at a time.
@@ -378,4 +388,46 @@ func withParam(t *testing.T, raw, key, value string) string {
 	q.Set(key, value)
 	u.RawQuery = q.Encode()
 	return u.String()
+}
+
+// TestSessionHashMigration: migration 00004 deletes the sessions stored
+// before tokens were hashed, since each such row holds a live token in
+// plain text; a database migrated from version 2 has no session left.
+func TestSessionHashMigration(t *testing.T) {
+	url := testURL(t)
+	ctx := context.Background()
+	schema := mustCreateSchema(t, url)
+	s, err := postgres.Open(ctx, postgres.Config{URL: url, Now: time.Now, Schema: schema})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	fsys, err := fs.Sub(migrations.Postgres, "postgres")
+	if err != nil {
+		t.Fatal(err)
+	}
+	db := stdlib.OpenDB(*s.Pool().Config().ConnConfig.Copy()) // with the schema's search_path
+	defer db.Close()
+	p, err := goose.NewProvider(goose.DialectPostgres, db, fsys)
+	if err != nil {
+		t.Fatal(err)
+	}
+	migrateTurn.Lock()
+	defer migrateTurn.Unlock()
+	if _, err := p.UpTo(ctx, 2); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := s.Pool().Exec(ctx, `INSERT INTO sessions (token, data, expiry) VALUES ('plain-token', '\x00', now() + interval '1 hour')`); err != nil {
+		t.Fatal(err)
+	}
+	if err := s.Migrate(ctx); err != nil {
+		t.Fatal(err)
+	}
+	var n int
+	if err := s.Pool().QueryRow(ctx, `SELECT count(*) FROM sessions`).Scan(&n); err != nil {
+		t.Fatal(err)
+	}
+	if n != 0 {
+		t.Errorf("%d sessions left after migration 00004, want 0", n)
+	}
 }

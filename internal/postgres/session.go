@@ -9,7 +9,9 @@ import (
 // SessionStore keeps sign-in sessions in the sessions table with scs's
 // pgxstore, on the store's pool, and maps its errors as the store does:
 // when the database is away a session lookup fails with EUNAVAILABLE
-// rather than an internal error.
+// rather than an internal error. The server wraps it in session.Hashed,
+// so the token column holds the hash of each session token, never the
+// token (migration 00004).
 type SessionStore struct {
 	*pgxstore.PostgresStore
 	p *pool
@@ -37,7 +39,7 @@ func (st *SessionStore) Delete(token string) error {
 	return st.p.mapError(st.PostgresStore.Delete(token))
 }
 
-// All returns every unexpired session.
+// All returns every unexpired session, keyed as stored (by token hash).
 func (st *SessionStore) All() (map[string][]byte, error) {
 	m, err := st.PostgresStore.All()
 	return m, st.p.mapError(err)

@@ -11,6 +11,7 @@ import (
 	"github.com/alexedwards/scs/v2"
 	"github.com/go-chi/chi/v5"
 
+	"wardload/internal/session"
 	"wardload/internal/wardload"
 )
 
@@ -59,7 +60,10 @@ func newSessions(cfg Config) *scs.SessionManager {
 	if cfg.SessionStore != nil {
 		sm.Store = cfg.SessionStore
 	}
-	sm.Codec = sessionCodec{}
+	// Every store, the in-memory default too, keeps sessions under the
+	// hash of their token: a copy of the sessions table signs nobody in.
+	sm.Store = session.Hashed(sm.Store)
+	sm.Codec = session.Codec{}
 	sm.Lifetime = cfg.SessionLifetime
 	// No scs IdleTimeout: scs would then mark every loaded session
 	// modified and write it back (a database write, and on SQLite a WAL

@@ -9,12 +9,14 @@ import (
 	"net/url"
 	"strings"
 	"testing"
+
+	"wardload/internal/session"
 )
 
 // TestNoPlainSecretInDatabase creates users, signs in and fails to, makes
 // an API token through the page and uses it, then reads every column of
 // every table of the SQLite file (sessions included) and finds neither a
-// password nor the token secret anywhere.
+// password, the token secret nor a session cookie anywhere.
 func TestNoPlainSecretInDatabase(t *testing.T) {
 	f := newFixture(t)
 	admin := f.as(t, pAdmin, post("/admin/users", url.Values{
@@ -72,6 +74,8 @@ func TestNoPlainSecretInDatabase(t *testing.T) {
 		t.Errorf("token last used not recorded: %+v %v", tok, err)
 	}
 	secrets = append(secrets, secret, strings.TrimPrefix(secret, tokenPrefix))
+	// The session cookie is a secret too: the table holds only its hash.
+	secrets = append(secrets, c.Value)
 
 	var sessions int
 	if err := f.st.DB().QueryRow(`SELECT COUNT(*) FROM sessions`).Scan(&sessions); err != nil || sessions < 3 {
@@ -103,7 +107,7 @@ func TestTokenSecretSealedInSession(t *testing.T) {
 		t.Fatal(err)
 	}
 	name, sealed, _ := strings.Cut(f.s.sessions.GetString(ctx, sessSecret), ":")
-	secret, err := f.s.unseal(sealed)
+	secret, err := f.s.sealer.Unseal(sealed)
 	if err != nil || name != "planner" {
 		t.Fatalf("unseal: %q %v", name, err)
 	}
@@ -115,7 +119,7 @@ func TestTokenSecretSealedInSession(t *testing.T) {
 		t.Errorf("secret in the database before it was shown: %q", hits)
 	}
 	// A server with another seal key (a restart) cannot show it.
-	f.s.sealKey = newSealKey()
+	f.s.sealer = session.NewSealer()
 	_, body := f.do(t, withCookie(httptest.NewRequest("GET", "/wards/w-a/tokens", nil), f, c.Value))
 	if len(byTestID(t, body, "token-secret-lost")) != 1 || strings.Contains(body, secret) {
 		t.Error("after a restart the page should say the secret is lost")

@@ -19,6 +19,7 @@ import (
 
 	"wardload/internal/password"
 	"wardload/internal/projector"
+	"wardload/internal/session"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -34,7 +35,8 @@ type Config struct {
 	SecureCookies bool
 	// SessionStore keeps sign-in sessions: cmd/wardload passes scs's
 	// sqlite3store or pgxstore on the same database. Nil keeps sessions in
-	// memory, which only tests should do.
+	// memory, which only tests should do. The server stores each session
+	// under the hash of its token (session.Hashed), never the token.
 	SessionStore scs.Store
 	// SessionIdle signs a user out after this long without a request;
 	// SessionLifetime after this long in any case. The defaults, 8 and 12
@@ -145,7 +147,7 @@ type Server struct {
 	// may reach wardload through one address.
 	acctThrottle *throttle
 	addrThrottle *throttle
-	sealKey      []byte // seals one-time token secrets kept in the session
+	sealer       *session.Sealer // seals one-time token secrets kept in the session
 	dummyOnce    sync.Once
 	dummy        string
 	// signin bounds password hashing and holds device cookies and the
@@ -217,7 +219,7 @@ func New(cfg Config) (*Server, error) {
 		acctThrottle: newThrottle(3, 15*time.Minute),
 		addrThrottle: newThrottle(20, 15*time.Minute),
 		signin:       newSignInGuard(cfg),
-		sealKey:      newSealKey(),
+		sealer:       session.NewSealer(),
 		projections:  newProjectionCache(projectionCacheSize),
 		faults:       newFaultLog(cfg.Logger, cfg.FaultLogInterval),
 	}

@@ -20,7 +20,7 @@ func (s *Server) handleTokens(w http.ResponseWriter, r *http.Request) error {
 	vm.Notice = s.sessions.PopString(ctx, sessFlash)
 	if sealed := s.sessions.PopString(ctx, sessSecret); sealed != "" {
 		name, secretSealed, _ := strings.Cut(sealed, ":")
-		if secret, err := s.unseal(secretSealed); err == nil {
+		if secret, err := s.sealer.Unseal(secretSealed); err == nil {
 			vm.NewName, vm.NewSecret = name, secret
 		} else {
 			vm.SecretLost = true
@@ -85,7 +85,7 @@ func (s *Server) handleTokenCreate(w http.ResponseWriter, r *http.Request) error
 		}
 		return fmt.Errorf("token create: %w", err)
 	}
-	s.sessions.Put(r.Context(), sessSecret, t.Name+":"+s.seal(secret))
+	s.sessions.Put(r.Context(), sessSecret, t.Name+":"+s.sealer.Seal(secret))
 	return seeOther(w, r, tokensURL(p.Ward))
 }
 

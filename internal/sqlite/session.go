@@ -11,7 +11,9 @@ import (
 
 // SessionStore keeps sign-in sessions in the sessions table (the layout of
 // scs's sqlite3store, which both it and this store accept). It has the
-// methods of scs.Store and scs.CtxStore without importing scs.
+// methods of scs.Store and scs.CtxStore without importing scs. The
+// server wraps it in session.Hashed, so the token column holds the hash
+// of each session token, never the token (migration 00004).
 //
 // Unlike sqlite3store on the writer pool, it reads sessions on the read
 // pool, as a cached prepared statement, so the session lookup every page

@@ -7,7 +7,10 @@ import (
 	"testing"
 	"time"
 
+	"github.com/pressly/goose/v3"
+
 	"wardload/internal/sqlite"
+	"wardload/migrations"
 )
 
 // TestSessionStore: a committed session is found, a replaced one gives the
@@ -84,5 +87,37 @@ func TestSessionStore(t *testing.T) {
 	}
 	if _, ok := find("live"); !ok {
 		t.Error("cleanup removed a live session")
+	}
+}
+
+// TestSessionHashMigration: migration 00004 deletes the sessions stored
+// before tokens were hashed, since each such row holds a live token in
+// plain text; a database migrated from version 2 has no session left.
+func TestSessionHashMigration(t *testing.T) {
+	ctx := context.Background()
+	st, err := sqlite.Open(ctx, sqlite.Config{Path: filepath.Join(t.TempDir(), "wardload.db")})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	p, err := goose.NewProvider(goose.DialectSQLite3, st.DB(), migrations.SQLite)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := p.UpTo(ctx, 2); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := st.DB().ExecContext(ctx, `INSERT INTO sessions (token, data, expiry) VALUES ('plain-token', x'00', julianday('now', '+1 hour'))`); err != nil {
+		t.Fatal(err)
+	}
+	if err := st.Migrate(ctx); err != nil {
+		t.Fatal(err)
+	}
+	var n int
+	if err := st.DB().QueryRowContext(ctx, `SELECT COUNT(*) FROM sessions`).Scan(&n); err != nil {
+		t.Fatal(err)
+	}
+	if n != 0 {
+		t.Errorf("%d sessions left after migration 00004, want 0", n)
 	}
 }

@@ -1,4 +1,4 @@
-package server
+package session
 
 import (
 	"bytes"
@@ -9,18 +9,18 @@ import (
 	"github.com/alexedwards/scs/v2"
 )
 
-// sessionCodec encodes session data for the session store. Every page
-// decodes its session, and scs's gob codec builds a new gob decoder, with
-// its type descriptions, for each one, which costs more than the session
-// lookup itself. wardload's sessions hold only int64s and strings, so they
-// are written in a small binary layout of their own; a value of any other
-// type makes the whole session gob, and data that does not start with
-// sessionMagic (gob never starts a stream with a zero byte, which would be
-// an empty message) is read as gob, so sessions stored before this codec
-// stay valid.
-type sessionCodec struct{}
+// Codec encodes session data for the session store (it is the Codec of
+// the server's scs.SessionManager). Every page decodes its session, and
+// scs's gob codec builds a new gob decoder, with its type descriptions,
+// for each one, which costs more than the session lookup itself.
+// wardload's sessions hold only int64s and strings, so they are written in
+// a small binary layout of their own; a value of any other type makes the
+// whole session gob, and data that does not start with sessionMagic (gob
+// never starts a stream with a zero byte, which would be an empty message)
+// is read as gob, so sessions stored before this codec stay valid.
+type Codec struct{}
 
-var _ scs.Codec = sessionCodec{}
+var _ scs.Codec = Codec{}
 
 // sessionMagic starts every session in the compact layout:
 //
@@ -32,7 +32,7 @@ var errSessionData = errors.New("session data: malformed")
 
 // Encode writes the compact layout, or gob when a value is neither an
 // int64 nor a string.
-func (sessionCodec) Encode(deadline time.Time, values map[string]any) ([]byte, error) {
+func (Codec) Encode(deadline time.Time, values map[string]any) ([]byte, error) {
 	b := make([]byte, 0, 64)
 	b = append(b, sessionMagic...)
 	b = binary.AppendVarint(b, deadline.UnixNano())
@@ -56,7 +56,7 @@ func (sessionCodec) Encode(deadline time.Time, values map[string]any) ([]byte, e
 }
 
 // Decode reads either layout.
-func (sessionCodec) Decode(b []byte) (time.Time, map[string]any, error) {
+func (Codec) Decode(b []byte) (time.Time, map[string]any, error) {
 	rest, ok := bytes.CutPrefix(b, []byte(sessionMagic))
 	if !ok {
 		return scs.GobCodec{}.Decode(b)

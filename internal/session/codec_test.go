@@ -1,4 +1,4 @@
-package server
+package session
 
 import (
 	"reflect"
@@ -13,16 +13,16 @@ import (
 // codec still decodes, and damaged data is an error, never a panic.
 func TestSessionCodec(t *testing.T) {
 	deadline := time.Date(2026, 3, 2, 21, 0, 0, 123456789, time.UTC)
-	c := sessionCodec{}
+	c := Codec{}
 	for _, tc := range []struct {
 		name    string
 		values  map[string]any
 		compact bool
 	}{
-		{"signed in", map[string]any{sessUserID: int64(42), sessAuthAt: int64(1772442000), sessSeenAt: int64(-5)}, true},
-		{"flash and secret", map[string]any{sessUserID: int64(1), sessFlash: "Saved · ✓", sessSecret: "", "empty": ""}, true},
+		{"signed in", map[string]any{"user_id": int64(42), "auth_at": int64(1772442000), "seen_at": int64(-5)}, true},
+		{"flash and secret", map[string]any{"user_id": int64(1), "flash": "Saved · ✓", "token_secret": "", "empty": ""}, true},
 		{"empty", map[string]any{}, true},
-		{"other type", map[string]any{sessUserID: int64(1), "n": 3, "b": true}, false},
+		{"other type", map[string]any{"user_id": int64(1), "n": 3, "b": true}, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			b, err := c.Encode(deadline, tc.values)
@@ -43,7 +43,7 @@ func TestSessionCodec(t *testing.T) {
 	}
 
 	t.Run("gob from before", func(t *testing.T) {
-		values := map[string]any{sessUserID: int64(7), sessFlash: "hello"}
+		values := map[string]any{"user_id": int64(7), "flash": "hello"}
 		b, err := scs.GobCodec{}.Encode(deadline, values)
 		if err != nil {
 			t.Fatal(err)
@@ -55,7 +55,7 @@ func TestSessionCodec(t *testing.T) {
 	})
 
 	t.Run("damaged", func(t *testing.T) {
-		good, err := c.Encode(deadline, map[string]any{sessUserID: int64(300), sessFlash: "abc"})
+		good, err := c.Encode(deadline, map[string]any{"user_id": int64(300), "flash": "abc"})
 		if err != nil {
 			t.Fatal(err)
 		}

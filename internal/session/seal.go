@@ -1,4 +1,4 @@
-package server
+package session
 
 import (
 	"crypto/aes"
@@ -15,22 +15,31 @@ import (
 // After a restart (or on another process) it cannot be opened: the page
 // then says so, and the manager revokes the token and makes another.
 
-func newSealKey() []byte {
-	k := make([]byte, 32)
-	rand.Read(k) // never fails (crypto/rand panics instead)
-	return k
+// Sealer seals values with AES-256-GCM under a key of its own.
+type Sealer struct {
+	key []byte
 }
 
-func (s *Server) seal(plain string) string {
-	gcm := mustGCM(s.sealKey)
+// NewSealer returns a Sealer with a fresh random key, held only in memory.
+func NewSealer() *Sealer {
+	k := make([]byte, 32)
+	rand.Read(k) // never fails (crypto/rand panics instead)
+	return &Sealer{key: k}
+}
+
+// Seal returns plain sealed under a random nonce, base64url.
+func (s *Sealer) Seal(plain string) string {
+	gcm := mustGCM(s.key)
 	nonce := make([]byte, gcm.NonceSize())
 	rand.Read(nonce)
 	return base64.RawURLEncoding.EncodeToString(gcm.Seal(nonce, nonce, []byte(plain), nil))
 }
 
-func (s *Server) unseal(sealed string) (string, error) {
+// Unseal returns the value Seal sealed with the same key, or an error for
+// a value sealed under another key, altered or malformed.
+func (s *Sealer) Unseal(sealed string) (string, error) {
 	b, err := base64.RawURLEncoding.DecodeString(sealed)
-	gcm := mustGCM(s.sealKey)
+	gcm := mustGCM(s.key)
 	if err != nil || len(b) < gcm.NonceSize() {
 		return "", errors.New("sealed value malformed")
 	}
