@@ -15,7 +15,10 @@ func init() {
 	register(command{name: "export observations", summary: "write a ward's care observations as CSV in the layout the import reads", run: runExportObservations})
 	// The same runner as "observations import", under the verb-first name
 	// that matches "export observations".
-	register(command{name: "import observations", summary: "import a ward's care observations from a CSV file (same as observations import)", run: runObservationsImport})
+	register(command{name: "import observations", summary: "import a ward's care observations from a CSV file (same as observations import)",
+		run: func(ctx context.Context, e *env, args []string) int {
+			return observationsImport(ctx, e, args, "import observations")
+		}})
 }
 
 const exportObservationsSummary = `Write a ward's care observations as CSV (RFC 4180) in the layout the observation import

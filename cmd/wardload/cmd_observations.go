@@ -19,7 +19,12 @@ func init() {
 // one batch, as the web import does, but with no size or time limit: it is
 // the way in for files over the web import's limit.
 func runObservationsImport(ctx context.Context, e *env, args []string) int {
-	fs := newFlagSet(e, "observations import", "FILE",
+	return observationsImport(ctx, e, args, "observations import")
+}
+
+// observationsImport is the import command under its name (it has two).
+func observationsImport(ctx context.Context, e *env, args []string, name string) int {
+	fs := newFlagSet(e, name, "FILE",
 		"Import care observations for a ward from FILE (- for standard input), in the web import's\n"+
 			"format: columns date, shift, tier, window_hours, care_minutes and the ward's factors. The\n"+
 			"file is stored as one batch, or not at all if any line is wrong; the message names the line.")
@@ -29,14 +34,14 @@ func runObservationsImport(ctx context.Context, e *env, args []string) int {
 		return c
 	}
 	if fs.NArg() != 1 || *code == "" {
-		fmt.Fprintln(e.stderr, "wardload observations import: needs --ward CODE and one FILE (- for standard input)")
+		fmt.Fprintf(e.stderr, "wardload %s: needs --ward CODE and one FILE (- for standard input)\n", name)
 		return exitUsage
 	}
 	in := e.stdin
 	if name := fs.Arg(0); name != "-" {
 		f, err := os.Open(name)
 		if err != nil {
-			fmt.Fprintf(e.stderr, "wardload observations import: %v\n", err)
+			fmt.Fprintf(e.stderr, "wardload %s: %v\n", name, err)
 			return exitUsage
 		}
 		defer f.Close()
@@ -44,13 +49,13 @@ func runObservationsImport(ctx context.Context, e *env, args []string) int {
 	}
 	st, err := openExistingStore(ctx, so)
 	if err != nil {
-		fmt.Fprintf(e.stderr, "wardload observations import: %v\n", err)
+		fmt.Fprintf(e.stderr, "wardload %s: %v\n", name, err)
 		return exitFailure
 	}
 	defer st.Close()
 	n, batch, err := importObservations(wardload.WithActor(ctx, wardload.Actor{Name: "cli"}), st, *code, in, time.Now())
 	if err != nil {
-		return reportError(e, "observations import", err)
+		return reportError(e, name, err)
 	}
 	fmt.Fprintf(e.stdout, "imported %d observations for ward %s (batch %s)\n", n, *code, batch)
 	return exitOK

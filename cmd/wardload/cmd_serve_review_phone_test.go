@@ -17,7 +17,7 @@ import (
 // weekly table, and the log switch of the histograms works by its link.
 func TestPhoneReview(t *testing.T) {
 	ctx := newBrowser(t)
-	s := MustServe(t, "--demo", "--addr", "127.0.0.1:0")
+	s := MustServe(t, "--demo", "--addr", "127.0.0.1:0", "--data-dir", t.TempDir())
 	m := regexp.MustCompile(`demo\.manager\s+manager\s+(\S+)`).FindStringSubmatch(s.stdout.String())
 	if m == nil {
 		t.Fatalf("no demo.manager password in:\n%s", s.stdout)
