@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"time"
 
 	"wardload/internal/wardload"
@@ -121,7 +122,7 @@ func (s *seeder) shiftObservations(d wardload.Date, day, si int, loc *time.Locat
 				window = shortWindowHours
 			}
 			z := s.rng.NormFloat64()
-			median := tier.dayMedian * shift.careScale * window / shift.hours
+			median := tier.dayMedian * weekFactor(ti, day) * shift.careScale * window / shift.hours
 			minutes := math.Max(5, math.Round(median*math.Exp(tier.sigma*z)))
 			if s.rng.Float64() < 0.3 {
 				// Heaping: sheets filled in at the end of a shift round to 5.
@@ -151,4 +152,16 @@ func (s *seeder) observation(d wardload.Date, ti, si int, window, minutes, score
 		Factors:     map[string]float64{dependencyFactor: score},
 		EnteredBy:   by,
 	}
+}
+
+// weekFactor is tier ti's multiplier of its median in the week holding
+// day (days from the first): a random week effect of log-sd weekSD and
+// the tier's drift, centred on the middle of the demo's weeks. It draws
+// from its own generator, seeded by tier and week, so the observations'
+// other random draws stay as they were.
+func weekFactor(ti, day int) float64 {
+	week := day / 7
+	r := rand.New(rand.NewPCG(seedA^uint64(week+1), seedB+uint64(ti)))
+	drift := tierSpecs[ti].weeklyDrift * (float64(week) - float64(Weeks-1)/2)
+	return math.Exp(weekSD*r.NormFloat64() + drift)
 }

@@ -15,11 +15,17 @@ const beds = 28
 // time so that correlation has something to find.
 const dependencyFactor = "dependency_score"
 
+// The tiers' labels and descriptions say how much care time a patient
+// takes, not a patient's dependency in numbered levels, so that the demo
+// is not mistaken for any classification instrument.
 type tierSpec struct {
 	code, label, description string
 	// dayMedian is the median direct-care minutes per patient over a full
 	// Day shift; care minutes are log-normal around it with log-sd sigma.
 	dayMedian, sigma float64
+	// weeklyDrift moves the tier's median by this share a week (on the log
+	// scale), so that the weekly trend has something to show.
+	weeklyDrift float64
 	scoreBase        float64 // mean dependency score
 	share            float64 // share of the ward's patients in this tier
 	dayObs, nightObs [2]int  // observations per shift, uniform in [lo, hi]
@@ -27,26 +33,26 @@ type tierSpec struct {
 
 var tierSpecs = []tierSpec{
 	{
-		code: "t1", label: "T1 Self-caring",
-		description: "Mostly independent: routine observations, oral medicines, prompts with meals.",
+		code: "t1", label: "Brief care",
+		description: "About an hour of direct care in a day shift, seldom over two: routine checks, medicines by mouth.",
 		dayMedian:   60, sigma: 0.45, scoreBase: 4, share: 0.30,
 		dayObs: [2]int{2, 4}, nightObs: [2]int{1, 2},
 	},
 	{
-		code: "t2", label: "T2 Assisted",
-		description: "Help with some personal care and walking; four-hourly observations.",
+		code: "t2", label: "Regular care",
+		description: "About two hours of direct care in a day shift: some help with washing and walking, checks every few hours.",
 		dayMedian:   120, sigma: 0.45, scoreBase: 8, share: 0.35,
 		dayObs: [2]int{2, 4}, nightObs: [2]int{1, 2},
 	},
 	{
-		code: "t3", label: "T3 Dependent",
-		description: "Help with most personal care and repositioning; frequent observations or infusions.",
-		dayMedian:   210, sigma: 0.5, scoreBase: 12, share: 0.25,
+		code: "t3", label: "Extended care",
+		description: "Three to four hours of direct care in a day shift: most personal care, turning, frequent checks or infusions.",
+		dayMedian:   210, sigma: 0.5, scoreBase: 12, share: 0.25, weeklyDrift: 0.012,
 		dayObs: [2]int{1, 3}, nightObs: [2]int{1, 2},
 	},
 	{
-		code: "t4", label: "T4 Enhanced",
-		description: "Close observation or periods of one-to-one care; unstable, or at high risk of harm.",
+		code: "t4", label: "Constant care",
+		description: "Six hours or more of direct care in a day shift, often with a nurse close by for long stretches.",
 		dayMedian:   360, sigma: 0.55, scoreBase: 16, share: 0.10,
 		dayObs: [2]int{1, 2}, nightObs: [2]int{0, 1},
 	},
@@ -75,3 +81,8 @@ const (
 	shortWindowHours = 4
 	shortWindowShare = 0.15
 )
+
+// weekSD is the spread of a tier's weekly median about its level (log
+// scale): real wards have busier and quieter weeks, so weekly medians
+// should not sit on one line.
+const weekSD = 0.08
