@@ -139,17 +139,12 @@ type Server struct {
 	ln      net.Listener
 	http    *http.Server
 
-	sessions *scs.SessionManager
-	// Failed sign-ins are throttled per account from the third failure
-	// and per address only from the twentieth, because a whole hospital
-	// may reach wardload through one address.
-	acctThrottle *throttle
-	addrThrottle *throttle
-	sealKey      []byte // seals one-time token secrets kept in the session
-	dummyOnce    sync.Once
-	dummy        string
-	// signin bounds password hashing and holds device cookies and the
-	// summarised audit of failed sign-ins (signin.go).
+	sessions  *scs.SessionManager
+	sealKey   []byte // seals one-time token secrets kept in the session
+	dummyOnce sync.Once
+	dummy     string
+	// signin throttles sign-ins, bounds password hashing and holds device
+	// cookies and the summarised audit of failed sign-ins (signin.go).
 	signin *signInGuard
 
 	// projector turns a posted census into a stored projection.
@@ -213,13 +208,11 @@ func New(cfg Config) (*Server, error) {
 	}
 	s := &Server{cfg: cfg, log: cfg.Logger, store: cfg.Store, now: cfg.Now, assets: a,
 		stylesheetURL: a.URL("wardload.css"), iconURL: a.URL("favicon.svg"),
-		sessions:     newSessions(cfg),
-		acctThrottle: newThrottle(3, 15*time.Minute),
-		addrThrottle: newThrottle(20, 15*time.Minute),
-		signin:       newSignInGuard(cfg),
-		sealKey:      newSealKey(),
-		projections:  newProjectionCache(projectionCacheSize),
-		faults:       newFaultLog(cfg.Logger, cfg.FaultLogInterval),
+		sessions:    newSessions(cfg),
+		signin:      newSignInGuard(cfg),
+		sealKey:     newSealKey(),
+		projections: newProjectionCache(projectionCacheSize),
+		faults:      newFaultLog(cfg.Logger, cfg.FaultLogInterval),
 	}
 	s.projector = &projector.Service{Store: cfg.Store, Now: cfg.Now, Draws: cfg.Draws}
 	s.sessions.ErrorFunc = s.sessionError
