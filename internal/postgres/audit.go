@@ -117,6 +117,9 @@ func (s *Store) PurgeSecurityAudit(ctx context.Context, before time.Time, export
 	if err := rows.Err(); err != nil {
 		return 0, formatError(err)
 	}
+	if err := export(nil); err != nil {
+		return 0, err
+	}
 	tag, err := tx.Exec(ctx, `DELETE FROM audit_log`+cond, args...)
 	if err != nil {
 		return 0, formatError(err)

@@ -19,6 +19,7 @@ import (
 
 	"wardload/internal/password"
 	"wardload/internal/projector"
+	"wardload/internal/retention"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -99,6 +100,18 @@ type Config struct {
 	// ReadyHold is how long /readyz stays not ready after a write failed
 	// for lack of space, for a store that cannot check writes itself.
 	ReadyHold time.Duration
+
+	// SecurityRetention is how long security events (sign-ins, failure
+	// summaries, sign-outs, refused tokens) stay in the audit log; older
+	// ones are written to a new file in AuditExportDir and then purged,
+	// every MaintainInterval while serving. 0 keeps them forever, as does
+	// an empty AuditExportDir (with a warning). The audit of data changes
+	// is never purged.
+	SecurityRetention time.Duration
+	AuditExportDir    string
+	// MaintainInterval is how often the server purges expired security
+	// events and forgotten sign-in throttle counts.
+	MaintainInterval time.Duration
 }
 
 // DefaultConfig returns a Config with the limits and timeouts filled in.
@@ -124,6 +137,8 @@ func DefaultConfig() Config {
 		HashQueue:         8,
 		HashWait:          2 * time.Second,
 		Password:          password.DefaultParams(),
+		SecurityRetention: retention.DefaultPeriod,
+		MaintainInterval:  time.Hour,
 	}
 }
 
@@ -143,6 +158,8 @@ type Server struct {
 	sealKey   []byte // seals one-time token secrets kept in the session
 	dummyOnce sync.Once
 	dummy     string
+	// maintainWarn says once that retention lacks an export directory.
+	maintainWarn sync.Once
 	// signin throttles sign-ins, bounds password hashing and holds device
 	// cookies and the summarised audit of failed sign-ins (signin.go).
 	signin *signInGuard
@@ -191,6 +208,7 @@ func New(cfg Config) (*Server, error) {
 		{&cfg.SessionIdle, &def.SessionIdle},
 		{&cfg.SessionLifetime, &def.SessionLifetime},
 		{&cfg.HashWait, &def.HashWait},
+		{&cfg.MaintainInterval, &def.MaintainInterval},
 	} {
 		if *f.v <= 0 {
 			*f.v = *f.d
@@ -273,6 +291,8 @@ func (s *Server) Serve(ctx context.Context) error {
 	}
 	errc := make(chan error, 1)
 	go func() { errc <- s.http.Serve(s.ln) }()
+	stopMaintain := s.startMaintain(ctx)
+	defer stopMaintain()
 	select {
 	case err := <-errc:
 		return fmt.Errorf("server stopped: %w", err)

@@ -279,6 +279,10 @@ func (s *Server) handleSignOut(w http.ResponseWriter, r *http.Request) error {
 	if err := s.sessions.Destroy(r.Context()); err != nil {
 		return fmt.Errorf("sign-out: %w", err)
 	}
+	if u := principalFrom(r.Context()).User; u != nil {
+		s.auditEvent(r, wardload.Actor{UserID: u.ID, Name: u.Name}, wardload.ActionSignOut, "user", u.ID, 0,
+			map[string]string{"address": s.clientAddr(r)})
+	}
 	return seeOther(w, r, "/signin")
 }
 

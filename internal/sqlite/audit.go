@@ -119,6 +119,9 @@ func (s *Store) PurgeSecurityAudit(ctx context.Context, before time.Time, export
 		if err := rows.Err(); err != nil {
 			return err
 		}
+		if err := export(nil); err != nil {
+			return err
+		}
 		res, err := tx.ExecContext(ctx, `DELETE FROM audit_log WHERE `+cond, args...)
 		if err != nil {
 			return err

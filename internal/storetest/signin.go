@@ -176,12 +176,29 @@ func signInCases() []testCase {
 				t.Fatal("rows deleted although the export failed")
 			}
 			f.clock.Advance(time.Minute)
+			// So does an export that fails to finish.
+			if _, err := f.store.PurgeSecurityAudit(f.ctx, startTime.Add(-365*24*time.Hour), func(e *wardload.AuditEntry) error {
+				if e == nil {
+					return boom
+				}
+				return nil
+			}); !errors.Is(err, boom) || f.totalAudit() != total {
+				t.Fatalf("unfinished export: err %v, %d rows of %d", err, f.totalAudit(), total)
+			}
 			var exported []int64
+			finished := false
 			n, err := f.store.PurgeSecurityAudit(f.ctx, startTime.Add(-365*24*time.Hour), func(e *wardload.AuditEntry) error {
-				exported = append(exported, e.ID)
+				if e == nil {
+					finished = true
+				} else {
+					exported = append(exported, e.ID)
+				}
 				return nil
 			})
 			noErr(t, err)
+			if !finished {
+				t.Fatal("export not told to finish")
+			}
 			if n != len(oldSecurity) || !slices.Equal(exported, oldSecurity) {
 				t.Fatalf("purged %d, exported %v; want %d, %v (oldest first)", n, exported, len(oldSecurity), oldSecurity)
 			}

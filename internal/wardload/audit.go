@@ -98,8 +98,9 @@ type AuditService interface {
 	FindAudit(ctx context.Context, f AuditFilter) ([]*AuditEntry, int, error)
 	// PurgeSecurityAudit deletes the entries older than before whose action
 	// is one of SecurityActions, and only those: the audit of data changes
-	// stays complete. Each entry is passed to export, oldest first, before
-	// anything is deleted; if export fails, nothing is. The purge is
+	// stays complete. Each entry is passed to export, oldest first, and
+	// then nil, for export to finish (flush, sync) before anything is
+	// deleted; if any call fails, nothing is. The purge is
 	// audited (ActionAuditPurge, by the actor in ctx, with the count and
 	// the cut-off). It returns how many entries it deleted.
 	PurgeSecurityAudit(ctx context.Context, before time.Time, export func(*AuditEntry) error) (int, error)
