@@ -9,13 +9,14 @@ import (
 	"wardload/internal/wardload"
 )
 
-// FindSignInAttempts returns key's count, or a zero one. It reads through
-// the writer, not the read pool, so that a swap that follows compares
-// with the newest count rather than a snapshot a reader still holds.
+// FindSignInAttempts returns key's count, or a zero one. It reads on the
+// read pool, so that a flood of throttled attempts does not queue behind
+// (or hold up) the single writer; a count read just before another
+// instance's write only makes the following swap fail and be retried.
 func (s *Store) FindSignInAttempts(ctx context.Context, key string) (wardload.SignInAttempts, error) {
 	c := wardload.SignInAttempts{Key: key}
 	var last string
-	err := s.w.QueryRowContext(ctx, `SELECT attempts, last_at FROM signin_attempts WHERE key = ?`, key).Scan(&c.Attempts, &last)
+	err := s.reader(ctx).QueryRowContext(ctx, `SELECT attempts, last_at FROM signin_attempts WHERE key = ?`, key).Scan(&c.Attempts, &last)
 	if errors.Is(err, sql.ErrNoRows) {
 		return c, nil
 	}
