@@ -125,12 +125,14 @@ func (s *Store) PurgeSecurityAudit(ctx context.Context, before time.Time, export
 		return 0, formatError(err)
 	}
 	n := int(tag.RowsAffected())
-	e, err := wardload.NewAuditPurge(ctx, s.stamp(), before, n)
-	if err != nil {
-		return 0, err
-	}
-	if err := insertAudit(ctx, tx, e); err != nil {
-		return 0, formatError(err)
+	if n > 0 {
+		e, err := wardload.NewAuditPurge(ctx, s.stamp(), before, n)
+		if err != nil {
+			return 0, err
+		}
+		if err := insertAudit(ctx, tx, e); err != nil {
+			return 0, formatError(err)
+		}
 	}
 	if err := tx.Commit(ctx); err != nil {
 		return 0, formatError(err)

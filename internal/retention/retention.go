@@ -82,8 +82,10 @@ func CreateExport(path string) (*os.File, error) {
 
 // PurgeToDir is Purge with the export in a new file in dir (created 0700
 // if missing), named after the cut-off and the time of the purge. The
-// file stays, empty, when there was nothing to purge, so each run leaves
-// a trace. It returns the file's path and the number deleted.
+// file is removed again when nothing was purged (or the purge failed, so
+// nothing was deleted): an hourly run leaves a file only when it deleted
+// something. It returns the file's path ("" when removed) and the number
+// deleted.
 func PurgeToDir(ctx context.Context, st wardload.AuditService, before, now time.Time, dir string) (string, int, error) {
 	if err := os.MkdirAll(dir, 0o700); err != nil {
 		return "", 0, err
@@ -96,9 +98,14 @@ func PurgeToDir(ctx context.Context, st wardload.AuditService, before, now time.
 	}
 	n, err := Purge(ctx, st, before, f)
 	if cerr := f.Close(); err == nil && cerr != nil {
-		err = cerr
+		// The rows are gone; the export must stay, whatever it holds.
+		return path, n, cerr
 	}
-	return path, n, err
+	if err != nil || n == 0 {
+		os.Remove(path)
+		return "", n, err
+	}
+	return path, n, nil
 }
 
 // ParsePeriod reads a retention period: a number of days ("365d"), or a

@@ -100,6 +100,16 @@ func TestPurgeToDirExportsThenDeletes(t *testing.T) {
 	if _, _, err := PurgeToDir(ctx, st, now.Add(-DefaultPeriod), now, dir); !errors.Is(err, os.ErrExist) {
 		t.Errorf("second export over the first: %v", err)
 	}
+	// Nothing left: no file, no audit row.
+	if path, n, err := PurgeToDir(ctx, st, now.Add(-DefaultPeriod), now.Add(time.Second), dir); path != "" || n != 0 || err != nil {
+		t.Errorf("empty purge = %q %d %v", path, n, err)
+	}
+	if files, _ := os.ReadDir(dir); len(files) != 1 {
+		t.Errorf("%d export files, want the first only", len(files))
+	}
+	if _, n, _ := st.FindAudit(ctx, wardload.AuditFilter{Action: new(wardload.ActionAuditPurge)}); n != 1 {
+		t.Errorf("%d purge rows, want 1", n)
+	}
 	// A writer that fails: nothing deleted.
 	if err := st.AppendAudit(ctx, &wardload.AuditEntry{At: old, Actor: "x", Action: wardload.ActionSignOut, Entity: "user"}); err != nil {
 		t.Fatal(err)

@@ -59,5 +59,7 @@ func (s *Server) maintain(ctx context.Context) {
 		s.log.Error("purge security events", "before", before, "err", err)
 		return
 	}
-	s.log.Info("purged security events", "before", before, "rows", n, "export", path)
+	if n > 0 {
+		s.log.Info("purged security events", "before", before, "rows", n, "export", path)
+	}
 }

@@ -126,7 +126,7 @@ func (s *Store) PurgeSecurityAudit(ctx context.Context, before time.Time, export
 		if err != nil {
 			return err
 		}
-		if n, err = res.RowsAffected(); err != nil {
+		if n, err = res.RowsAffected(); err != nil || n == 0 {
 			return err
 		}
 		e, err := wardload.NewAuditPurge(ctx, tx.now, before, int(n))
