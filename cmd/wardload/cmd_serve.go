@@ -7,6 +7,7 @@ import (
 	"io"
 	"log/slog"
 	"net"
+	"path/filepath"
 	"strconv"
 	"text/tabwriter"
 	"time"
@@ -15,6 +16,7 @@ import (
 
 	"wardload/internal/demo"
 	"wardload/internal/postgres"
+	"wardload/internal/retention"
 	"wardload/internal/server"
 	"wardload/internal/sqlite"
 )
@@ -47,6 +49,11 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	logLevel := fs.String("log-level", "info", "lowest level logged: debug, info, warn or error (env WARDLOAD_LOG_LEVEL)")
 	drain := fs.Duration("drain-timeout", server.DefaultConfig().DrainTimeout,
 		"on shutdown, how long imports in flight may finish while new ones are refused (env WARDLOAD_DRAIN_TIMEOUT)")
+	keep := periodFlag(retention.DefaultPeriod)
+	fs.Var(&keep, "security-retention",
+		"how long security events (sign-ins, failures, sign-outs) stay in the audit log: days (365d), a duration, or 0 for ever (env WARDLOAD_SECURITY_RETENTION)")
+	exportDir := fs.String("audit-export-dir", "",
+		"directory for the exports of purged security events; empty: audit-exports in --data-dir (env WARDLOAD_AUDIT_EXPORT_DIR)")
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
@@ -97,6 +104,11 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	cfg.Now = e.clock
 	cfg.TrustForwardedFor = *trustXFF
 	cfg.DrainTimeout = *drain
+	cfg.SecurityRetention = time.Duration(keep)
+	cfg.AuditExportDir = *exportDir
+	if cfg.AuditExportDir == "" {
+		cfg.AuditExportDir = filepath.Join(so.DataDir, "audit-exports")
+	}
 	cfg.Password = e.password
 	sessions := sessionStore(st)
 	defer sessions.StopCleanup()
@@ -120,6 +132,18 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	}
 	log.Info("stopped")
 	return exitOK
+}
+
+// periodFlag is a retention period flag: days ("365d"), a Go duration or
+// "0" (retention.ParsePeriod).
+type periodFlag time.Duration
+
+func (p *periodFlag) String() string { return retention.FormatPeriod(time.Duration(*p)) }
+
+func (p *periodFlag) Set(s string) error {
+	d, err := retention.ParsePeriod(s)
+	*p = periodFlag(d)
+	return err
 }
 
 // newLogger returns the server's logger: text (logfmt) or JSON lines, from

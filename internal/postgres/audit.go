@@ -84,3 +84,58 @@ func (s *Store) FindAudit(ctx context.Context, f wardload.AuditFilter) ([]*wardl
 	}
 	return out, n, nil
 }
+
+// PurgeSecurityAudit exports and then deletes the security events older
+// than before. It runs in one REPEATABLE READ transaction, so the DELETE
+// sees the snapshot the export read: what is exported is exactly what is
+// deleted. The action list comes from the domain.
+func (s *Store) PurgeSecurityAudit(ctx context.Context, before time.Time, export func(*wardload.AuditEntry) error) (int, error) {
+	tx, err := s.pool.BeginTx(ctx, pgx.TxOptions{IsoLevel: pgx.RepeatableRead})
+	if err != nil {
+		return 0, err
+	}
+	defer tx.Rollback(ctx)
+	const cond = ` WHERE action = ANY($1) AND at < $2`
+	args := []any{wardload.SecurityActions(), before.UTC()}
+	rows, err := tx.Query(ctx, `SELECT id, at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json
+		FROM audit_log`+cond+` ORDER BY at, id`, args...)
+	if err != nil {
+		return 0, formatError(err)
+	}
+	for rows.Next() {
+		var e wardload.AuditEntry
+		if err := rows.Scan(&e.ID, &e.At, &e.UserID, &e.Actor, &e.Action, &e.Entity, &e.EntityID, &e.WardID, &e.Before, &e.After); err != nil {
+			rows.Close()
+			return 0, formatError(err)
+		}
+		e.At = e.At.UTC()
+		if err := export(&e); err != nil {
+			rows.Close()
+			return 0, err
+		}
+	}
+	if err := rows.Err(); err != nil {
+		return 0, formatError(err)
+	}
+	if err := export(nil); err != nil {
+		return 0, err
+	}
+	tag, err := tx.Exec(ctx, `DELETE FROM audit_log`+cond, args...)
+	if err != nil {
+		return 0, formatError(err)
+	}
+	n := int(tag.RowsAffected())
+	if n > 0 {
+		e, err := wardload.NewAuditPurge(ctx, s.stamp(), before, n)
+		if err != nil {
+			return 0, err
+		}
+		if err := insertAudit(ctx, tx, e); err != nil {
+			return 0, formatError(err)
+		}
+	}
+	if err := tx.Commit(ctx); err != nil {
+		return 0, formatError(err)
+	}
+	return n, nil
+}

@@ -29,8 +29,8 @@ import (
 // Unix time of issue and HMAC-SHA256(key, nonce, issued, account name)
 // truncated to 16 bytes, all base64url. The account name is inside the
 // MAC, not the cookie, so an entry names nobody and proves nothing for any
-// other account. The key exists only in this process's memory: after a
-// restart every browser is unknown again until its next sign-in.
+// other account. The key is the installation's (keyed), shared by every
+// instance on the database.
 type deviceCookies struct {
 	key        []byte
 	name       string
@@ -51,6 +51,15 @@ func newDeviceCookies(secure bool) *deviceCookies {
 		d.name = "__Secure-wardload_device"
 	}
 	return d
+}
+
+// keyed returns d with the MAC key key: the installation's key from the
+// store (signin.Keys), so that a cookie one instance issued is valid on
+// every instance on the database and after a restart.
+func (d *deviceCookies) keyed(key []byte) *deviceCookies {
+	c := *d
+	c.key = key
+	return &c
 }
 
 func (d *deviceCookies) mac(nonce, issued, account string) string {

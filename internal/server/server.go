@@ -19,6 +19,7 @@ import (
 
 	"wardload/internal/password"
 	"wardload/internal/projector"
+	"wardload/internal/retention"
 	"wardload/internal/session"
 	"wardload/internal/wardload"
 	"wardload/web"
@@ -101,6 +102,18 @@ type Config struct {
 	// ReadyHold is how long /readyz stays not ready after a write failed
 	// for lack of space, for a store that cannot check writes itself.
 	ReadyHold time.Duration
+
+	// SecurityRetention is how long security events (sign-ins, failure
+	// summaries, sign-outs, refused tokens) stay in the audit log; older
+	// ones are written to a new file in AuditExportDir and then purged,
+	// every MaintainInterval while serving. 0 keeps them forever, as does
+	// an empty AuditExportDir (with a warning). The audit of data changes
+	// is never purged.
+	SecurityRetention time.Duration
+	AuditExportDir    string
+	// MaintainInterval is how often the server purges expired security
+	// events and forgotten sign-in throttle counts.
+	MaintainInterval time.Duration
 }
 
 // DefaultConfig returns a Config with the limits and timeouts filled in.
@@ -126,6 +139,8 @@ func DefaultConfig() Config {
 		HashQueue:         8,
 		HashWait:          2 * time.Second,
 		Password:          password.DefaultParams(),
+		SecurityRetention: retention.DefaultPeriod,
+		MaintainInterval:  time.Hour,
 	}
 }
 
@@ -141,17 +156,14 @@ type Server struct {
 	ln      net.Listener
 	http    *http.Server
 
-	sessions *scs.SessionManager
-	// Failed sign-ins are throttled per account from the third failure
-	// and per address only from the twentieth, because a whole hospital
-	// may reach wardload through one address.
-	acctThrottle *throttle
-	addrThrottle *throttle
-	sealer       *session.Sealer // seals one-time token secrets kept in the session
-	dummyOnce    sync.Once
-	dummy        string
-	// signin bounds password hashing and holds device cookies and the
-	// summarised audit of failed sign-ins (signin.go).
+	sessions  *scs.SessionManager
+	sealer    *session.Sealer // seals one-time token secrets kept in the session
+	dummyOnce sync.Once
+	dummy     string
+	// maintainWarn says once that retention lacks an export directory.
+	maintainWarn sync.Once
+	// signin throttles sign-ins, bounds password hashing and holds device
+	// cookies and the summarised audit of failed sign-ins (signin.go).
 	signin *signInGuard
 
 	// projector turns a posted census into a stored projection.
@@ -198,6 +210,7 @@ func New(cfg Config) (*Server, error) {
 		{&cfg.SessionIdle, &def.SessionIdle},
 		{&cfg.SessionLifetime, &def.SessionLifetime},
 		{&cfg.HashWait, &def.HashWait},
+		{&cfg.MaintainInterval, &def.MaintainInterval},
 	} {
 		if *f.v <= 0 {
 			*f.v = *f.d
@@ -215,13 +228,11 @@ func New(cfg Config) (*Server, error) {
 	}
 	s := &Server{cfg: cfg, log: cfg.Logger, store: cfg.Store, now: cfg.Now, assets: a,
 		stylesheetURL: a.URL("wardload.css"), iconURL: a.URL("favicon.svg"),
-		sessions:     newSessions(cfg),
-		acctThrottle: newThrottle(3, 15*time.Minute),
-		addrThrottle: newThrottle(20, 15*time.Minute),
-		signin:       newSignInGuard(cfg),
-		sealer:       session.NewSealer(),
-		projections:  newProjectionCache(projectionCacheSize),
-		faults:       newFaultLog(cfg.Logger, cfg.FaultLogInterval),
+		sessions:    newSessions(cfg),
+		signin:      newSignInGuard(cfg),
+		sealer:      session.NewSealer(),
+		projections: newProjectionCache(projectionCacheSize),
+		faults:      newFaultLog(cfg.Logger, cfg.FaultLogInterval),
 	}
 	s.projector = &projector.Service{Store: cfg.Store, Now: cfg.Now, Draws: cfg.Draws}
 	s.sessions.ErrorFunc = s.sessionError
@@ -282,6 +293,8 @@ func (s *Server) Serve(ctx context.Context) error {
 	}
 	errc := make(chan error, 1)
 	go func() { errc <- s.http.Serve(s.ln) }()
+	stopMaintain := s.startMaintain(ctx)
+	defer stopMaintain()
 	select {
 	case err := <-errc:
 		return fmt.Errorf("server stopped: %w", err)

@@ -37,6 +37,9 @@ func (f *fakeStore) FindWards(ctx context.Context, fl wardload.WardFilter) ([]*w
 
 func (f *fakeStore) Ping(ctx context.Context) error { return f.PingFn(ctx) }
 
+// PurgeSignInAttempts has nothing to purge: Serve's maintenance calls it.
+func (f *fakeStore) PurgeSignInAttempts(context.Context, time.Time, int) (int, error) { return 0, nil }
+
 // fakeAdmin is the one user of newFakeStore, with ID 1.
 var fakeAdmin = wardload.User{ID: 1, Name: "a.admin", Role: wardload.RoleAdmin, PasswordHash: "x"}
 

@@ -2,10 +2,6 @@ package server
 
 import (
 	"context"
-	"crypto/hmac"
-	"crypto/rand"
-	"crypto/sha256"
-	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"net"
@@ -15,6 +11,7 @@ import (
 	"time"
 
 	"wardload/internal/password"
+	"wardload/internal/signin"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -29,54 +26,45 @@ func (s *Server) handleSignInForm(w http.ResponseWriter, r *http.Request) error 
 	return s.render(w, r, http.StatusOK, web.SignInPage(s.layout(r, "Sign in"), vm))
 }
 
-// throttleKey is one key of one throttle.
-type throttleKey struct {
-	t   *throttle
-	key string
-}
-
-// signInGuard holds what protects sign-in from anonymous clients besides
-// the account and address throttles (Server.acctThrottle, addrThrottle):
-// the bound on concurrent password hashes, device cookies with their own
-// throttle, and the summarised audit of failures.
+// signInGuard holds what protects sign-in from anonymous clients: the
+// throttles of accounts, addresses and known devices (counted in the
+// database, so every instance counts together), the bound on concurrent
+// password hashes, device cookies, and the summarised audit of failures.
 type signInGuard struct {
+	acct, addr, device signin.Throttle
 	// anon bounds the hashes of sign-ins from unknown devices; known those
 	// with a valid device cookie, so a flood of anonymous sign-ins cannot
 	// keep staff on their own browsers waiting.
-	anon, known *hashGate
+	anon, known *signin.HashGate
 	retryAfter  time.Duration // told to a sign-in refused as busy
 	devices     *deviceCookies
-	// deviceThrottle counts attempts per device cookie: from the fifth
-	// failure on a known device, it waits like an account does.
-	deviceThrottle *throttle
-	failures       *failTally
-	// nameKey keys the fingerprints of typed names, which are never
-	// stored; it exists only in this process's memory.
-	nameKey []byte
+	// keys are the installation's device cookie key and the key of the
+	// digests that stand in for typed names, which are never stored.
+	keys     *signin.Keys
+	failures *signin.FailTally
 	// verify checks a password against a stored hash; tests count calls.
 	verify func(pw, encoded string) (bool, error)
 }
 
 func newSignInGuard(cfg Config) *signInGuard {
-	g := &signInGuard{
-		anon:           newHashGate(cfg.HashConcurrency, cfg.HashQueue, cfg.HashWait),
-		known:          newHashGate(1, 2, cfg.HashWait),
-		retryAfter:     max(time.Second, cfg.HashWait),
-		devices:        newDeviceCookies(cfg.SecureCookies),
-		deviceThrottle: newThrottle(5, 15*time.Minute),
-		failures:       newFailTally(),
-		nameKey:        make([]byte, 32),
-		verify:         password.Verify,
+	return &signInGuard{
+		acct:       signin.Throttle{Rule: signin.AccountRule, Store: cfg.Store},
+		addr:       signin.Throttle{Rule: signin.AddressRule, Store: cfg.Store},
+		device:     signin.Throttle{Rule: signin.DeviceRule, Store: cfg.Store},
+		anon:       signin.NewHashGate(cfg.HashConcurrency, cfg.HashQueue, cfg.HashWait),
+		known:      signin.NewHashGate(1, 2, cfg.HashWait),
+		retryAfter: max(time.Second, cfg.HashWait),
+		devices:    newDeviceCookies(cfg.SecureCookies),
+		keys:       &signin.Keys{Store: cfg.Store},
+		failures:   signin.NewFailTally(),
+		verify:     password.Verify,
 	}
-	rand.Read(g.nameKey) // never fails (crypto/rand panics instead)
-	return g
 }
 
-// fingerprint is a keyed, non-reversible digest of a typed name, in hex.
-func (g *signInGuard) fingerprint(name string) string {
-	m := hmac.New(sha256.New, g.nameKey)
-	m.Write([]byte(name))
-	return hex.EncodeToString(m.Sum(nil))
+// throttleKey is one key of one throttle.
+type throttleKey struct {
+	t   signin.Throttle
+	key string
 }
 
 // handleSignIn checks a name and password. In order:
@@ -91,7 +79,7 @@ func (g *signInGuard) fingerprint(name string) string {
 //     within a short wait; otherwise 503 with Retry-After, nothing hashed
 //     and nothing counted against the user.
 //
-// Failures and refusals write no audit row each: failTally summarises them
+// Failures and refusals write no audit row each: FailTally summarises them
 // per source and window. The password is never stored or logged.
 func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 	if err := r.ParseForm(); err != nil {
@@ -107,36 +95,55 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 	if name == "" || pw == "" {
 		return fail(http.StatusBadRequest, "Enter your name and your password.")
 	}
-	g := s.signin
+	g, ctx := s.signin, r.Context()
 	now, addr := s.now(), s.clientAddr(r)
 	u, err := s.findSignInUser(r, name)
 	if err != nil {
 		return err
 	}
-	att := failAttempt{Source: addr}
+	digest, err := g.keys.NameDigest(ctx, name)
+	if err != nil {
+		return fmt.Errorf("sign-in: keys: %w", err)
+	}
+	devKey, err := g.keys.Device(ctx)
+	if err != nil {
+		return fmt.Errorf("sign-in: keys: %w", err)
+	}
+	devices := g.devices.keyed(devKey)
+	att := signin.Attempt{Source: addr}
 	if u != nil {
 		att.Account, att.AccountID = u.Name, u.ID
 	} else {
-		att.NameFP = g.fingerprint(name)[:8]
+		att.NameFP = digest[:8]
 	}
-	device, known := g.devices.find(r, name, now)
+	device, known := devices.find(r, name, now)
 	att.KnownDevice = known
 
 	// The keys this attempt counts against: the device alone when it is
-	// known, else the account and the address.
-	acctKey, addrKey, devKey := "acct:"+g.fingerprint(name), "addr:"+addr, "dev:"+device
-	keys := []throttleKey{{s.acctThrottle, acctKey}, {s.addrThrottle, addrKey}}
+	// known, else the account and the address. The account is keyed by
+	// the digest of the name, whether or not an account has it, so the
+	// table never holds a typed name and does not tell which names exist.
+	keys := []throttleKey{{g.acct, "acct:" + digest}, {g.addr, "addr:" + addr}}
 	if known {
-		keys = []throttleKey{{g.deviceThrottle, devKey}}
+		keys = []throttleKey{{g.device, "dev:" + device}}
 	}
+	// Give-backs and clears must happen even if the client has gone.
+	bg := context.WithoutCancel(ctx)
 	var held []throttleKey
 	giveBack := func() {
 		for _, k := range held {
-			k.t.cancel(k.key)
+			if err := k.t.Cancel(bg, k.key); err != nil {
+				s.log.Error("sign-in throttle", "request_id", RequestID(ctx), "err", err)
+			}
 		}
 	}
 	for _, k := range keys {
-		if d := k.t.reserve(k.key, now); d > 0 {
+		d, err := k.t.Reserve(ctx, k.key, now)
+		if err != nil {
+			giveBack()
+			return fmt.Errorf("sign-in: throttle: %w", err)
+		}
+		if d > 0 {
 			giveBack()
 			s.recordFailure(r, att, "throttled", now)
 			w.Header().Set("Retry-After", strconv.Itoa(max(1, int(d.Round(time.Second)/time.Second))))
@@ -150,7 +157,7 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 	if known {
 		gate = g.known
 	}
-	if !gate.enter(r.Context()) {
+	if !gate.Enter(ctx) {
 		giveBack()
 		s.recordFailure(r, att, "busy", now)
 		w.Header().Set("Retry-After", strconv.Itoa(int(g.retryAfter.Round(time.Second)/time.Second)))
@@ -158,7 +165,7 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 			"Sign-in is busy just now. Your password was not checked; please try again in a few seconds.")
 	}
 	reason := func() string {
-		defer gate.leave()
+		defer gate.Leave()
 		return s.checkPassword(r, u, pw)
 	}()
 	if reason != "" {
@@ -166,26 +173,28 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 		return fail(http.StatusUnauthorized, signInFailed)
 	}
 
-	if known {
-		g.deviceThrottle.succeed(devKey)
-	} else {
-		s.acctThrottle.succeed(acctKey)
-		s.addrThrottle.cancel(addrKey) // a success is not a failure of the address
+	// A success clears the account (or the device) and is not a failure
+	// of the address: every key reserved was held, the first is cleared
+	// and the rest given back.
+	if err := held[0].t.Clear(bg, held[0].key); err != nil {
+		s.log.Error("sign-in throttle", "request_id", RequestID(ctx), "err", err)
 	}
+	held = held[1:]
+	giveBack()
+
 	// A new session ID at sign-in, so an ID planted before sign-in
 	// (session fixation) is worthless afterwards.
-	ctx := r.Context()
 	if err := s.sessions.RenewToken(ctx); err != nil {
 		return fmt.Errorf("sign-in: renew session: %w", err)
 	}
 	s.sessions.Put(ctx, sessUserID, u.ID)
 	s.sessions.Put(ctx, sessAuthAt, now.Unix())
 	s.sessions.Put(ctx, sessSeenAt, now.Unix())
-	if err := s.appendAudit(r, wardload.Actor{UserID: u.ID, Name: u.Name}, "signin.ok", "user", u.ID, 0,
+	if err := s.appendAudit(r, wardload.Actor{UserID: u.ID, Name: u.Name}, wardload.ActionSignInOK, "user", u.ID, 0,
 		map[string]string{"address": addr}); err != nil {
 		return err
 	}
-	g.devices.issue(w, r, name, now)
+	devices.issue(w, r, name, now)
 	return seeOther(w, r, vm.Next)
 }
 
@@ -230,15 +239,15 @@ func (s *Server) checkPassword(r *http.Request, u *wardload.User, pw string) str
 // recordFailure counts a failed or refused sign-in and writes whatever
 // summary rows are due. A row that cannot be written is logged; the
 // refusal stands.
-func (s *Server) recordFailure(r *http.Request, a failAttempt, reason string, now time.Time) {
+func (s *Server) recordFailure(r *http.Request, a signin.Attempt, reason string, now time.Time) {
 	a.Reason = reason
-	s.writeFailureRows(context.WithoutCancel(r.Context()), s.signin.failures.record(a, now))
+	s.writeFailureRows(context.WithoutCancel(r.Context()), s.signin.failures.Record(a, now))
 }
 
 // FlushSignInAudit writes the summarised sign-in failures not yet in the
 // audit log. Serve calls it at shutdown.
 func (s *Server) FlushSignInAudit(ctx context.Context) {
-	s.writeFailureRows(ctx, s.signin.failures.flush(s.now()))
+	s.writeFailureRows(ctx, s.signin.failures.Flush(s.now()))
 }
 
 func (s *Server) writeFailureRows(ctx context.Context, rows []*wardload.AuditEntry) {
@@ -269,6 +278,10 @@ func (s *Server) dummyHash() string {
 func (s *Server) handleSignOut(w http.ResponseWriter, r *http.Request) error {
 	if err := s.sessions.Destroy(r.Context()); err != nil {
 		return fmt.Errorf("sign-out: %w", err)
+	}
+	if u := principalFrom(r.Context()).User; u != nil {
+		s.auditEvent(r, wardload.Actor{UserID: u.ID, Name: u.Name}, wardload.ActionSignOut, "user", u.ID, 0,
+			map[string]string{"address": s.clientAddr(r)})
 	}
 	return seeOther(w, r, "/signin")
 }

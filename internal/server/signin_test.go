@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"wardload/internal/password"
+	"wardload/internal/signin"
 	"wardload/internal/wardload"
 )
 
@@ -106,7 +107,7 @@ func TestSignInFailuresAreOneMessage(t *testing.T) {
 	var msgs []string
 	for i, tc := range []struct{ name, pw, reason, actor string }{
 		{"m.manager", "wrong password 1", "password", "m.manager"},
-		{"nobody.here", "whatever pw 12", "unknown_name", unknownName},
+		{"nobody.here", "whatever pw 12", "unknown_name", signin.UnknownName},
 		{"d.disabled", "disabled pw 123", "disabled", "d.disabled"},
 	} {
 		// Each from its own address: the first failure of a source is
@@ -138,7 +139,7 @@ func TestSignInFailuresAreOneMessage(t *testing.T) {
 	req := signInForm("<script>"+strings.Repeat("x", 200), "pw", "/")
 	req.RemoteAddr = "198.51.100.9:4000"
 	f.do(t, req)
-	if es := f.audit(t, "signin.fail"); es[0].Actor != unknownName || strings.Contains(es[0].After, "script") {
+	if es := f.audit(t, "signin.fail"); es[0].Actor != signin.UnknownName || strings.Contains(es[0].After, "script") {
 		t.Errorf("stored %q %s", es[0].Actor, es[0].After)
 	}
 }
@@ -194,28 +195,6 @@ func TestSignInThrottle(t *testing.T) {
 	// Success clears the account's count.
 	if res, _ := f.do(t, signInForm("n.nurse", "wrong password x", "/")); res.StatusCode != 401 {
 		t.Errorf("after success, first failure = %d, want 401 (not throttled)", res.StatusCode)
-	}
-}
-
-func TestThrottleGrowth(t *testing.T) {
-	th := newThrottle(3, 15*time.Minute)
-	now := time.Date(2026, 3, 2, 9, 0, 0, 0, time.UTC)
-	for i, want := range []time.Duration{0, 0, 1, 2, 4, 8, 16, 32, 64, 128, 256, 512, 900, 900} {
-		th.fail("k", now)
-		if got := th.wait("k", now); got != want*time.Second {
-			t.Errorf("after failure %d: wait %v, want %v", i+1, got, want*time.Second)
-		}
-	}
-	th.fail("big", now)
-	for range 100 {
-		th.fail("big", now) // no overflow past the cap
-	}
-	if got := th.wait("big", now); got != 15*time.Minute {
-		t.Errorf("after 101 failures: %v", got)
-	}
-	// Forgotten after a day without failures.
-	if got := th.wait("k", now.Add(25*time.Hour)); got != 0 {
-		t.Errorf("after a day: %v", got)
 	}
 }
 
@@ -324,7 +303,7 @@ func (f *fixture) deviceCookie(res *http.Response) *http.Cookie {
 func TestSignInBurstChecksAtMostTheLimit(t *testing.T) {
 	f := newFixture(t)
 	const burst = 30
-	f.s.signin.anon = newHashGate(burst, 0, time.Hour) // the throttle alone must cut it
+	f.s.signin.anon = signin.NewHashGate(burst, 0, time.Hour) // the throttle alone must cut it
 	hashing, release := make(chan struct{}, burst), make(chan struct{})
 	checked := countChecks(f, func() { hashing <- struct{}{}; <-release })
 	codes := make(chan int, burst)
@@ -363,8 +342,8 @@ func sum(m map[int]int) int {
 func TestSignInBusyRefusesWithoutHashing(t *testing.T) {
 	f := newFixture(t)
 	checked := countChecks(f, nil)
-	f.s.signin.anon = newHashGate(1, 0, time.Hour)
-	if !f.s.signin.anon.enter(context.Background()) { // another sign-in is hashing
+	f.s.signin.anon = signin.NewHashGate(1, 0, time.Hour)
+	if !f.s.signin.anon.Enter(context.Background()) { // another sign-in is hashing
 		t.Fatal("could not take the only slot")
 	}
 	right := f.passwords["n.nurse"]
@@ -388,7 +367,7 @@ func TestSignInBusyRefusesWithoutHashing(t *testing.T) {
 	}
 	// Refusals were not failures: once a slot is free, the right
 	// password signs in (neither account nor address throttled).
-	f.s.signin.anon.leave()
+	f.s.signin.anon.Leave()
 	if res, _ := f.do(t, signInForm("n.nurse", right, "/")); res.StatusCode != 303 || checked.Load() != 1 {
 		t.Errorf("after the load = %d with %d checks, want 303 and 1", res.StatusCode, checked.Load())
 	}
@@ -424,7 +403,7 @@ func TestKnownDeviceSignsInDuringAttack(t *testing.T) {
 	if res, _ := f.do(t, signInForm("n.nurse", right, "/")); res.StatusCode != http.StatusTooManyRequests {
 		t.Fatalf("unknown browser during the attack = %d, want 429", res.StatusCode)
 	}
-	if w := f.s.addrThrottle.wait("addr:192.0.2.1", f.clock.Now()); w == 0 {
+	if w, err := f.s.signin.addr.Wait(context.Background(), "addr:192.0.2.1", f.clock.Now()); w == 0 || err != nil {
 		t.Fatal("the address is not throttled; the test does not show what it should")
 	}
 
@@ -512,14 +491,14 @@ func TestThrottledFloodAddsBoundedAuditRows(t *testing.T) {
 	}
 	// After the window, a sweep (run by the next sign-in attempt, from
 	// anywhere) writes the rest as one row.
-	f.clock.Add(failWindow)
+	f.clock.Add(signin.FailWindow)
 	req := signInForm("m.manager", "guess", "/")
 	req.RemoteAddr = "198.51.100.20:4000"
 	f.do(t, req)
 	es := f.audit(t, "signin.fail")
 	total := 0
 	for _, e := range es {
-		var row failRow
+		var row signin.FailRow
 		if err := json.Unmarshal([]byte(e.After), &row); err != nil {
 			t.Fatal(err)
 		}
@@ -539,7 +518,7 @@ func TestUnknownNameNeverStored(t *testing.T) {
 	const typed = "Tr0ub4dor&3 horse"
 	f.do(t, signInForm(typed, "pw", "/"))
 	f.do(t, signInForm(typed, "pw", "/"))
-	f.clock.Add(failWindow)
+	f.clock.Add(signin.FailWindow)
 	f.do(t, signInForm(typed, "pw", "/"))
 	es, _, err := f.st.FindAudit(context.Background(), wardload.AuditFilter{})
 	if err != nil {
@@ -554,12 +533,12 @@ func TestUnknownNameNeverStored(t *testing.T) {
 		}
 		if e.Action == "signin.fail" {
 			fails++
-			var row failRow
+			var row signin.FailRow
 			if err := json.Unmarshal([]byte(e.After), &row); err != nil {
 				t.Fatal(err)
 			}
-			if e.Actor != unknownName || len(row.NameFP) != 8 || row.UnknownNames != row.Count {
-				t.Errorf("row %q %+v, want %q and an 8-character fingerprint", e.Actor, row, unknownName)
+			if e.Actor != signin.UnknownName || len(row.NameFP) != 8 || row.UnknownNames != row.Count {
+				t.Errorf("row %q %+v, want %q and an 8-character fingerprint", e.Actor, row, signin.UnknownName)
 			}
 		}
 	}

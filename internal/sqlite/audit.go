@@ -3,6 +3,7 @@ package sqlite
 import (
 	"context"
 	"strings"
+	"time"
 
 	"wardload/internal/wardload"
 )
@@ -81,4 +82,61 @@ func (s *Store) FindAudit(ctx context.Context, f wardload.AuditFilter) ([]*wardl
 		es = append(es, &e)
 	}
 	return es, total, rows.Err()
+}
+
+// PurgeSecurityAudit exports and then deletes the security events older
+// than before, in one write transaction, so that what is exported is
+// exactly what is deleted; the action list comes from the domain.
+func (s *Store) PurgeSecurityAudit(ctx context.Context, before time.Time, export func(*wardload.AuditEntry) error) (int, error) {
+	actions := wardload.SecurityActions()
+	cond := `action IN (` + strings.TrimSuffix(strings.Repeat("?,", len(actions)), ",") + `) AND at < ?`
+	args := []any{}
+	for _, a := range actions {
+		args = append(args, a)
+	}
+	args = append(args, formatTime(before))
+	var n int64
+	err := s.write(ctx, func(tx *Tx) error {
+		rows, err := tx.QueryContext(ctx, `SELECT id, at, user_id, actor, action, entity, entity_id, ward_id, before_json, after_json
+			FROM audit_log WHERE `+cond+` ORDER BY at, id`, args...)
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var e wardload.AuditEntry
+			var at string
+			if err := rows.Scan(&e.ID, &at, &e.UserID, &e.Actor, &e.Action, &e.Entity, &e.EntityID, &e.WardID, &e.Before, &e.After); err != nil {
+				return err
+			}
+			if e.At, err = parseTime(at); err != nil {
+				return err
+			}
+			if err := export(&e); err != nil {
+				return err
+			}
+		}
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		if err := export(nil); err != nil {
+			return err
+		}
+		res, err := tx.ExecContext(ctx, `DELETE FROM audit_log WHERE `+cond, args...)
+		if err != nil {
+			return err
+		}
+		if n, err = res.RowsAffected(); err != nil || n == 0 {
+			return err
+		}
+		e, err := wardload.NewAuditPurge(ctx, tx.now, before, int(n))
+		if err != nil {
+			return err
+		}
+		return insertAudit(ctx, tx, e)
+	})
+	if err != nil {
+		return 0, err
+	}
+	return int(n), nil
 }

@@ -2,6 +2,7 @@ package wardload
 
 import (
 	"context"
+	"encoding/json"
 	"time"
 )
 
@@ -41,6 +42,42 @@ const (
 	ActionSettingsSave       = "settings.save"
 )
 
+// Audit actions of security events, which the server writes itself.
+const (
+	ActionSignInOK   = "signin.ok"   // a sign-in that succeeded
+	ActionSignInFail = "signin.fail" // a summary of failed or refused sign-ins
+	ActionSignOut    = "signout"
+	ActionAPIRefused = "api.refused" // a revoked API token was used
+	// ActionAuditPurge records a purge of security events; it is not one
+	// itself, so the record of a purge is never purged.
+	ActionAuditPurge = "audit.purge"
+)
+
+// SecurityActions are the actions a retention rule may purge
+// (PurgeSecurityAudit): who signed in and out and what was refused. Every
+// other action records a change of data and is kept for good.
+func SecurityActions() []string {
+	return []string{ActionSignInOK, ActionSignInFail, ActionSignOut, ActionAPIRefused}
+}
+
+// AuditPurge is the After of an ActionAuditPurge entry.
+type AuditPurge struct {
+	Before  time.Time `json:"before"`
+	Deleted int       `json:"deleted"`
+	Actions []string  `json:"actions"`
+}
+
+// NewAuditPurge returns the entry that records a purge of deleted security
+// events older than before, made at at by the actor in ctx.
+func NewAuditPurge(ctx context.Context, at, before time.Time, deleted int) (*AuditEntry, error) {
+	b, err := json.Marshal(AuditPurge{Before: before.UTC(), Deleted: deleted, Actions: SecurityActions()})
+	if err != nil {
+		return nil, err
+	}
+	a := ActorFrom(ctx)
+	return &AuditEntry{At: at, UserID: a.UserID, Actor: a.Name, Action: ActionAuditPurge, Entity: "audit", After: string(b)}, nil
+}
+
 // AuditFilter selects audit entries. Zero fields do not filter.
 type AuditFilter struct {
 	WardIDs  []int64 // any of these wards
@@ -59,6 +96,15 @@ type AuditService interface {
 	AppendAudit(ctx context.Context, e *AuditEntry) error
 	// FindAudit returns matches newest first and the total count.
 	FindAudit(ctx context.Context, f AuditFilter) ([]*AuditEntry, int, error)
+	// PurgeSecurityAudit deletes the entries older than before whose action
+	// is one of SecurityActions, and only those: the audit of data changes
+	// stays complete. Each entry is passed to export, oldest first, and
+	// then nil, for export to finish (flush, sync) before anything is
+	// deleted; if any call fails, nothing is. A purge that deletes
+	// anything is audited (ActionAuditPurge, by the actor in ctx, with the
+	// count and the cut-off); one that finds nothing changes nothing, so
+	// hourly runs do not grow the log. It returns how many it deleted.
+	PurgeSecurityAudit(ctx context.Context, before time.Time, export func(*AuditEntry) error) (int, error)
 }
 
 // Actor is who is making a change, carried in the context so that every

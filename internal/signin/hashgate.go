@@ -1,4 +1,4 @@
-package server
+package signin
 
 import (
 	"context"
@@ -6,7 +6,7 @@ import (
 	"time"
 )
 
-// hashGate bounds how many password hashes run at once. Each argon2id
+// HashGate bounds how many password hashes run at once. Each argon2id
 // check of a stored hash takes its memory parameter (64 MiB by default)
 // for as long as it runs, so without a bound a few hundred parallel
 // sign-ins, which cost an attacker nothing, take gigabytes.
@@ -16,23 +16,23 @@ import (
 // at once, without hashing, and the caller answers 503 with Retry-After.
 // Memory for hashing is therefore at most slots × the hash's memory, and
 // a flood costs the server only the refusals.
-type hashGate struct {
+type HashGate struct {
 	slots    chan struct{} // a token in the channel is a hash running
 	maxQueue int64
 	maxWait  time.Duration
 	queued   atomic.Int64
 }
 
-// newHashGate returns a gate for slots hashes at once and at most queue
+// NewHashGate returns a gate for slots hashes at once and at most queue
 // more waiting, each for at most maxWait.
-func newHashGate(slots, queue int, maxWait time.Duration) *hashGate {
-	return &hashGate{slots: make(chan struct{}, max(1, slots)), maxQueue: int64(max(0, queue)), maxWait: maxWait}
+func NewHashGate(slots, queue int, maxWait time.Duration) *HashGate {
+	return &HashGate{slots: make(chan struct{}, max(1, slots)), maxQueue: int64(max(0, queue)), maxWait: maxWait}
 }
 
-// enter takes a slot, waiting in the queue if there is room. It reports
+// Enter takes a slot, waiting in the queue if there is room. It reports
 // false, having taken nothing, when the queue is full, the wait runs out
-// or ctx ends first. After true the caller must call leave.
-func (g *hashGate) enter(ctx context.Context) bool {
+// or ctx ends first. After true the caller must call Leave.
+func (g *HashGate) Enter(ctx context.Context) bool {
 	select {
 	case g.slots <- struct{}{}:
 		return true
@@ -55,5 +55,5 @@ func (g *hashGate) enter(ctx context.Context) bool {
 	}
 }
 
-// leave frees the slot taken by enter.
-func (g *hashGate) leave() { <-g.slots }
+// Leave frees the slot taken by Enter.
+func (g *HashGate) Leave() { <-g.slots }

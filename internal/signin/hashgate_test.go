@@ -1,4 +1,4 @@
-package server
+package signin
 
 import (
 	"context"
@@ -8,28 +8,28 @@ import (
 
 func TestHashGate(t *testing.T) {
 	ctx := context.Background()
-	g := newHashGate(2, 1, 1<<62) // waits "forever": only a free slot or ctx ends a wait
+	g := NewHashGate(2, 1, 1<<62) // waits "forever": only a free slot or ctx ends a wait
 	// Two separate calls: each takes a slot.
-	if first, second := g.enter(ctx), g.enter(ctx); !first || !second {
+	if first, second := g.Enter(ctx), g.Enter(ctx); !first || !second {
 		t.Fatal("two slots, two entries refused")
 	}
 	// Both slots taken. A waiter whose request ends gives up.
 	gone, cancel := context.WithCancel(ctx)
 	cancel()
-	if g.enter(gone) {
+	if g.Enter(gone) {
 		t.Error("entered with an ended context while full")
 	}
 	// One may wait; while it does, the queue is full and the next is
 	// refused at once.
 	got := make(chan bool)
-	go func() { got <- g.enter(ctx) }()
+	go func() { got <- g.Enter(ctx) }()
 	for g.queued.Load() != 1 {
 		runtime.Gosched()
 	}
-	if g.enter(ctx) {
+	if g.Enter(ctx) {
 		t.Error("entered past a full queue")
 	}
-	g.leave()
+	g.Leave()
 	if !<-got {
 		t.Error("the waiter did not get the freed slot")
 	}
@@ -37,14 +37,14 @@ func TestHashGate(t *testing.T) {
 		t.Errorf("queued %d, slots taken %d; want 0 and 2", g.queued.Load(), len(g.slots))
 	}
 	// A wait that runs out is refused.
-	short := newHashGate(1, 1, 0)
-	short.enter(ctx)
-	if short.enter(ctx) {
+	short := NewHashGate(1, 1, 0)
+	short.Enter(ctx)
+	if short.Enter(ctx) {
 		t.Error("entered a full gate with no time to wait")
 	}
 	// Zero or negative sizes still leave one slot and no queue.
-	z := newHashGate(0, -1, 0)
-	if !z.enter(ctx) || z.enter(ctx) {
+	z := NewHashGate(0, -1, 0)
+	if !z.Enter(ctx) || z.Enter(ctx) {
 		t.Error("a zero-sized gate should hold exactly one")
 	}
 }

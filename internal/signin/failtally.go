@@ -1,4 +1,4 @@
-package server
+package signin
 
 import (
 	"encoding/json"
@@ -10,7 +10,7 @@ import (
 	"wardload/internal/wardload"
 )
 
-// failTally summarises failed and refused sign-ins for the audit log, so
+// FailTally summarises failed and refused sign-ins for the audit log, so
 // that anonymous clients cannot flood it: each source (client address)
 // gets at most one "signin.fail" row per window, carrying how many
 // attempts it covers and why they failed.
@@ -20,15 +20,15 @@ import (
 // source's window. Further attempts in the window are only counted in
 // memory; the first attempt after the window writes them all, itself
 // included, as the next row and opens the next window. A periodic sweep,
-// run from record at most once a minute, writes the count of a source that
-// has gone quiet once its window is over, and drop finished sources; flush
+// run from Record at most once a minute, writes the count of a source that
+// has gone quiet once its window is over, and drop finished sources; Flush
 // writes every pending count, at shutdown.
 //
 // At most maxSources sources are tracked apart; attempts from further
 // sources while the table is full share one entry (address "(many
 // sources)"), so a flood from many addresses also adds a bounded number of
 // rows per window. Counts not yet written are lost if the process dies.
-type failTally struct {
+type FailTally struct {
 	window     time.Duration
 	maxSources int
 
@@ -37,24 +37,24 @@ type failTally struct {
 	lastSweep time.Time
 }
 
-// failWindow is the audit window per source; failSources the number of
+// FailWindow is the audit window per source; failSources the number of
 // sources summarised apart. Both common practice, no source.
 const (
-	failWindow  = 10 * time.Minute
+	FailWindow  = 10 * time.Minute
 	failSources = 1000
 	// manySources stands for the sources beyond failSources.
 	manySources = "(many sources)"
-	// unknownName is the actor of a row whose attempts all named no
+	// UnknownName is the actor of a row whose attempts all named no
 	// account: what was typed may be a password, so it is never stored.
-	unknownName = "(unknown name)"
-	// severalNames is the actor of a row covering several names.
-	severalNames = "(several names)"
+	UnknownName = "(unknown name)"
+	// SeveralNames is the actor of a row covering several names.
+	SeveralNames = "(several names)"
 	// maxAccountsListed bounds the account names one row lists.
 	maxAccountsListed = 8
 )
 
-// failAttempt is one failed or refused sign-in.
-type failAttempt struct {
+// Attempt is one failed or refused sign-in.
+type Attempt struct {
 	Source      string // the client address it is counted against
 	Account     string // the account's name; "" when the name is unknown
 	AccountID   int64
@@ -78,8 +78,8 @@ type failSource struct {
 	manyFPs     bool
 }
 
-// failRow is the JSON of a summary row (the entry's After).
-type failRow struct {
+// FailRow is the JSON of a summary row (the entry's After).
+type FailRow struct {
 	Address      string         `json:"address"`
 	Count        int            `json:"count"`
 	First        time.Time      `json:"first"`
@@ -93,13 +93,14 @@ type failRow struct {
 	Window       string         `json:"window"`
 }
 
-func newFailTally() *failTally {
-	return &failTally{window: failWindow, maxSources: failSources, sources: map[string]*failSource{}}
+// NewFailTally returns a tally with the windows and bounds above.
+func NewFailTally() *FailTally {
+	return &FailTally{window: FailWindow, maxSources: failSources, sources: map[string]*failSource{}}
 }
 
-// record counts a at now. It returns the rows now due: a's source's when
+// Record counts a at now. It returns the rows now due: a's source's when
 // its window is over (or it had none), and any a sweep finds.
-func (t *failTally) record(a failAttempt, now time.Time) []*wardload.AuditEntry {
+func (t *FailTally) Record(a Attempt, now time.Time) []*wardload.AuditEntry {
 	t.mu.Lock()
 	defer t.mu.Unlock()
 	key := a.Source
@@ -124,9 +125,9 @@ func (t *failTally) record(a failAttempt, now time.Time) []*wardload.AuditEntry 
 	return rows
 }
 
-// flush returns a row for every source with attempts not yet written,
+// Flush returns a row for every source with attempts not yet written,
 // windows or not, and forgets every source.
-func (t *failTally) flush(now time.Time) []*wardload.AuditEntry {
+func (t *FailTally) Flush(now time.Time) []*wardload.AuditEntry {
 	t.mu.Lock()
 	defer t.mu.Unlock()
 	rows := t.sweepLocked(now, true)
@@ -136,7 +137,7 @@ func (t *failTally) flush(now time.Time) []*wardload.AuditEntry {
 
 // sweepLocked writes the rows of sources whose window is over (all: every
 // source) and drops finished sources with nothing pending. mu is held.
-func (t *failTally) sweepLocked(now time.Time, all bool) []*wardload.AuditEntry {
+func (t *FailTally) sweepLocked(now time.Time, all bool) []*wardload.AuditEntry {
 	var rows []*wardload.AuditEntry
 	for _, key := range slices.Sorted(maps.Keys(t.sources)) {
 		s := t.sources[key]
@@ -151,7 +152,7 @@ func (t *failTally) sweepLocked(now time.Time, all bool) []*wardload.AuditEntry 
 	return rows
 }
 
-func (s *failSource) add(a failAttempt, now time.Time) {
+func (s *failSource) add(a Attempt, now time.Time) {
 	if s.n == 0 {
 		s.first = now
 		s.reasons = map[string]int{}
@@ -185,21 +186,21 @@ func (s *failSource) add(a failAttempt, now time.Time) {
 }
 
 // take builds key's row from s, empties s and opens its next window.
-func (t *failTally) take(key string, s *failSource, now time.Time) *wardload.AuditEntry {
-	row := failRow{Address: key, Count: s.n, First: s.first.UTC(), Last: s.last.UTC(), Reasons: s.reasons,
+func (t *FailTally) take(key string, s *failSource, now time.Time) *wardload.AuditEntry {
+	row := FailRow{Address: key, Count: s.n, First: s.first.UTC(), Last: s.last.UTC(), Reasons: s.reasons,
 		Accounts: s.accounts, MoreAccounts: s.moreAccts, UnknownNames: s.unknown,
 		KnownDevice: s.knownDevice, Window: t.window.String()}
 	if s.unknown > 0 && !s.manyFPs {
 		row.NameFP = s.nameFP
 	}
-	e := &wardload.AuditEntry{At: now, Action: "signin.fail", Entity: "user"}
+	e := &wardload.AuditEntry{At: now, Action: wardload.ActionSignInFail, Entity: "user"}
 	switch {
 	case len(s.accounts) == 1 && s.unknown == 0 && !s.moreAccts:
 		e.Actor, e.EntityID = s.accounts[0], s.accountID
 	case len(s.accounts) == 0:
-		e.Actor = unknownName
+		e.Actor = UnknownName
 	default:
-		e.Actor = severalNames
+		e.Actor = SeveralNames
 	}
 	b, err := json.Marshal(row)
 	if err != nil { // a struct of strings, ints and times: cannot happen
