@@ -186,7 +186,7 @@ func Layout(p LayoutVM) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 20, " <p class=\"account\"><a href=\"/account/password\" data-testid=\"account-password\">Change password</a></p><form class=\"signout\" method=\"post\" action=\"/signout\" data-testid=\"signout\"><button type=\"submit\">Sign out</button></form>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 20, " <p class=\"account\"><a href=\"/account/password\" data-testid=\"account-password\" title=\"Change your password\">Password</a></p><form class=\"signout\" method=\"post\" action=\"/signout\" data-testid=\"signout\"><button type=\"submit\">Sign out</button></form>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}

@@ -212,7 +212,7 @@ func TestAdminResetRefusals(t *testing.T) {
 		msg  string
 	}{
 		{"disabled", off.ID, url.Values{"role": {"charge_nurse"}, "disabled": {"1"}, "password": {good}}, "is disabled"},
-		{"own password", f.users[pAdmin].ID, url.Values{"role": {"admin"}, "password": {good}}, "Change password page"},
+		{"own password", f.users[pAdmin].ID, url.Values{"role": {"admin"}, "password": {good}}, "Password link"},
 		{"1,000 characters", f.users[pNurseA].ID, url.Values{"role": {"charge_nurse"}, "password": {strings.Repeat("Zq8!", 250)}}, "at most 256"},
 		{"the user name", f.users[pNurseA].ID, url.Values{"role": {"charge_nurse"}, "password": {"n.nurse.n.nurse.n.nurse"}}, "user name"},
 		{"same as the current one", f.users[pNurseA].ID, url.Values{"role": {"charge_nurse"}, "password": {f.passwords["n.nurse"]}}, "must differ"},

@@ -141,7 +141,7 @@ func (s *Server) handleUserUpdate(w http.ResponseWriter, r *http.Request) error 
 		// their own at next sign-in, and their sessions end. Admins change
 		// their own on the account page, which asks for the current one.
 		if target.ID == me.ID {
-			return rowError(wardload.Errorf(wardload.EINVALID, "Change your own password on the Change password page; it asks for your current one."))
+			return rowError(wardload.Errorf(wardload.EINVALID, "Change your own password with the Password link beside your name; it asks for your current one."))
 		}
 		h, err := s.cfg.Password.HashNew(pw, target.Name, target.PasswordHash)
 		if wardload.ErrorCode(err) == wardload.EINVALID {
