@@ -31,7 +31,7 @@ func (s *seeder) createUsers(ctx context.Context) error {
 	}
 	s.users = map[string]*wardload.User{}
 	for _, spec := range specs {
-		pw := rand.Text() // 26 base32 characters, about 130 bits
+		pw := rand.Text()                            // 26 base32 characters, about 130 bits
 		hash, err := s.pw.HashNew(pw, spec.name, "") // the rule of every new password
 		if err != nil {
 			return fmt.Errorf("hash password of %s: %w", spec.name, err)
