@@ -233,3 +233,15 @@ func TestAdminResetRefusals(t *testing.T) {
 		}
 	}
 }
+
+// TestShortLegacyPasswordSignsIn: the rule applies to new passwords only;
+// an account whose password predates it (here 11 characters) still signs
+// in, and is not made to change it.
+func TestShortLegacyPasswordSignsIn(t *testing.T) {
+	f := newFixture(t)
+	f.MustUser(t, "", "l.legacy", wardload.RoleChargeNurse, "short pw 10", f.wardA.ID)
+	res, _ := f.do(t, signInForm("l.legacy", "short pw 10", "/wards/w-a/census"))
+	if res.StatusCode != http.StatusSeeOther || res.Header.Get("Location") != "/wards/w-a/census" {
+		t.Fatalf("sign-in with a pre-rule password = %d %q", res.StatusCode, res.Header.Get("Location"))
+	}
+}
