@@ -97,3 +97,14 @@ func RoleLabel(role string) string {
 	}
 	return role
 }
+
+// PasswordVM is the page where signed-in users choose a new password.
+// The passwords typed are never shown again.
+type PasswordVM struct {
+	UserName  string
+	MinLength int    // characters, per NIST SP 800-63B-4
+	MaxLength int    // characters
+	Required  bool   // an administrator's reset: no other page until changed
+	Notice    string // e.g. after a refused page while Required
+	Errors    map[string]string
+}

@@ -130,7 +130,7 @@ func UsersPage(l LayoutVM, p UsersVM) templ.Component {
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
-				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 11, "\">New password (leave empty to keep)</label> <input id=\"")
+				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 11, "\">Temporary password (leave empty to keep; they must choose their own at next sign-in)</label> <input id=\"")
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
@@ -237,7 +237,7 @@ func UsersPage(l LayoutVM, p UsersVM) templ.Component {
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 22, "<label for=\"new-password\">Initial password (at least 10 characters; tell the person in private)</label> <input id=\"new-password\" name=\"password\" type=\"password\" required autocomplete=\"new-password\" maxlength=\"1024\"> <button type=\"submit\">Create user</button></form>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 22, "<label for=\"new-password\">Initial password (at least 15 characters, not a common one; tell the person in private)</label> <input id=\"new-password\" name=\"password\" type=\"password\" required autocomplete=\"new-password\" maxlength=\"1024\"> <button type=\"submit\">Create user</button></form>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}

@@ -157,7 +157,7 @@ func getWith(tb testing.TB, c *http.Client, u string) (int, string) {
 
 func TestServeEndToEnd(t *testing.T) {
 	dir := t.TempDir()
-	if code, _, errs := runCLI(t, dir, "first admin pw\n", "user", "add", "--role", "admin", "ada.admin"); code != exitOK {
+	if code, _, errs := runCLI(t, dir, "first admin passphrase\n", "user", "add", "--role", "admin", "ada.admin"); code != exitOK {
 		t.Fatalf("user add: %d %s", code, errs)
 	}
 	s := MustServe(t, "--addr", "127.0.0.1:0", "--data-dir", dir)
@@ -177,7 +177,7 @@ func TestServeEndToEnd(t *testing.T) {
 	if _, body := get(t, s.URL+"/audit"); !strings.Contains(body, `data-testid="signin-form"`) {
 		t.Errorf("signed-out audit page did not end at the sign-in form:\n%s", body)
 	}
-	c := signIn(t, s.URL, "ada.admin", "first admin pw")
+	c := signIn(t, s.URL, "ada.admin", "first admin passphrase")
 	_, home := getWith(t, c, s.URL+"/")
 	if !strings.Contains(home, "No wards have been set up yet") || !strings.Contains(home, "Signed in as ada.admin") {
 		t.Errorf("home page of an empty database lacks the empty state or the user:\n%s", home)
@@ -334,7 +334,7 @@ func TestServeAndStoreFlagsFromEnvironment(t *testing.T) {
 // TestServePostgres runs serve against a fresh database on the test server.
 func TestServePostgres(t *testing.T) {
 	dbURL := mustCreateDatabase(t)
-	if code, _, errs := runCLI(t, t.TempDir(), "first admin pw\n", "user", "add", "--role", "admin", "--db", dbURL, "ada.admin"); code != exitOK {
+	if code, _, errs := runCLI(t, t.TempDir(), "first admin passphrase\n", "user", "add", "--role", "admin", "--db", dbURL, "ada.admin"); code != exitOK {
 		t.Fatalf("user add: %d %s", code, errs)
 	}
 	s := MustServe(t, "--addr", "127.0.0.1:0", "--db", dbURL, "--data-dir", t.TempDir())
@@ -344,7 +344,7 @@ func TestServePostgres(t *testing.T) {
 		}
 	}
 	// The session lives in PostgreSQL (pgxstore).
-	if _, home := getWith(t, signIn(t, s.URL, "ada.admin", "first admin pw"), s.URL+"/"); !strings.Contains(home, "Signed in as ada.admin") {
+	if _, home := getWith(t, signIn(t, s.URL, "ada.admin", "first admin passphrase"), s.URL+"/"); !strings.Contains(home, "Signed in as ada.admin") {
 		t.Errorf("home after sign-in on PostgreSQL:\n%s", home)
 	}
 	if code := s.Stop(t); code != exitOK {

@@ -48,7 +48,7 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 	if err != nil {
 		return reportError(e, "user add", err)
 	}
-	if err := password.ValidatePassword(pw); err != nil {
+	if _, err := password.Check(pw, u.Name); err != nil {
 		return reportError(e, "user add", err)
 	}
 
@@ -62,7 +62,7 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 	if u.WardIDs, err = wardIDs(ctx, st, *wards); err != nil {
 		return reportError(e, "user add", err)
 	}
-	if u.PasswordHash, err = e.password.Hash(pw); err != nil {
+	if u.PasswordHash, err = e.password.HashNew(pw, u.Name, ""); err != nil {
 		return reportError(e, "user add", err)
 	}
 	ctx = wardload.WithActor(ctx, wardload.Actor{Name: "cli"})
@@ -101,7 +101,7 @@ func wardIDs(ctx context.Context, st wardload.WardService, codes string) ([]int6
 // takes the first line of stdin.
 func readPassword(e *env, name string) (string, error) {
 	if f, ok := e.stdin.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
-		fmt.Fprintf(e.stderr, "Password for %s (at least %d characters): ", name, password.MinLength)
+		fmt.Fprintf(e.stderr, "Password for %s (%d to %d characters; a few unrelated words make a good one): ", name, password.MinLength, password.MaxLength)
 		pw, err := term.ReadPassword(int(f.Fd()))
 		fmt.Fprintln(e.stderr)
 		if err != nil {

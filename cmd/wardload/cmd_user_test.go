@@ -48,7 +48,7 @@ func openTestStore(t *testing.T, dir string) *openedStore {
 
 func TestUserAdd(t *testing.T) {
 	dir := t.TempDir()
-	code, out, errs := runCLI(t, dir, "first admin pw\n", "user", "add", "--role", "admin", "ada.admin")
+	code, out, errs := runCLI(t, dir, "first admin passphrase\n", "user", "add", "--role", "admin", "ada.admin")
 	if code != exitOK || out != "created user ada.admin (admin)\n" {
 		t.Fatalf("user add = %d, %q, %q; want 0 and the created line", code, out, errs)
 	}
@@ -61,10 +61,10 @@ func TestUserAdd(t *testing.T) {
 	if u.Role != wardload.RoleAdmin {
 		t.Errorf("role = %q; want admin", u.Role)
 	}
-	if ok, err := password.Verify("first admin pw", u.PasswordHash); err != nil || !ok {
+	if ok, err := password.Verify("first admin passphrase", u.PasswordHash); err != nil || !ok {
 		t.Errorf("stored hash does not verify the piped password: %v, %v", ok, err)
 	}
-	if strings.Contains(u.PasswordHash, "first admin pw") {
+	if strings.Contains(u.PasswordHash, "first admin passphrase") {
 		t.Error("the password is stored in clear")
 	}
 }
@@ -79,7 +79,7 @@ func TestUserAddWithWard(t *testing.T) {
 	}
 	st.Close()
 
-	code, out, errs := runCLI(t, dir, "a long password\r\nsecond line ignored\n", "user", "add", "--role", "manager", "--ward", "w2", "m.ward")
+	code, out, errs := runCLI(t, dir, "a long passphrase here\r\nsecond line ignored\n", "user", "add", "--role", "manager", "--ward", "w2", "m.ward")
 	if code != exitOK || out != "created user m.ward (manager)\n" {
 		t.Fatalf("user add = %d, %q, %q", code, out, errs)
 	}
@@ -94,7 +94,7 @@ func TestUserAddWithWard(t *testing.T) {
 	if len(u.WardIDs) != 1 || u.WardIDs[0] != w.ID {
 		t.Errorf("wards = %v; want [%d]", u.WardIDs, w.ID)
 	}
-	if ok, _ := password.Verify("a long password", u.PasswordHash); !ok {
+	if ok, _ := password.Verify("a long passphrase here", u.PasswordHash); !ok {
 		t.Error("password with CRLF line end not stored as typed without the line end")
 	}
 }
@@ -107,12 +107,12 @@ func TestUserAddRejects(t *testing.T) {
 		code   int
 		stderr string
 	}{
-		{"short password", "short\n", []string{"user", "add", "nine.chars"}, exitUsage, "at least 10 characters"},
+		{"short password", "short\n", []string{"user", "add", "nine.chars"}, exitUsage, "at least 15 characters"},
 		{"no password", "", []string{"user", "add", "no.pw"}, exitUsage, "No password given"},
-		{"bad role", "long enough pw\n", []string{"user", "add", "--role", "boss", "bad.role"}, exitUsage, "Role must be"},
-		{"bad name", "long enough pw\n", []string{"user", "add", "Has Spaces"}, exitUsage, "User name must be"},
-		{"no name", "long enough pw\n", []string{"user", "add"}, exitUsage, "exactly one user NAME"},
-		{"unknown ward", "long enough pw\n", []string{"user", "add", "--ward", "nope", "x.ward"}, exitUsage, `no ward with code "nope"`},
+		{"bad role", "long enough passphrase\n", []string{"user", "add", "--role", "boss", "bad.role"}, exitUsage, "Role must be"},
+		{"bad name", "long enough passphrase\n", []string{"user", "add", "Has Spaces"}, exitUsage, "User name must be"},
+		{"no name", "long enough passphrase\n", []string{"user", "add"}, exitUsage, "exactly one user NAME"},
+		{"unknown ward", "long enough passphrase\n", []string{"user", "add", "--ward", "nope", "x.ward"}, exitUsage, `no ward with code "nope"`},
 		{"password flag", "", []string{"user", "add", "--password", "secret12345", "pw.flag"}, exitUsage, "flag provided but not defined"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -131,10 +131,10 @@ func TestUserAddRejects(t *testing.T) {
 
 func TestUserAddDuplicate(t *testing.T) {
 	dir := t.TempDir()
-	if code, _, errs := runCLI(t, dir, "long enough pw\n", "user", "add", "dup.user"); code != exitOK {
+	if code, _, errs := runCLI(t, dir, "long enough passphrase\n", "user", "add", "dup.user"); code != exitOK {
 		t.Fatalf("first add = %d, %q", code, errs)
 	}
-	code, out, errs := runCLI(t, dir, "long enough pw\n", "user", "add", "dup.user")
+	code, out, errs := runCLI(t, dir, "long enough passphrase\n", "user", "add", "dup.user")
 	if code != exitUsage || out != "" || errs == "" {
 		t.Fatalf("second add = %d, %q, %q; want exit 2 with a message", code, out, errs)
 	}
@@ -146,7 +146,7 @@ func TestUserAddDatabaseFailure(t *testing.T) {
 	if err := os.WriteFile(file, []byte("x"), 0o600); err != nil {
 		t.Fatal(err)
 	}
-	code, out, errs := runCLI(t, file, "long enough pw\n", "user", "add", "db.fail")
+	code, out, errs := runCLI(t, file, "long enough passphrase\n", "user", "add", "db.fail")
 	if code != exitFailure || out != "" || errs == "" {
 		t.Fatalf("= %d, %q, %q; want exit 1 with a message", code, out, errs)
 	}

@@ -28,11 +28,11 @@ func TestSessionRowNotReplayable(t *testing.T) {
 			dir = t.TempDir()
 			add = []string{"user", "add", "--role", "admin", "--db", so.DB, "ada.admin"}
 		}
-		if code, _, errs := runCLI(t, dir, "first admin pw\n", add...); code != exitOK {
+		if code, _, errs := runCLI(t, dir, "first admin passphrase\n", add...); code != exitOK {
 			t.Fatalf("user add: %d %s", code, errs)
 		}
 		s := MustServe(t, append([]string{"--addr", "127.0.0.1:0"}, storeArgs...)...)
-		c := signIn(t, s.URL, "ada.admin", "first admin pw")
+		c := signIn(t, s.URL, "ada.admin", "first admin passphrase")
 		base, err := url.Parse(s.URL)
 		if err != nil {
 			t.Fatal(err)

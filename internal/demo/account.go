@@ -31,8 +31,10 @@ func (s *seeder) createUsers(ctx context.Context) error {
 	}
 	s.users = map[string]*wardload.User{}
 	for _, spec := range specs {
-		pw := rand.Text() // 26 base32 characters, about 130 bits
-		hash, err := s.pw.Hash(pw)
+		// 26 base32 characters, about 130 bits; HashNew applies the rule
+		// of every new password to it, as to any other.
+		pw := rand.Text()
+		hash, err := s.pw.HashNew(pw, spec.name, "")
 		if err != nil {
 			return fmt.Errorf("hash password of %s: %w", spec.name, err)
 		}

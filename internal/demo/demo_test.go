@@ -131,6 +131,9 @@ func checkSeeded(t *testing.T, st wardload.Store, res *demo.Result) {
 			if ok, err := password.Verify(a.Password, u.PasswordHash); err != nil || !ok {
 				t.Errorf("%s: password does not verify (%v)", a.Name, err)
 			}
+			if _, err := password.Check(a.Password, a.Name); err != nil {
+				t.Errorf("%s: the generated password breaks the password rule: %v", a.Name, err)
+			}
 			if a.Role != wardload.RoleAdmin && !slices.Contains(u.WardIDs, res.Ward.ID) {
 				t.Errorf("%s: not a member of the demo ward", a.Name)
 			}

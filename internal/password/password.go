@@ -13,11 +13,8 @@ import (
 	"encoding/base64"
 	"fmt"
 	"strings"
-	"unicode/utf8"
 
 	"golang.org/x/crypto/argon2"
-
-	"wardload/internal/wardload"
 )
 
 // Params are argon2id cost parameters. The zero Params stands for
@@ -40,33 +37,11 @@ func DefaultParams() Params {
 	return Params{MemoryKiB: 64 * 1024, Time: 1, Threads: 2, SaltLen: 16, KeyLen: 32}
 }
 
-// MinLength is the shortest password ValidatePassword accepts, in characters.
-const MinLength = 10
-
-// maxLength caps the input so that a huge request body cannot be fed to the
-// hash; argon2 has no length limit of its own.
-const maxLength = 1024
-
-// ValidatePassword checks a new password. It returns EINVALID with field
-// "password" when it is shorter than MinLength characters, longer than
-// 1024 bytes, or not valid UTF-8.
-func ValidatePassword(pw string) error {
-	if !utf8.ValidString(pw) {
-		return wardload.FieldErrorf(wardload.EINVALID, "password", "The password must be valid text.")
-	}
-	if utf8.RuneCountInString(pw) < MinLength {
-		return wardload.FieldErrorf(wardload.EINVALID, "password", "The password must be at least %d characters long.", MinLength)
-	}
-	if len(pw) > maxLength {
-		return wardload.FieldErrorf(wardload.EINVALID, "password", "The password must be at most %d bytes long.", maxLength)
-	}
-	return nil
-}
-
-// Hash returns the encoded argon2id hash of pw with a fresh random salt
-// and the parameters p (DefaultParams when p is zero). It does not
-// validate pw; callers do that first.
+// Hash returns the encoded argon2id hash of pw, NFKC-normalised (see
+// Normalize), with a fresh random salt and the parameters p (DefaultParams
+// when p is zero). It does not check pw against the policy; HashNew does.
 func (p Params) Hash(pw string) (string, error) {
+	pw = Normalize(pw)
 	if p == (Params{}) {
 		p = DefaultParams()
 	}
@@ -81,15 +56,25 @@ func (p Params) Hash(pw string) (string, error) {
 }
 
 // Verify reports whether pw matches encoded, comparing in constant time.
-// A wrong password is (false, nil); an encoded string that is not an
-// argon2id hash this package can read is an error.
+// pw is NFKC-normalised first, as Hash does, so that a password typed
+// with composed, decomposed or full-width characters matches however it
+// was typed when it was set. Hashes made before passwords were normalised
+// hold the password as typed: when the normalised form does not match and
+// differs from pw, pw itself is tried too (a second hash, only for input
+// that normalisation changes), so those accounts keep signing in. A wrong
+// password is (false, nil); an encoded string that is not an argon2id hash
+// this package can read is an error.
 func Verify(pw, encoded string) (bool, error) {
 	p, salt, want, err := decode(encoded)
 	if err != nil {
 		return false, err
 	}
-	got := argon2.IDKey([]byte(pw), salt, p.Time, p.MemoryKiB, p.Threads, p.KeyLen)
-	return subtle.ConstantTimeCompare(got, want) == 1, nil
+	match := func(s string) bool {
+		got := argon2.IDKey([]byte(s), salt, p.Time, p.MemoryKiB, p.Threads, p.KeyLen)
+		return subtle.ConstantTimeCompare(got, want) == 1
+	}
+	n := Normalize(pw)
+	return match(n) || (n != pw && match(pw)), nil
 }
 
 // decode parses a PHC string. Limits on the parameters stop a tampered or

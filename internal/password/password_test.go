@@ -3,8 +3,6 @@ package password
 import (
 	"strings"
 	"testing"
-
-	"wardload/internal/wardload"
 )
 
 // fastParams keep the tests quick; the encoding and comparison logic are
@@ -102,31 +100,5 @@ func TestVerifyRejectsMalformed(t *testing.T) {
 		if ok, err := Verify("password", enc); err == nil || ok {
 			t.Errorf("Verify(%q) = %v, %v; want false and an error", enc, ok, err)
 		}
-	}
-}
-
-func TestValidatePassword(t *testing.T) {
-	for _, tc := range []struct {
-		name string
-		pw   string
-		ok   bool
-	}{
-		{"nine characters", "123456789", false},
-		{"ten characters", "1234567890", true},
-		{"ten runes, more bytes", "ééééééééé", false}, // 9 runes, 18 bytes
-		{"ten multibyte runes", "éééééééééé", true},
-		{"empty", "", false},
-		{"invalid UTF-8", "abcdefghij\xff", false},
-		{"too long", strings.Repeat("a", 1025), false},
-	} {
-		t.Run(tc.name, func(t *testing.T) {
-			err := ValidatePassword(tc.pw)
-			if (err == nil) != tc.ok {
-				t.Fatalf("ValidatePassword(%q) = %v; want ok=%v", tc.pw, err, tc.ok)
-			}
-			if err != nil && (wardload.ErrorCode(err) != wardload.EINVALID || wardload.ErrorField(err) != "password") {
-				t.Errorf("error = %v; want EINVALID on field password", err)
-			}
-		})
 	}
 }

@@ -15,8 +15,8 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 		return err
 	}
 	return s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
-		if err := tx.QueryRow(ctx, `INSERT INTO users (name, role, password_hash, disabled, created_at)
-			VALUES ($1, $2, $3, $4, $5) RETURNING id`, u.Name, u.Role, u.PasswordHash, u.Disabled, now).Scan(&u.ID); err != nil {
+		if err := tx.QueryRow(ctx, `INSERT INTO users (name, role, password_hash, disabled, created_at, must_change_password)
+			VALUES ($1, $2, $3, $4, $5, $6) RETURNING id`, u.Name, u.Role, u.PasswordHash, u.Disabled, now, u.MustChangePassword).Scan(&u.ID); err != nil {
 			return err
 		}
 		wards := wardload.WardIDSet(u.WardIDs)
@@ -99,7 +99,7 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter, suffix str
 	w := userWhere(f)
 	// Memberships come in the same query: the guard reads the signed-in
 	// user on every request, so one round trip instead of two.
-	rows, err := q.Query(ctx, `SELECT id, name, role, password_hash, disabled, created_at,
+	rows, err := q.Query(ctx, `SELECT id, name, role, password_hash, disabled, created_at, must_change_password, password_changes,
 		ARRAY(SELECT ward_id FROM user_wards WHERE user_id = users.id ORDER BY ward_id)
 		FROM users`+w.String()+` ORDER BY name`+suffix, w.args...)
 	if err != nil {
@@ -107,7 +107,7 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter, suffix str
 	}
 	us, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.User, error) {
 		var u wardload.User
-		err := r.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &u.CreatedAt, &u.WardIDs)
+		err := r.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &u.CreatedAt, &u.MustChangePassword, &u.PasswordChanges, &u.WardIDs)
 		u.CreatedAt = u.CreatedAt.UTC()
 		if len(u.WardIDs) == 0 {
 			u.WardIDs = nil // no memberships is nil, as it always was here
@@ -144,8 +144,8 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 		if err != nil {
 			return err
 		}
-		if _, err := tx.Exec(ctx, `UPDATE users SET role = $1, password_hash = $2, disabled = $3 WHERE id = $4`,
-			u.Role, u.PasswordHash, u.Disabled, id); err != nil {
+		if _, err := tx.Exec(ctx, `UPDATE users SET role = $1, password_hash = $2, disabled = $3, must_change_password = $4, password_changes = $5 WHERE id = $6`,
+			u.Role, u.PasswordHash, u.Disabled, u.MustChangePassword, u.PasswordChanges, id); err != nil {
 			return err
 		}
 		if upd.WardIDs != nil {

@@ -36,22 +36,25 @@ var (
 // use it. It is written independently of the route table: a route the
 // table adds without an entry here fails TestEveryRouteByEveryPrincipal.
 var routeExpectations = map[string][]string{
-	"home":         everyone, // signed out: ward names and a sign-in link (TestHomeSignedOut)
-	"healthz":      everyone,
-	"readyz":       everyone,
-	"static":       everyone,
-	"signin.form":  everyone,
-	"signin":       everyone,
-	"signout":      signedIn,
-	"tokens":       wardAMgrs,
-	"token.create": wardAMgrs,
-	"token.revoke": wardAMgrs,
-	"audit":        managers,
-	"users":        admins,
-	"user.create":  admins,
-	"user.update":  admins,
-	"ward.new":     admins, // ward_test.go
-	"ward.create":  admins,
+	"home":        everyone, // signed out: ward names and a sign-in link (TestHomeSignedOut)
+	"healthz":     everyone,
+	"readyz":      everyone,
+	"static":      everyone,
+	"signin.form": everyone,
+	"signin":      everyone,
+	"signout":     signedIn,
+	// Everyone's own password (account_test.go).
+	"account.password":      signedIn,
+	"account.password.save": signedIn,
+	"tokens":                wardAMgrs,
+	"token.create":          wardAMgrs,
+	"token.revoke":          wardAMgrs,
+	"audit":                 managers,
+	"users":                 admins,
+	"user.create":           admins,
+	"user.update":           admins,
+	"ward.new":              admins, // ward_test.go
+	"ward.create":           admins,
 	// API routes: token principals. A token of ward B may list its own
 	// wards; ward-scoped API routes would refuse it for ward A.
 	"api.wards": {tValid, tOtherW},

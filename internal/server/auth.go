@@ -172,6 +172,9 @@ func (s *Server) admit(rt Route, next http.Handler, w http.ResponseWriter, r *ht
 		}
 		return seeOther(w, r, "/signin?next="+url.QueryEscape(dest))
 	}
+	if sent, err := s.mustChangeFirst(rt, w, r, u); sent || err != nil {
+		return err
+	}
 	if !slices.Contains(rt.Access.Roles, u.Role) {
 		return wardload.Errorf(wardload.EFORBIDDEN, "Your role does not allow this page.")
 	}
@@ -191,8 +194,9 @@ func (s *Server) admit(rt Route, next http.Handler, w http.ResponseWriter, r *ht
 
 // sessionUser returns the signed-in user, or nil when there is none: no
 // session, a session past its idle or absolute limit (by the injected
-// clock, so tests need no sleeps), or a user who is gone or disabled. A
-// dead session is destroyed so its cookie stops working.
+// clock, so tests need no sleeps), a user who is gone or disabled, or a
+// session from before the user's password last changed (sessionCurrent).
+// A dead session is destroyed so its cookie stops working.
 func (s *Server) sessionUser(r *http.Request) (*wardload.User, error) {
 	ctx := r.Context()
 	id := s.sessions.GetInt64(ctx, sessUserID)
@@ -206,7 +210,7 @@ func (s *Server) sessionUser(r *http.Request) (*wardload.User, error) {
 		return nil, s.sessions.Destroy(ctx)
 	}
 	u, err := s.store.FindUserByID(ctx, id)
-	if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && u.Disabled) {
+	if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && (u.Disabled || !s.sessionCurrent(ctx, u))) {
 		return nil, s.sessions.Destroy(ctx)
 	} else if err != nil {
 		return nil, err

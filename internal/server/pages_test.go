@@ -180,17 +180,17 @@ func TestUserPages(t *testing.T) {
 		form url.Values
 	}{
 		{"short password", url.Values{"name": {"s.short"}, "role": {"charge_nurse"}, "password": {"short"}}},
-		{"bad name", url.Values{"name": {"Has Space"}, "role": {"charge_nurse"}, "password": {"long enough pw"}}},
-		{"bad role", url.Values{"name": {"r.role"}, "role": {"root"}, "password": {"long enough pw"}}},
-		{"taken name", url.Values{"name": {"n.nurse"}, "role": {"charge_nurse"}, "password": {"long enough pw"}}},
-		{"unknown ward", url.Values{"name": {"u.ward"}, "role": {"charge_nurse"}, "ward": {"999"}, "password": {"long enough pw"}}},
-		{"ward not a number", url.Values{"name": {"u.ward"}, "role": {"charge_nurse"}, "ward": {"w-a"}, "password": {"long enough pw"}}},
+		{"bad name", url.Values{"name": {"Has Space"}, "role": {"charge_nurse"}, "password": {"long enough passphrase"}}},
+		{"bad role", url.Values{"name": {"r.role"}, "role": {"root"}, "password": {"long enough passphrase"}}},
+		{"taken name", url.Values{"name": {"n.nurse"}, "role": {"charge_nurse"}, "password": {"long enough passphrase"}}},
+		{"unknown ward", url.Values{"name": {"u.ward"}, "role": {"charge_nurse"}, "ward": {"999"}, "password": {"long enough passphrase"}}},
+		{"ward not a number", url.Values{"name": {"u.ward"}, "role": {"charge_nurse"}, "ward": {"w-a"}, "password": {"long enough passphrase"}}},
 	} {
-		if code, body := create(tc.form); code != 400 || !strings.Contains(body, `class="form-error"`) || strings.Contains(body, "long enough pw") {
+		if code, body := create(tc.form); code != 400 || !strings.Contains(body, `class="form-error"`) || strings.Contains(body, "long enough passphrase") {
 			t.Errorf("%s: %d, want 400 with a message and without the password", tc.name, code)
 		}
 	}
-	if code, _ := create(url.Values{"name": {"New.Nurse"}, "role": {"charge_nurse"}, "ward": {ward}, "password": {"long enough pw"}}); code != 303 {
+	if code, _ := create(url.Values{"name": {"New.Nurse"}, "role": {"charge_nurse"}, "ward": {ward}, "password": {"long enough passphrase"}}); code != 303 {
 		t.Fatalf("create = %d", code)
 	}
 	u, err := f.st.FindUserByName(context.Background(), "new.nurse")

@@ -70,6 +70,10 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodGet, Pattern: "/signin", Name: "signin.form", Access: public, Handler: s.handleSignInForm},
 		{Method: http.MethodPost, Pattern: "/signin", Name: "signin", Access: public, Handler: s.handleSignIn, MaxBodyBytes: 8 << 10},
 		{Method: http.MethodPost, Pattern: "/signout", Name: "signout", Access: signedIn, Handler: s.handleSignOut, MaxBodyBytes: 8 << 10},
+		// Everyone's own password (account.go); the only pages left to a
+		// user after an admin's reset (mustChangeRoutes).
+		{Method: http.MethodGet, Pattern: passwordPath, Name: "account.password", Access: signedIn, Handler: s.handlePasswordForm},
+		{Method: http.MethodPost, Pattern: passwordPath, Name: "account.password.save", Access: signedIn, Handler: s.handlePasswordChange, MaxBodyBytes: 16 << 10},
 
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/tokens", Name: "tokens", Access: wardManagers, Handler: s.handleTokens},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/tokens", Name: "token.create", Access: wardManagers, Handler: s.handleTokenCreate, MaxBodyBytes: 8 << 10},

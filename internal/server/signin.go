@@ -190,11 +190,15 @@ func (s *Server) handleSignIn(w http.ResponseWriter, r *http.Request) error {
 	s.sessions.Put(ctx, sessUserID, u.ID)
 	s.sessions.Put(ctx, sessAuthAt, now.Unix())
 	s.sessions.Put(ctx, sessSeenAt, now.Unix())
+	s.rememberPasswordChanges(ctx, u)
 	if err := s.appendAudit(r, wardload.Actor{UserID: u.ID, Name: u.Name}, wardload.ActionSignInOK, "user", u.ID, 0,
 		map[string]string{"address": addr}); err != nil {
 		return err
 	}
 	devices.issue(w, r, name, now)
+	if u.MustChangePassword {
+		return seeOther(w, r, passwordPath) // an admin's reset: first choose a new one
+	}
 	return seeOther(w, r, vm.Next)
 }
 

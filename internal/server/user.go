@@ -10,7 +10,6 @@ import (
 
 	"github.com/go-chi/chi/v5"
 
-	"wardload/internal/password"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -79,10 +78,9 @@ func (s *Server) handleUserCreate(w http.ResponseWriter, r *http.Request) error 
 	if err := u.Validate(); err != nil {
 		return invalid(err)
 	}
-	if err := password.ValidatePassword(pw); err != nil {
+	if u.PasswordHash, err = s.cfg.Password.HashNew(pw, u.Name, ""); wardload.ErrorCode(err) == wardload.EINVALID {
 		return invalid(err)
-	}
-	if u.PasswordHash, err = s.cfg.Password.Hash(pw); err != nil {
+	} else if err != nil {
 		return fmt.Errorf("user create: %w", err)
 	}
 	if err := s.store.CreateUser(r.Context(), u); err != nil {
@@ -137,15 +135,22 @@ func (s *Server) handleUserUpdate(w http.ResponseWriter, r *http.Request) error 
 	if wardIDs == nil {
 		upd.WardIDs = []int64{} // no box ticked: no wards
 	}
+	flash := "User " + target.Name + " was saved."
 	if pw := r.PostForm.Get("password"); pw != "" {
-		if err := password.ValidatePassword(pw); err != nil {
-			return rowError(err)
+		// An admin's reset is a temporary password: the user must choose
+		// their own at next sign-in, and their sessions end. Admins change
+		// their own on the account page, which asks for the current one.
+		if target.ID == me.ID {
+			return rowError(wardload.Errorf(wardload.EINVALID, "Change your own password with the Password link beside your name; it asks for your current one."))
 		}
-		h, err := s.cfg.Password.Hash(pw)
-		if err != nil {
+		h, err := s.cfg.Password.HashNew(pw, target.Name, target.PasswordHash)
+		if wardload.ErrorCode(err) == wardload.EINVALID {
+			return rowError(err)
+		} else if err != nil {
 			return fmt.Errorf("user update: %w", err)
 		}
-		upd.PasswordHash = &h
+		upd.PasswordHash, upd.MustChangePassword = &h, new(true)
+		flash = "User " + target.Name + " was saved with a temporary password: they were signed out and must choose a new one at their next sign-in."
 	}
 	if _, err := s.store.UpdateUser(r.Context(), id, upd); err != nil {
 		switch wardload.ErrorCode(err) {
@@ -154,7 +159,7 @@ func (s *Server) handleUserUpdate(w http.ResponseWriter, r *http.Request) error 
 		}
 		return fmt.Errorf("user update: %w", err)
 	}
-	s.sessions.Put(r.Context(), sessFlash, "User "+target.Name+" was saved.")
+	s.sessions.Put(r.Context(), sessFlash, flash)
 	return seeOther(w, r, "/admin/users")
 }
 

@@ -15,8 +15,8 @@ func (s *Store) CreateUser(ctx context.Context, u *wardload.User) error {
 		return err
 	}
 	return s.write(ctx, func(tx *Tx) error {
-		res, err := tx.ExecContext(ctx, `INSERT INTO users (name, role, password_hash, disabled, created_at) VALUES (?, ?, ?, ?, ?)`,
-			u.Name, u.Role, u.PasswordHash, boolInt(u.Disabled), formatTime(tx.now))
+		res, err := tx.ExecContext(ctx, `INSERT INTO users (name, role, password_hash, disabled, created_at, must_change_password) VALUES (?, ?, ?, ?, ?, ?)`,
+			u.Name, u.Role, u.PasswordHash, boolInt(u.Disabled), formatTime(tx.now), boolInt(u.MustChangePassword))
 		if err != nil {
 			return err
 		}
@@ -80,8 +80,8 @@ func (s *Store) UpdateUser(ctx context.Context, id int64, upd wardload.UserUpdat
 		if err != nil {
 			return err
 		}
-		if _, err := tx.ExecContext(ctx, `UPDATE users SET role = ?, password_hash = ?, disabled = ? WHERE id = ?`,
-			u.Role, u.PasswordHash, boolInt(u.Disabled), id); err != nil {
+		if _, err := tx.ExecContext(ctx, `UPDATE users SET role = ?, password_hash = ?, disabled = ?, must_change_password = ?, password_changes = ? WHERE id = ?`,
+			u.Role, u.PasswordHash, boolInt(u.Disabled), boolInt(u.MustChangePassword), u.PasswordChanges, id); err != nil {
 			return err
 		}
 		if upd.WardIDs != nil {
@@ -135,7 +135,7 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter) ([]*wardlo
 	}
 	// Memberships come in the same query: the guard reads the signed-in
 	// user on every request, so one round trip instead of two.
-	rows, err := q.QueryContext(ctx, page(`SELECT id, name, role, password_hash, disabled, created_at,
+	rows, err := q.QueryContext(ctx, page(`SELECT id, name, role, password_hash, disabled, created_at, must_change_password, password_changes,
 		(SELECT group_concat(ward_id, ',' ORDER BY ward_id) FROM user_wards WHERE user_id = users.id)
 		FROM users WHERE `+cond+` ORDER BY name`, f.Offset, f.Limit), args...)
 	if err != nil {
@@ -147,7 +147,7 @@ func findUsers(ctx context.Context, q querier, f wardload.UserFilter) ([]*wardlo
 		var u wardload.User
 		var created string
 		var wards sql.NullString
-		if err := rows.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &created, &wards); err != nil {
+		if err := rows.Scan(&u.ID, &u.Name, &u.Role, &u.PasswordHash, &u.Disabled, &created, &u.MustChangePassword, &u.PasswordChanges, &wards); err != nil {
 			return nil, 0, err
 		}
 		if u.WardIDs, err = parseIDs(wards.String); err != nil {

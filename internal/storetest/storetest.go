@@ -29,6 +29,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		projectionCases(),
 		settingsCases(),
 		userCases(),
+		passwordCases(),
 		tokenCases(),
 		auditCases(),
 		signInCases(),

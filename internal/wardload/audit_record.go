@@ -125,11 +125,17 @@ type userAudit struct {
 	Disabled  bool
 	WardIDs   []int64
 	CreatedAt time.Time
+	// A password change or reset shows as PasswordChanges going up by one
+	// (and, for an admin's reset, MustChangePassword set): that it
+	// happened, never what the password or its hash is.
+	MustChangePassword bool
+	PasswordChanges    int64
 }
 
 // auditRecord of a user is not ward-specific: ward 0.
 func (u *User) auditRecord() auditRecord {
-	return auditRecord{"user", u.ID, nil, userAudit{u.ID, u.Name, u.Role, u.Disabled, wardList(u.WardIDs), u.CreatedAt}}
+	return auditRecord{"user", u.ID, nil, userAudit{u.ID, u.Name, u.Role, u.Disabled, wardList(u.WardIDs), u.CreatedAt,
+		u.MustChangePassword, u.PasswordChanges}}
 }
 
 // wardList is ids for the audit JSON, where no wards is [] whether a

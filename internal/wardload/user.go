@@ -33,6 +33,15 @@ type User struct {
 	Disabled     bool
 	WardIDs      []int64 // ward memberships, ascending
 	CreatedAt    time.Time
+	// MustChangePassword is set by an administrator's reset: after signing
+	// in, the user may only choose a new password (API tokens are not
+	// affected).
+	MustChangePassword bool
+	// PasswordChanges counts the changes and resets of the password. A
+	// session remembers the count it was signed in under, and ends when
+	// the count has moved on (SessionCurrent): a change ends every other
+	// session.
+	PasswordChanges int64
 }
 
 // Validate checks the user's own fields.
@@ -78,20 +87,43 @@ type UserUpdate struct {
 	PasswordHash *string
 	Disabled     *bool
 	WardIDs      []int64 // nil leaves memberships unchanged; empty clears them
+	// MustChangePassword sets or clears the user's flag (an admin reset
+	// sets it; the user's own change clears it).
+	MustChangePassword *bool
 }
 
 // Apply returns a copy of u with upd applied, its ward memberships as
 // WardIDSet gives them, or EINVALID naming the field if the result is not
 // a valid user. u is not changed; the store checks that the wards exist.
+//
+// Setting a password counts as a password change (PasswordChanges goes up
+// by one, which ends the user's other sessions), and is refused with
+// EINVALID on "password" for an account that is disabled and stays so:
+// enable it in the same update, or first.
 func (upd UserUpdate) Apply(u *User) (*User, error) {
 	out := *u
 	setIf(&out.Role, upd.Role)
 	setIf(&out.PasswordHash, upd.PasswordHash)
 	setIf(&out.Disabled, upd.Disabled)
+	setIf(&out.MustChangePassword, upd.MustChangePassword)
 	if upd.WardIDs != nil {
 		out.WardIDs = WardIDSet(upd.WardIDs)
 	}
+	if upd.PasswordHash != nil {
+		if u.Disabled && out.Disabled {
+			return nil, FieldErrorf(EINVALID, "password", "The account %s is disabled: enable it before setting a new password.", u.Name)
+		}
+		out.PasswordChanges++
+	}
 	return validated(&out)
+}
+
+// SessionCurrent reports whether a session signed in when the user's
+// PasswordChanges was changes is still valid: no password change or reset
+// has happened since. Sessions from before the count existed hold 0, as
+// do users whose password never changed.
+func (u *User) SessionCurrent(changes int64) bool {
+	return changes == u.PasswordChanges
 }
 
 // WardIDSet returns the ward IDs a user or token is linked to: ascending
