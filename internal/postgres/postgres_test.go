@@ -338,7 +338,7 @@ func TestConcurrentMigrate(t *testing.T) {
 	url := testURL(t)
 	ctx := context.Background()
 	s, schema := MustOpenStore(t, url, time.Now)
-	if _, err := s.Pool().Exec(ctx, `DROP TABLE projections, sessions, audit_log, token_wards, api_tokens, user_wards, users, ratio_floors,
+	if _, err := s.Pool().Exec(ctx, `DROP TABLE shift_records, projections, sessions, audit_log, token_wards, api_tokens, user_wards, users, ratio_floors,
 		ward_settings, census_counts, census, observation_factors, observations, shift_patterns, tiers, ward_factors, wards, goose_db_version`); err != nil {
 		t.Fatal(err)
 	}

@@ -31,6 +31,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		userCases(),
 		tokenCases(),
 		auditCases(),
+		shiftRecordCases(),
 	}
 	for _, g := range groups {
 		for _, tc := range g {

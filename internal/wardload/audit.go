@@ -39,6 +39,7 @@ const (
 	ActionCensusCreate       = "census.create"
 	ActionProjectionCreate   = "projection.create"
 	ActionSettingsSave       = "settings.save"
+	ActionShiftRecordCreate  = "shift_record.create"
 )
 
 // AuditFilter selects audit entries. Zero fields do not filter.

@@ -22,6 +22,7 @@ type Store interface {
 	UserService
 	TokenService
 	AuditService
+	ShiftRecordService
 
 	// Ping returns an error if the database cannot be reached.
 	Ping(ctx context.Context) error
