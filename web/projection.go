@@ -67,8 +67,8 @@ type ProjectionVM struct {
 	Shortfall []ShortfallRowVM
 	// Duty compares the staff on duty entered with the census (nil when
 	// none were); made for every request, as the escalation text can change.
-	Duty *DutyVM
-	Tiers     []TierVM
+	Duty  *DutyVM
+	Tiers []TierVM
 	// HeldOut are observations set aside as likely entry errors;
 	// ReviewURL links to the review page where they can be excluded ("" for
 	// roles that may not use it).
