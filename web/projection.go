@@ -67,8 +67,12 @@ type ProjectionVM struct {
 	Shortfall []ShortfallRowVM
 	// Duty compares the staff on duty entered with the census (nil when
 	// none were); made for every request, as the escalation text can change.
-	Duty  *DutyVM
-	Tiers []TierVM
+	Duty *DutyVM
+	// RecordURL opens the shift's end-of-shift record once it has ended
+	// ("" before, when RecordEnds says when it ends).
+	RecordURL  string
+	RecordEnds string
+	Tiers      []TierVM
 	// HeldOut are observations set aside as likely entry errors;
 	// ReviewURL links to the review page where they can be excluded ("" for
 	// roles that may not use it).
@@ -161,6 +165,11 @@ type ProjectionRowVM struct {
 	ExpectedNurseHours string // "–" when declined
 	Declined           bool   // too few observations: the floor alone, or nothing
 	URL                string
+	// RecordURL opens the shift's end-of-shift record once the shift has
+	// ended ("" before); RecordText is "Record", "Recorded (rev. 2)" or
+	// "after 20:00".
+	RecordURL  string
+	RecordText string
 }
 
 // oneDecimalText rounds a formatted figure ("31.76") to one decimal

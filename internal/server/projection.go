@@ -57,6 +57,11 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	if err := s.dutyVM(r, ward, pg.p, staff, &vm); err != nil {
 		return err
 	}
+	if s.now().Before(pg.p.End) {
+		vm.RecordEnds = formatLocal(pg.p.End, ward)
+	} else {
+		vm.RecordURL = shiftRecordURL(ward, pg.p.Date, pg.p.ShiftID)
+	}
 	return s.render(w, r, http.StatusOK, web.ProjectionPageParts(s.layout(r, pg.title), vm, templ.Raw(pg.titleHTML), templ.Raw(body)))
 }
 
