@@ -141,3 +141,45 @@ func TestCensusStaffOnDutyGap(t *testing.T) {
 		}
 	}
 }
+
+// TestCensusSupportStaffField: the support staff field is shown only on a
+// ward whose settings say it has support staff, and a bad count there is
+// refused beside the field with nothing stored.
+func TestCensusSupportStaffField(t *testing.T) {
+	f := newCensusFixture(t)
+	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
+	fields := func() int {
+		_, body := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", "/wards/w-a/census", nil)))
+		return len(byTestID(t, body, "staff-field"))
+	}
+	if n := fields(); n != 1 {
+		t.Fatalf("without support staff: %d staff fields, want 1", n)
+	}
+	st, err := f.st.FindSettings(ctx, f.wardA.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st.SupportStaff = true
+	if err := f.st.SaveSettings(ctx, st); err != nil {
+		t.Fatal(err)
+	}
+	if n := fields(); n != 2 {
+		t.Fatalf("with support staff: %d staff fields, want 2", n)
+	}
+	form := f.censusForm(f.a.day, "4", "6", "3", "0")
+	form.Set(nursesOnDutyField, "6")
+	form.Set(supportOnDutyField, "-1")
+	res, body := f.do(t, f.as(t, pNurseA, post("/wards/w-a/census", form)))
+	if res.StatusCode != 400 {
+		t.Fatalf("status %d, want 400", res.StatusCode)
+	}
+	if v, _ := attrByID(t, body, "staff-support", "aria-invalid"); v != "true" {
+		t.Error("staff-support not aria-invalid")
+	}
+	if v, _ := attrByID(t, body, "staff-nurses", "value"); v != "6" {
+		t.Errorf("staff-nurses = %q, want the typed 6", v)
+	}
+	if nc, np := f.counts(t); nc != 0 || np != 0 {
+		t.Errorf("stored %d census, %d projections", nc, np)
+	}
+}
