@@ -32,6 +32,9 @@ type CensusVM struct {
 	// "11 patients of 28 beds." for the counts shown, TotalOver set when
 	// they exceed the beds. ScriptURL is the versioned census.js, which
 	// keeps the sentence current while typing.
+	// Staff are the optional fields of the staff on duty, stored with the
+	// census revision.
+	Staff     []StaffFieldVM
 	Beds      int
 	TotalText string
 	TotalOver bool
@@ -130,4 +133,15 @@ type CarriedCensusVM struct {
 type FormErrorVM struct {
 	Href    string // "#<input id>"
 	Message string
+}
+
+// StaffFieldVM is one optional field of the staff on duty (nurses, and
+// support staff where the ward uses them).
+type StaffFieldVM struct {
+	Name    string // form field, "nurses_on_duty" or "support_on_duty"
+	InputID string
+	Label   string
+	Hint    string
+	Value   string // as typed, or from the latest revision of this shift
+	Error   string
 }

@@ -65,7 +65,14 @@ type ProjectionVM struct {
 
 	Chart     ChartVM
 	Shortfall []ShortfallRowVM
-	Tiers     []TierVM
+	// Duty compares the staff on duty entered with the census (nil when
+	// none were); made for every request, as the escalation text can change.
+	Duty *DutyVM
+	// RecordURL opens the shift's end-of-shift record once it has ended
+	// ("" before, when RecordEnds says when it ends).
+	RecordURL  string
+	RecordEnds string
+	Tiers      []TierVM
 	// HeldOut are observations set aside as likely entry errors;
 	// ReviewURL links to the review page where they can be excluded ("" for
 	// roles that may not use it).
@@ -158,6 +165,11 @@ type ProjectionRowVM struct {
 	ExpectedNurseHours string // "–" when declined
 	Declined           bool   // too few observations: the floor alone, or nothing
 	URL                string
+	// RecordURL opens the shift's end-of-shift record once the shift has
+	// ended ("" before); RecordText is "Record", "Recorded (rev. 2)" or
+	// "after 20:00".
+	RecordURL  string
+	RecordText string
 }
 
 // oneDecimalText rounds a formatted figure ("31.76") to one decimal
@@ -172,4 +184,18 @@ func oneDecimalText(s string) string {
 		return "0.0"
 	}
 	return out
+}
+
+// DutyVM is the staff on duty entered with the census against the
+// projection: the gap in plain words, the chance of a shortfall with them,
+// and, when below, the ward's escalation text.
+type DutyVM struct {
+	Gap     string // "You have 6 nurses on duty; the estimate is 8 — 2 short; the ratio floor needs 7 — 1 short."
+	Chance  string // "" for a declined projection
+	Support string // "" when no support staff were entered
+	Below   bool   // fewer nurses than the recommendation or the floor
+	// Escalation is the ward's text (when Below); "" when the ward has
+	// none, and SettingsURL (managers only) then links to where it is set.
+	Escalation  string
+	SettingsURL string
 }

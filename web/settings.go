@@ -34,6 +34,9 @@ type GeneralFormVM struct {
 	LookbackWeeks      string
 	Quartiles          string
 	Beds               string
+	ChangeoverMinutes  string
+	SupportStaff       bool
+	Escalation         string
 	Errors             map[string]string // by form field name
 }
 

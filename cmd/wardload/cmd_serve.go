@@ -79,6 +79,7 @@ func runServe(ctx context.Context, e *env, args []string) int {
 	for _, m := range so.looseModes() {
 		log.Warn(m.String())
 	}
+	so.Now = e.clock
 	st, err := openStore(ctx, so, true)
 	if err != nil {
 		fmt.Fprintf(e.stderr, "wardload: %v\n", err)

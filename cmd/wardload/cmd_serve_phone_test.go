@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"sync/atomic"
@@ -28,6 +29,9 @@ const phoneWidth, phoneHeight = 390, 844
 // to start (not the night shift that is ending), fills the counts from the
 // night's census and marks them as carried, keeps Save on the first
 // screen, and its script updates the total against the beds while typing.
+// With two nurses on duty the projection page states the gap, the chance
+// of a shortfall and the ward's escalation text on its first screen; at
+// 09:00 the night's end-of-shift record is saved from the shift list's link.
 // On failure the first screen is saved as a PNG in $WARDLOAD_TEST_ARTIFACTS
 // (or the test's temporary directory, named in the log).
 func TestPhoneChangeover(t *testing.T) {
@@ -151,8 +155,56 @@ func phoneJourney(t *testing.T, so *storeOptions, storeArgs ...string) {
 	if want := strconv.Itoa(night.Total()+1) + " patients"; !strings.HasPrefix(total, want) {
 		t.Errorf("running total %q after typing, want it to start %q", total, want)
 	}
+	// Two nurses on duty, fewer than any estimate for this census: the
+	// projection page says how many short, the chance of a shortfall with
+	// them and the demo ward's escalation text, on the first screen.
+	do("staff on duty", chromedp.SendKeys(chromedp.CSS("#staff-nurses"), "2"))
 	do("save", chromedp.Click(chromedp.CSS(`[data-testid="census-save"]`)), chromedp.WaitVisible(chromedp.CSS("#recommended")))
 	keepFirstScreen(t, ctx, "projection")
+	rec, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="recommended"]`)))
+	gap, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="duty-gap"]`)))
+	if n, err := strconv.Atoi(strings.TrimSpace(rec)); err != nil || !strings.HasPrefix(gap, "You have 2 nurses on duty; the estimate is "+strconv.Itoa(n)+" — "+strconv.Itoa(n-2)+" short") {
+		t.Errorf("staff gap %q with %q recommended", gap, rec)
+	}
+	chance, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="duty-chance"]`)))
+	if !strings.HasPrefix(chance, "Chance of a shortfall with the 2 nurses on duty: ") {
+		t.Errorf("chance %q", chance)
+	}
+	escalation, _ := chromedp.Run(ctx, chromedp.Evaluate[string](`(document.querySelector('[data-testid="duty-escalation"]')||{}).textContent || ""`))
+	if !strings.Contains(escalation, "site nurse manager") {
+		t.Errorf("escalation %q, want the demo ward's text", escalation)
+	}
+	if top, err := chromedp.Run(ctx, chromedp.Evaluate[float64](`window.scrollTo(0, 0); document.querySelector('[data-testid="duty-gap"]').getBoundingClientRect().top`)); err != nil || top <= 0 || top > phoneHeight {
+		t.Errorf("staff gap at %v px (%v), want on the first screen", top, err)
+	}
+
+	// At 09:00 the night has ended: its end-of-shift record, from the
+	// link the shift list gives it.
+	clock.set(9, 0)
+	do("shift list", chromedp.Navigate(s.URL+"/wards/"+demo.WardCode+"/projections"), chromedp.WaitVisible(chromedp.CSS(`[data-testid="projections"]`)))
+	recordURL := "/wards/" + demo.WardCode + "/shift-record?date=" + night.Date.String() + "&shift=" + strconv.FormatInt(night.ShiftID, 10)
+	links, _ := chromedp.Run(ctx, chromedp.Evaluate[[]string](`Array.from(document.querySelectorAll('[data-testid="row-record-link"]')).map(a => a.getAttribute('href'))`))
+	if !slices.Contains(links, recordURL) {
+		t.Errorf("shift list record links %q, want %q", links, recordURL)
+	}
+	do("end-of-shift form",
+		chromedp.Navigate(s.URL+recordURL),
+		chromedp.WaitVisible(chromedp.CSS(`[data-testid="record-form"]`)),
+		chromedp.SendKeys(chromedp.CSS("#record-nurses"), "5"),
+		chromedp.SendKeys(chromedp.CSS("#record-admissions"), "1"),
+		chromedp.SendKeys(chromedp.CSS("#record-discharges"), "2"),
+		chromedp.Click(chromedp.CSS("#care-yes")),
+		chromedp.SetValue(chromedp.CSS("#care-category"), wardload.CareMobility),
+	)
+	keepFirstScreen(t, ctx, "record")
+	if bottom, err := chromedp.Run(ctx, chromedp.Evaluate[float64](`window.scrollTo(0, 0); document.querySelector('[data-testid="record-save"]').getBoundingClientRect().bottom`)); err != nil || bottom <= 0 || bottom > phoneHeight {
+		t.Errorf("end-of-shift Save's bottom edge at %v px (%v), want within the first %d px", bottom, err, phoneHeight)
+	}
+	do("save the record", chromedp.Click(chromedp.CSS(`[data-testid="record-save"]`)), chromedp.WaitVisible(chromedp.CSS(`[data-testid="record-latest"]`)))
+	latest, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="record-latest"]`)))
+	if !strings.Contains(latest, "5 nurses, 1 admission, 2 discharges; care left undone or delayed: Mobility or repositioning.") {
+		t.Errorf("saved record %q", latest)
+	}
 }
 
 // nightBefore is the newest census of the night shift that ends on day.

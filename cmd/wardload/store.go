@@ -24,6 +24,19 @@ import (
 type storeOptions struct {
 	DB      string
 	DataDir string
+	// Now is the store's clock for the times it records and the rules
+	// that read the time (an end-of-shift record waits for the shift's
+	// end); nil is time.Now. serve passes its own clock, so a server run
+	// with an injected clock has one time throughout.
+	Now func() time.Time
+}
+
+// clock is Now, or time.Now when unset.
+func (o *storeOptions) clock() func() time.Time {
+	if o.Now != nil {
+		return o.Now
+	}
+	return time.Now
 }
 
 // addStoreFlags registers --db and --data-dir on fs; like every flag they
@@ -132,13 +145,13 @@ func openStore(ctx context.Context, o *storeOptions, migrate bool) (*openedStore
 			}
 		}
 		path := o.sqlitePath()
-		db, err := sqlite.Open(ctx, sqlite.Config{Path: path, Now: time.Now})
+		db, err := sqlite.Open(ctx, sqlite.Config{Path: path, Now: o.clock()})
 		if err != nil {
 			return nil, fmt.Errorf("cannot open database: %s", oneLine(err))
 		}
 		st = &openedStore{Store: db, SQLite: db, Kind: kind, Where: path}
 	case "postgres":
-		db, err := postgres.Open(ctx, postgres.Config{URL: o.DB, Now: time.Now})
+		db, err := postgres.Open(ctx, postgres.Config{URL: o.DB, Now: o.clock()})
 		if err != nil {
 			return nil, fmt.Errorf("cannot open database: %s", oneLine(err))
 		}

@@ -173,7 +173,10 @@ func (s *seeder) saveSettings(ctx context.Context) error {
 		LookbackWeeks:      8,
 		Quartiles:          wardload.QuartilesHinges,
 		Beds:               beds,
-		UpdatedBy:          s.users[managerName].ID,
+		ChangeoverMinutes:  wardload.DefaultChangeoverMinutes,
+		// An invented escalation route, as a manager would write one.
+		Escalation: "Call the site nurse manager on extension 4410 and note the call in the shift log.",
+		UpdatedBy:  s.users[managerName].ID,
 	}
 	// Invented demo values, not any jurisdiction's law or agreement: at
 	// most 5 patients per nurse by day and 7 by night, the nurse in charge

@@ -55,9 +55,12 @@ type Row struct {
 	Recommended        *int   // nil: no recommendation
 	DecidedBy          string
 	Shortfall          *Shortfall // at the recommended headcount
-	MethodVersion      string
-	GeneratedAt        time.Time // when the projection was made, in the ward's time zone
-	Caution            string
+	// Actual is the newest end-of-shift record of the dated shift (nil:
+	// none yet): what happened, beside what was projected.
+	Actual        *wardload.ShiftRecord
+	MethodVersion string
+	GeneratedAt   time.Time // when the projection was made, in the ward's time zone
+	Caution       string
 }
 
 // Rows returns the newest projection (wardload.ProjectionFilter.LatestOnly)
@@ -92,6 +95,18 @@ func Rows(ctx context.Context, st wardload.Store, ward *wardload.Ward, from, to 
 		return nil, nil, err
 	}
 	slices.Reverse(ps) // the store gives newest first
+	records, _, err := st.FindShiftRecords(ctx, wardload.ShiftRecordFilter{WardID: &ward.ID, From: &from, To: &to, LatestOnly: true})
+	if err != nil {
+		return nil, nil, err
+	}
+	type dated struct {
+		date  wardload.Date
+		shift int64
+	}
+	actual := make(map[dated]*wardload.ShiftRecord, len(records))
+	for _, rec := range records {
+		actual[dated{rec.Date, rec.ShiftID}] = rec
+	}
 	rows := make([]Row, 0, len(ps))
 	for _, p := range ps {
 		res, err := DecodeResult(p)
@@ -99,6 +114,7 @@ func Rows(ctx context.Context, st wardload.Store, ward *wardload.Ward, from, to 
 			return nil, nil, err
 		}
 		r := newRow(ward, loc, p, res)
+		r.Actual = actual[dated{p.Date, p.ShiftID}]
 		byTier := map[int64]int{}
 		for _, tc := range p.Counts {
 			byTier[tc.TierID] = tc.Patients

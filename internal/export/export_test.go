@@ -89,13 +89,26 @@ func seed(t *testing.T) *fixture {
 	save := func(d string, sp *wardload.ShiftPattern, t1, t2 int, at time.Time) {
 		t.Helper()
 		clock = at
-		_, _, err := svc.Save(ctx, f.ward.ID, day(d), sp.ID, []wardload.TierCount{{TierID: f.tiers[0].ID, Patients: t1}, {TierID: f.tiers[1].ID, Patients: t2}})
+		_, _, err := svc.Save(ctx, f.ward.ID, day(d), sp.ID, []wardload.TierCount{{TierID: f.tiers[0].ID, Patients: t1}, {TierID: f.tiers[1].ID, Patients: t2}}, wardload.StaffOnDuty{})
 		must(t, err)
 	}
 	save("2026-03-28", dayP, 9, 6, time.Date(2026, 3, 28, 7, 40, 0, 0, time.UTC))
 	save("2026-03-28", dayP, 8, 7, time.Date(2026, 3, 28, 8, 5, 0, 0, time.UTC))
 	save("2026-03-28", nightP, 10, 6, time.Date(2026, 3, 28, 19, 45, 0, 0, time.UTC))
 	save("2026-03-29", dayP, 7, 7, time.Date(2026, 3, 29, 6, 50, 0, 0, time.UTC))
+	// End-of-shift records at 08:30 UTC on the 29th: the Day of the 28th
+	// (then corrected: only revision 2 may appear) and its Night, which
+	// ended 07:00 UTC; the Day of the 29th is running and has none.
+	clock = time.Date(2026, 3, 29, 8, 30, 0, 0, time.UTC)
+	record := func(d string, sp *wardload.ShiftPattern, r wardload.ShiftRecord) {
+		t.Helper()
+		r.WardID, r.Date, r.ShiftID = f.ward.ID, day(d), sp.ID
+		must(t, st.CreateShiftRecord(ctx, &r))
+	}
+	record("2026-03-28", dayP, wardload.ShiftRecord{Worked: wardload.StaffOnDuty{Nurses: new(4)}, Admissions: 1, Discharges: 2})
+	record("2026-03-28", dayP, wardload.ShiftRecord{Worked: wardload.StaffOnDuty{Nurses: new(3), Support: new(1)}, Admissions: 2, Discharges: 2,
+		CareLeftUndone: true, CareCategory: wardload.CareMobility})
+	record("2026-03-28", nightP, wardload.ShiftRecord{Worked: wardload.StaffOnDuty{Nurses: new(5)}, Admissions: 0, Discharges: 1})
 	return f
 }
 
@@ -149,6 +162,20 @@ func TestGoldenCSV(t *testing.T) {
 		}
 		if r[col["caution"]] != stats.Caution || r[col["method_version"]] != stats.MethodVersion {
 			t.Errorf("row %d lacks the caution or method", i+1)
+		}
+	}
+	// The end-of-shift records as actual columns: the Day of the 28th at
+	// its revision 2, its Night without support staff, none for the 29th.
+	for i, w := range [][8]string{
+		{"2", "3", "1", "2", "2", "true", wardload.CareMobility},
+		{"1", "5", "", "0", "1", "false", ""},
+		{"", "", "", "", "", "", ""},
+	} {
+		r := recs[i+1]
+		got := [8]string{r[col["actual_record_revision"]], r[col["actual_nurses"]], r[col["actual_support_staff"]], r[col["actual_admissions"]],
+			r[col["actual_discharges"]], r[col["care_left_undone"]], r[col["care_left_undone_category"]]}
+		if got != w {
+			t.Errorf("row %d actual columns = %q, want %q", i+1, got, w)
 		}
 	}
 	// ceil(16/7) + 1 for the nurse in charge = 4, stated in words too.

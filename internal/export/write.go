@@ -82,6 +82,17 @@ func (r *Row) cells() []cell {
 	if has {
 		careGiving = strconv.Itoa(sf.CareGivingNurses)
 	}
+	// The end-of-shift record's columns: empty (null) without a record;
+	// support staff also when the record leaves them out.
+	var act [6]string
+	if a := r.Actual; a != nil {
+		act = [6]string{strconv.Itoa(a.Revision), optional(a.Worked.Nurses, strconv.Itoa), optional(a.Worked.Support, strconv.Itoa),
+			strconv.Itoa(a.Admissions), strconv.Itoa(a.Discharges), strconv.FormatBool(a.CareLeftUndone)}
+	}
+	category := ""
+	if r.Actual != nil {
+		category = r.Actual.CareCategory
+	}
 	return []cell{
 		number("cover_level", FormatLevel(r.CoverLevel)),
 		number("data_sufficient", strconv.FormatBool(r.DataSufficient)),
@@ -102,6 +113,13 @@ func (r *Row) cells() []cell {
 		number("shortfall_wilson95_low", prob(sf.WilsonLow)),
 		number("shortfall_wilson95_high", prob(sf.WilsonHigh)),
 		optText("shortfall_text", sf.Text),
+		number("actual_record_revision", act[0]),
+		number("actual_nurses", act[1]),
+		number("actual_support_staff", act[2]),
+		number("actual_admissions", act[3]),
+		number("actual_discharges", act[4]),
+		number("care_left_undone", act[5]),
+		optText("care_left_undone_category", category),
 		text("method_version", r.MethodVersion),
 		{"generated_at", FormatTime(r.GeneratedAt), FormatTime(r.GeneratedAt)},
 		text("caution", r.Caution),

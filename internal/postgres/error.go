@@ -25,6 +25,7 @@ var uniqueRules = map[string]string{
 	"api_tokens_hash_key":                       wardload.UniqueTokenHash,
 	"census_ward_id_date_shift_id_revision_key": wardload.UniqueCensusRevision,
 	"ratio_floors_key_idx":                      wardload.UniqueRatioFloor,
+	"shift_records_revision_key":                wardload.UniqueShiftRecordRevision,
 }
 
 // sqlstateKinds maps the SQLSTATEs of constraint and concurrency failures

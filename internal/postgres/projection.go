@@ -144,7 +144,7 @@ func findProjections(ctx context.Context, q querier, where, page string, args ..
 func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload.Date, shiftID int64) ([]*wardload.ShiftRevision, error) {
 	rows, err := s.pool.Query(ctx, `SELECT c.id, c.revision, c.entered_at,
 			COALESCE((SELECT sum(n.patients) FROM census_counts n WHERE n.census_id = c.id), 0)::bigint,
-			COALESCE(p.id, 0), COALESCE(p.recommended, 0)
+			COALESCE(p.id, 0), COALESCE(p.recommended, 0), c.nurses_on_duty, c.support_on_duty
 		FROM census c LEFT JOIN projections p ON p.census_id = c.id
 		WHERE c.ward_id = $1 AND c.date = $2 AND c.shift_id = $3
 		ORDER BY c.revision DESC`, wardID, dateArg(d), shiftID)
@@ -153,7 +153,7 @@ func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload
 	}
 	rs, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.ShiftRevision, error) {
 		var v wardload.ShiftRevision
-		err := r.Scan(&v.CensusID, &v.Revision, &v.EnteredAt, &v.TotalPatients, &v.ProjectionID, &v.Recommended)
+		err := r.Scan(&v.CensusID, &v.Revision, &v.EnteredAt, &v.TotalPatients, &v.ProjectionID, &v.Recommended, &v.Staff.Nurses, &v.Staff.Support)
 		v.EnteredAt = v.EnteredAt.UTC()
 		return &v, err
 	})

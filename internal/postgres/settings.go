@@ -27,9 +27,11 @@ func findSettings(ctx context.Context, tx pgx.Tx, wardID int64) (*wardload.Setti
 	}
 	st := wardload.Settings{WardID: wardID}
 	err := tx.QueryRow(ctx, `
-		SELECT direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at
+		SELECT direct_care_fraction, cover_level, lookback_weeks, quartiles, beds,
+			changeover_minutes, support_staff, escalation, updated_by, updated_at
 		FROM ward_settings WHERE ward_id = $1`, wardID,
-	).Scan(&st.DirectCareFraction, &st.CoverLevel, &st.LookbackWeeks, &st.Quartiles, &st.Beds, &st.UpdatedBy, &st.UpdatedAt)
+	).Scan(&st.DirectCareFraction, &st.CoverLevel, &st.LookbackWeeks, &st.Quartiles, &st.Beds,
+		&st.ChangeoverMinutes, &st.SupportStaff, &st.Escalation, &st.UpdatedBy, &st.UpdatedAt)
 	if err == pgx.ErrNoRows {
 		return wardload.DefaultSettings(wardID), nil
 	} else if err != nil {
@@ -71,13 +73,16 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `
-			INSERT INTO ward_settings (ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at)
-			VALUES ($1, $2, $3, $4, $5, $6, $7, $8)
+			INSERT INTO ward_settings (ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds,
+				changeover_minutes, support_staff, escalation, updated_by, updated_at)
+			VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)
 			ON CONFLICT (ward_id) DO UPDATE SET direct_care_fraction = excluded.direct_care_fraction,
 				cover_level = excluded.cover_level, lookback_weeks = excluded.lookback_weeks,
 				quartiles = excluded.quartiles, beds = excluded.beds,
-				updated_by = excluded.updated_by, updated_at = excluded.updated_at`,
-			st.WardID, st.DirectCareFraction, st.CoverLevel, st.LookbackWeeks, st.Quartiles, st.Beds, st.UpdatedBy, now); err != nil {
+				changeover_minutes = excluded.changeover_minutes, support_staff = excluded.support_staff,
+				escalation = excluded.escalation, updated_by = excluded.updated_by, updated_at = excluded.updated_at`,
+			st.WardID, st.DirectCareFraction, st.CoverLevel, st.LookbackWeeks, st.Quartiles, st.Beds,
+			st.ChangeoverMinutes, st.SupportStaff, st.Escalation, st.UpdatedBy, now); err != nil {
 			return err
 		}
 		if _, err := tx.Exec(ctx, `DELETE FROM ratio_floors WHERE ward_id = $1`, st.WardID); err != nil {

@@ -7,7 +7,7 @@ import (
 
 // checkCounts validates the counts against the ward's tiers and beds and
 // returns the census with every tier of the ward, in the tiers' order.
-func checkCounts(wardID int64, date wardload.Date, shiftID int64, tiers []*wardload.Tier, counts []wardload.TierCount, beds int) (*wardload.Census, error) {
+func checkCounts(wardID int64, date wardload.Date, shiftID int64, tiers []*wardload.Tier, counts []wardload.TierCount, staff wardload.StaffOnDuty, beds int) (*wardload.Census, error) {
 	byID := map[int64]*wardload.Tier{}
 	for _, t := range tiers {
 		byID[t.ID] = t
@@ -29,7 +29,10 @@ func checkCounts(wardID int64, date wardload.Date, shiftID int64, tiers []*wardl
 		}
 		given[tc.TierID] = tc.Patients
 	}
-	c := &wardload.Census{WardID: wardID, Date: date, ShiftID: shiftID}
+	if err := staff.Check(beds); err != nil {
+		return nil, err
+	}
+	c := &wardload.Census{WardID: wardID, Date: date, ShiftID: shiftID, Staff: staff}
 	for _, t := range tiers {
 		c.Counts = append(c.Counts, wardload.TierCount{TierID: t.ID, Patients: given[t.ID]})
 	}

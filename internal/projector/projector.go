@@ -71,6 +71,13 @@ type Service struct {
 // count, a count above the beds, or patients in a tier with fewer than two
 // observations in the lookback), "patients" (the total above the beds).
 func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount) (*wardload.Census, *wardload.Projection, error) {
+	return s.prepare(ctx, wardID, date, shiftID, counts, wardload.StaffOnDuty{})
+}
+
+// prepare is Prepare with the staff on duty kept with the census, checked
+// against the ward's beds (StaffOnDuty.Check: EINVALID "nurses_on_duty" or
+// "support_on_duty").
+func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount, staff wardload.StaffOnDuty) (*wardload.Census, *wardload.Projection, error) {
 	ward, err := s.Store.FindWardByID(ctx, wardID)
 	if err != nil {
 		return nil, nil, err
@@ -96,7 +103,7 @@ func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date,
 	if err != nil {
 		return nil, nil, err
 	}
-	census, err := checkCounts(wardID, date, shiftID, tiers, counts, settings.Beds)
+	census, err := checkCounts(wardID, date, shiftID, tiers, counts, staff, settings.Beds)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -188,8 +195,8 @@ func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date,
 // Save prepares the projection and stores it with its census as the next
 // revision, in one transaction (wardload.ProjectionService). Nothing is
 // stored on any error.
-func (s *Service) Save(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount) (*wardload.Census, *wardload.Projection, error) {
-	c, p, err := s.Prepare(ctx, wardID, date, shiftID, counts)
+func (s *Service) Save(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount, staff wardload.StaffOnDuty) (*wardload.Census, *wardload.Projection, error) {
+	c, p, err := s.prepare(ctx, wardID, date, shiftID, counts, staff)
 	if err != nil {
 		return nil, nil, err
 	}

@@ -6,13 +6,6 @@ import (
 	"wardload/internal/wardload"
 )
 
-// ChangeoverWindow is how long before a shift's start the census page
-// offers that shift first, ahead of the one still running: at 07:00 the
-// charge nurse is usually entering the census of the day shift that starts
-// at 07:30, not of the night that is ending. Common practice, no source:
-// a handover is prepared within the last hour or two of a shift.
-const ChangeoverWindow = 90 * time.Minute
-
 // Choice is one dated shift the census page offers, with its real start
 // and end instants (ShiftPattern.Window).
 type Choice struct {
@@ -47,20 +40,21 @@ func CurrentShift(ward *wardload.Ward, patterns []*wardload.ShiftPattern, now ti
 // ShiftChoices returns the dated shifts a census entered at now is most
 // likely for, most likely first:
 //
-//   - a shift starting within ChangeoverWindow after now (real time, so
+//   - a shift starting within window after now (the ward's change-over
+//     window, Settings.ChangeoverMinutes; real time, so
 //     across a daylight-saving change the wall-clock gap differs), then
 //     the shift running now (as CurrentShift: the one that started last);
 //   - otherwise the shift running now alone;
 //   - when none is running, the next one to start alone, however far off.
 //
 // It returns one or two choices, or the errors of CurrentShift.
-func ShiftChoices(ward *wardload.Ward, patterns []*wardload.ShiftPattern, now time.Time) ([]Choice, error) {
+func ShiftChoices(ward *wardload.Ward, patterns []*wardload.ShiftPattern, now time.Time, window time.Duration) ([]Choice, error) {
 	running, next, err := scanShifts(ward, patterns, now)
 	if err != nil {
 		return nil, err
 	}
 	var out []Choice
-	if next != nil && (running == nil || next.Start.Sub(now) <= ChangeoverWindow) {
+	if next != nil && (running == nil || next.Start.Sub(now) <= window) {
 		out = append(out, *next)
 	}
 	if running != nil {

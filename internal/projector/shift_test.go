@@ -112,7 +112,7 @@ func TestShiftChoices(t *testing.T) {
 		{"zone decides", dn, at("2026-06-11 00:30").UTC(), []string{"2026-06-10 Night running"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			cs, err := projector.ShiftChoices(ward, tc.patterns, tc.now)
+			cs, err := projector.ShiftChoices(ward, tc.patterns, tc.now, wardload.DefaultChangeoverMinutes*time.Minute)
 			must(t, err)
 			var got []string
 			for _, c := range cs {
@@ -134,10 +134,43 @@ func TestShiftChoices(t *testing.T) {
 			}
 		})
 	}
-	if _, err := projector.ShiftChoices(ward, nil, at("2026-06-10 12:00")); wardload.ErrorCode(err) != wardload.ENOTFOUND {
+	if _, err := projector.ShiftChoices(ward, nil, at("2026-06-10 12:00"), time.Hour); wardload.ErrorCode(err) != wardload.ENOTFOUND {
 		t.Errorf("no patterns: %v", err)
 	}
-	if _, err := projector.ShiftChoices(&wardload.Ward{TimeZone: "Mars/Base"}, dn, at("2026-06-10 12:00")); wardload.ErrorField(err) != "time_zone" {
+	if _, err := projector.ShiftChoices(&wardload.Ward{TimeZone: "Mars/Base"}, dn, at("2026-06-10 12:00"), time.Hour); wardload.ErrorField(err) != "time_zone" {
 		t.Errorf("bad zone: %v", err)
+	}
+}
+
+// TestShiftChoicesWindow checks the ward's change-over window: the
+// starting shift is offered first from exactly window before its start
+// (07:30 Day), and a window of 0 offers only the running shift.
+func TestShiftChoicesWindow(t *testing.T) {
+	ward := &wardload.Ward{Code: "w", Name: "W", TimeZone: "Europe/London"}
+	loc, err := ward.Location()
+	must(t, err)
+	dn := []*wardload.ShiftPattern{
+		{ID: 1, Name: "Day", StartMinute: 450, NominalHours: 12},
+		{ID: 2, Name: "Night", StartMinute: 1170, NominalHours: 12},
+	}
+	for _, tc := range []struct {
+		clock   string
+		minutes int
+		want    string // the first choice's shift
+		choices int
+	}{
+		{"07:00", 30, "Day", 2},
+		{"06:59", 30, "Night", 1},
+		{"07:29", 0, "Night", 1},
+		{"03:30", 240, "Day", 2},
+		{"03:29", 240, "Night", 1},
+	} {
+		now, err := time.ParseInLocation("2006-01-02 15:04", "2026-06-10 "+tc.clock, loc)
+		must(t, err)
+		cs, err := projector.ShiftChoices(ward, dn, now, time.Duration(tc.minutes)*time.Minute)
+		must(t, err)
+		if len(cs) != tc.choices || cs[0].Shift.Name != tc.want {
+			t.Errorf("%s with a %d-minute window: %d choices, first %s; want %d, first %s", tc.clock, tc.minutes, len(cs), cs[0].Shift.Name, tc.choices, tc.want)
+		}
 	}
 }

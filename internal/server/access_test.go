@@ -78,6 +78,9 @@ var routeExpectations = map[string][]string{
 	"projection":       {pNurseA, pManagerA, pAdmin},
 	"projections.csv":  wardAMgrs,
 	"projections.json": wardAMgrs,
+	// End-of-shift record (shift_record_test.go): every member of ward A.
+	"shift_record.form":   {pNurseA, pManagerA, pAdmin},
+	"shift_record.create": {pNurseA, pManagerA, pAdmin},
 
 	// Weekly review, exclusions and import (review_test.go,
 	// observation_import_test.go): ward A's manager and the admin.

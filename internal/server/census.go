@@ -7,6 +7,7 @@ import (
 	"net/url"
 	"strconv"
 	"strings"
+	"time"
 
 	"wardload/internal/projector"
 	"wardload/internal/wardload"
@@ -15,10 +16,11 @@ import (
 
 // censusData is what the census page needs from the store.
 type censusData struct {
-	ward   *wardload.Ward
-	shifts []*wardload.ShiftPattern
-	tiers  []*wardload.Tier
-	today  wardload.Date
+	ward     *wardload.Ward
+	shifts   []*wardload.ShiftPattern
+	tiers    []*wardload.Tier
+	today    wardload.Date
+	settings *wardload.Settings // beds, change-over window, support staff
 }
 
 func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
@@ -31,12 +33,16 @@ func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
 	if d.shifts, d.tiers, err = s.shiftsAndTiers(r.Context(), ward, "census"); err != nil {
 		return nil, err
 	}
+	if d.settings, err = s.store.FindSettings(r.Context(), ward.ID); err != nil {
+		return nil, fmt.Errorf("census: settings: %w", err)
+	}
 	return d, nil
 }
 
 // handleCensusForm shows the census form. Without query parameters it
 // preselects the first of projector.ShiftChoices in the ward's time zone:
-// within projector.ChangeoverWindow of a shift's start, that shift, offered
+// within the ward's change-over window (Settings.ChangeoverMinutes) of a
+// shift's start, that shift, offered
 // with the running one as two large choices; otherwise the shift running
 // now (or the next one). ?date=&shift= chooses another dated shift. The
 // counts start from the newest census of the chosen shift, if there is
@@ -51,7 +57,7 @@ func (s *Server) handleCensusForm(w http.ResponseWriter, r *http.Request) error 
 	date, shift := q.Get("date"), q.Get("shift")
 	var choices []projector.Choice
 	if len(d.shifts) > 0 {
-		if choices, err = projector.ShiftChoices(d.ward, d.shifts, s.now()); err != nil {
+		if choices, err = projector.ShiftChoices(d.ward, d.shifts, s.now(), time.Duration(d.settings.ChangeoverMinutes)*time.Minute); err != nil {
 			return err
 		}
 	}
@@ -103,6 +109,8 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	day, shiftID, errs := parseShiftChoice(d, date, shift)
 	counts, countErrs := parseCensusForm(form, d.tiers)
 	maps.Copy(errs, countErrs)
+	staff, staffErrs := parseStaffForm(form, d.settings)
+	maps.Copy(errs, staffErrs)
 	if len(errs) > 0 {
 		return rerender(http.StatusBadRequest, errs)
 	}
@@ -111,7 +119,7 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	if form.Get(confirmEndedField) != "1" && shiftEnded(d, day, shiftID, s.now()) {
 		return rerender(http.StatusConflict, map[string]string{})
 	}
-	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts)
+	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts, staff)
 	if wardload.ErrorCode(err) == wardload.EINVALID {
 		return rerender(http.StatusBadRequest, map[string]string{censusErrorField(d, wardload.ErrorField(err)): wardload.ErrorMessage(err)})
 	} else if err != nil {
@@ -128,7 +136,7 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 // with the counts.
 func censusErrorField(d *censusData, field string) string {
 	switch field {
-	case "date", "shift", "patients", "tier":
+	case "date", "shift", "patients", "tier", nursesOnDutyField, supportOnDutyField:
 		return field
 	}
 	for _, t := range d.tiers {
@@ -254,12 +262,13 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		}
 		vm.Tiers = append(vm.Tiers, f)
 	}
-	settings, err := s.store.FindSettings(r.Context(), d.ward.ID)
-	if err != nil {
-		return vm, fmt.Errorf("census: settings: %w", err)
+	var latestCensus *wardload.Census
+	if latest != nil {
+		latestCensus = latest.census
 	}
-	vm.Beds = settings.Beds
-	_, vm.TotalText, vm.TotalOver = censusTotal(vm.Tiers, settings.Beds)
+	staffFieldsVM(&vm, d.settings, form, latestCensus, errs)
+	vm.Beds = d.settings.Beds
+	_, vm.TotalText, vm.TotalOver = censusTotal(vm.Tiers, d.settings.Beds)
 	vm.ScriptURL = s.assets.URL("census.js")
 	for _, k := range []string{"patients", "tier"} {
 		if msg := errs[k]; msg != "" {

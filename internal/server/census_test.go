@@ -145,6 +145,11 @@ func TestCensusBadInput(t *testing.T) {
 		{"not a date", map[string]string{"date": "2026-02-30"}, "census-date", "Enter a date"},
 		{"unknown shift", map[string]string{"shift": "99999"}, "census-shift", "this ward's shifts"},
 		{"ward B's shift", map[string]string{"shift": strconv.FormatInt(f.b.day.ID, 10)}, "census-shift", "this ward's shifts"},
+		// Staff on duty (issue 11 "Bad input"): at most twice the 30 beds.
+		{"nurses on duty negative", map[string]string{"nurses_on_duty": "-2"}, "staff-nurses", "cannot be negative"},
+		{"nurses on duty not a number", map[string]string{"nurses_on_duty": "six"}, "staff-nurses", "whole number"},
+		{"nurses on duty above twice the beds", map[string]string{"nurses_on_duty": "61"}, "staff-nurses", "twice the ward's 30 beds"},
+		{"nurses on duty implausible", map[string]string{"nurses_on_duty": "5000"}, "staff-nurses", "not plausible"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			form := url.Values{"date": {"2026-03-02"}, "shift": {day}, "tier_t1": {"4"}, "tier_t2": {"6"}, "tier_t3": {"3"}, "tier_t4": {"0"}}
@@ -175,6 +180,11 @@ func TestCensusBadInput(t *testing.T) {
 					if v, _ := attrByID(t, body, "tier-"+tier.Code, "value"); v != form.Get("tier_"+tier.Code) {
 						t.Errorf("tier-%s = %q, want the typed %q", tier.Code, v, form.Get("tier_"+tier.Code))
 					}
+				}
+			}
+			if typed, ok := tc.change["nurses_on_duty"]; ok {
+				if v, _ := attrByID(t, body, "staff-nurses", "value"); v != typed {
+					t.Errorf("staff-nurses = %q, want the typed %q", v, typed)
 				}
 			}
 			if nc2, np2 := f.counts(t); nc2 != nc || np2 != np {

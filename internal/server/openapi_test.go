@@ -171,6 +171,8 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"ratio_floor_nurses":null,"ratio_floor_rule":"none","recommended_nurses":1,"decided_by":"cover",
 		"care_giving_nurses":1,"shortfall_method":"simulated_predictive","shortfall_simulated_share":0,
 		"shortfall_wilson95_low":0,"shortfall_wilson95_high":0.001917,"shortfall_text":"< 0.19%",
+		"actual_record_revision":2,"actual_nurses":5,"actual_support_staff":null,"actual_admissions":1,"actual_discharges":0,
+		"care_left_undone":true,"care_left_undone_category":"hygiene",
 		"method_version":"m1","generated_at":"2026-03-01T19:00:00+01:00","caution":"c"}`
 	if err := row.Value.VisitJSON(decodeJSON(t, []byte(good)), openapi3.MultiErrors()); err != nil {
 		t.Fatalf("valid row rejected: %v", err)
@@ -187,6 +189,11 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"bool as string":    strings.Replace(good, `"data_sufficient":true`, `"data_sufficient":"true"`, 1),
 		"bad band method":   strings.Replace(good, `"band_method":"predictive_equal_tailed"`, `"band_method":"guess"`, 1),
 		"census not int":    strings.Replace(good, `"census":{"t1":3}`, `"census":{"t1":"3"}`, 1),
+		// The end-of-shift record's columns: a category outside the fixed
+		// list (free text could hold patient details), negative counts.
+		"free-text category": strings.Replace(good, `"care_left_undone_category":"hygiene"`, `"care_left_undone_category":"bed 4 fell"`, 1),
+		"negative actual":    strings.Replace(good, `"actual_nurses":5`, `"actual_nurses":-1`, 1),
+		"undone as string":   strings.Replace(good, `"care_left_undone":true`, `"care_left_undone":"yes"`, 1),
 	} {
 		if err := row.Value.VisitJSON(decodeJSON(t, []byte(bad))); err == nil {
 			t.Errorf("%s: accepted", name)

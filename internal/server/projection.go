@@ -50,8 +50,17 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 		vm.SettingsURL = settingsURL(ward)
 		body = pg.bodyHTML[1]
 	}
-	if err := s.revisionsVM(r, ward, pg.p, &vm); err != nil {
+	staff, err := s.revisionsVM(r, ward, pg.p, &vm)
+	if err != nil {
 		return err
+	}
+	if err := s.dutyVM(r, ward, pg.p, staff, &vm); err != nil {
+		return err
+	}
+	if s.now().Before(pg.p.End) {
+		vm.RecordEnds = formatLocal(pg.p.End, ward)
+	} else {
+		vm.RecordURL = shiftRecordURL(ward, pg.p.Date, pg.p.ShiftID)
 	}
 	return s.render(w, r, http.StatusOK, web.ProjectionPageParts(s.layout(r, pg.title), vm, templ.Raw(pg.titleHTML), templ.Raw(body)))
 }
@@ -175,13 +184,18 @@ func newProjectionPage(ctx context.Context, ward *wardload.Ward, p *wardload.Pro
 // on every request: a revision saved a moment ago, perhaps by another
 // server process, must show at once. A projection that recommends 0 nurses
 // is read in full to tell a declined one without a floor (no
-// recommendation) from a census without patients; both are rare.
-func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection, vm *web.ProjectionVM) error {
+// recommendation) from a census without patients; both are rare. It
+// returns the staff on duty entered with the projection's own revision.
+func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.Projection, vm *web.ProjectionVM) (wardload.StaffOnDuty, error) {
+	var staff wardload.StaffOnDuty
 	rs, err := s.store.FindShiftRevisions(r.Context(), ward.ID, p.Date, p.ShiftID)
 	if err != nil {
-		return fmt.Errorf("projection %d: revisions: %w", p.ID, err)
+		return staff, fmt.Errorf("projection %d: revisions: %w", p.ID, err)
 	}
 	for _, c := range rs { // newest revision first
+		if c.CensusID == p.CensusID {
+			staff = c.Staff
+		}
 		rv := web.RevisionVM{Revision: c.Revision, EnteredAt: formatLocal(c.EnteredAt, ward), Total: strconv.Itoa(c.TotalPatients), Current: c.CensusID == p.CensusID}
 		if c.ProjectionID != 0 {
 			rv.URL, rv.Recommended = projectionURL(ward, c.ProjectionID), strconv.Itoa(c.Recommended)
@@ -190,7 +204,7 @@ func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.P
 				if c.ProjectionID != p.ID {
 					other, err := s.store.FindProjectionByID(r.Context(), c.ProjectionID)
 					if err != nil {
-						return fmt.Errorf("projection %d: revision %d: %w", p.ID, c.Revision, err)
+						return staff, fmt.Errorf("projection %d: revision %d: %w", p.ID, c.Revision, err)
 					}
 					decided = other.DecidedBy
 				}
@@ -204,5 +218,5 @@ func (s *Server) revisionsVM(r *http.Request, ward *wardload.Ward, p *wardload.P
 		}
 		vm.Revisions = append(vm.Revisions, rv)
 	}
-	return nil
+	return staff, nil
 }

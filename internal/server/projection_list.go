@@ -101,6 +101,13 @@ func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error
 		}
 		if i < len(ps) && ps[i].Date == row.Date && ps[i].CensusRevision == row.CensusRevision && ps[i].ShiftName == row.Shift {
 			rv.URL = projectionURL(ward, ps[i].ID)
+			rv.RecordText = "after " + row.End.Format("15:04")
+			if !s.now().Before(row.End) {
+				rv.RecordURL, rv.RecordText = shiftRecordURL(ward, row.Date, ps[i].ShiftID), "Record"
+				if row.Actual != nil {
+					rv.RecordText = fmt.Sprintf("Recorded (rev. %d)", row.Actual.Revision)
+				}
+			}
 		}
 		vm.Rows = append(vm.Rows, rv)
 	}

@@ -109,6 +109,10 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/census", Name: "census.create", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleCensusCreate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections", Name: "projections", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjections},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections/{id}", Name: "projection", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjection},
+		// The end-of-shift record of a dated shift (shift_record.go): any
+		// member of the ward, once the shift has ended.
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/shift-record", Name: "shift_record.form", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleShiftRecordForm},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/shift-record", Name: "shift_record.create", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleShiftRecordCreate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.csv", Name: "projections.csv", Access: wardManagers, Handler: s.handleProjectionsCSV},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.json", Name: "projections.json", Access: wardManagers, Handler: s.handleProjectionsJSON},
 

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"net/http"
 	"strconv"
+	"strings"
 
 	"wardload/internal/export"
 	"wardload/internal/wardload"
@@ -75,6 +76,9 @@ func (s *Server) settingsVM(r *http.Request, d *settingsData) (web.SettingsVM, e
 			LookbackWeeks:      strconv.Itoa(st.LookbackWeeks),
 			Quartiles:          st.Quartiles,
 			Beds:               strconv.Itoa(st.Beds),
+			ChangeoverMinutes:  strconv.Itoa(st.ChangeoverMinutes),
+			SupportStaff:       st.SupportStaff,
+			Escalation:         st.Escalation,
 		},
 		FloorShifts: floorShiftsVM(d, nil, nil),
 		NewShift:    web.ShiftFormVM{URL: base + "/shifts", ID: "new"},
@@ -152,7 +156,12 @@ func (s *Server) handleSettingsSave(w http.ResponseWriter, r *http.Request) erro
 		LookbackWeeks:      clip(f.Get("lookback_weeks"), 40),
 		Quartiles:          clip(f.Get("quartiles"), 40),
 		Beds:               clip(f.Get("beds"), 40),
-		Errors:             map[string]string{},
+		ChangeoverMinutes:  clip(f.Get("changeover_minutes"), 40),
+		SupportStaff:       f.Get("support_staff") == "1",
+		// Kept as typed (to a bound) so a refusal shows it back; the
+		// domain checks the length and the characters.
+		Escalation: clip(strings.TrimSpace(strings.ReplaceAll(f.Get("escalation"), "\r\n", "\n")), 4*wardload.MaxEscalationText+4),
+		Errors:     map[string]string{},
 	}
 	next := *d.settings
 	next.WardID = d.ward.ID
@@ -162,6 +171,8 @@ func (s *Server) handleSettingsSave(w http.ResponseWriter, r *http.Request) erro
 	next.CoverLevel = p.decimal("cover_level", form.CoverLevel, false)
 	next.LookbackWeeks = p.whole("lookback_weeks", form.LookbackWeeks, false)
 	next.Beds = p.whole("beds", form.Beds, true)
+	next.ChangeoverMinutes = p.whole("changeover_minutes", form.ChangeoverMinutes, false)
+	next.SupportStaff, next.Escalation = form.SupportStaff, form.Escalation
 	next.Quartiles = form.Quartiles
 	if !wardload.ValidQuartiles(next.Quartiles) {
 		form.Errors["quartiles"] = "Choose one of the quartile conventions."

@@ -178,7 +178,8 @@ func TestSettingsSaveHappyPaths(t *testing.T) {
 	t.Run("staffing", func(t *testing.T) {
 		f := newSettingsFixture(t)
 		res, _, page := f.postSettings(t, "/wards/w-a/settings", url.Values{"direct_care_fraction": {"0.8"},
-			"cover_level": {"0.95"}, "lookback_weeks": {"6"}, "quartiles": {"hf7"}, "beds": {"30"}})
+			"cover_level": {"0.95"}, "lookback_weeks": {"6"}, "quartiles": {"hf7"}, "beds": {"30"},
+			"changeover_minutes": {"45"}, "support_staff": {"1"}, "escalation": {"Bleep the site manager (4410).\r\nThen tell the ward manager."}})
 		if res.StatusCode != 303 || res.Header.Get("Location") != "/wards/w-a/settings#staffing" {
 			t.Fatalf("status %d Location %q", res.StatusCode, res.Header.Get("Location"))
 		}
@@ -191,6 +192,9 @@ func TestSettingsSaveHappyPaths(t *testing.T) {
 		}
 		if st.DirectCareFraction != 0.8 || st.CoverLevel != 0.95 || st.LookbackWeeks != 6 || st.Quartiles != "hf7" || st.Beds != 30 {
 			t.Errorf("saved %+v", st)
+		}
+		if st.ChangeoverMinutes != 45 || !st.SupportStaff || st.Escalation != "Bleep the site manager (4410).\nThen tell the ward manager." {
+			t.Errorf("saved change-over %d, support staff %v, escalation %q", st.ChangeoverMinutes, st.SupportStaff, st.Escalation)
 		}
 		if st.UpdatedBy != f.users[pManagerA].ID {
 			t.Errorf("UpdatedBy %d", st.UpdatedBy)
@@ -294,11 +298,18 @@ func TestSettingsBadInputKeepsInputAndChangesNothing(t *testing.T) {
 		kept   map[string]string // input id → value shown back
 	}{
 		{"staffing out of range", "/wards/w-a/settings",
-			url.Values{"direct_care_fraction": {"0.7"}, "cover_level": {"1.5"}, "lookback_weeks": {"8"}, "quartiles": {"hinges"}, "beds": {""}},
+			url.Values{"direct_care_fraction": {"0.7"}, "cover_level": {"1.5"}, "lookback_weeks": {"8"}, "quartiles": {"hinges"}, "beds": {""}, "changeover_minutes": {"90"}},
 			[]string{"cover_level"}, map[string]string{"s-cover": "1.5", "s-dcf": "0.7"}},
 		{"staffing not numbers", "/wards/w-a/settings",
-			url.Values{"direct_care_fraction": {"NaN"}, "cover_level": {"0,9"}, "lookback_weeks": {"-3"}, "quartiles": {"type9"}, "beds": {"1e3"}},
-			[]string{"direct_care_fraction", "cover_level", "lookback_weeks", "quartiles", "beds"}, map[string]string{"s-dcf": "NaN", "s-beds": "1e3"}},
+			url.Values{"direct_care_fraction": {"NaN"}, "cover_level": {"0,9"}, "lookback_weeks": {"-3"}, "quartiles": {"type9"}, "beds": {"1e3"}, "changeover_minutes": {"-5"}},
+			[]string{"direct_care_fraction", "cover_level", "lookback_weeks", "quartiles", "beds", "changeover_minutes"}, map[string]string{"s-dcf": "NaN", "s-beds": "1e3", "s-changeover": "-5"}},
+		{"change-over window above 240 minutes", "/wards/w-a/settings",
+			url.Values{"direct_care_fraction": {"0.7"}, "cover_level": {"0.9"}, "lookback_weeks": {"8"}, "quartiles": {"hinges"}, "beds": {""}, "changeover_minutes": {"241"}},
+			[]string{"changeover_minutes"}, map[string]string{"s-changeover": "241", "s-dcf": "0.7"}},
+		{"escalation text too long", "/wards/w-a/settings",
+			url.Values{"direct_care_fraction": {"0.7"}, "cover_level": {"0.9"}, "lookback_weeks": {"8"}, "quartiles": {"hinges"}, "beds": {""}, "changeover_minutes": {"90"},
+				"escalation": {strings.Repeat("Call the site manager. ", 30)}},
+			[]string{"escalation"}, map[string]string{"s-changeover": "90"}},
 		{"floor of zero", "/wards/w-a/settings/floors",
 			url.Values{"floor_" + night: {"0"}, fmt.Sprintf("floor_%s_%d", night, f.t1.ID): {"4"}},
 			[]string{"floor_" + night}, map[string]string{"f-floor_" + night: "0", fmt.Sprintf("f-floor_%s_%d", night, f.t1.ID): "4"}},
@@ -306,7 +317,7 @@ func TestSettingsBadInputKeepsInputAndChangesNothing(t *testing.T) {
 			url.Values{"floor_" + night: {"0.001"}},
 			[]string{"floor_" + night}, map[string]string{"f-floor_" + night: "0.001"}},
 		{"direct-care fraction typed a hundredfold too small", "/wards/w-a/settings",
-			url.Values{"direct_care_fraction": {"0.0075"}, "cover_level": {"0.9"}, "lookback_weeks": {"8"}, "quartiles": {"hinges"}, "beds": {""}},
+			url.Values{"direct_care_fraction": {"0.0075"}, "cover_level": {"0.9"}, "lookback_weeks": {"8"}, "quartiles": {"hinges"}, "beds": {""}, "changeover_minutes": {"90"}},
 			[]string{"direct_care_fraction"}, map[string]string{"s-dcf": "0.0075"}},
 		{"floor above 50", "/wards/w-a/settings/floors",
 			url.Values{fmt.Sprintf("floor_%s_%d", night, f.t2.ID): {"51"}},

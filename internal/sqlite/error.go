@@ -25,7 +25,8 @@ var uniqueRules = map[string]string{
 	"users.name":                                 wardload.UniqueUserName,
 	"api_tokens.name":                            wardload.UniqueTokenName,
 	"api_tokens.hash":                            wardload.UniqueTokenHash,
-	"census.ward_id,census.date,census.shift_id,census.revision": wardload.UniqueCensusRevision,
+	"census.ward_id,census.date,census.shift_id,census.revision":                             wardload.UniqueCensusRevision,
+	"shift_records.ward_id,shift_records.date,shift_records.shift_id,shift_records.revision": wardload.UniqueShiftRecordRevision,
 }
 
 // constraintKinds maps SQLite's extended result codes of constraint

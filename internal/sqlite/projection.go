@@ -183,7 +183,7 @@ func scanProjection(r scanner) (*wardload.Projection, error) {
 func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload.Date, shiftID int64) ([]*wardload.ShiftRevision, error) {
 	rows, err := s.reader(ctx).QueryContext(ctx, `SELECT c.id, c.revision, c.entered_at,
 			COALESCE((SELECT SUM(n.patients) FROM census_counts n WHERE n.census_id = c.id), 0),
-			COALESCE(p.id, 0), COALESCE(p.recommended, 0)
+			COALESCE(p.id, 0), COALESCE(p.recommended, 0), c.nurses_on_duty, c.support_on_duty
 		FROM census c LEFT JOIN projections p ON p.census_id = c.id
 		WHERE c.ward_id = ? AND c.date = ? AND c.shift_id = ?
 		ORDER BY c.revision DESC`, wardID, d.String(), shiftID)
@@ -195,7 +195,7 @@ func (s *Store) FindShiftRevisions(ctx context.Context, wardID int64, d wardload
 	for rows.Next() {
 		var r wardload.ShiftRevision
 		var entered string
-		if err := rows.Scan(&r.CensusID, &r.Revision, &entered, &r.TotalPatients, &r.ProjectionID, &r.Recommended); err != nil {
+		if err := rows.Scan(&r.CensusID, &r.Revision, &entered, &r.TotalPatients, &r.ProjectionID, &r.Recommended, &r.Staff.Nurses, &r.Staff.Support); err != nil {
 			return nil, err
 		}
 		if r.EnteredAt, err = parseTime(entered); err != nil {

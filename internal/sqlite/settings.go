@@ -19,9 +19,11 @@ func findSettings(ctx context.Context, q querier, wardID int64) (*wardload.Setti
 	}
 	st := &wardload.Settings{WardID: wardID}
 	var updated string
-	err := q.QueryRowContext(ctx, `SELECT direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at
+	err := q.QueryRowContext(ctx, `SELECT direct_care_fraction, cover_level, lookback_weeks, quartiles, beds,
+		changeover_minutes, support_staff, escalation, updated_by, updated_at
 		FROM ward_settings WHERE ward_id = ?`, wardID).Scan(
-		&st.DirectCareFraction, &st.CoverLevel, &st.LookbackWeeks, &st.Quartiles, &st.Beds, &st.UpdatedBy, &updated)
+		&st.DirectCareFraction, &st.CoverLevel, &st.LookbackWeeks, &st.Quartiles, &st.Beds,
+		&st.ChangeoverMinutes, &st.SupportStaff, &st.Escalation, &st.UpdatedBy, &updated)
 	if errors.Is(err, sql.ErrNoRows) {
 		return wardload.DefaultSettings(wardID), nil
 	} else if err != nil {
@@ -64,13 +66,16 @@ func (s *Store) SaveSettings(ctx context.Context, st *wardload.Settings) error {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `INSERT INTO ward_settings
-			(ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds, updated_by, updated_at)
-			VALUES (?, ?, ?, ?, ?, ?, ?, ?)
+			(ward_id, direct_care_fraction, cover_level, lookback_weeks, quartiles, beds,
+				changeover_minutes, support_staff, escalation, updated_by, updated_at)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
 			ON CONFLICT (ward_id) DO UPDATE SET direct_care_fraction = excluded.direct_care_fraction,
 				cover_level = excluded.cover_level, lookback_weeks = excluded.lookback_weeks,
 				quartiles = excluded.quartiles, beds = excluded.beds,
-				updated_by = excluded.updated_by, updated_at = excluded.updated_at`,
-			st.WardID, st.DirectCareFraction, st.CoverLevel, st.LookbackWeeks, st.Quartiles, st.Beds, st.UpdatedBy, formatTime(tx.now)); err != nil {
+				changeover_minutes = excluded.changeover_minutes, support_staff = excluded.support_staff,
+				escalation = excluded.escalation, updated_by = excluded.updated_by, updated_at = excluded.updated_at`,
+			st.WardID, st.DirectCareFraction, st.CoverLevel, st.LookbackWeeks, st.Quartiles, st.Beds,
+			st.ChangeoverMinutes, boolInt(st.SupportStaff), st.Escalation, st.UpdatedBy, formatTime(tx.now)); err != nil {
 			return err
 		}
 		if _, err := tx.ExecContext(ctx, `DELETE FROM ratio_floors WHERE ward_id = ?`, st.WardID); err != nil {

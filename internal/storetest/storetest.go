@@ -33,6 +33,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		tokenCases(),
 		auditCases(),
 		signInCases(),
+		shiftRecordCases(),
 	}
 	for _, g := range groups {
 		for _, tc := range g {

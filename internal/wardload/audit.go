@@ -40,6 +40,7 @@ const (
 	ActionCensusCreate       = "census.create"
 	ActionProjectionCreate   = "projection.create"
 	ActionSettingsSave       = "settings.save"
+	ActionShiftRecordCreate  = "shift_record.create"
 )
 
 // Audit actions of security events, which the server writes itself.

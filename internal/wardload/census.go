@@ -20,12 +20,15 @@ type TierCount struct {
 // dated shift. A correction is a new Census with the next Revision; earlier
 // revisions are kept.
 type Census struct {
-	ID        int64
-	WardID    int64
-	Date      Date
-	ShiftID   int64
-	Revision  int // 1 for the first entry, set by the store
-	Counts    []TierCount
+	ID       int64
+	WardID   int64
+	Date     Date
+	ShiftID  int64
+	Revision int // 1 for the first entry, set by the store
+	Counts   []TierCount
+	// Staff is the staff on duty the charge nurse entered with this
+	// revision; optional, nil counts when not entered.
+	Staff     StaffOnDuty
 	EnteredBy int64
 	EnteredAt time.Time
 }
@@ -66,7 +69,7 @@ func (c *Census) Validate() error {
 			return FieldErrorf(EINVALID, "patients", "A patient count of %d is not plausible for one ward.", tc.Patients)
 		}
 	}
-	return nil
+	return c.Staff.Check(0)
 }
 
 // CensusFilter selects census entries. Zero fields do not filter.

@@ -12,17 +12,20 @@ const (
 	UniqueTokenHash      = "token.hash"      // a token secret is unique
 	UniqueCensusRevision = "census.revision" // one census per ward, date, shift and revision
 	UniqueRatioFloor     = "settings.floor"  // one ratio floor per shift and tier
+	// UniqueShiftRecordRevision: one end-of-shift record per ward, date, shift and revision.
+	UniqueShiftRecordRevision = "shift_record.revision"
 )
 
 var uniqueErrors = map[string]struct{ field, msg string }{
-	UniqueWardCode:       {"code", "A ward with this code already exists."},
-	UniqueTierCode:       {"code", "The ward already has a tier with this code."},
-	UniqueShiftName:      {"name", "The ward already has a shift with this name."},
-	UniqueUserName:       {"name", "A user with this name already exists."},
-	UniqueTokenName:      {"name", "A token with this name already exists."},
-	UniqueTokenHash:      {"hash", "This token secret is already in use; generate a new one."},
-	UniqueCensusRevision: {"", "Someone else saved this census at the same moment; please try again."},
-	UniqueRatioFloor:     {"floors", "A shift has two ratio floors for the same tier."},
+	UniqueWardCode:            {"code", "A ward with this code already exists."},
+	UniqueTierCode:            {"code", "The ward already has a tier with this code."},
+	UniqueShiftName:           {"name", "The ward already has a shift with this name."},
+	UniqueUserName:            {"name", "A user with this name already exists."},
+	UniqueTokenName:           {"name", "A token with this name already exists."},
+	UniqueTokenHash:           {"hash", "This token secret is already in use; generate a new one."},
+	UniqueCensusRevision:      {"", "Someone else saved this census at the same moment; please try again."},
+	UniqueRatioFloor:          {"floors", "A shift has two ratio floors for the same tier."},
+	UniqueShiftRecordRevision: {"", "Someone else saved this end-of-shift record at the same moment; please try again."},
 }
 
 // ConstraintKind is a kind of database constraint failure.

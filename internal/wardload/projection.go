@@ -105,10 +105,11 @@ type ProjectionFilter struct {
 type ShiftRevision struct {
 	CensusID      int64
 	Revision      int
-	EnteredAt     time.Time // UTC
-	TotalPatients int       // Σ of the revision's counts (Census.Total)
-	ProjectionID  int64     // 0 when the revision has no projection
-	Recommended   int       // the projection's Recommended; 0 without one
+	EnteredAt     time.Time   // UTC
+	TotalPatients int         // Σ of the revision's counts (Census.Total)
+	ProjectionID  int64       // 0 when the revision has no projection
+	Recommended   int         // the projection's Recommended; 0 without one
+	Staff         StaffOnDuty // the staff on duty entered with the revision
 }
 
 // ProjectionService stores projections together with their census.

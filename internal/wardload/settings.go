@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"time"
+	"unicode/utf8"
 )
 
 // Quartile conventions a ward can choose for its summaries and fences.
@@ -37,7 +38,21 @@ const (
 	// MaxLookbackWeeks is two years of observations, more than any seasonal
 	// comparison needs: a plausibility bound (common practice, no source).
 	MaxLookbackWeeks = 104
+	// MaxChangeoverMinutes is the widest change-over window: four hours
+	// before a shift's start is already half of most shifts (common
+	// practice, no source).
+	MaxChangeoverMinutes = 240
+	// MaxEscalationText is the length of the escalation text in
+	// characters: a few lines, whom to call and how.
+	MaxEscalationText = 500
 )
+
+// DefaultChangeoverMinutes is the change-over window a new ward starts
+// with: at 07:00 the charge nurse is usually entering the census of the
+// day shift that starts at 07:30, not of the night that is ending.
+// Common practice, no source: a handover is prepared within the last hour
+// or two of a shift.
+const DefaultChangeoverMinutes = 90
 
 // RatioFloor is a minimum nurse-to-patient ratio for one shift pattern:
 // at most PatientsPerNurse patients per nurse. When TierID is not 0 the
@@ -62,8 +77,20 @@ type Settings struct {
 	Quartiles          string  // a Quartiles* constant
 	Beds               int     // 0: not configured
 	Floors             []RatioFloor
-	UpdatedBy          int64
-	UpdatedAt          time.Time
+	// ChangeoverMinutes is how long before a shift's start the census page
+	// offers that shift first, ahead of the one still running; 0 offers
+	// only the running shift. 0..MaxChangeoverMinutes.
+	ChangeoverMinutes int
+	// SupportStaff says the ward has care staff who are not nurses: the
+	// census form then asks for them too.
+	SupportStaff bool
+	// Escalation is what the charge nurse should do when the staff on
+	// duty are below the recommendation (e.g. whom to call), shown on the
+	// projection page; plain text, at most MaxEscalationText characters,
+	// never about a patient.
+	Escalation string
+	UpdatedBy  int64
+	UpdatedAt  time.Time
 }
 
 // DefaultSettings returns the settings a new ward starts with. The values
@@ -81,6 +108,7 @@ func DefaultSettings(wardID int64) *Settings {
 		CoverLevel:         0.9,
 		LookbackWeeks:      8,
 		Quartiles:          QuartilesHinges,
+		ChangeoverMinutes:  DefaultChangeoverMinutes,
 	}
 }
 
@@ -107,6 +135,15 @@ func (s *Settings) Validate() error {
 	}
 	if s.Beds < 0 || s.Beds > 1000 {
 		return FieldErrorf(EINVALID, "beds", "Beds must be between 0 (not set) and 1000.")
+	}
+	if s.ChangeoverMinutes < 0 || s.ChangeoverMinutes > MaxChangeoverMinutes {
+		return FieldErrorf(EINVALID, "changeover_minutes", "The change-over window must be 0 to %d minutes.", MaxChangeoverMinutes)
+	}
+	if utf8.RuneCountInString(s.Escalation) > MaxEscalationText {
+		return FieldErrorf(EINVALID, "escalation", "The escalation text is at most %d characters.", MaxEscalationText)
+	}
+	if !plainText(s.Escalation, "\n\r") {
+		return FieldErrorf(EINVALID, "escalation", "The escalation text must be plain text without control characters.")
 	}
 	type key struct{ shift, tier int64 }
 	seen := map[key]bool{}

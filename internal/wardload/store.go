@@ -23,6 +23,7 @@ type Store interface {
 	TokenService
 	AuditService
 	SignInService
+	ShiftRecordService
 
 	// Ping returns an error if the database cannot be reached.
 	Ping(ctx context.Context) error

@@ -1,0 +1,94 @@
+package server
+
+import (
+	"net/url"
+	"strconv"
+	"strings"
+
+	"wardload/internal/wardload"
+	"wardload/web"
+)
+
+// Form fields of the staff on duty; the same names the domain's errors
+// give (wardload.StaffOnDuty.Check), so a refusal lands beside its field.
+const (
+	nursesOnDutyField  = "nurses_on_duty"
+	supportOnDutyField = "support_on_duty"
+)
+
+// parseStaffCount reads one optional whole-number staff count: empty is
+// "not entered" (nil). The bounds are the domain's (StaffOnDuty.Check and
+// ShiftRecord.Validate); here only the form is read, with a message that
+// says what to type.
+func parseStaffCount(v string) (*int, string) {
+	v = strings.TrimSpace(v)
+	switch {
+	case v == "":
+		return nil, ""
+	case strings.HasPrefix(v, "-"):
+		return nil, "Staff are counted from 0; the number cannot be negative."
+	case strings.Trim(v, "0123456789") != "":
+		return nil, "Enter a whole number, such as 6."
+	}
+	n, err := strconv.Atoi(v)
+	if err != nil || n > wardload.MaxStaffOnDuty {
+		return nil, "That number is not plausible for one ward; please check it."
+	}
+	return &n, ""
+}
+
+// parseStaffForm reads the optional staff on duty of a census form and
+// checks them against the ward's beds. Support staff are read only where
+// the ward uses them. The map names each bad field.
+func parseStaffForm(form url.Values, st *wardload.Settings) (wardload.StaffOnDuty, map[string]string) {
+	errs := map[string]string{}
+	var staff wardload.StaffOnDuty
+	var msg string
+	if staff.Nurses, msg = parseStaffCount(form.Get(nursesOnDutyField)); msg != "" {
+		errs[nursesOnDutyField] = msg
+	}
+	if st.SupportStaff {
+		if staff.Support, msg = parseStaffCount(form.Get(supportOnDutyField)); msg != "" {
+			errs[supportOnDutyField] = msg
+		}
+	}
+	if len(errs) == 0 {
+		if err := staff.Check(st.Beds); err != nil {
+			errs[wardload.ErrorField(err)] = wardload.ErrorMessage(err)
+		}
+	}
+	return staff, errs
+}
+
+// staffFieldsVM builds the staff-on-duty fields: as posted (form not nil),
+// else from the latest revision of this shift (a correction keeps them),
+// else empty. Staff are never carried from another shift: they differ
+// from shift to shift.
+func staffFieldsVM(vm *web.CensusVM, st *wardload.Settings, form url.Values, latest *wardload.Census, errs map[string]string) {
+	fields := []web.StaffFieldVM{{Name: nursesOnDutyField, InputID: "staff-nurses", Label: "Nurses on duty",
+		Hint: "Every nurse on the shift, the nurse in charge included."}}
+	if st.SupportStaff {
+		fields = append(fields, web.StaffFieldVM{Name: supportOnDutyField, InputID: "staff-support", Label: "Support staff on duty",
+			Hint: "Care staff who are not nurses."})
+	}
+	for i := range fields {
+		f := &fields[i]
+		switch {
+		case form != nil:
+			f.Value = clip(strings.TrimSpace(form.Get(f.Name)), 12)
+		case latest != nil:
+			n := latest.Staff.Nurses
+			if f.Name == supportOnDutyField {
+				n = latest.Staff.Support
+			}
+			if n != nil {
+				f.Value = strconv.Itoa(*n)
+			}
+		}
+		f.Error = errs[f.Name]
+		if f.Error != "" {
+			vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#" + f.InputID, Message: f.Label + ": " + f.Error})
+		}
+	}
+	vm.Staff = fields
+}
