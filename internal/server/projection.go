@@ -112,6 +112,13 @@ type projectionPage struct {
 	bodyHTML  [2]string
 }
 
+// projectionCache is the server's cache of projection pages.
+type projectionCache = projector.PageCache[*projectionPage]
+
+func newProjectionCache(max int) *projectionCache {
+	return projector.NewPageCache[*projectionPage](max)
+}
+
 // newProjectionPage builds the projection's part of the page from the
 // stored projection. The figures the export carries come from the
 // export's own row of the projection (export.NewRow), formatted with its

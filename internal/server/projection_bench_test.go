@@ -11,7 +11,6 @@ import (
 	"time"
 
 	"wardload/internal/demo"
-	"wardload/internal/projector"
 	"wardload/internal/sqlite"
 	"wardload/internal/wardload"
 )
@@ -88,7 +87,7 @@ func BenchmarkProjectionPage(b *testing.B) {
 	b.Run("uncached", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			p.s.projections = projector.NewPageCache[*projectionPage](projectionCacheSize)
+			p.s.projections = newProjectionCache(projectionCacheSize)
 			p.get(b, p.path, p.cookie)
 		}
 	})

@@ -156,7 +156,7 @@ type Server struct {
 	projector *projector.Service
 	// projections caches the projection-specific part of projection
 	// pages; stored projections never change.
-	projections *projector.PageCache[*projectionPage]
+	projections *projectionCache
 	// The layout's versioned asset URLs, fixed once the assets are loaded.
 	stylesheetURL, iconURL string
 
@@ -218,7 +218,7 @@ func New(cfg Config) (*Server, error) {
 		addrThrottle: newThrottle(20, 15*time.Minute),
 		signin:       newSignInGuard(cfg),
 		sealKey:      newSealKey(),
-		projections:  projector.NewPageCache[*projectionPage](projectionCacheSize),
+		projections:  newProjectionCache(projectionCacheSize),
 		faults:       newFaultLog(cfg.Logger, cfg.FaultLogInterval),
 	}
 	s.projector = &projector.Service{Store: cfg.Store, Now: cfg.Now, Draws: cfg.Draws}
