@@ -22,12 +22,7 @@ const chromiumPath = "/usr/bin/chromium"
 // Chromium the test is skipped, except under CI=true, where it must run.
 func newBrowser(t *testing.T) context.Context {
 	t.Helper()
-	if _, err := os.Stat(chromiumPath); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("CI=true but %s is missing: %v", chromiumPath, err)
-		}
-		t.Skipf("%s not installed; browser test skipped", chromiumPath)
-	}
+	needChromium(t)
 	opts := []chromedp.ExecAllocatorOption{
 		chromedp.ExecPath(chromiumPath),
 		chromedp.Headless,
@@ -54,14 +49,38 @@ func newBrowser(t *testing.T) context.Context {
 //
 // It runs once per store: on the embedded SQLite store, and on PostgreSQL
 // when WARDLOAD_TEST_DATABASE_URL is set (required under CI=true).
+//
+// The journey needs the demo as it is, so each store is a copy of the
+// demo seeded once for the test binary (mustDemoDataDir, mustDemoDatabase).
 func TestBrowserCensusToProjection(t *testing.T) {
-	onEachStore(t, browserJourney)
+	t.Parallel()
+	needChromium(t)
+	t.Run("sqlite", func(t *testing.T) {
+		dir, accounts := mustDemoDataDir(t)
+		browserJourney(t, &storeOptions{DataDir: dir}, accounts["demo.charge1"], "--data-dir", dir)
+	})
+	t.Run("postgres", func(t *testing.T) {
+		dbURL, accounts := mustDemoDatabase(t)
+		browserJourney(t, &storeOptions{DB: dbURL}, accounts["demo.charge1"], "--db", dbURL, "--data-dir", t.TempDir())
+	})
+}
+
+// needChromium skips the test without Chromium, or fails it under CI=true.
+func needChromium(t *testing.T) {
+	t.Helper()
+	if _, err := os.Stat(chromiumPath); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("CI=true but %s is missing: %v", chromiumPath, err)
+		}
+		t.Skipf("%s not installed; browser test skipped", chromiumPath)
+	}
 }
 
 // onEachStore runs a journey as two subtests: on the embedded SQLite
 // store, and on PostgreSQL when WARDLOAD_TEST_DATABASE_URL is set. The
 // journey gets the store for reading back and the arguments for serve.
 func onEachStore(t *testing.T, journey func(t *testing.T, so *storeOptions, storeArgs ...string)) {
+	needChromium(t) // before creating a database only to skip
 	t.Run("sqlite", func(t *testing.T) {
 		dir := t.TempDir()
 		journey(t, &storeOptions{DataDir: dir}, "--data-dir", dir)
@@ -72,15 +91,12 @@ func onEachStore(t *testing.T, journey func(t *testing.T, so *storeOptions, stor
 	})
 }
 
-// browserJourney is the charge nurse's journey against one store: so
-// selects the store for reading back, storeArgs for serve.
-func browserJourney(t *testing.T, so *storeOptions, storeArgs ...string) {
+// browserJourney is the charge nurse's journey against one store holding
+// the demo: so selects the store for reading back, storeArgs for serve;
+// pw is demo.charge1's password.
+func browserJourney(t *testing.T, so *storeOptions, pw string, storeArgs ...string) {
 	ctx := newBrowser(t)
-	s := MustServe(t, append([]string{"--demo", "--addr", "127.0.0.1:0"}, storeArgs...)...)
-	m := regexp.MustCompile(`demo\.charge1\s+charge_nurse\s+(\S+)`).FindStringSubmatch(s.stdout.String())
-	if m == nil {
-		t.Fatalf("no demo.charge1 password in:\n%s", s.stdout)
-	}
+	s := MustServe(t, append([]string{"--addr", "127.0.0.1:0"}, storeArgs...)...)
 	do := func(what string, steps ...chromedp.Action[chromedp.Void]) {
 		t.Helper()
 		if err := chromedp.Do(ctx, steps...); err != nil {
@@ -90,7 +106,7 @@ func browserJourney(t *testing.T, so *storeOptions, storeArgs ...string) {
 	do("sign in",
 		chromedp.Navigate(s.URL+"/signin"),
 		chromedp.SendKeys(chromedp.CSS("#signin-name"), "demo.charge1"),
-		chromedp.SendKeys(chromedp.CSS("#signin-password"), m[1]+kb.Enter),
+		chromedp.SendKeys(chromedp.CSS("#signin-password"), pw+kb.Enter),
 		chromedp.WaitVisible(chromedp.CSS(`[data-testid="wards"]`)),
 	)
 	do("open the census page",

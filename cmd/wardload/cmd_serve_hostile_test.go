@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"context"
 	"fmt"
 	"io"
 	"net/http"
@@ -14,6 +15,7 @@ import (
 	"time"
 
 	"wardload/internal/password"
+	"wardload/internal/wardload"
 )
 
 // hostileSignInBound is the resident memory the server may reach while
@@ -35,9 +37,25 @@ func TestServeHostileSignInMemory(t *testing.T) {
 		t.Skip("needs /proc")
 	}
 	// The other tests hash with cheap parameters for speed; this one is
-	// about the production cost (zero parameters), for the demo accounts
-	// and every sign-in.
-	s := mustServeWith(t, nil, password.Params{}, "--addr", "127.0.0.1:0", "--data-dir", t.TempDir(), "--demo")
+	// about the production cost (zero parameters), for the account signed
+	// in to and every sign-in. The copied demo's hashes are cheap, so the
+	// account's hash is made again at production cost.
+	dir, accounts := mustDemoDataDir(t)
+	st := openTestStore(t, dir)
+	ctx := context.Background()
+	u, err := st.FindUserByName(ctx, "demo.charge1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	hash, err := password.Params{}.Hash(accounts["demo.charge1"])
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := st.UpdateUser(wardload.WithActor(ctx, wardload.Actor{Name: "test"}), u.ID, wardload.UserUpdate{PasswordHash: &hash}); err != nil {
+		t.Fatal(err)
+	}
+	st.Close()
+	s := mustServeWith(t, nil, password.Params{}, "--addr", "127.0.0.1:0", "--data-dir", dir)
 	// Reset the peak (VmHWM) so it covers the burst only; where the kernel
 	// refuses, the peak since start is a stricter measure.
 	os.WriteFile("/proc/self/clear_refs", []byte("5"), 0)

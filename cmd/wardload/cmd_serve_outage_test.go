@@ -5,7 +5,6 @@ import (
 	"net"
 	"net/http"
 	"net/url"
-	"regexp"
 	"strings"
 	"sync"
 	"testing"
@@ -83,19 +82,16 @@ func (p *tcpProxy) Cut() {
 // fail (before: one ERROR line per request). When the connection is back,
 // pages and readiness recover by themselves and the session still holds.
 func TestServePostgresOutage(t *testing.T) {
-	dbURL := mustCreateDatabase(t)
+	t.Parallel()
+	dbURL, accounts := mustDemoDatabase(t)
 	u, err := url.Parse(dbURL)
 	if err != nil {
 		t.Fatal(err)
 	}
 	p := mustProxy(t, u.Host)
 	u.Host = p.addr
-	s := MustServe(t, "--addr", "127.0.0.1:0", "--db", u.String(), "--data-dir", t.TempDir(), "--demo", "--log-format", "json")
-	m := regexp.MustCompile(`(demo\.\S+)\s+charge_nurse\s+(\S+)`).FindStringSubmatch(s.stdout.String())
-	if m == nil {
-		t.Fatalf("no charge nurse in:\n%s", s.stdout)
-	}
-	c := signIn(t, s.URL, m[1], m[2])
+	s := MustServe(t, "--addr", "127.0.0.1:0", "--db", u.String(), "--data-dir", t.TempDir(), "--log-format", "json")
+	c := signIn(t, s.URL, "demo.charge1", accounts["demo.charge1"])
 	census := s.URL + "/wards/" + demo.WardCode + "/census"
 	if code, _ := getWith(t, c, census); code != http.StatusOK {
 		t.Fatalf("census page before the outage: %d", code)

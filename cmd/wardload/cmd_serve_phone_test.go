@@ -35,6 +35,7 @@ const phoneWidth, phoneHeight = 390, 844
 // On failure the first screen is saved as a PNG in $WARDLOAD_TEST_ARTIFACTS
 // (or the test's temporary directory, named in the log).
 func TestPhoneChangeover(t *testing.T) {
+	t.Parallel()
 	onEachStore(t, phoneJourney)
 }
 

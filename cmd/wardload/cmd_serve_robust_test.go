@@ -4,7 +4,6 @@ import (
 	"io"
 	"net/http"
 	"net/url"
-	"regexp"
 	"strings"
 	"testing"
 
@@ -17,13 +16,10 @@ import (
 // shows the failure: each was a 500 with the driver's SQLSTATE 22021 in
 // the log. Each must be a plain 4xx, with no ERROR logged.
 func TestServePostgresHostileText(t *testing.T) {
-	dbURL := mustCreateDatabase(t)
-	s := MustServe(t, "--addr", "127.0.0.1:0", "--db", dbURL, "--data-dir", t.TempDir(), "--demo")
-	m := regexp.MustCompile(`demo\.admin\s+admin\s+(\S+)`).FindStringSubmatch(s.stdout.String())
-	if m == nil {
-		t.Fatalf("no demo.admin password in:\n%s", s.stdout)
-	}
-	c := signIn(t, s.URL, "demo.admin", m[1])
+	t.Parallel()
+	dbURL, accounts := mustDemoDatabase(t)
+	s := MustServe(t, "--addr", "127.0.0.1:0", "--db", dbURL, "--data-dir", t.TempDir())
+	c := signIn(t, s.URL, "demo.admin", accounts["demo.admin"])
 	c.CheckRedirect = func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse }
 	do := func(method, path, body string) int {
 		t.Helper()

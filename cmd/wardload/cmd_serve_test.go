@@ -156,6 +156,7 @@ func getWith(tb testing.TB, c *http.Client, u string) (int, string) {
 }
 
 func TestServeEndToEnd(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	if code, _, errs := runCLI(t, dir, "first admin passphrase\n", "user", "add", "--role", "admin", "ada.admin"); code != exitOK {
 		t.Fatalf("user add: %d %s", code, errs)
@@ -206,6 +207,7 @@ func TestServeEndToEnd(t *testing.T) {
 }
 
 func TestServeDemo(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	s := MustServe(t, "--addr", "127.0.0.1:0", "--data-dir", dir, "--demo")
 	out := s.stdout.String()
@@ -333,6 +335,7 @@ func TestServeAndStoreFlagsFromEnvironment(t *testing.T) {
 
 // TestServePostgres runs serve against a fresh database on the test server.
 func TestServePostgres(t *testing.T) {
+	t.Parallel()
 	dbURL := mustCreateDatabase(t)
 	if code, _, errs := runCLI(t, t.TempDir(), "first admin passphrase\n", "user", "add", "--role", "admin", "--db", dbURL, "ada.admin"); code != exitOK {
 		t.Fatalf("user add: %d %s", code, errs)
@@ -362,6 +365,31 @@ func TestServePostgres(t *testing.T) {
 // under CI=true, where the PostgreSQL runs are part of the build.
 func mustCreateDatabase(tb testing.TB) string {
 	tb.Helper()
+	return mustCreateDatabaseFrom(tb, "")
+}
+
+// mustCreateDatabaseFrom is mustCreateDatabase with the new database a
+// copy of the database template (empty: the server's default template).
+func mustCreateDatabaseFrom(tb testing.TB, template string) string {
+	tb.Helper()
+	base := testDatabaseURL(tb)
+	name := "wardload_e2e_" + strings.ToLower(rand.Text()[:12])
+	dbURL, err := createDatabase(base, name, template)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	tb.Cleanup(func() {
+		if err := dropDatabase(base, name); err != nil {
+			tb.Errorf("drop database %s: %v", name, err)
+		}
+	})
+	return dbURL
+}
+
+// testDatabaseURL returns WARDLOAD_TEST_DATABASE_URL; without it the test
+// is skipped, or fails under CI=true.
+func testDatabaseURL(tb testing.TB) string {
+	tb.Helper()
 	base := os.Getenv("WARDLOAD_TEST_DATABASE_URL")
 	if base == "" {
 		if os.Getenv("CI") == "true" {
@@ -369,27 +397,41 @@ func mustCreateDatabase(tb testing.TB) string {
 		}
 		tb.Skip("WARDLOAD_TEST_DATABASE_URL not set; PostgreSQL test skipped")
 	}
+	return base
+}
+
+// createDatabase creates the database name (from template, if not empty)
+// on the server of base and returns its URL.
+func createDatabase(base, name, template string) (string, error) {
+	u, err := url.Parse(base)
+	if err != nil {
+		return "", fmt.Errorf("WARDLOAD_TEST_DATABASE_URL must be a URL: %w", err)
+	}
 	ctx := context.Background()
 	conn, err := pgx.Connect(ctx, base)
 	if err != nil {
-		tb.Fatalf("connect to WARDLOAD_TEST_DATABASE_URL: %v", err)
+		return "", fmt.Errorf("connect to WARDLOAD_TEST_DATABASE_URL: %w", err)
 	}
-	name := "wardload_e2e_" + strings.ToLower(rand.Text()[:12])
-	ident := pgx.Identifier{name}.Sanitize()
-	if _, err := conn.Exec(ctx, "CREATE DATABASE "+ident); err != nil {
-		conn.Close(ctx)
-		tb.Fatalf("create database: %v", err)
+	defer conn.Close(ctx)
+	sql := "CREATE DATABASE " + pgx.Identifier{name}.Sanitize()
+	if template != "" {
+		sql += " TEMPLATE " + pgx.Identifier{template}.Sanitize()
 	}
-	tb.Cleanup(func() {
-		defer conn.Close(ctx)
-		if _, err := conn.Exec(ctx, "DROP DATABASE IF EXISTS "+ident+" WITH (FORCE)"); err != nil {
-			tb.Errorf("drop database %s: %v", name, err)
-		}
-	})
-	u, err := url.Parse(base)
-	if err != nil {
-		tb.Fatalf("WARDLOAD_TEST_DATABASE_URL must be a URL: %v", err)
+	if _, err := conn.Exec(ctx, sql); err != nil {
+		return "", fmt.Errorf("create database: %w", err)
 	}
 	u.Path = "/" + name
-	return fmt.Sprint(u)
+	return fmt.Sprint(u), nil
+}
+
+// dropDatabase drops the database name on the server of base.
+func dropDatabase(base, name string) error {
+	ctx := context.Background()
+	conn, err := pgx.Connect(ctx, base)
+	if err != nil {
+		return err
+	}
+	defer conn.Close(ctx)
+	_, err = conn.Exec(ctx, "DROP DATABASE IF EXISTS "+pgx.Identifier{name}.Sanitize()+" WITH (FORCE)")
+	return err
 }

@@ -32,6 +32,7 @@ func (f *failingStore) Atomically(ctx context.Context, fn func(context.Context) 
 // no ward, no account whose password was never shown, no audit row — and
 // the next start seeds the demo in full and shows the passwords.
 func TestSeedFailureLeavesNothing(t *testing.T) {
+	t.Parallel() // the seeds are independent; PostgreSQL's mostly waits
 	ctx := context.Background()
 	st := mustOpen(t)
 	if _, ok := st.(demo.Atomic); !ok {

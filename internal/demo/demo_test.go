@@ -99,6 +99,7 @@ func mustSeeded(t *testing.T) (wardload.Store, *demo.Result) {
 }
 
 func TestSeed(t *testing.T) {
+	t.Parallel() // the seeds are independent; PostgreSQL's mostly waits
 	st, res := mustSeeded(t)
 	checkSeeded(t, st, res)
 }
@@ -326,6 +327,7 @@ func checkSeeded(t *testing.T, st wardload.Store, res *demo.Result) {
 }
 
 func TestSeedIsDeterministic(t *testing.T) {
+	t.Parallel() // the seeds are independent; PostgreSQL's mostly waits
 	a, ra := mustSeeded(t)
 	b := mustOpen(t)
 	rb := mustSeed(t, b)

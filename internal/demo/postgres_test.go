@@ -66,6 +66,7 @@ func mustOpenPostgres(t *testing.T) wardload.Store {
 // TestSeedPostgres runs the scenario checks on PostgreSQL, the backend of
 // the docker compose set-up, and checks it holds the same data as SQLite.
 func TestSeedPostgres(t *testing.T) {
+	t.Parallel() // the seeds are independent; PostgreSQL's mostly waits
 	pg := mustOpenPostgres(t)
 	checkSeed(t, pg)
 

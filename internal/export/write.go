@@ -272,7 +272,13 @@ func WriteJSON(w io.Writer, ward *wardload.Ward, from, to wardload.Date, tiers [
 	return err
 }
 
-// buildJSON appends WriteJSON's object to b.
+// buildJSON appends WriteJSON's object to b. Every key and value goes
+// through encoding/json (key); only the object's frame is written here.
+// It stays hand-framed rather than a struct for json.Marshal because its
+// bytes (pinned by projections.json.golden) cannot be had from types: each
+// row starts on a new line, which json.Marshal compacts away even inside
+// a json.RawMessage, and a row's keys are the CSV columns in their order,
+// including one census key per tier code, which a struct cannot name.
 func buildJSON(b *bytes.Buffer, ward *wardload.Ward, from, to wardload.Date, tiers []*wardload.Tier, rows []Row) error {
 	b.WriteString("{")
 	key(b, "ward", ward.Code)

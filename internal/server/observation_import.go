@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"time"
 
+	"wardload/internal/csvfile"
 	"wardload/internal/projector"
 	"wardload/internal/wardload"
 	"wardload/web"
@@ -104,11 +105,11 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 
 // ParseObservationImport reads an observation import file for ward, as
 // the web import and the command line's observations import both do: the
-// columns of parseObservationCSV, dates checked against now in the ward's
+// columns of csvfile.ReadObservations, dates checked against now in the ward's
 // time zone. Every problem is EINVALID naming the file line; lines[i] is
 // the file line of obs[i], for RowToLine.
 func ParseObservationImport(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern, now time.Time) (obs []*wardload.Observation, lines []int, err error) {
-	obs, lines, err = parseObservationCSV(r, ward, tiers, shifts)
+	obs, lines, err = csvfile.ReadObservations(r, ward, tiers, shifts)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -140,7 +141,7 @@ func (s *Server) handleImportTemplate(w http.ResponseWriter, r *http.Request) er
 	ward := principalFrom(r.Context()).Ward
 	var buf bytes.Buffer
 	cw := csv.NewWriter(&buf)
-	if err := cw.Write(observationHeader(ward)); err != nil {
+	if err := cw.Write(csvfile.ObservationHeader(ward)); err != nil {
 		return fmt.Errorf("template: %w", err)
 	}
 	cw.Flush()

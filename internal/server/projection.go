@@ -30,8 +30,8 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	if err != nil {
 		return notFound
 	}
-	key := projectionKey{ID: id, WardID: ward.ID, WardCode: ward.Code, WardName: ward.Name, TimeZone: ward.TimeZone}
-	pg, ok := s.projections.get(key)
+	key := projector.KeyFor(ward, id)
+	pg, ok := s.projections.Get(key)
 	if !ok {
 		p, err := s.store.FindProjectionByID(r.Context(), id)
 		if wardload.ErrorCode(err) == wardload.ENOTFOUND || (err == nil && p.WardID != ward.ID) {
@@ -42,7 +42,7 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 		if pg, err = newProjectionPage(r.Context(), ward, p); err != nil {
 			return err
 		}
-		s.projections.add(key, pg)
+		s.projections.Add(key, pg)
 	}
 	vm := pg.vm
 	body := pg.bodyHTML[0]
@@ -100,6 +100,32 @@ func decidedText(p *wardload.Projection) string {
 		return fmt.Sprintf("The ratio floor and %s both ask for %d nurses.", cover, p.Recommended)
 	}
 	return fmt.Sprintf("Set by %s; the ratio floor asks for %d.", cover, *p.Floor)
+}
+
+// projectionCacheSize bounds the projection page cache. An entry is a few
+// kilobytes (the page's strings and chart geometry, not the stored Input
+// and Result), so the cache stays around a megabyte.
+const projectionCacheSize = 256
+
+// projectionPage is the part of a projection page that depends only on
+// the projection and its ward: everything but the signed-in user's links
+// and the census revisions of the shift, which change and are read anew
+// on every request. The server keeps them in a projector.PageCache.
+type projectionPage struct {
+	p     *wardload.Projection // without Input and Result
+	title string
+	vm    web.ProjectionVM // SettingsURL, Revisions, NewerURL unset
+	// Rendered HTML of web.ProjectionTitle and web.ProjectionBody; the
+	// body once without and once with the link to the ward settings.
+	titleHTML string
+	bodyHTML  [2]string
+}
+
+// projectionCache is the server's cache of projection pages.
+type projectionCache = projector.PageCache[*projectionPage]
+
+func newProjectionCache(max int) *projectionCache {
+	return projector.NewPageCache[*projectionPage](max)
 }
 
 // newProjectionPage builds the projection's part of the page from the

@@ -3,6 +3,7 @@ package stats
 import (
 	"encoding/json"
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
@@ -149,7 +150,7 @@ func TestProjectProperties(t *testing.T) {
 // × 60 observations of 12-hour shifts, 40 patients, ratio floor 1:5 with
 // the nurse in charge not counting.
 func benchInput(draws int) ProjectionInput {
-	g := newPCG(2026, 12)
+	g := rand.NewPCG(2026, 12)
 	in := ProjectionInput{
 		ShiftHours: 12, DirectCareFraction: 0.8, Levels: []float64{0.8, 0.9},
 		Cover: 0.9, Draws: draws, Seed: 7, Floor: &FloorSpec{PatientsPerNurse: 5},

@@ -1,4 +1,4 @@
-package server
+package csvfile
 
 import (
 	"bytes"
@@ -10,21 +10,21 @@ import (
 	"wardload/internal/wardload"
 )
 
-// FuzzParseObservationCSV is the fuzz target of the observation CSV
-// reader. Properties: it never panics; a failure is an EINVALID
-// *wardload.Error whose message names a line (or says the file is empty or
-// has no rows); a success returns one observation per line number, each
-// passing Validate and usable by the model (within stats.MaxShiftMinutes),
-// of this ward and of one of its tiers and shifts, with only the ward's
-// factors. Seeds are in testdata/fuzz/FuzzParseObservationCSV and run with
+// FuzzObservations is the fuzz target of ReadObservations.
+// Properties: it never panics; a failure is an EINVALID *wardload.Error
+// whose message names a line (or says the file is empty or has no rows);
+// a success returns one observation per line number, each passing
+// Validate and usable by the model (within stats.MaxShiftMinutes), of
+// this ward and of one of its tiers and shifts, with only the ward's
+// factors. Seeds are in testdata/fuzz/FuzzObservations and run with
 // go test.
-func FuzzParseObservationCSV(f *testing.F) {
+func FuzzObservations(f *testing.F) {
 	ward := &wardload.Ward{ID: 7, Code: "w7", Name: "W7", TimeZone: "Europe/London", FactorNames: []string{"dependency_score"}}
 	tiers := []*wardload.Tier{{ID: 11, WardID: 7, Code: "t1", Label: "T1"}, {ID: 12, WardID: 7, Code: "t2", Label: "T2"}}
 	shifts := []*wardload.ShiftPattern{{ID: 21, WardID: 7, Name: "Day", StartMinute: 450, NominalHours: 12.5},
 		{ID: 22, WardID: 7, Name: "Night", StartMinute: 1170, NominalHours: 12.5}}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		obs, lines, err := parseObservationCSV(bytes.NewReader(data), ward, tiers, shifts)
+		obs, lines, err := ReadObservations(bytes.NewReader(data), ward, tiers, shifts)
 		if err != nil {
 			var e *wardload.Error
 			if !errors.As(err, &e) || e.Code != wardload.EINVALID {

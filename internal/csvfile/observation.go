@@ -1,4 +1,4 @@
-package server
+package csvfile
 
 import (
 	"fmt"
@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 
-	"wardload/internal/csvfile"
 	"wardload/internal/stats"
 	"wardload/internal/wardload"
 )
@@ -19,13 +18,13 @@ var observationColumns = []string{"date", "shift", "tier", "window_hours", "care
 // pattern over the autumn clock change).
 const maxRealShiftHours = 25
 
-// observationHeader is the header row of an import file for ward: the
-// fixed columns, then the ward's factors.
-func observationHeader(ward *wardload.Ward) []string {
+// ObservationHeader is the header row of an observation import file for
+// ward: the fixed columns, then the ward's factors.
+func ObservationHeader(ward *wardload.Ward) []string {
 	return append(slices.Clone(observationColumns), ward.FactorNames...)
 }
 
-// parseObservationCSV reads an observation import file for ward. Shifts
+// ReadObservations reads an observation import file for ward. Shifts
 // are named by pattern name, tiers by code. A factor cell may be blank
 // (not recorded). Every problem is EINVALID with a message naming the file
 // line and column. lines[i] is the file line of obs[i], so that a store
@@ -35,12 +34,12 @@ func observationHeader(ward *wardload.Ward) []string {
 // another system may carry a name, record number or birth date, and
 // wardload keeps no patient identifiers, so such a file must be cut down
 // before import rather than silently trimmed.
-func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
-	t, err := csvfile.Read(r)
+func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
+	t, err := Read(r)
 	if err != nil {
 		return nil, nil, err
 	}
-	allowed := observationHeader(ward)
+	allowed := ObservationHeader(ward)
 	for i, h := range t.Header {
 		if !slices.Contains(allowed, h) {
 			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
@@ -63,7 +62,7 @@ func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tie
 		shiftByName[strings.ToLower(sp.Name)] = sp
 	}
 
-	// Numbers first, column by column: csvfile names line and column.
+	// Numbers first, column by column: Floats names line and column.
 	window, err := t.Floats("window_hours")
 	if err != nil {
 		return nil, nil, err
@@ -101,8 +100,8 @@ func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tie
 			if c < 0 || strings.TrimSpace(t.Records[i][c]) == "" {
 				continue
 			}
-			// csvfile's number rules, so a factor reads exactly as the
-			// other numeric columns do.
+			// The package's number rules, so a factor reads exactly as
+			// the other numeric columns do.
 			v, err := t.Float(i, f)
 			if err != nil {
 				return nil, nil, err
@@ -113,7 +112,11 @@ func parseObservationCSV(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tie
 			o.Factors[f] = v
 		}
 		if err := o.Validate(); err != nil {
-			return nil, nil, cellErr(fieldOr(err, "file"), "%s", wardload.ErrorMessage(err))
+			field := wardload.ErrorField(err)
+			if field == "" {
+				field = "file"
+			}
+			return nil, nil, cellErr(field, "%s", wardload.ErrorMessage(err))
 		}
 		// The model refuses an observation that scales past
 		// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
@@ -149,4 +152,13 @@ func listOrNone(s []string) string {
 		return "it has none yet"
 	}
 	return "it has " + strings.Join(s, ", ")
+}
+
+// clip shortens s, quoted in a message, to at most n bytes of valid UTF-8
+// (as the server clips what it echoes).
+func clip(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	return strings.ToValidUTF8(s[:n], "")
 }
