@@ -161,7 +161,7 @@ func fitTier(recs []censusRecord, k int, family CountFamily, origin int) (*tierM
 	f := (qMain.fit.Deviance - qFull.fit.Deviance) / df1 / qFull.fit.Dispersion
 	p := 1 - distuv.F{D1: df1, D2: df2}.CDF(math.Max(f, 0))
 	if !(p < interactionAlpha) {
-		main.reason = "main effects: the weekday × shift interaction was not significant (F test, 5%)"
+		main.reason = "main effects: the weekday × shift interaction was not significant at 5% by the F test"
 		return main, nil
 	}
 	if family == FamilyQuasiPoisson {
