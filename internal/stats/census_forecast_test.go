@@ -333,3 +333,71 @@ func TestPITBandShare(t *testing.T) {
 		}
 	}
 }
+
+// A tier never present is forecast as none; one never present on nights
+// has its night cells forecast as none and its days fitted; NB2 reports θ.
+func TestForecastCensusZerosAndNB2(t *testing.T) {
+	hist := poissonHistory("2026-01-05", 42, []string{"Day", "Night"}, 6, 4, 8, nil)
+	for i := range hist {
+		switch {
+		case hist[i].Tier == "t2" && hist[i].Shift == "Night":
+			hist[i].Patients = 0
+		}
+	}
+	hist = append(hist, CensusCount{Date: "2026-01-05", Shift: "Day", Tier: "t9", Patients: 0})
+	for _, fam := range []CountFamily{FamilyQuasiPoisson, FamilyNegBin2} {
+		fc, err := ForecastCensus(CensusForecastInput{History: hist, From: "2026-02-16", Weeks: 1, Beds: 40, Seed: 1, Draws: 500, Family: fam})
+		if err != nil {
+			t.Fatal(fam, err)
+		}
+		if m := fc.Models[2]; m.Tier != "t9" || !m.NeverPresent {
+			t.Errorf("%v: tier t9 model %+v", fam, m)
+		}
+		if m := fc.Models[1]; m.NoneCells != 7 || (fam == FamilyNegBin2) != (m.Theta > 0) {
+			t.Errorf("%v: tier t2 model %+v, want 7 night cells forecast as none", fam, m)
+		}
+		for _, s := range fc.Shifts {
+			t2, t9 := s.Tiers[1], s.Tiers[2]
+			if t9.Bands[1].High != 0 || (s.Shift == "Night") != (t2.Bands[1].High == 0) {
+				t.Errorf("%v %s %s: t2 %+v, t9 %+v", fam, s.Date, s.Shift, t2, t9)
+			}
+		}
+	}
+}
+
+// Underdispersed counts (a ward near full: 20 − Binomial(20, 0.1)) give
+// φ̂ < 1 and bands narrower than Poisson's: the 90% band of a Poisson(18)
+// is 11–25 wide (R 4.2.2: qpois(c(0.05, 0.95), 18) → 11 25); the truth's
+// is 16–20.
+func TestForecastCensusUnderdispersed(t *testing.T) {
+	r := rand.New(rand.NewPCG(4, 4))
+	var hist []CensusCount
+	st, _ := time.Parse(time.DateOnly, "2026-01-05")
+	for d := range 56 {
+		n := 20 - int(distuv.Binomial{N: 20, P: 0.1, Src: r}.Rand())
+		hist = append(hist, CensusCount{Date: st.AddDate(0, 0, d).Format(time.DateOnly), Shift: "Day", Tier: "t1", Patients: n})
+	}
+	fc, err := ForecastCensus(CensusForecastInput{History: hist, From: "2026-03-02", Weeks: 1, Beds: 40, Seed: 1, Draws: 2000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if phi := fc.Models[0].Dispersion; !(phi < 0.5) {
+		t.Errorf("dispersion %.2f, want well under 1 (truth 0.1)", phi)
+	}
+	for _, s := range fc.Shifts {
+		if b := s.Tiers[0].Bands[1]; b.High-b.Low >= 14 {
+			t.Errorf("%s: 90%% band %d–%d as wide as Poisson's", s.Date, b.Low, b.High)
+		}
+	}
+}
+
+// A shift recorded on Saturdays only, the only Saturday shift, is the
+// Saturday effect itself: the design is singular and the refusal says so.
+func TestForecastCensusConfounded(t *testing.T) {
+	hist := poissonHistory("2026-01-05", 35, []string{"Day"}, 6, 4, 8, func(d int, s string) bool { return (d+1)%7 != 6 })
+	hist = append(hist, poissonHistory("2026-01-05", 35, []string{"Sat"}, 6, 4, 9, func(d int, s string) bool { return (d+1)%7 == 6 })...)
+	_, err := ForecastCensus(CensusForecastInput{History: hist, From: "2026-02-09", Beds: 40})
+	if wardload.ErrorField(err) != "history" || !strings.Contains(wardload.ErrorMessage(err), "recorded on only one weekday") {
+		t.Errorf("err = %v", err)
+	}
+}

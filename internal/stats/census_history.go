@@ -124,7 +124,9 @@ func fitCensus(tiers, shifts []string, recs []censusRecord, family CountFamily) 
 	for k := range tiers {
 		m, err := fitTier(recs, k, family, f.last)
 		if err != nil {
-			return nil, fmt.Errorf("stats: census model of tier %s: %w", tiers[k], err)
+			// A singular design: a shift recorded on one weekday only
+			// (its effect and the weekday's are one), or too few counts.
+			return nil, errField("history", "Tier %s: its census history cannot be modelled: a shift recorded on only one weekday, or too few dated shifts with patients.", clipText(tiers[k]))
 		}
 		f.models = append(f.models, m)
 	}
