@@ -219,7 +219,7 @@ func writeForecast(out io.Writer, fc *stats.CensusForecast, source string) error
 	if err := w.Flush(); err != nil {
 		return err
 	}
-	fmt.Fprintln(out, "\n\"at beds\": the share of draws whose total was held to the beds.")
+	fmt.Fprintln(out, "\n\"at beds\": the share of draws whose total was held to the beds. A band of whole patients holds at least its level of the forecast, often a few points more.")
 	for _, n := range fc.Notes {
 		fmt.Fprintln(out, n)
 	}

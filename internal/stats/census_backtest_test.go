@@ -76,3 +76,27 @@ func TestBacktestCensus(t *testing.T) {
 		t.Errorf("Origins 2: %v, %+v", err, res3)
 	}
 }
+
+// horizonAcc by hand. Draws 1..10 (median type 1: 5; 80% band q(0.1)–q(0.9)
+// = 1–9). y = 9: inside; F(8) = 0.8, F(9) = 0.9, so the PIT share inside
+// [0.1, 0.9] is 1. y = 10: outside; F(9) = 0.9, F(10) = 1: share 0.
+// Errors |9 − 5| = 4 and |10 − 5| = 5; naive 7 and 10 → |2| and |0|;
+// average 6 → 3 and 4; scales 2 and 0 (the second left out of MASE).
+func TestHorizonAccByHand(t *testing.T) {
+	draws := []int32{10, 9, 8, 7, 6, 5, 4, 3, 2, 1}
+	var a horizonAcc
+	a.add(9, draws, []float64{0.8}, true, 7, 6, 2)
+	a.add(10, draws, []float64{0.8}, true, 10, 6, 0)
+	a.add(3, draws, []float64{0.8}, false, 0, 0, 0) // no naive: coverage only; PIT [0.2, 0.3] inside
+	h := a.finish(7, 1)
+	want := CensusHorizon{Horizon: 7, Checked: 3, Compared: 2, Scaled: 1, Coverage: []float64{2.0 / 3}, PITCoverage: []float64{2.0 / 3},
+		MAE: 4.5, MAENaive: 1, MAEAverage: 3.5, MASE: 2, RelMAE: 4.5}
+	if h.Horizon != want.Horizon || h.Checked != want.Checked || h.Compared != want.Compared || h.Scaled != want.Scaled ||
+		math.Abs(h.Coverage[0]-want.Coverage[0]) > 1e-12 || math.Abs(h.PITCoverage[0]-want.PITCoverage[0]) > 1e-12 ||
+		h.MAE != want.MAE || h.MAENaive != want.MAENaive || h.MAEAverage != want.MAEAverage || h.MASE != want.MASE || h.RelMAE != want.RelMAE {
+		t.Errorf("got %+v\nwant %+v", h, want)
+	}
+	if draws[0] != 10 {
+		t.Error("draws modified")
+	}
+}
