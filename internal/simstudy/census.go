@@ -46,18 +46,23 @@ type CensusScenario struct {
 func CensusScenarios() []CensusScenario {
 	week := [7]float64{0.85, 1.15, 1.2, 1.1, 1.05, 1.0, 0.75}
 	flat := [7]float64{1, 1, 1, 1, 1, 1, 1}
-	return []CensusScenario{
-		{Name: "weekday+trend, phi 2", Start: "2026-01-05", Weeks: 30, Shifts: []string{"Day", "Night"}, Beds: 200,
-			Tiers: []CensusTier{
-				{Code: "t1", Base: 8, Weekday: week, Shift: []float64{1, 0.8}, Trend: 0.01, Dispersion: 2},
-				{Code: "t2", Base: 5, Weekday: flat, Shift: []float64{1, 0.9}, Trend: -0.005, Dispersion: 1.5},
-				{Code: "t3", Base: 2, Weekday: week, Shift: []float64{1, 1}, Trend: 0, Dispersion: 1.2},
-			}},
+	first := CensusScenario{Name: "weekday+trend, phi 2", Start: "2026-01-05", Weeks: 30, Shifts: []string{"Day", "Night"}, Beds: 200,
+		Tiers: []CensusTier{
+			{Code: "t1", Base: 8, Weekday: week, Shift: []float64{1, 0.8}, Trend: 0.01, Dispersion: 2},
+			{Code: "t2", Base: 5, Weekday: flat, Shift: []float64{1, 0.9}, Trend: -0.005, Dispersion: 1.5},
+			{Code: "t3", Base: 2, Weekday: week, Shift: []float64{1, 1}, Trend: 0, Dispersion: 1.2},
+		}}
+	// A new ward: the first scenario with 9 weeks of history, so every
+	// origin has 4 to 8 weeks to learn from.
+	young := first
+	young.Name, young.Weeks = "new ward, 9 weeks", 9
+	return []CensusScenario{first,
 		{Name: "three shifts, 5% missing", Start: "2026-01-05", Weeks: 30, Shifts: []string{"Early", "Late", "Night"}, Beds: 200, Missing: 0.05,
 			Tiers: []CensusTier{
 				{Code: "t1", Base: 12, Weekday: week, Shift: []float64{1, 0.95, 0.85}, Trend: 0.005, Dispersion: 1.8},
 				{Code: "t2", Base: 4, Weekday: week, Shift: []float64{1, 1, 0.9}, Trend: 0, Dispersion: 1},
 			}},
+		young,
 	}
 }
 

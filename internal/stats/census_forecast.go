@@ -143,13 +143,21 @@ type CensusForecast struct {
 //
 // Predictive distribution, by simulation with Draws draws per dated shift:
 //
-//	β⁽ᵈ⁾ = β̂ + L·z,  z ~ N(0, I),  LLᵀ = Cov(β̂)    (parameter uncertainty)
+//	φ⁽ᵈ⁾ = φ̂·ν/χ²_ν,  ν = n − p                     (quasi-Poisson; NB2: φ = 1)
+//	β⁽ᵈ⁾ = β̂ + √(φ⁽ᵈ⁾/φ̂)·L·z,  z ~ N(0, I),  LLᵀ = Cov(β̂)
 //	μ = exp(xᵀβ⁽ᵈ⁾)
 //	y ~ Poisson(λ), λ ~ Gamma(μ/(φ−1), φ−1)   when φ > 1  (Var y = φμ)
 //	y ~ Binomial(⌈μ/(1−φ)⌉, μ/⌈μ/(1−φ)⌉)      when φ < 1  (Var y ≥ φμ)
 //	y ~ Poisson(λ), λ ~ Gamma(θ, μ/θ)          for NB2
 //
-// then, draw by draw, when the tiers' total T exceeds Beds, each tier's y_k
+// with φ⁽ᵈ⁾ in place of φ below: the parameter uncertainty of the normal
+// linear model with unknown variance (scaled inverse χ² for the variance,
+// then β given it; Gelman et al. 2013, Bayesian Data Analysis, 3rd ed.,
+// §14.2), carried to the quasi-likelihood with φ̂ as the variance. In the
+// battery's new ward (4–8 weeks of history) the 28-day 80% bands covered
+// 75.5% without the φ draw and 76.8% with it (randomized PIT, SE 1.7
+// points): short histories remain the weak spot. Then, draw by draw, when
+// the tiers' total T exceeds Beds, each tier's y_k
 // becomes ⌊Beds·y_k/T⌋ and the Beds − Σ⌊…⌋ beds left go one each to the
 // tiers with the largest remainders (lower tier first on ties; Hamilton's
 // largest-remainder method), so the total is exactly Beds and the tiers

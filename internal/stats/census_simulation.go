@@ -134,18 +134,24 @@ func (f *censusFit) simulate(targets []censusTarget, beds, draws int, seed uint6
 		z := mat.NewVecDense(p, nil)
 		beta := mat.NewVecDense(p, nil)
 		bhat := mat.NewVecDense(p, m.fit.Beta)
+		nu := float64(m.rows - p) // residual df of φ̂
 		for d := range draws {
+			phi, c := m.fit.Dispersion, 1.0
+			if m.family == FamilyQuasiPoisson && nu > 0 {
+				c = nu / chiSquare(r, nu)
+				phi *= c
+			}
 			for j := range p {
 				z.SetVec(j, r.NormFloat64())
 			}
 			beta.MulVec(m.chol, z)
-			beta.AddVec(beta, bhat)
+			beta.AddScaledVec(bhat, math.Sqrt(c), beta)
 			for i, x := range xs {
 				if x == nil {
 					continue
 				}
 				mu := math.Min(math.Exp(mat.Dot(x, beta)), maxCensusMean)
-				s.y[k][i*draws+d] = int32(m.drawCount(r, mu))
+				s.y[k][i*draws+d] = int32(m.drawCount(r, mu, phi))
 			}
 		}
 	}
@@ -167,13 +173,13 @@ func (f *censusFit) simulate(targets []censusTarget, beds, draws int, seed uint6
 }
 
 // drawCount draws a census of mean mu from the tier's count distribution
-// (see ForecastCensus).
-func (m *tierModel) drawCount(r *rand.Rand, mu float64) float64 {
+// with dispersion phi (quasi-Poisson; see ForecastCensus).
+func (m *tierModel) drawCount(r *rand.Rand, mu, phi float64) float64 {
 	if mu <= 0 {
 		return 0
 	}
 	lambda := mu
-	switch phi := m.fit.Dispersion; {
+	switch {
 	case m.family == FamilyNegBin2:
 		lambda = gammaDraw(r, m.fit.Theta) * mu / m.fit.Theta
 	case phi > 1:

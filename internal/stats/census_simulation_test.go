@@ -106,7 +106,7 @@ func TestCensusDrawMoments(t *testing.T) {
 		const n = 100_000
 		var s, ss float64
 		for range n {
-			y := tc.m.drawCount(r, tc.mu)
+			y := tc.m.drawCount(r, tc.mu, tc.m.fit.Dispersion)
 			s += y
 			ss += y * y
 		}
