@@ -133,6 +133,12 @@ type CensusForecast struct {
 // Models, 2nd ed., §9.2.4) rejects the main-effects model at 5%; otherwise
 // the model has weekday and shift main effects.
 //
+// The trend is always fitted. Keeping it only when an F test supports it
+// was tried: in the battery's new ward (4–8 weeks of history) the 28-day
+// MAE went from 15% worse than the fixed average to 3% worse, but the 80%
+// band's PIT coverage fell to 75.5% (the bands do not carry the
+// uncertainty of the selection), and coverage is the promise.
+//
 // Missing days are missing: a dated shift with no row for any tier is not
 // in the fit; one with rows for some tiers counts the others as 0.
 // A weekday or shift that never had a patient of a tier is forecast as none
