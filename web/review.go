@@ -24,7 +24,7 @@ type ReviewVM struct {
 	UnitNote       string // how the unit is computed
 
 	Tiers       []ReviewTierVM
-	BoxPlots    *BoxPlotsVM // every tier on one axis; nil without observations
+	BoxPlots    *BoxPlotsVM        // every tier on one axis; nil without observations
 	Order       []string           // warnings: a higher tier's median not above the lower one's
 	OrderOK     bool               // every pair of neighbouring tiers with data is in order
 	Separation  *SeparationVM      // nil with fewer than two tiers with observations

@@ -25,7 +25,7 @@ type tierSpec struct {
 	dayMedian, sigma float64
 	// weeklyDrift moves the tier's median by this share a week (on the log
 	// scale), so that the weekly trend has something to show.
-	weeklyDrift float64
+	weeklyDrift      float64
 	scoreBase        float64 // mean dependency score
 	share            float64 // share of the ward's patients in this tier
 	dayObs, nightObs [2]int  // observations per shift, uniform in [lo, hi]
