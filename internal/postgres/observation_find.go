@@ -9,8 +9,12 @@ import (
 	"wardload/internal/wardload"
 )
 
-const obsColumns = `id, ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at,
-	batch_id, excluded, excluded_reason, excluded_by, excluded_at`
+// obsColumns are the columns of a lean read (ObservationFilter.Lean);
+// entryColumns the rest of a full one.
+const (
+	obsColumns   = `id, ward_id, tier_id, date, shift_id, window_hours, care_minutes, excluded, excluded_reason, excluded_by, excluded_at`
+	entryColumns = `, entered_by, entered_at, batch_id`
+)
 
 // FindObservationByID returns ENOTFOUND if there is no such observation.
 func (s *Store) FindObservationByID(ctx context.Context, id int64) (*wardload.Observation, error) {
@@ -18,7 +22,7 @@ func (s *Store) FindObservationByID(ctx context.Context, id int64) (*wardload.Ob
 }
 
 func findObservation(ctx context.Context, q querier, id int64, lock string) (*wardload.Observation, error) {
-	os, err := queryObservations(ctx, q, `SELECT `+obsColumns+` FROM observations WHERE id = $1`+lock, id)
+	os, err := queryObservations(ctx, q, false, `SELECT `+obsColumns+entryColumns+` FROM observations WHERE id = $1`+lock, id)
 	return one(os, err, "Observation")
 }
 
@@ -47,20 +51,29 @@ func (s *Store) FindObservations(ctx context.Context, f wardload.ObservationFilt
 	if !f.IncludeExcluded {
 		w.conds = append(w.conds, "NOT excluded")
 	}
-	var n int
-	if err := s.pool.QueryRow(ctx, `SELECT count(*) FROM observations`+w.String(), w.args...).Scan(&n); err != nil {
-		return nil, 0, formatError(err)
+	cols := obsColumns
+	if !f.Lean {
+		cols += entryColumns
 	}
-	os, err := queryObservations(ctx, s.pool, `SELECT `+obsColumns+` FROM observations`+w.String()+
+	os, err := queryObservations(ctx, s.pool, f.Lean, `SELECT `+cols+` FROM observations`+w.String()+
 		` ORDER BY date, id`+page(f.Offset, f.Limit), w.args...)
 	if err != nil {
 		return nil, 0, err
 	}
+	// Without a page the total is the number of rows: spare the count
+	// query and its round trip.
+	n := len(os)
+	if f.Offset > 0 || f.Limit > 0 {
+		if err := s.pool.QueryRow(ctx, `SELECT count(*) FROM observations`+w.String(), w.args...).Scan(&n); err != nil {
+			return nil, 0, formatError(err)
+		}
+	}
 	return os, n, nil
 }
 
-// queryObservations runs a SELECT of obsColumns and fills in the factors.
-func queryObservations(ctx context.Context, q querier, sql string, args ...any) ([]*wardload.Observation, error) {
+// queryObservations runs a SELECT of obsColumns (and, unless lean,
+// entryColumns) and, unless lean, fills in the factors.
+func queryObservations(ctx context.Context, q querier, lean bool, sql string, args ...any) ([]*wardload.Observation, error) {
 	rows, err := q.Query(ctx, sql, args...)
 	if err != nil {
 		return nil, formatError(err)
@@ -69,12 +82,19 @@ func queryObservations(ctx context.Context, q querier, sql string, args ...any) 
 		var o wardload.Observation
 		var d time.Time
 		var exAt *time.Time
-		err := r.Scan(&o.ID, &o.WardID, &o.TierID, &d, &o.ShiftID, &o.WindowHours, &o.CareMinutes, &o.EnteredBy, &o.EnteredAt,
-			&o.BatchID, &o.Excluded, &o.ExcludedReason, &o.ExcludedBy, &exAt)
-		o.Date, o.EnteredAt, o.ExcludedAt = dateOf(d), o.EnteredAt.UTC(), timeOf(exAt)
+		dest := []any{&o.ID, &o.WardID, &o.TierID, &d, &o.ShiftID, &o.WindowHours, &o.CareMinutes,
+			&o.Excluded, &o.ExcludedReason, &o.ExcludedBy, &exAt}
+		if !lean {
+			dest = append(dest, &o.EnteredBy, &o.EnteredAt, &o.BatchID)
+		}
+		err := r.Scan(dest...)
+		o.Date, o.ExcludedAt = dateOf(d), timeOf(exAt)
+		if !lean {
+			o.EnteredAt = o.EnteredAt.UTC()
+		}
 		return &o, err
 	})
-	if err != nil || len(os) == 0 {
+	if err != nil || len(os) == 0 || lean {
 		return os, formatError(err)
 	}
 	ids := make([]int64, len(os))

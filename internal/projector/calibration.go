@@ -55,7 +55,7 @@ func (s *Service) LoadBacktest(ctx context.Context, wardID int64, from, to wardl
 	if err != nil {
 		return nil, err
 	}
-	obs, _, err := s.Store.FindObservations(ctx, wardload.ObservationFilter{WardID: &wardID, From: &from, To: &to})
+	obs, _, err := s.Store.FindObservations(ctx, wardload.ObservationFilter{WardID: &wardID, From: &from, To: &to, Lean: true})
 	if err != nil {
 		return nil, err
 	}
@@ -123,6 +123,18 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 	if err != nil {
 		return nil, err
 	}
+	// The ward's data version, read before the data (see
+	// wardload.WardVersion for why that order makes the key sound): the
+	// same version and date give the same backtest, so a cached one is
+	// returned without loading a quarter's observations again.
+	version, err := s.Store.WardVersion(ctx, wardID)
+	if err != nil {
+		return nil, err
+	}
+	vkey := versionKey(wardID, date, version)
+	if r, ok := s.cache().get(vkey); ok {
+		return r, nil
+	}
 	from := date.AddDays(-7 * (CalibrationWeeks + settings.LookbackWeeks))
 	to := date.AddDays(-1)
 	data, err := s.LoadBacktest(ctx, wardID, from, to)
@@ -143,8 +155,11 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 		return &stats.BacktestResult{Weeks: CalibrationWeeks, Cover: opts.Cover, Levels: opts.Levels,
 			Sentence: (&stats.Calibration{Weeks: CalibrationWeeks}).Sentence(opts.Cover)}, nil
 	}
+	// A new version with the same input (a census that changed no
+	// coverage, a projection saved) still reuses the backtest.
 	key := calibrationKey(wardID, date, opts, in, covered)
 	if r, ok := s.cache().get(key); ok {
+		s.cache().put(vkey, r)
 		return r, nil
 	}
 	r, err := stats.Backtest(in, opts)
@@ -152,7 +167,17 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 		return nil, err
 	}
 	s.cache().put(key, r)
+	s.cache().put(vkey, r)
 	return r, nil
+}
+
+// versionKey names a ward's backtest as of date at a data version. It
+// shares the cache with calibrationKey's content hashes; the prefix keeps
+// the two kinds of key apart.
+func versionKey(wardID int64, date wardload.Date, v wardload.WardVersion) uint64 {
+	h := fnv.New64a()
+	fmt.Fprintf(h, "version|%d|%s|%d|%d\n", wardID, date, v.Entries, v.LastID)
+	return h.Sum64()
 }
 
 // calibrationKey hashes everything a backtest depends on (FNV-1a 64), so a

@@ -96,7 +96,7 @@ func (s *Server) loadReview(r *http.Request, shift, weeks string) (*reviewData, 
 	today := projector.Today(s.now(), loc)
 	p.from, p.to = today.AddDays(-7*p.weeks), today.AddDays(-1)
 	d.params = p
-	f := wardload.ObservationFilter{WardID: &ward.ID, From: &p.from, To: &p.to, IncludeExcluded: true}
+	f := wardload.ObservationFilter{WardID: &ward.ID, From: &p.from, To: &p.to, IncludeExcluded: true, Lean: true}
 	if p.shiftID != 0 {
 		f.ShiftID = &p.shiftID
 	}

@@ -145,9 +145,12 @@ func findObservations(ctx context.Context, q querier, f wardload.ObservationFilt
 			return nil, 0, err
 		}
 	}
-	rows, err := q.QueryContext(ctx, page(`SELECT id, ward_id, tier_id, date, shift_id, window_hours, care_minutes,
-		entered_by, entered_at, batch_id, excluded, excluded_reason, excluded_by, excluded_at
-		FROM observations WHERE `+cond+` ORDER BY date, id`, f.Offset, f.Limit), args...)
+	// A lean read leaves out the entry columns and the factors.
+	cols := `id, ward_id, tier_id, date, shift_id, window_hours, care_minutes, excluded, excluded_reason, excluded_by, excluded_at`
+	if !f.Lean {
+		cols += `, entered_by, entered_at, batch_id`
+	}
+	rows, err := q.QueryContext(ctx, page(`SELECT `+cols+` FROM observations WHERE `+cond+` ORDER BY date, id`, f.Offset, f.Limit), args...)
 	if err != nil {
 		return nil, 0, err
 	}
@@ -158,28 +161,37 @@ func findObservations(ctx context.Context, q querier, f wardload.ObservationFilt
 		var o wardload.Observation
 		var d, entered string
 		var excludedAt sql.NullString
-		if err := rows.Scan(&o.ID, &o.WardID, &o.TierID, &d, &o.ShiftID, &o.WindowHours, &o.CareMinutes,
-			&o.EnteredBy, &entered, &o.BatchID, &o.Excluded, &o.ExcludedReason, &o.ExcludedBy, &excludedAt); err != nil {
+		dest := []any{&o.ID, &o.WardID, &o.TierID, &d, &o.ShiftID, &o.WindowHours, &o.CareMinutes,
+			&o.Excluded, &o.ExcludedReason, &o.ExcludedBy, &excludedAt}
+		if !f.Lean {
+			dest = append(dest, &o.EnteredBy, &entered, &o.BatchID)
+		}
+		if err := rows.Scan(dest...); err != nil {
 			return nil, 0, err
 		}
 		if o.Date, err = parseDate(d); err != nil {
-			return nil, 0, err
-		}
-		if o.EnteredAt, err = parseTime(entered); err != nil {
 			return nil, 0, err
 		}
 		if o.ExcludedAt, err = parseNullTime(excludedAt); err != nil {
 			return nil, 0, err
 		}
 		os = append(os, &o)
+		if f.Lean {
+			continue
+		}
+		if o.EnteredAt, err = parseTime(entered); err != nil {
+			return nil, 0, err
+		}
 		byID[o.ID] = &o
 	}
 	if err := rows.Err(); err != nil {
 		return nil, 0, err
 	}
 	rows.Close()
-	if err := loadFactors(ctx, q, os, byID); err != nil {
-		return nil, 0, err
+	if !f.Lean {
+		if err := loadFactors(ctx, q, os, byID); err != nil {
+			return nil, 0, err
+		}
 	}
 	if total < 0 {
 		total = len(os)

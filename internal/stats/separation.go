@@ -114,7 +114,9 @@ type MedianShift struct {
 // (Efron, B. & Tibshirani, R. J. (1993), An Introduction to the Bootstrap,
 // §13.3, the two-sample design of §8.3). The replicates use math/rand/v2's
 // PCG seeded with (seed, 1): the same input and seed give the same
-// interval. With few values per tier the medians' bootstrap distribution
+// interval. A replicate's medians are drawn from the order statistics of
+// the resample (resampledMedian), exactly as resampling would give them
+// but in O(1), so the cost is O(n log n + reps) whatever the tier sizes. With few values per tier the medians' bootstrap distribution
 // is lumpy and the interval is rough; callers should say so below about
 // 10 values. EINVALID when a tier has no values, reps < 100 or the level
 // is outside (0, 1).
@@ -127,16 +129,14 @@ func MedianShiftTest(lower, upper []float64, level float64, reps int, seed uint6
 	}
 	m := MedianShift{Lower: medianOf(lower), Upper: medianOf(upper), Level: level, Reps: reps}
 	m.Difference = m.Upper - m.Lower
-	r := rand.New(rand.NewPCG(seed, 1))
+	src := rand.NewPCG(seed, 1)
+	r := rand.New(src)
 	lo, up := slices.Sorted(slices.Values(lower)), slices.Sorted(slices.Values(upper))
-	countLo, countUp := make([]int, len(lo)), make([]int, len(up))
 	diffs := make([]float64, reps)
 	for i := range diffs {
-		// Resample the other tier first, then this one, drawing indices
-		// into the sorted values: the resample's median is found from
-		// the counts in O(n), without sorting it.
-		a := resampledMedian(r, lo, countLo)
-		diffs[i] = resampledMedian(r, up, countUp) - a
+		// Resample the lower tier first, then the upper one.
+		a := resampledMedian(r, src, lo)
+		diffs[i] = resampledMedian(r, src, up) - a
 	}
 	slices.Sort(diffs)
 	m.Low = HFQuantile(7, (1-level)/2, diffs)
@@ -144,38 +144,32 @@ func MedianShiftTest(lower, upper []float64, level float64, reps int, seed uint6
 	return m, nil
 }
 
-// resampledMedian draws len(sorted) indices uniformly with replacement and
-// returns the type 7 median of the values they pick, walking the counts of
-// each index over the sorted values (the same number as sorting the
-// resample). count is scratch space of the same length.
-func resampledMedian(r *rand.Rand, sorted []float64, count []int) float64 {
+// resampledMedian draws the type 7 median of one bootstrap resample of
+// sorted (n values drawn with replacement) without drawing the resample,
+// in O(1): only two of its order statistics matter. A drawn index is
+// ⌊n·V⌋ with V uniform on (0, 1), which keeps order, so the resample's
+// (k+1)-th smallest index is ⌊n·V₍ₖ₊₁₎⌋, where V₍ₖ₊₁₎ ~ Beta(k+1, n−k) is
+// the (k+1)-th smallest of n uniforms; given it, the next one is
+// V₍ₖ₊₁₎ + (1 − V₍ₖ₊₁₎)·(1 − U^(1/(n−k−1))), the smallest of the n−k−1
+// uniforms above it (David, H. A. & Nagaraja, H. N. (2003), Order
+// Statistics, 3rd ed., §2.2 and §2.5). The median so drawn has exactly
+// the distribution of the resample's median; TestResampledMedianExact
+// checks that against all nⁿ resamples of small samples with ties.
+func resampledMedian(r *rand.Rand, src rand.Source, sorted []float64) float64 {
 	n := len(sorted)
-	clear(count)
-	for range n {
-		count[r.IntN(n)]++
-	}
 	h := float64(n-1) * 0.5
 	k := int(h) // 0-based order statistics k and k+1
-	var xk, xk1 float64
-	seen := 0
-	found := false
-	for j, c := range count {
-		if c == 0 {
-			continue
-		}
-		if !found && seen+c > k {
-			xk, found = sorted[j], true
-		}
-		if seen+c > k+1 || k+1 >= n {
-			xk1 = sorted[j]
-			if k+1 >= n {
-				xk1 = xk
-			}
-			break
-		}
-		seen += c
+	at := func(v float64) float64 { return sorted[min(int(float64(n)*v), n-1)] }
+	if n == 1 {
+		return sorted[0]
 	}
-	return xk + (h-float64(k))*(xk1-xk)
+	v := distuv.Beta{Alpha: float64(k + 1), Beta: float64(n - k), Src: src}.Rand()
+	xk := at(v)
+	if h == float64(k) {
+		return xk
+	}
+	next := v + (1-v)*(1-math.Pow(r.Float64(), 1/float64(n-k-1)))
+	return xk + (h-float64(k))*(at(next)-xk)
 }
 
 // SeparationCaution is said wherever tier separation is shown.

@@ -249,12 +249,15 @@ func importCases() []testCase {
 				}
 			}
 		}},
-		{"Observation/ImportOfTwoWardsAuditsNoWard", func(t *testing.T, f *fixture) {
+		{"Observation/ImportOfTwoWardsAuditsEachWard", func(t *testing.T, f *fixture) {
 			w1, w2 := f.seedWard("w1"), f.seedWard("w2")
 			d := date(2026, 3, 2)
 			batch, err := f.store.CreateObservations(f.ctx, []*wardload.Observation{w2.obs(d, 10), w1.obs(d, 20), w2.obs(d, 30)})
 			noErr(t, err)
-			e := f.checkAudit("observation.import", "observation_batch", 0, 0)
+			if n := f.auditCount("observation.import"); n != 2 {
+				t.Fatalf("an import of two wards wrote %d audit rows, want one per ward", n)
+			}
+			e := f.checkAudit("observation.import", "observation_batch", 0, w1.ward.ID)
 			want := fmt.Sprintf(`{"BatchID":%q,"Rows":3,"WardIDs":[%d,%d]}`, batch, w2.ward.ID, w1.ward.ID)
 			if e.Before != "" || e.After != want {
 				t.Fatalf("import audit %q / %q, want none / %s", e.Before, e.After, want)

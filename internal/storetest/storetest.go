@@ -24,6 +24,8 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		tierCases(),
 		shiftCases(),
 		observationCases(),
+		leanCases(),
+		versionCases(),
 		importCases(),
 		censusCases(),
 		projectionCases(),

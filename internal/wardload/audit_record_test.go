@@ -24,7 +24,7 @@ func TestNewAudit(t *testing.T) {
 		{"user without hash", nil, &User{ID: 5, Name: "b.nurse", PasswordHash: hash, WardIDs: []int64{4}}, "user", 5, []int64{0}, false, hash},
 		{"user without wards lists none", &User{ID: 6, Name: "a.admin", WardIDs: []int64{}}, &User{ID: 6, Name: "a.admin"}, "user", 6, []int64{0}, true, "null"},
 		{"token row per ward, without hash", tok, tok, "token", 3, []int64{4, 9}, true, tok.Hash},
-		{"batch of two wards is ward 0", nil, &Import{batch: ObservationBatch{BatchID: "b1", Rows: 3, WardIDs: []int64{4, 9}}}, "observation_batch", 0, []int64{0}, false, ""},
+		{"batch of two wards: a row per ward", nil, &Import{batch: ObservationBatch{BatchID: "b1", Rows: 3, WardIDs: []int64{4, 9}}}, "observation_batch", 0, []int64{4, 9}, false, ""},
 		{"batch of one ward names it", nil, &Import{batch: ObservationBatch{BatchID: "b1", Rows: 3, WardIDs: []int64{9}}}, "observation_batch", 0, []int64{9}, false, ""},
 		{"unsaved settings are nothing before", &Settings{WardID: 4}, &Settings{WardID: 4, UpdatedAt: at}, "settings", 4, []int64{4}, false, ""},
 		{"projection without input", nil, &Projection{ID: 2, WardID: 4, Input: `{"secret-input":1}`, Result: `{"secret-result":1}`}, "projection", 2, []int64{4}, false, "secret-"},

@@ -70,8 +70,13 @@ type ObservationFilter struct {
 	From, To        *Date // inclusive
 	BatchID         *string
 	IncludeExcluded bool // false: only included observations
-	Offset          int
-	Limit           int
+	// Lean leaves Factors, EnteredBy, EnteredAt and BatchID unset: for
+	// readers of many rows that need only the values and the review state
+	// (the review page, the ward backtest), which would otherwise pay for
+	// a second query per few hundred rows and columns they never read.
+	Lean   bool
+	Offset int
+	Limit  int
 }
 
 // ObservationService stores care observations and their review state.

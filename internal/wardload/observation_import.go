@@ -115,13 +115,11 @@ func (im *Import) Result(err error) (string, error) {
 	return "", err
 }
 
-// auditRecord names the ward when the batch is of one ward, else ward 0.
+// auditRecord names every ward of the batch, one audit row each, so that
+// each ward's managers see it and each ward's data version moves
+// (WardVersion).
 func (im *Import) auditRecord() auditRecord {
-	r := auditRecord{"observation_batch", 0, nil, &im.batch}
-	if len(im.batch.WardIDs) == 1 {
-		r.wards = im.batch.WardIDs
-	}
-	return r
+	return auditRecord{"observation_batch", 0, im.batch.WardIDs, &im.batch}
 }
 
 // RowError prefixes the message of a domain error with its 1-based row

@@ -24,6 +24,7 @@ type Store interface {
 	AuditService
 	SignInService
 	ShiftRecordService
+	WardVersionService
 
 	// Ping returns an error if the database cannot be reached.
 	Ping(ctx context.Context) error
