@@ -22,6 +22,7 @@ type ReviewVM struct {
 	ConventionNote string // what the convention does, in words
 	Unit           string // "care minutes per patient per shift"
 	UnitNote       string // how the unit is computed
+	RelationURL    string // the relationship check; "" when the ward records no factor
 
 	Tiers       []ReviewTierVM
 	BoxPlots    *BoxPlotsVM        // every tier on one axis; nil without observations

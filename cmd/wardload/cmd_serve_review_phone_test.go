@@ -49,7 +49,7 @@ func TestPhoneReview(t *testing.T) {
 		Count    int     `json:"count"`
 		Widest   float64 `json:"widest"`
 	}
-	size, err := chromedp.Run(ctx, chromedp.Evaluate[textSize](`(() => {
+	const measure = `(() => {
 		let smallest = 1e9, count = 0, widest = 0;
 		for (const svg of document.querySelectorAll('main svg.chart-svg')) {
 			const r = svg.getBoundingClientRect();
@@ -61,7 +61,8 @@ func TestPhoneReview(t *testing.T) {
 			}
 		}
 		return {smallest, count, widest};
-	})()`))
+	})()`
+	size, err := chromedp.Run(ctx, chromedp.Evaluate[textSize](measure))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -85,4 +86,22 @@ func TestPhoneReview(t *testing.T) {
 		t.Errorf("after the switch the histogram says %q (%v)", desc, err)
 	}
 	keepFirstScreen(t, ctx, "review-log")
+
+	// The relationship check: the demo's dependency score against care
+	// time, its chart as readable on a phone as the others.
+	do("open the relationship check", chromedp.Click(chromedp.CSS(`[data-testid="relation-link"]`)), chromedp.WaitVisible(chromedp.CSS(`[data-testid="relation-svg"]`)))
+	size, err = chromedp.Run(ctx, chromedp.Evaluate[textSize](measure))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if size.Count < 8 || size.Smallest < 11.5 || size.Widest > phoneWidth {
+		t.Errorf("relationship chart text: %d labels, smallest %.1f px, right edge %.0f px; want ≥ 11.5 px within %d px", size.Count, size.Smallest, size.Widest, phoneWidth)
+	}
+	overflow, err := chromedp.Run(ctx, chromedp.Evaluate[int](`document.documentElement.scrollWidth`))
+	if err != nil || overflow > phoneWidth {
+		t.Errorf("relationship page is %d px wide (%v), want ≤ %d", overflow, err, phoneWidth)
+	}
+	keepFirstScreen(t, ctx, "relationship")
+	do("scroll to the chart", chromedp.ScrollIntoView(chromedp.CSS(`[data-testid="relation-chart"]`)))
+	keepFirstScreen(t, ctx, "relationship-chart")
 }

@@ -85,6 +85,7 @@ var routeExpectations = map[string][]string{
 	// Weekly review, exclusions and import (review_test.go,
 	// observation_import_test.go): ward A's manager and the admin.
 	"review":                   wardAMgrs,
+	"relationship":             wardAMgrs,
 	"observation.exclude":      wardAMgrs,
 	"observation.restore":      wardAMgrs,
 	"observations.import.form": wardAMgrs,

@@ -56,6 +56,9 @@ func (s *Server) reviewVM(r *http.Request, d *reviewData, pg flaggedPaging) (web
 			"Only included observations are summarised; the window ends the day before today, like the projections' lookback.",
 		Reasons: exclusionReasons,
 	}
+	if len(ward.FactorNames) > 0 {
+		vm.RelationURL = relationURL(ward)
+	}
 	if p.shiftID != 0 {
 		vm.ShiftID = strconv.FormatInt(p.shiftID, 10)
 		vm.ShiftText = d.shifts[p.shiftID].Name + " shift only"

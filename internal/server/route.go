@@ -120,6 +120,7 @@ func (s *Server) routeTable() []Route {
 		// only (review.go, review_page.go, review_exclusion.go,
 		// observation_import.go).
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/review", Name: "review", Access: wardManagers, Handler: s.handleReview},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/relationship", Name: "relationship", Access: wardManagers, Handler: s.handleRelation},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/observations/{id}/exclude", Name: "observation.exclude", Access: wardManagers, Handler: s.handleObservationExclude, MaxBodyBytes: 8 << 10},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/observations/{id}/restore", Name: "observation.restore", Access: wardManagers, Handler: s.handleObservationRestore, MaxBodyBytes: 8 << 10},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/observations/import", Name: "observations.import.form", Access: wardManagers, Handler: s.handleImportForm},

@@ -31,6 +31,9 @@ func templateURL(ward *wardload.Ward) string {
 // reviewURL is the address of the weekly review.
 func reviewURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/review" }
 
+// relationURL is the address of the ward's relationship check.
+func relationURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/relationship" }
+
 // settingsURL is the address of the ward's settings page; its forms
 // post below it.
 func settingsURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/settings" }

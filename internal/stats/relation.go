@@ -22,7 +22,13 @@ type Relation struct {
 	Slope       Number
 	RSquared    Number
 	ResidualSD  Number // √(SSE/(n − 2))
-	Warnings    []string
+	// Flagged lists the indices of the pairs whose x or y lies strictly
+	// outside the inner Tukey fences of its column (hinges, as Summarize);
+	// nil with fewer than 4 pairs. PearsonRWithout is r without them,
+	// undefined when none are flagged or fewer than 3 pairs remain.
+	Flagged         []int
+	PearsonRWithout Number
+	Warnings        []string
 }
 
 // Rules of thumb behind the warnings (common practice, no single source).
@@ -106,7 +112,8 @@ func Relate(x, y []float64) (*Relation, error) {
 			rel.Warnings = append(rel.Warnings, w)
 		}
 	}
-	if w := influence(x, y, fit.r); w != "" {
+	rel.Flagged, rel.PearsonRWithout = fenceFlagged(x, y)
+	if w := influence(n, len(rel.Flagged), fit.r, rel.PearsonRWithout); w != "" {
 		rel.Warnings = append(rel.Warnings, w)
 	}
 	rel.Warnings = append(rel.Warnings, "Correlation is not causation: a relationship here does not show that one column drives the other.")
@@ -243,26 +250,27 @@ func distinct(x []float64) int {
 	return len(seen)
 }
 
-// influence returns a warning if the pairs with x or y outside the inner
-// fences change r by influenceChange or more (see Relate).
-func influence(x, y []float64, r Number) string {
+// fenceFlagged returns the indices of the pairs with x or y strictly
+// outside the inner fences, and r without them (see Relation.Flagged).
+func fenceFlagged(x, y []float64) ([]int, Number) {
 	if len(x) < 4 {
-		return ""
+		return nil, Number{}
 	}
 	sx, _ := Summarize(x, DefaultQuartiles)
 	sy, _ := Summarize(y, DefaultQuartiles)
 	flagged := make([]bool, len(x))
-	count := 0
+	var idx []int
 	for _, s := range []*Summary{sx, sy} {
 		for _, o := range s.Outliers {
 			if !flagged[o.Index] {
 				flagged[o.Index] = true
-				count++
+				idx = append(idx, o.Index)
 			}
 		}
 	}
-	if count == 0 || len(x)-count < 3 {
-		return ""
+	slices.Sort(idx)
+	if len(idx) == 0 || len(x)-len(idx) < 3 {
+		return idx, Number{}
 	}
 	var kx, ky []float64
 	for i := range x {
@@ -271,7 +279,16 @@ func influence(x, y []float64, r Number) string {
 			ky = append(ky, y[i])
 		}
 	}
-	without := leastSquares(kx, ky).r
+	return idx, leastSquares(kx, ky).r
+}
+
+// influence returns a warning if the count flagged pairs of n change r
+// by influenceChange or more (see Relate); without is r without them.
+// Fewer than 3 pairs left say nothing either way.
+func influence(n, count int, r, without Number) string {
+	if count == 0 || n-count < 3 || (!r.Defined && !without.Defined) {
+		return ""
+	}
 	switch {
 	case r.Defined && !without.Defined:
 		return fmt.Sprintf("%d pair(s) outside the Tukey fences decide the result: without them r is undefined (a column becomes constant), with them r = %.3f.", count, r.Value)

@@ -180,3 +180,28 @@ func TestMidRanks(t *testing.T) {
 		t.Errorf("rho = %v", rel.SpearmanRho)
 	}
 }
+
+// Anscombe's set III is a straight line but for one point (x 13, y 12.74,
+// the third row). Relation.Flagged must name that row alone and r without
+// it must match R: with x <- anscombe$x3; y <- anscombe$y3,
+// cor(x[-3], y[-3]) = 0.999996553784828 (R 4.2.2, datasets::anscombe),
+// checked to 1e-12.
+func TestRelateFlaggedAnscombeThree(t *testing.T) {
+	rows := readReference(t, "relation.csv")
+	i := slices.IndexFunc(rows, func(r map[string]string) bool { return r["case"] == "anscombe3" })
+	rel, err := Relate(floatList(t, rows[i]["x"]), floatList(t, rows[i]["y"]))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(rel.Flagged, []int{2}) {
+		t.Errorf("flagged %v, want [2]", rel.Flagged)
+	}
+	if w := rel.PearsonRWithout; !w.Defined || math.Abs(w.Value-0.999996553784828) > 1e-12 {
+		t.Errorf("r without flagged %v, want 0.999996553784828", w)
+	}
+	one, _ := Relate(floatList(t, rows[slices.IndexFunc(rows, func(r map[string]string) bool { return r["case"] == "anscombe1" })]["x"]),
+		floatList(t, rows[slices.IndexFunc(rows, func(r map[string]string) bool { return r["case"] == "anscombe1" })]["y"]))
+	if len(one.Flagged) != 0 || one.PearsonRWithout.Defined {
+		t.Errorf("anscombe1: flagged %v, r without %v; want none and undefined", one.Flagged, one.PearsonRWithout)
+	}
+}
