@@ -107,14 +107,11 @@ func normalExceed(x, mu, sd float64) float64 {
 func ratioFloor(f *FloorSpec, tiers []TierSample, warnings *[]string) *FloorUsed {
 	used := &FloorUsed{ChargeNurseCounts: f.ChargeNurseCounts}
 	var parts []string
-	pooled := 0
 	for _, t := range tiers {
 		if r, ok := f.TierPatientsPerNurse[t.Code]; ok {
-			used.Nurses += ceilNurses(float64(t.Patients) / r)
 			parts = append(parts, fmt.Sprintf("tier %s at most %g patients per nurse", t.Code, r))
 			continue
 		}
-		pooled += t.Patients
 		if f.PatientsPerNurse == 0 && t.Patients > 0 {
 			*warnings = append(*warnings, fmt.Sprintf(
 				"Tier %s has no ratio floor configured; its patients add nothing to the floor.", t.Code))
@@ -125,15 +122,35 @@ func ratioFloor(f *FloorSpec, tiers []TierSample, warnings *[]string) *FloorUsed
 	}
 	if r := f.PatientsPerNurse; r > 0 {
 		used.PatientsPerNurse = &r
-		used.Nurses += ceilNurses(float64(pooled) / r)
 		parts = append([]string{fmt.Sprintf("at most %g patients per nurse", r)}, parts...)
 	}
 	if !f.ChargeNurseCounts {
-		used.Nurses++
 		parts = append(parts, "plus 1 nurse in charge who does not count towards the ratio")
 	} else {
 		parts = append(parts, "the nurse in charge counts towards the ratio")
 	}
+	used.Nurses = floorNurses(f, tiers)
 	used.Description = "Configured ratio floor: " + strings.Join(parts, "; ") + "."
 	return used
+}
+
+// floorNurses is the headcount of the ratio floor f for the census tiers:
+// each tier with its own ratio rounded up on its own, the others pooled
+// under the ward ratio, plus 1 for a nurse in charge who does not count.
+func floorNurses(f *FloorSpec, tiers []TierSample) int {
+	n, pooled := 0, 0
+	for _, t := range tiers {
+		if r, ok := f.TierPatientsPerNurse[t.Code]; ok {
+			n += ceilNurses(float64(t.Patients) / r)
+			continue
+		}
+		pooled += t.Patients
+	}
+	if r := f.PatientsPerNurse; r > 0 {
+		n += ceilNurses(float64(pooled) / r)
+	}
+	if !f.ChargeNurseCounts {
+		n++
+	}
+	return n
 }
