@@ -41,9 +41,14 @@ uncertainty of the estimated parameters, and in every draw the tiers' total is h
 median and the central bands (--levels) of the census. A shift not recorded in the last
 4 weeks is taken as retired and not forecast.
 
-This first form forecasts the census only; nurse-hours for the forecast shifts are not
-yet computed. Defaults: --weeks 6 (at most 13), --from the day after the newest census
-date, --levels 0.8,0.9, --draws 4000, --seed 1, --family quasipoisson.
+With --observations OBS.csv (care observations as "wardload project" reads them, with
+"date" and "shift" columns naming each observation's shift) it also forecasts every dated
+shift's direct care: each census draw is run through the care model of its shift pattern
+(fitted to that shift's observations, as a projection is), giving per dated shift the
+nurse-hours at the cover level, the ratio floor for the census at the cover percentile,
+the recommended headcount and how much of the spread comes from not knowing the census.
+--shift-hours and --direct-care are then required. Defaults: --weeks 6 (at most 13), --from the day after the newest census
+date, --levels 0.8,0.9, --draws 4000, --seed 1, --family quasipoisson, --cover 0.9.
 
 ` + stats.CensusCaution
 
@@ -63,7 +68,15 @@ func runForecast(_ context.Context, e *env, args []string) int {
 	seed := fs.Uint64("seed", defaultSeed, "seed of the simulation; the same seed gives the same result")
 	family := fs.String("family", "quasipoisson", "count model: quasipoisson or nb2 (negative binomial)")
 	asJSON := fs.Bool("json", false, "print one JSON object instead of a report")
-	asCSV := fs.Bool("csv", false, "print CSV, one row per dated shift and tier (and the total)")
+	asCSV := fs.Bool("csv", false, "print CSV, one row per dated shift and tier (and the total); with --observations, one row per dated shift")
+	var wf workloadFlags
+	fs.StringVar(&wf.observations, "observations", "", "care observations `FILE` (as project reads): also forecast nurse-hours and the headcount of every dated shift")
+	fs.StringVar(&wf.shiftHours, "shift-hours", "", "with --observations: hours of every shift (12) or per shift (Day=12,Night=12) (required)")
+	fs.Float64Var(&wf.directCare, "direct-care", 0, "with --observations: share of a nurse's shift available for direct care, from 0.1 to 1 (required)")
+	fs.Float64Var(&wf.cover, "cover", defaultCover, fmt.Sprintf("with --observations: one-sided probability the staffed hours should cover, from %g to %g", stats.MinCover, stats.MaxCover))
+	fs.Float64Var(&wf.ppn, "patients-per-nurse", 0, "with --observations: ratio floor, at most this many patients per nurse, as configured for your ward (0: no floor)")
+	fs.BoolVar(&wf.chargeCounts, "charge-nurse-counts", false, "with --observations: the nurse in charge counts towards the ratio floor and gives direct care")
+	fs.StringVar(&wf.column, "column", defaultColumn, "with --observations: name of the care minutes column")
 	files, code, ok := parseInterleaved(e, fs, args)
 	if !ok {
 		return code
@@ -112,6 +125,15 @@ func runForecast(_ context.Context, e *env, args []string) int {
 	}
 	if !set["from"] {
 		*from = nextDay(newest)
+	}
+	if wf.observations != "" {
+		return runWorkloadForecast(e, files[0], wf, set, stats.CensusForecastInput{History: hist, From: *from, Weeks: *weeks, Beds: *beds,
+			Levels: lv, Draws: *draws, Seed: *seed, Family: fam}, *asJSON, *asCSV)
+	}
+	for _, f := range []string{"shift-hours", "direct-care", "cover", "patients-per-nurse", "charge-nurse-counts", "column"} {
+		if set[f] {
+			return usage("--%s goes with --observations", f)
+		}
 	}
 	fc, err := stats.ForecastCensus(stats.CensusForecastInput{History: hist, From: *from, Weeks: *weeks, Beds: *beds,
 		Levels: lv, Draws: *draws, Seed: *seed, Family: fam})

@@ -117,7 +117,7 @@ func ForecastWorkload(in WorkloadForecastInput) (*WorkloadForecast, error) {
 			return nil, wardload.FieldErrorf(wardload.EINVALID, "shift", "There are no care observations or settings for shift %q.", clipText(name))
 		}
 		check := c
-		check.Draws, check.Date, check.NursesFrom, check.NursesTo = MinDraws, "", 0, 0
+		check.Draws, check.Date, check.NursesFrom, check.NursesTo = MinDraws, in.Census.From, 0, 0
 		check.Calibration = nil
 		if err := check.validate(); err != nil {
 			return nil, err
