@@ -57,9 +57,10 @@ var forecastFlags = map[string]string{
 	"from": "--from", "weeks": "--weeks", "beds": "--beds", "levels": "--levels", "draws": "--draws", "family": "--family",
 }
 
-func runForecast(_ context.Context, e *env, args []string) int {
+func runForecast(ctx context.Context, e *env, args []string) int {
 	const name = "forecast"
-	fs := newFlagSet(e, name, "CENSUS.csv", forecastSummary)
+	fs := newFlagSet(e, name, "CENSUS.csv | --ward CODE", forecastSummary)
+	wardCode := fs.String("ward", "", "forecast this ward from its census, observations and settings in the database instead of files")
 	from := fs.String("from", "", "first forecast date, YYYY-MM-DD, after the newest census date (default: the day after it)")
 	weeks := fs.Int("weeks", stats.DefaultForecastWeeks, fmt.Sprintf("weeks forecast, 1 to %d", stats.MaxForecastWeeks))
 	beds := fs.Int("beds", 0, "the ward's beds: the tiers' total census never exceeds it (required)")
@@ -77,6 +78,7 @@ func runForecast(_ context.Context, e *env, args []string) int {
 	fs.Float64Var(&wf.ppn, "patients-per-nurse", 0, "with --observations: ratio floor, at most this many patients per nurse, as configured for your ward (0: no floor)")
 	fs.BoolVar(&wf.chargeCounts, "charge-nurse-counts", false, "with --observations: the nurse in charge counts towards the ratio floor and gives direct care")
 	fs.StringVar(&wf.column, "column", defaultColumn, "with --observations: name of the care minutes column")
+	so := addStoreFlags(fs)
 	files, code, ok := parseInterleaved(e, fs, args)
 	if !ok {
 		return code
@@ -87,9 +89,20 @@ func runForecast(_ context.Context, e *env, args []string) int {
 	}
 	set := map[string]bool{}
 	fs.Visit(func(f *flag.Flag) { set[f.Name] = true })
+	if *wardCode != "" {
+		if len(files) != 0 {
+			return usage("give a CENSUS.csv or --ward, not both")
+		}
+		for _, f := range []string{"beds", "levels", "observations", "shift-hours", "direct-care", "cover", "patients-per-nurse", "charge-nurse-counts", "column"} {
+			if set[f] {
+				return usage("--%s is for files; with --ward the ward's settings, shift patterns and observations are used", f)
+			}
+		}
+	}
 	switch {
+	case *wardCode != "":
 	case len(files) != 1:
-		return usage("give exactly one CENSUS.csv (see wardload forecast --help)")
+		return usage("give exactly one CENSUS.csv, or --ward CODE (see wardload forecast --help)")
 	case !set["beds"]:
 		return usage("--beds is required: the tiers' total census cannot exceed the ward's beds")
 	case *asJSON && *asCSV:
@@ -113,6 +126,9 @@ func runForecast(_ context.Context, e *env, args []string) int {
 		if _, err := wardload.ParseDate(*from); err != nil {
 			return usage("--from: %q is not a date (YYYY-MM-DD).", clip(*from))
 		}
+	}
+	if *wardCode != "" {
+		return runWardForecast(ctx, e, so, *wardCode, *from, *weeks, *draws, *seed, fam, *asJSON, *asCSV)
 	}
 	t, code, err := readProjectFile(e, files[0])
 	if err != nil {

@@ -101,22 +101,14 @@ func censusShifts(hist []stats.CensusCount) []string {
 }
 
 // writeWorkload prints the nurse-hours forecast: one line per dated shift.
-func writeWorkload(out io.Writer, wf *stats.WorkloadForecast, source, obs string, pooled bool, wflags workloadFlags) error {
+// floor says which ratio floor was used.
+func writeWorkload(out io.Writer, wf *stats.WorkloadForecast, source, obs, floor string, pooled bool, directCare float64) error {
 	fc := wf.Census
 	fmt.Fprintf(out, "Nurse-hours forecast from %s and %s, %s to %s (%d weeks): %s, with %s and %s.\n",
 		source, obs, fc.From, fc.To, fc.Weeks, wf.MethodVersion, fc.MethodVersion, stats.MethodVersion)
 	fmt.Fprintf(out, "History %s to %s; %d beds; %d draws, seed %d; cover level %s; direct-care fraction %g.\n",
-		fc.HistoryFrom, fc.HistoryTo, fc.Beds, fc.Draws, fc.Seed, levelText(wf.Cover), wflags.directCare)
-	if wflags.ppn != 0 {
-		charge := "plus 1 nurse in charge who does not count towards the ratio"
-		if wflags.chargeCounts {
-			charge = "the nurse in charge counts towards the ratio"
-		}
-		fmt.Fprintf(out, "Ratio floor used: at most %g patients per nurse, %s, applied to the census at its %s point.\n",
-			wflags.ppn, charge, levelText(wf.Cover))
-	} else {
-		fmt.Fprintln(out, "No ratio floor given (--patients-per-nurse): the headcount is the care-time need alone.")
-	}
+		fc.HistoryFrom, fc.HistoryTo, fc.Beds, fc.Draws, fc.Seed, levelText(wf.Cover), directCare)
+	fmt.Fprintln(out, floor)
 	if pooled {
 		fmt.Fprintf(out, "%s has no %q column: every shift uses all observations, although care by night often differs from care by day.\n", obs, shiftColumn)
 	}
@@ -248,7 +240,7 @@ func runWorkloadForecast(e *env, censusFile string, wf workloadFlags, set map[st
 	case asCSV:
 		err = writeWorkloadCSV(&b, fc, wf)
 	default:
-		err = writeWorkload(&b, fc, censusFile, wf.observations, pooled, wf)
+		err = writeWorkload(&b, fc, censusFile, wf.observations, fileFloorText(wf), pooled, wf.directCare)
 	}
 	if err == nil {
 		_, err = io.WriteString(e.stdout, b.String())
@@ -262,3 +254,15 @@ func runWorkloadForecast(e *env, censusFile string, wf workloadFlags, set map[st
 
 // writeJSONTo writes v as one JSON object and a newline.
 func writeJSONTo(w io.Writer, v any) error { return json.NewEncoder(w).Encode(v) }
+
+// fileFloorText says which ratio floor the file form used.
+func fileFloorText(wf workloadFlags) string {
+	if wf.ppn == 0 {
+		return "No ratio floor given (--patients-per-nurse): the headcount is the care-time need alone."
+	}
+	charge := "plus 1 nurse in charge who does not count towards the ratio"
+	if wf.chargeCounts {
+		charge = "the nurse in charge counts towards the ratio"
+	}
+	return fmt.Sprintf("Ratio floor used: at most %g patients per nurse, %s, applied to the census at its %s point.", wf.ppn, charge, levelText(wf.cover))
+}

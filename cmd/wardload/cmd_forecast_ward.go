@@ -1,0 +1,124 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"strings"
+
+	"wardload/internal/projector"
+	"wardload/internal/stats"
+	"wardload/internal/wardload"
+)
+
+// runWardForecast is forecast --ward: the ward's census history,
+// observations and settings from the database (projector.ForecastInput),
+// forecast from --from (default: the day after the newest census date).
+func runWardForecast(ctx context.Context, e *env, so *storeOptions, code, from string, weeks, draws int, seed uint64, fam stats.CountFamily, asJSON, asCSV bool) int {
+	const name = "forecast"
+	st, err := openExistingStore(ctx, so)
+	if err != nil {
+		fmt.Fprintf(e.stderr, "wardload %s: %v\n", name, err)
+		return exitFailure
+	}
+	defer st.Close()
+	ward, err := st.FindWardByCode(ctx, code)
+	if wardload.ErrorCode(err) == wardload.ENOTFOUND {
+		fmt.Fprintf(e.stderr, "wardload %s: no ward with code %q (see wardload ward list)\n", name, clip(code))
+		return exitUsage
+	} else if err != nil {
+		return reportError(e, name, err)
+	}
+	loc, err := ward.Location()
+	if err != nil {
+		return reportError(e, name, err)
+	}
+	svc := &projector.Service{Store: st}
+	start := wardload.DateOf(e.clock().In(loc)).AddDays(1)
+	if from != "" {
+		start, _ = wardload.ParseDate(from)
+	} else {
+		// The day after the newest census: read the history up to
+		// tomorrow and start after its last date.
+		probe, err := svc.ForecastInput(ctx, ward.ID, start, weeks, draws, seed)
+		if err != nil {
+			return reportError(e, name, err)
+		}
+		newest := ""
+		for _, c := range probe.Input.Census.History {
+			newest = max(newest, c.Date)
+		}
+		if newest != "" {
+			d, _ := wardload.ParseDate(newest)
+			start = d.AddDays(1)
+		}
+	}
+	wf, err := svc.ForecastInput(ctx, ward.ID, start, weeks, draws, seed)
+	if err != nil {
+		return reportError(e, name, err)
+	}
+	wf.Input.Census.Family = fam
+	if len(wf.Input.Census.History) == 0 {
+		fmt.Fprintf(e.stderr, "wardload %s: ward %s has no census in the %d weeks before %s; a forecast needs at least %d dated days of census.\n",
+			name, ward.Code, projector.ForecastHistoryWeeks, start, stats.MinCensusHistoryDays)
+		return exitUsage
+	}
+	res, err := stats.ForecastWorkload(wf.Input)
+	if err != nil {
+		if wardload.ErrorCode(err) != wardload.EINVALID {
+			fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, wardload.ErrorMessage(err))
+			return exitFailure
+		}
+		if f, ok := forecastFlags[wardload.ErrorField(err)]; ok {
+			return usageError(e, name, "%s: %s", f, wardload.ErrorMessage(err))
+		}
+		return usageError(e, name, "ward %s: %s", ward.Code, wardload.ErrorMessage(err))
+	}
+	flags := workloadFlags{directCare: wf.Settings.DirectCareFraction, cover: wf.Settings.CoverLevel}
+	var b strings.Builder
+	switch {
+	case asJSON:
+		err = writeJSONTo(&b, res)
+	case asCSV:
+		err = writeWorkloadCSV(&b, res, flags)
+	default:
+		err = writeWardWorkload(&b, res, wf)
+	}
+	if err == nil {
+		_, err = io.WriteString(e.stdout, b.String())
+	}
+	if err != nil {
+		fmt.Fprintf(e.stderr, "wardload %s: cannot write the result: %v\n", name, err)
+		return exitFailure
+	}
+	return exitOK
+}
+
+// writeWardWorkload is writeWorkload for a ward: what was read and the
+// floors as configured, then the table.
+func writeWardWorkload(out io.Writer, res *stats.WorkloadForecast, wf *projector.WardForecast) error {
+	fmt.Fprintf(out, "Ward %s (%s): census %s to %s, care observations %s to %s (the ward's %d-week lookback).\n",
+		wf.Ward.Code, wf.Ward.Name, wf.HistoryFrom, wf.HistoryTo, wf.ObsFrom, wf.ObsTo, wf.Settings.LookbackWeeks)
+	floor := "No ratio floor is configured for these shifts: the headcount is the care-time need alone."
+	if len(wf.Floors) > 0 {
+		var parts []string
+		for _, f := range wf.Floors {
+			part := fmt.Sprintf("%s at most %g patients per nurse", wf.ShiftNames[f.ShiftID], f.PatientsPerNurse)
+			if f.TierID != 0 {
+				part += " in one tier"
+			}
+			if !f.ChargeNurseCounts {
+				part += " plus 1 nurse in charge"
+			}
+			parts = append(parts, part)
+		}
+		floor = fmt.Sprintf("Ratio floors used (the ward's settings): %s; applied to the census at its %s point.", strings.Join(parts, "; "), levelText(res.Cover))
+	}
+	return writeWorkload(out, res, "the ward's census", "its observations", floor, false, wf.Settings.DirectCareFraction)
+}
+
+// usageError prints a usage error of command name and returns exitUsage.
+func usageError(e *env, name, format string, a ...any) int {
+	fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, a...))
+	return exitUsage
+}
