@@ -75,23 +75,7 @@ func runWardForecast(ctx context.Context, e *env, so *storeOptions, code, from s
 		return usageError(e, name, "ward %s: %s", ward.Code, wardload.ErrorMessage(err))
 	}
 	flags := workloadFlags{directCare: wf.Settings.DirectCareFraction, cover: wf.Settings.CoverLevel}
-	var b strings.Builder
-	switch {
-	case asJSON:
-		err = writeJSONTo(&b, res)
-	case asCSV:
-		err = writeWorkloadCSV(&b, res, flags)
-	default:
-		err = writeWardWorkload(&b, res, wf)
-	}
-	if err == nil {
-		_, err = io.WriteString(e.stdout, b.String())
-	}
-	if err != nil {
-		fmt.Fprintf(e.stderr, "wardload %s: cannot write the result: %v\n", name, err)
-		return exitFailure
-	}
-	return exitOK
+	return printWorkload(e, name, res, asJSON, asCSV, flags, func(w io.Writer) error { return writeWardWorkload(w, res, wf) })
 }
 
 // writeWardWorkload is writeWorkload for a ward: what was read and the

@@ -233,14 +233,23 @@ func runWorkloadForecast(e *env, censusFile string, wf workloadFlags, set map[st
 		}
 		return usage("%s: %s", censusFile, wardload.ErrorMessage(err))
 	}
-	var b strings.Builder // buffered, so a failure never leaves half a report
+	return printWorkload(e, name, fc, asJSON, asCSV, wf, func(w io.Writer) error {
+		return writeWorkload(w, fc, censusFile, wf.observations, fileFloorText(wf), pooled, wf.directCare)
+	})
+}
+
+// printWorkload writes res as JSON, CSV or the report, buffered so that a
+// failure never leaves half of it, and returns the exit status.
+func printWorkload(e *env, name string, res *stats.WorkloadForecast, asJSON, asCSV bool, flags workloadFlags, report func(io.Writer) error) int {
+	var b strings.Builder
+	var err error
 	switch {
 	case asJSON:
-		err = writeJSONTo(&b, fc)
+		err = writeJSONTo(&b, res)
 	case asCSV:
-		err = writeWorkloadCSV(&b, fc, wf)
+		err = writeWorkloadCSV(&b, res, flags)
 	default:
-		err = writeWorkload(&b, fc, censusFile, wf.observations, fileFloorText(wf), pooled, wf.directCare)
+		err = report(&b)
 	}
 	if err == nil {
 		_, err = io.WriteString(e.stdout, b.String())
