@@ -117,17 +117,19 @@ type Ward struct {
 
 // Figure is a point estimate with its band.
 type Figure struct {
-	Value, Low, High float64
+	Value float64 `json:"value"`
+	Low   float64 `json:"low"`
+	High  float64 `json:"high"`
 }
 
 // WardResult is a ward's establishment.
 type WardResult struct {
-	Ward        string
-	Shifts      int      // dated shifts with hours
-	Missing     []string // patterns without any shift: left out, so the figures are too low
-	HoursPerDay Figure
-	HoursYear   Figure
-	FTE         Figure
+	Ward        string   `json:"ward"`
+	Shifts      int      `json:"shifts"`           // dated shifts with hours
+	Missing     []string `json:"missing_patterns"` // patterns without any shift: left out, so the figures are too low
+	HoursPerDay Figure   `json:"nurse_hours_per_day"`
+	HoursYear   Figure   `json:"nurse_hours_per_year"`
+	FTE         Figure   `json:"fte"`
 }
 
 // Result holds every ward's establishment and the total.
