@@ -28,7 +28,8 @@ after the floats are sent where they are needed, P(Σ max(0, need − staff) > F
 shift (its shortfall table), never below its ratio floor; staff is the nurses on duty entered
 with that census, else --staff, else the ratio floor. Compared with the sum of per-ward buffers
 (each ward staffed alone to the cover level). Exact convolution for independent wards; the
-sensitivity to a common correlation ρ (--rho) by a seeded Gaussian-copula simulation. Assumes
+sensitivity to a common correlation ρ (--rho) under a one-factor Gaussian copula, by quadrature
+over the common factor, checked by a seeded simulation (--draws, --seed). Assumes
 any float can work on any of these wards.
 
 ` + stats.Caution
@@ -123,11 +124,16 @@ func runPool(ctx context.Context, e *env, args []string) int {
 		rep.Wards[i].ShortWithBuffer = wards[i].Need.Above(wards[i].Staff + exact.Buffers[i])
 	}
 	for _, rho := range rhos {
+		q, err := pool.Correlated(wards, *cover, rho)
+		if err != nil {
+			return reportError(e, name, err)
+		}
 		sim, err := pool.Simulate(wards, *cover, rho, *draws, *seed)
 		if err != nil {
 			return reportError(e, name, err)
 		}
-		rep.Sensitivity = append(rep.Sensitivity, sim)
+		rep.Sensitivity = append(rep.Sensitivity, q)
+		rep.Simulated = append(rep.Simulated, sim)
 	}
 	if *asJSON {
 		enc := json.NewEncoder(e.stdout)
@@ -164,7 +170,8 @@ type poolReport struct {
 	Left        []string // wards left out, and why
 	TableDraws  int      // fewest draws behind a shortfall table: bounds what "exact" can resolve
 	Exact       *pool.Result
-	Sensitivity []*pool.Result
+	Sensitivity []*pool.Result // quadrature, one per ρ
+	Simulated   []*pool.Result // the simulation check, one per ρ
 	Caution     string
 }
 
@@ -301,13 +308,13 @@ func (r *poolReport) write(w io.Writer) {
 		x.Floats, chance(x.Short, r.TableDraws), fewer)
 	fmt.Fprintf(w, "Pooling gain: %d nurses fewer than the sum of the wards' own buffers.\n", x.Gain)
 	if len(r.Sensitivity) > 0 {
-		s0 := r.Sensitivity[0]
-		fmt.Fprintf(w, "\nIf the wards' needs move together (Gaussian copula, common correlation ρ; %d draws, seed-fixed):\n", s0.Draws)
+		fmt.Fprintf(w, "\nIf the wards' needs move together (one-factor Gaussian copula, common correlation ρ; quadrature, and a simulation of %d draws as a check):\n", r.Simulated[0].Draws)
 		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintln(tw, "ρ\tfloat pool\tchance some ward short\twith own buffers only")
-		for _, s := range r.Sensitivity {
-			fmt.Fprintf(tw, "%g\t%d\t%s\t%s\n", s.Rho, s.Floats, stats.ProbabilityText(s.ShortDraws, s.Draws),
-				chance(s.AnyShortBuffered, s.Draws))
+		fmt.Fprintln(tw, "ρ\tfloat pool\tchance some ward short\twith own buffers only\tsimulated: pool, chance")
+		for i, q := range r.Sensitivity {
+			s := r.Simulated[i]
+			fmt.Fprintf(tw, "%g\t%d\t%s\t%s\t%d, %s\n", q.Rho, q.Floats, chance(q.Short, r.TableDraws),
+				chance(q.AnyShortBuffered, r.TableDraws), s.Floats, stats.ProbabilityText(s.ShortDraws, s.Draws))
 		}
 		tw.Flush()
 	}
@@ -347,9 +354,10 @@ func (r *poolReport) jsonForm() any {
 		}
 		return out
 	}
-	sens := []result{}
-	for _, s := range r.Sensitivity {
-		sens = append(sens, conv(s, s.Draws))
+	sens, sims := []result{}, []result{}
+	for i, s := range r.Sensitivity {
+		sens = append(sens, conv(s, r.TableDraws))
+		sims = append(sims, conv(r.Simulated[i], r.Simulated[i].Draws))
 	}
 	return struct {
 		At          string    `json:"at"`
@@ -359,8 +367,9 @@ func (r *poolReport) jsonForm() any {
 		TableDraws  int       `json:"fewest_table_draws"`
 		Exact       result    `json:"independent"`
 		Sensitivity []result  `json:"correlation_sensitivity"`
+		Simulated   []result  `json:"correlation_simulated"`
 		Caution     string    `json:"caution"`
-	}{r.At, r.Cover, r.Wards, r.Left, r.TableDraws, conv(r.Exact, r.TableDraws), sens, r.Caution}
+	}{r.At, r.Cover, r.Wards, r.Left, r.TableDraws, conv(r.Exact, r.TableDraws), sens, sims, r.Caution}
 }
 
 // chance says a probability that rests on simulations of at least n

@@ -170,6 +170,10 @@ func checkPool(t *testing.T, so *storeOptions) {
 			Rho    float64 `json:"rho"`
 			Floats int     `json:"floats"`
 		} `json:"correlation_sensitivity"`
+		Simulated []struct {
+			Method string `json:"method"`
+			Draws  int    `json:"draws"`
+		} `json:"correlation_simulated"`
 		Caution string `json:"caution"`
 	}
 	if err := json.Unmarshal([]byte(js), &got); err != nil {
@@ -197,6 +201,9 @@ func checkPool(t *testing.T, so *storeOptions) {
 	}
 	if len(got.Sensitivity) != 3 || got.Sensitivity[2].Rho != 0.6 || got.Sensitivity[2].Floats < got.Sensitivity[0].Floats {
 		t.Errorf("sensitivity %+v", got.Sensitivity)
+	}
+	if len(got.Simulated) != 3 || got.Simulated[0].Method != "simulation" || got.Simulated[0].Draws != 20000 {
+		t.Errorf("simulated %+v", got.Simulated)
 	}
 
 	for _, c := range []struct {
