@@ -321,8 +321,9 @@ func (r *poolReport) write(w io.Writer) {
 	if x.Unplaced > 0 {
 		fmt.Fprintf(w, "\nA chance of %s lies beyond the wards' shortfall tables and is counted as short whatever the pool.\n", chance(x.Unplaced, r.TableDraws))
 	}
-	fmt.Fprintf(w, "\nChances rest on shortfall tables simulated with at least %d draws each, so none is exact to better than about %s.\n",
-		r.TableDraws, pct(1/float64(r.TableDraws)))
+	_, hi := stats.WilsonInterval(0, r.TableDraws)
+	fmt.Fprintf(w, "\nChances rest on shortfall tables simulated with at least %d draws each: a chance below %s cannot be told from 0.\n",
+		r.TableDraws, pct(hi))
 	fmt.Fprintf(w, "Method: need = the projection's headcount law, at least the ratio floor; floats go where needed, so the hospital is short when Σ max(0, need − staff) > F (Eppen 1979, risk pooling; newsvendor critical fractile).\n")
 	fmt.Fprintf(w, "\n%s\n", r.Caution)
 }
@@ -373,15 +374,16 @@ func (r *poolReport) jsonForm() any {
 }
 
 // chance says a probability that rests on simulations of at least n
-// draws, never as a bare 0% or 100%: below 1/n it is "< (1/n)%", above
-// 1 − 1/n "> (1 − 1/n)%".
+// draws, never as a bare 0% or 100%: below the 95% Wilson upper bound of
+// 0 in n (stats.WilsonInterval) it is "< that bound", above the lower
+// bound of n in n "> that bound".
 func chance(p float64, n int) string {
-	floor := 1 / float64(max(n, 1))
+	_, hi := stats.WilsonInterval(0, max(n, 1))
 	switch {
-	case p < floor:
-		return "< " + pct(floor)
-	case p > 1-floor:
-		return "> " + pct(1-floor)
+	case p < hi:
+		return "< " + pct(hi)
+	case p > 1-hi:
+		return "> " + pct(1-hi)
 	}
 	return pct(p)
 }

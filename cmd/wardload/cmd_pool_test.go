@@ -279,3 +279,24 @@ func expectedPool(t *testing.T, so *storeOptions, override map[string]int) *pool
 	}
 	return res
 }
+
+// TestChanceText: never a bare 0% or 100%. For n = 20,000 the 95% Wilson
+// upper bound of 0 in n is z²/(n + z²) = 3.8415/20003.84 = 0.0192%
+// (z = 1.959964, R 4.2.2: qnorm(0.975)).
+func TestChanceText(t *testing.T) {
+	for _, c := range []struct {
+		p    float64
+		n    int
+		want string
+	}{
+		{0, 20000, "< 0.02%"}, {0.0001, 20000, "< 0.02%"}, {1, 20000, "> 99.98%"}, {0.9999, 20000, "> 99.98%"},
+		{0.0021, 20000, "0.21%"}, {0.057, 20000, "5.7%"}, {0.372, 20000, "37%"}, {0.9996, 1_000_000, "99.96%"},
+	} {
+		if got := chance(c.p, c.n); got != c.want {
+			t.Errorf("chance(%g, %d) = %q; want %q", c.p, c.n, got, c.want)
+		}
+	}
+	if got := pct(0.99999); got == "100%" {
+		t.Errorf("pct(0.99999) = %q", got)
+	}
+}
