@@ -54,7 +54,7 @@ func Correlated(wards []Ward, cover, rho float64) (*Result, error) {
 		for n, c := range cdf {
 			q[i][n] = stats.NormalQuantile(min(1, max(0, c)))
 		}
-		size += max(0, w.Need.Last()-w.Staff)
+		size += max(0, w.Need.Last()-w.Staff) // = the length of the convolved excess
 	}
 	x, wt := make([]float64, hermiteNodes), make([]float64, hermiteNodes)
 	quad.Hermite{}.FixedLocations(x, wt, math.Inf(-1), math.Inf(1))
@@ -68,6 +68,8 @@ func Correlated(wards []Ward, cover, rho float64) (*Result, error) {
 			cond := Need{Ward: w.Need.Ward, From: w.Need.From, PMF: make([]float64, len(q[i]))}
 			prev := 0.0
 			for n, qn := range q[i] {
+				// (The rule's nodes are symmetric, so qn + a·v would give
+				// the same integral: that mutant is equivalent.)
 				c := stdNormalCDF((qn - a*v) / b)
 				cond.PMF[n], prev = max(0, c-prev), max(prev, c)
 			}
@@ -76,10 +78,8 @@ func Correlated(wards []Ward, cover, rho float64) (*Result, error) {
 			anyOK *= 1 - cond.Above(w.Staff+res.Buffers[i])
 		}
 		cdf := 0.0
-		for f := range short {
-			if f < len(sum) {
-				cdf += sum[f]
-			}
+		for f, p := range sum { // len(sum) == size: see above
+			cdf += p
 			short[f] += weight * max(0, 1-cdf)
 		}
 		res.AnyShortBuffered += weight * (1 - anyOK)

@@ -251,6 +251,19 @@ func TestBadInput(t *testing.T) {
 		{"no wards", "wards", func() error { _, err := Exact(nil, 0.9); return err }()},
 		{"negative staff", "staff", func() error { _, err := Exact([]Ward{{Need: wards[0].Need, Staff: -1}}, 0.9); return err }()},
 		{"rho", "rho", func() error { _, err := Simulate(wards, 0.9, 0.99, MinDraws, 1); return err }()},
+		{"rho quadrature", "rho", func() error { _, err := Correlated(wards, 0.9, MaxRho+1e-9); return err }()},
+		{"negative rho", "rho", func() error { _, err := Correlated(wards, 0.9, -0.1); return err }()},
+		{"draws above", "draws", func() error { _, err := Simulate(wards, 0.9, 0, MaxDraws+1, 1); return err }()},
+		{"tail too big, quadrature", "cover", func() error {
+			n, _ := FromShortfall("W", []int{5, 6}, []float64{0.5, 0.3}, 0)
+			_, err := Correlated([]Ward{{Need: n, Staff: 5}, wards[0]}, 0.9, 0.3)
+			return err
+		}()},
+		{"tail too big, simulation", "cover", func() error {
+			n, _ := FromShortfall("W", []int{5, 6}, []float64{0.5, 0.3}, 0)
+			_, err := Simulate([]Ward{{Need: n, Staff: 5}}, 0.9, 0, MinDraws, 1)
+			return err
+		}()},
 		{"draws", "draws", func() error { _, err := Simulate(wards, 0.9, 0, 10, 1); return err }()},
 		{"rising table", "need", func() error { _, err := FromShortfall("W", []int{5, 6}, []float64{0.2, 0.3}, 0); return err }()},
 		{"gap in table", "need", func() error { _, err := FromShortfall("W", []int{5, 7}, []float64{0.2, 0.1}, 0); return err }()},
@@ -278,7 +291,36 @@ func TestUnplacedCountsAsShort(t *testing.T) {
 	}
 	// P(short | F=1) = P(need > 6) = .2; F = 2: P(need > 7) = .04, all of it beyond.
 	if res.Floats != 2 || !scalar.EqualWithinAbs(res.Short, 0.04, 1e-12) || !scalar.EqualWithinAbs(res.Unplaced, 0.04, 1e-12) {
-		t.Errorf("%+v", res)
+		t.Errorf("exact %+v", res)
+	}
+	// The same by quadrature at ρ = 0.5: one ward, so ρ changes nothing.
+	q, err := Correlated([]Ward{{Need: n, Staff: 5}}, 0.9, 0.5)
+	if err != nil || q.Floats != 2 || !scalar.EqualWithinAbs(q.Short, 0.04, 1e-9) || !scalar.EqualWithinAbs(q.Unplaced, 0.04, 1e-9) ||
+		!scalar.EqualWithinAbs(q.ShortFewer, 0.2, 1e-9) {
+		t.Errorf("quadrature %+v, %v", q, err)
+	}
+}
+
+// TestBoundaries: a chance exactly at 1 − cover is within the level; the
+// largest ρ is allowed.
+func TestBoundaries(t *testing.T) {
+	// Need 4 or 5 with .75/.25 (exact in binary), staff 4, cover .75:
+	// P(short | F=0) = .25 ≤ .25, so F = 0 and the buffer is 0.
+	n, _ := NewNeed("W", 4, []float64{0.75, 0.25}, 0, 0)
+	w := []Ward{{Need: n, Staff: 4}}
+	for _, f := range []func() (*Result, error){
+		func() (*Result, error) { return Exact(w, 0.75) },
+		func() (*Result, error) { return Correlated(w, 0.75, MaxRho) },
+		// Not at the boundary (Monte Carlo would decide it): cover .7.
+		func() (*Result, error) { return Simulate(w, 0.7, MaxRho, MinDraws, 1) },
+	} {
+		res, err := f()
+		if err != nil || res.Floats != 0 || res.Buffers[0] != 0 {
+			t.Errorf("%+v, %v; want F = 0 and buffer 0", res, err)
+		}
+	}
+	if n.Above(4) != 0.25 || n.Above(3) != 1 || n.Above(5) != 0 {
+		t.Errorf("Above(3, 4, 5) = %g, %g, %g; want 1, .25, 0", n.Above(3), n.Above(4), n.Above(5))
 	}
 }
 
