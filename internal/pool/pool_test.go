@@ -301,6 +301,58 @@ func TestUnplacedCountsAsShort(t *testing.T) {
 	}
 }
 
+// TestJointTailUnreachable: each ward's tail beyond its table (.06) is
+// within 1 − cover = .1 alone, but together 1 − .94² = .1164 is not.
+func TestJointTailUnreachable(t *testing.T) {
+	n, err := NewNeed("W", 5, []float64{0.94}, 0.06, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := []Ward{{Need: n, Staff: 5}, {Need: n, Staff: 5}}
+	for name, f := range map[string]func() (*Result, error){
+		"exact":      func() (*Result, error) { return Exact(w, 0.9) },
+		"quadrature": func() (*Result, error) { return Correlated(w, 0.9, 0) },
+		"simulation": func() (*Result, error) { return Simulate(w, 0.9, 0, MinDraws, 1) },
+	} {
+		if _, err := f(); wardload.ErrorField(err) != "cover" {
+			t.Errorf("%s: %v; want EINVALID on cover", name, err)
+		}
+	}
+	if b, err := Buffer(w[0], 0.9); err != nil || b != 0 {
+		t.Errorf("one ward alone: buffer %d, %v; want 0", b, err)
+	}
+}
+
+// TestNeedLimits: the edges of NewNeed's preconditions.
+func TestNeedLimits(t *testing.T) {
+	for _, c := range []struct {
+		name   string
+		from   int
+		pmf    []float64
+		beyond float64
+		floor  int
+		ok     bool
+	}{
+		{"last headcount at the limit", MaxHeadcount - 1, []float64{0.5, 0.5}, 0, 0, true},
+		{"last headcount past the limit", MaxHeadcount, []float64{0.5, 0.5}, 0, 0, false},
+		{"floor at the limit", 1, []float64{1}, 0, MaxHeadcount, true},
+		{"floor past the limit", 1, []float64{1}, 0, MaxHeadcount + 1, false},
+		{"negative floor", 1, []float64{1}, 0, -1, false},
+		{"negative from", -1, []float64{1}, 0, 0, false},
+		{"empty", 1, nil, 1, 0, false},
+		{"a zero mass", 1, []float64{0.5, 0, 0.5}, 0, 0, true},
+		{"a negative mass", 1, []float64{1.5, -0.5}, 0, 0, false},
+		{"all beyond", 1, []float64{0}, 1, 0, true},
+		{"beyond above 1", 1, []float64{-0.5}, 1.5, 0, false},
+		{"sum off by 1e-6", 1, []float64{0.5, 0.5 + 1e-6}, 0, 0, false},
+	} {
+		_, err := NewNeed("W", c.from, c.pmf, c.beyond, c.floor)
+		if (err == nil) != c.ok {
+			t.Errorf("%s: %v; want ok = %v", c.name, err, c.ok)
+		}
+	}
+}
+
 // TestBoundaries: a chance exactly at 1 − cover is within the level; the
 // largest ρ is allowed.
 func TestBoundaries(t *testing.T) {
@@ -346,7 +398,7 @@ func TestCorrelatedAgainstExactAndSimulation(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if q0.Floats != ex.Floats || !scalar.EqualWithinAbs(q0.Short, ex.Short, 1e-9) ||
+		if q0.Floats != ex.Floats || q0.Gain != ex.Gain || q0.SumBuffers != ex.SumBuffers || !scalar.EqualWithinAbs(q0.Short, ex.Short, 1e-9) ||
 			!scalar.EqualWithinAbs(q0.ShortFewer, ex.ShortFewer, 1e-9) || !scalar.EqualWithinAbs(q0.AnyShortBuffered, ex.AnyShortBuffered, 1e-9) {
 			t.Errorf("%s ρ=0: quadrature %+v; exact %+v", c.name, q0, ex)
 		}
