@@ -114,6 +114,18 @@ func staffingCases() []testCase {
 				t.Fatalf("bad input wrote %d audit rows", n-before)
 			}
 		}},
+		{"User/StaffingOfficeRole", func(t *testing.T, f *fixture) {
+			w1, w2 := f.seedWard("w1"), f.seedWard("w2")
+			u := &wardload.User{Name: "s.office", Role: wardload.RoleStaffingOffice, PasswordHash: "x", WardIDs: []int64{w2.ward.ID, w1.ward.ID}}
+			noErr(t, f.store.CreateUser(f.ctx, u))
+			got, err := f.store.FindUserByName(f.ctx, "s.office")
+			noErr(t, err)
+			if got.Role != wardload.RoleStaffingOffice || !reflect.DeepEqual(got.WardIDs, []int64{w1.ward.ID, w2.ward.ID}) {
+				t.Fatalf("reread %+v", got)
+			}
+			bad := &wardload.User{Name: "x.bad", Role: "office", PasswordHash: "x"}
+			wantErr(t, f.store.CreateUser(f.ctx, bad), wardload.EINVALID, "role")
+		}},
 		{"Token/WriteStaffingScope", func(t *testing.T, f *fixture) {
 			w1 := f.seedWard("w1")
 			ro := &wardload.APIToken{Name: "reader", Hash: hashOf("r"), WardIDs: []int64{w1.ward.ID}}
