@@ -34,6 +34,13 @@ var allRoles = wardload.Roles
 // but the read-only staffing office.
 var wardStaff = []string{wardload.RoleChargeNurse, wardload.RoleManager, wardload.RoleAdmin}
 
+// readOnly reports whether the signed-in user only reads (the staffing
+// office), so pages leave out the links to entry forms.
+func readOnly(r *http.Request) bool {
+	u := principalFrom(r.Context()).User
+	return u != nil && u.Role == wardload.RoleStaffingOffice
+}
+
 // readers are the roles that may read and download a ward's projections
 // and the board: managers, the staffing office and admins.
 var readers = []string{wardload.RoleManager, wardload.RoleStaffingOffice, wardload.RoleAdmin}

@@ -46,7 +46,7 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	}
 	vm := pg.vm
 	body := pg.bodyHTML[0]
-	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
+	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse && u.Role != wardload.RoleStaffingOffice {
 		vm.SettingsURL = settingsURL(ward)
 		body = pg.bodyHTML[1]
 	}
@@ -59,7 +59,7 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	}
 	if s.now().Before(pg.p.End) {
 		vm.RecordEnds = formatLocal(pg.p.End, ward)
-	} else {
+	} else if !readOnly(r) {
 		vm.RecordURL = shiftRecordURL(ward, pg.p.Date, pg.p.ShiftID)
 	}
 	return s.render(w, r, http.StatusOK, web.ProjectionPageParts(s.layout(r, pg.title), vm, templ.Raw(pg.titleHTML), templ.Raw(body)))
