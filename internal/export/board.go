@@ -3,8 +3,10 @@ package export
 import (
 	"cmp"
 	"context"
+	"encoding/json"
 	"fmt"
 	"slices"
+	"strconv"
 	"time"
 
 	"wardload/internal/stats"
@@ -187,9 +189,31 @@ func BuildBoard(d *BoardData, from, to, now time.Time) (*Board, error) {
 	return b, nil
 }
 
+// boardResult is what the board reads of a stored method 2 or 3 result:
+// only these fields are decoded, which is cheaper than the whole result
+// and unaffected by fields other versions add.
+type boardResult struct {
+	DataSufficient bool              `json:"data_sufficient"`
+	Floor          *stats.FloorUsed  `json:"floor_used"`
+	Shortfall      []stats.Shortfall `json:"shortfall"`
+}
+
+// decodeBoardResult reads the fields of p.Result the board needs; method
+// 1 results go through DecodeResult.
+func decodeBoardResult(p *wardload.Projection) (*Result, error) {
+	if p.MethodVersion != stats.MethodVersion && p.MethodVersion != stats.MethodVersionV2 {
+		return DecodeResult(p)
+	}
+	var br boardResult
+	if err := json.Unmarshal([]byte(p.Result), &br); err != nil {
+		return nil, wardload.Errorf(wardload.EINTERNAL, "The stored result of projection %d cannot be read.", p.ID)
+	}
+	return &Result{V2: &stats.Projection{DataSufficient: br.DataSufficient, Floor: br.Floor, Shortfall: br.Shortfall}}, nil
+}
+
 // fill sets the row's figures from its dated shift's stored projection.
 func (r *BoardRow) fill(p *wardload.Projection) error {
-	res, err := DecodeResult(p)
+	res, err := decodeBoardResult(p)
 	if err != nil {
 		return err
 	}
@@ -259,13 +283,18 @@ func chanceWith(res *Result, n int) *BoardChance {
 }
 
 // ChanceText says a board chance in words: the table's text, or for a
-// bound "higher than 40% (3 nurses)" / "at most < 0.02% (12 nurses)".
+// bound "higher than with 6 nurses: 40% (38–42%)" / "at most that with 12
+// nurses: < 0.02%".
 func (c *BoardChance) ChanceText() string {
+	nurses := strconv.Itoa(c.Nurses) + " nurses"
+	if c.Nurses == 1 {
+		nurses = "1 nurse"
+	}
 	switch c.Bound {
 	case ChanceAtLeast:
-		return fmt.Sprintf("higher than %s (the chance with %d)", c.Text, c.Nurses)
+		return "higher than with " + nurses + ": " + c.Text
 	case ChanceAtMost:
-		return fmt.Sprintf("at most %s (the chance with %d)", c.Text, c.Nurses)
+		return "at most that with " + nurses + ": " + c.Text
 	}
 	return c.Text
 }

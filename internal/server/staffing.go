@@ -14,6 +14,7 @@ import (
 	"github.com/go-chi/chi/v5"
 
 	"wardload/internal/export"
+	"wardload/internal/stats"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -132,7 +133,7 @@ func (s *Server) renderStaffing(w http.ResponseWriter, r *http.Request, status i
 	rec := map[key]string{}
 	for _, p := range projs {
 		switch {
-		case p.DecidedBy == "insufficient_data" && p.Floor == nil:
+		case p.DecidedBy == stats.DecidedByInsufficient && p.Floor == nil:
 			rec[key{p.Date, p.ShiftID}] = "none (too few observations)"
 		default:
 			rec[key{p.Date, p.ShiftID}] = strconv.Itoa(p.Recommended)
