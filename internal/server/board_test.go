@@ -297,6 +297,19 @@ func TestBoardPageForTheStaffingOffice(t *testing.T) {
 	if !strings.Contains(page, "/wards/w-a/staffing?date=2026-03-02") || len(byTestID(t, page, "board-csv")) != 0 {
 		t.Error("charge nurse: want a plan link and no download")
 	}
+	// Its projection page and shift list offer no entry forms or ward
+	// settings.
+	for _, path := range []string{fmt.Sprintf("/wards/w-a/projections/%d", p.ID), "/wards/w-a/projections?from=2026-03-01&to=2026-03-02", "/"} {
+		res, page := f.do(t, f.as(t, pStaffA, httptest.NewRequest("GET", path, nil)))
+		if res.StatusCode != 200 {
+			t.Fatalf("%s: %d", path, res.StatusCode)
+		}
+		for _, link := range []string{"/settings", "/review", "/shift-record", `href="/wards/w-a/census`, "/staffing"} {
+			if strings.Contains(page, link) {
+				t.Errorf("%s offers the staffing office %s", path, link)
+			}
+		}
+	}
 	// The staffing office changes nothing: census entry is refused.
 	res, _ = f.do(t, f.as(t, pStaffA, post("/wards/w-a/census", url.Values{"date": {"2026-03-02"}})))
 	if res.StatusCode != 403 {
