@@ -94,6 +94,8 @@ func RoleLabel(role string) string {
 		return "Manager"
 	case "admin":
 		return "Admin"
+	case "staffing_office":
+		return "Staffing office"
 	}
 	return role
 }

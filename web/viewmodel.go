@@ -45,9 +45,12 @@ type WardRowVM struct {
 	// not manage them.
 	TokensURL string
 	// CensusURL and ProjectionsURL link to census entry and the shift
-	// list, which every member of the ward may use.
+	// list; census entry is "" for the staffing office.
 	CensusURL      string
 	ProjectionsURL string
+	// StaffingURL links to the ward's planned staff; "" for the staffing
+	// office, which reads only (as CensusURL).
+	StaffingURL string
 	// SettingsURL links to the ward's settings; "" for charge nurses.
 	SettingsURL string
 	// ReviewURL links to the ward's weekly tier review; "" for charge

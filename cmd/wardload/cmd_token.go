@@ -21,6 +21,7 @@ func runTokenCreate(ctx context.Context, e *env, args []string) int {
 			"in the roster planner's configuration. wardload keeps only its hash.")
 	wards := fs.String("ward", "", "comma-separated codes of the wards the token may read (required)")
 	name := fs.String("name", "", "unique token name, e.g. roster-planner (required)")
+	writeStaffing := fs.Bool("write-staffing", false, "the token may also send planned staff for its wards' shifts (PUT .../staffing); tokens are read-only without it")
 	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
@@ -40,7 +41,7 @@ func runTokenCreate(ctx context.Context, e *env, args []string) int {
 		return reportError(e, "token create", err)
 	}
 	secret, hash := server.NewTokenSecret()
-	t := &wardload.APIToken{Name: *name, Hash: hash, WardIDs: ids}
+	t := &wardload.APIToken{Name: *name, Hash: hash, WardIDs: ids, WriteStaffing: *writeStaffing}
 	ctx = wardload.WithActor(ctx, wardload.Actor{Name: "cli"})
 	if err := st.CreateToken(ctx, t); err != nil {
 		return reportError(e, "token create", err)

@@ -87,3 +87,46 @@ func TestTokenBadInput(t *testing.T) {
 		t.Errorf("a refused token was stored: %v", err)
 	}
 }
+
+// TestStaffingOfficeAndWriteToken: `user add --role staffing_office` makes
+// a staffing office account for several wards, and `token create
+// --write-staffing` a token that may send planned staff; without the flag
+// a token stays read-only.
+func TestStaffingOfficeAndWriteToken(t *testing.T) {
+	dir := t.TempDir()
+	st := openTestStore(t, dir)
+	ctx := context.Background()
+	for _, c := range []string{"w2", "w3"} {
+		if err := st.CreateWard(ctx, &wardload.Ward{Code: c, Name: "Ward " + c, TimeZone: "Europe/London"}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	code, out, errs := runCLI(t, dir, "office staffing passphrase\n", "user", "add", "--role", "staffing_office", "--ward", "w2,w3", "s.office")
+	if code != exitOK || out != "created user s.office (staffing_office)\n" {
+		t.Fatalf("user add = %d, %q, %q", code, out, errs)
+	}
+	u, err := st.FindUserByName(ctx, "s.office")
+	if err != nil || u.Role != wardload.RoleStaffingOffice || len(u.WardIDs) != 2 {
+		t.Fatalf("stored user %+v, %v", u, err)
+	}
+	if code, _, _ := runCLI(t, dir, "office staffing passphrase\n", "user", "add", "--role", "office", "x.office"); code != exitUsage {
+		t.Errorf("unknown role = %d, want %d", code, exitUsage)
+	}
+	for _, tc := range []struct {
+		name  string
+		args  []string
+		write bool
+	}{
+		{"planner-rw", []string{"--write-staffing"}, true},
+		{"planner-ro", nil, false},
+	} {
+		args := append([]string{"token", "create", "--ward", "w2,w3", "--name", tc.name}, tc.args...)
+		if code, out, errs := runCLI(t, dir, "", args...); code != exitOK {
+			t.Fatalf("%s: %d %q %q", tc.name, code, out, errs)
+		}
+		tok, err := st.FindTokenByName(ctx, tc.name)
+		if err != nil || tok.WriteStaffing != tc.write {
+			t.Errorf("%s: %+v, %v; want WriteStaffing %v", tc.name, tok, err, tc.write)
+		}
+	}
+}

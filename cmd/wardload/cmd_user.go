@@ -26,7 +26,7 @@ func runUserAdd(ctx context.Context, e *env, args []string) int {
 	fs := newFlagSet(e, "user add", "NAME",
 		"Create a staff account. The password is prompted for on a terminal, or read as the first\n"+
 			"line of stdin. On a new database, create the first admin with --role admin.")
-	role := fs.String("role", wardload.RoleChargeNurse, "role: charge_nurse, manager or admin")
+	role := fs.String("role", wardload.RoleChargeNurse, "role: charge_nurse, manager, staffing_office or admin")
 	wards := fs.String("ward", "", "comma-separated codes of the wards the user belongs to")
 	so := addStoreFlags(fs)
 	names, code, ok := parseInterleaved(e, fs, args) // flags may follow NAME

@@ -15,8 +15,8 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 		return err
 	}
 	return s.inTx(ctx, func(tx pgx.Tx, now time.Time) error {
-		if err := tx.QueryRow(ctx, `INSERT INTO api_tokens (name, hash, created_by, created_at)
-			VALUES ($1, $2, $3, $4) RETURNING id`, t.Name, t.Hash, t.CreatedBy, now).Scan(&t.ID); err != nil {
+		if err := tx.QueryRow(ctx, `INSERT INTO api_tokens (name, hash, created_by, created_at, write_staffing)
+			VALUES ($1, $2, $3, $4, $5) RETURNING id`, t.Name, t.Hash, t.CreatedBy, now, t.WriteStaffing).Scan(&t.ID); err != nil {
 			return err
 		}
 		wards := wardload.WardIDSet(t.WardIDs)
@@ -49,7 +49,7 @@ func (s *Store) FindTokens(ctx context.Context, wardID int64) ([]*wardload.APITo
 }
 
 func findTokens(ctx context.Context, q querier, where string, args ...any) ([]*wardload.APIToken, error) {
-	rows, err := q.Query(ctx, `SELECT t.id, t.name, t.hash, t.created_by, t.created_at, t.last_used_at, t.revoked_at
+	rows, err := q.Query(ctx, `SELECT t.id, t.name, t.hash, t.created_by, t.created_at, t.last_used_at, t.revoked_at, t.write_staffing
 		FROM api_tokens t`+where+` ORDER BY t.name`, args...)
 	if err != nil {
 		return nil, formatError(err)
@@ -57,7 +57,7 @@ func findTokens(ctx context.Context, q querier, where string, args ...any) ([]*w
 	ts, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.APIToken, error) {
 		var t wardload.APIToken
 		var used, revoked *time.Time
-		err := r.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &t.CreatedAt, &used, &revoked)
+		err := r.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &t.CreatedAt, &used, &revoked, &t.WriteStaffing)
 		t.CreatedAt, t.LastUsedAt, t.RevokedAt = t.CreatedAt.UTC(), timeOf(used), timeOf(revoked)
 		return &t, err
 	})

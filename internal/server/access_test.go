@@ -20,16 +20,23 @@ const (
 	tRevoked  = "revoked token"
 	tOtherW   = "token of ward B"
 	tValid    = "token of ward A"
+	tWriteA   = "staffing-write token of ward A"
 	pSignedIn = "session cookie" // a signed-in admin's cookie on an API route
 	pAnon     = "signed out"
 )
 
 var (
-	everyone  = []string{pAnon, pNurseA, pManagerA, pAdmin, pManagerB}
-	signedIn  = []string{pNurseA, pManagerA, pAdmin, pManagerB}
+	everyone  = []string{pAnon, pNurseA, pManagerA, pAdmin, pManagerB, pStaffA}
+	signedIn  = []string{pNurseA, pManagerA, pAdmin, pManagerB, pStaffA}
 	managers  = []string{pManagerA, pAdmin, pManagerB}
 	wardAMgrs = []string{pManagerA, pAdmin} // manager/admin who may see ward A
 	admins    = []string{pAdmin}
+	// wardAStaff work on ward A: they change census, records and plans.
+	wardAStaff = []string{pNurseA, pManagerA, pAdmin}
+	// wardAReaders read and download ward A's projections.
+	wardAReaders = []string{pManagerA, pAdmin, pStaffA}
+	// readersAny read and download the board of their own wards.
+	readersAny = []string{pManagerA, pAdmin, pManagerB, pStaffA}
 )
 
 // routeExpectations says, for every route by name, which principals may
@@ -57,7 +64,7 @@ var routeExpectations = map[string][]string{
 	"ward.create":           admins,
 	// API routes: token principals. A token of ward B may list its own
 	// wards; ward-scoped API routes would refuse it for ward A.
-	"api.wards": {tValid, tOtherW},
+	"api.wards": {tValid, tOtherW, tWriteA},
 
 	// Ward settings and the projections API (settings_test.go, api_test.go).
 	"settings":              wardAMgrs,
@@ -67,20 +74,22 @@ var routeExpectations = map[string][]string{
 	"settings.shift.update": wardAMgrs,
 	"settings.tier.create":  wardAMgrs,
 	"settings.tier.update":  wardAMgrs,
-	"api.projections":       {tValid}, // ward=w-a in routeQuery: ward B's token is refused
+	"api.projections":       {tValid, tWriteA}, // ward=w-a in routeQuery: ward B's token is refused
 	"api.openapi":           everyone,
 
 	// Census and projections (census_test.go, projection_test.go): every
 	// member of ward A; the downloads only its manager and the admin.
-	"census.form":      {pNurseA, pManagerA, pAdmin},
-	"census.create":    {pNurseA, pManagerA, pAdmin},
-	"projections":      {pNurseA, pManagerA, pAdmin},
-	"projection":       {pNurseA, pManagerA, pAdmin},
-	"projections.csv":  wardAMgrs,
-	"projections.json": wardAMgrs,
-	// End-of-shift record (shift_record_test.go): every member of ward A.
-	"shift_record.form":   {pNurseA, pManagerA, pAdmin},
-	"shift_record.create": {pNurseA, pManagerA, pAdmin},
+	// The staffing office of ward A reads and downloads but enters nothing.
+	"census.form":      wardAStaff,
+	"census.create":    wardAStaff,
+	"projections":      {pNurseA, pManagerA, pAdmin, pStaffA},
+	"projection":       {pNurseA, pManagerA, pAdmin, pStaffA},
+	"projections.csv":  wardAReaders,
+	"projections.json": wardAReaders,
+	// End-of-shift record (shift_record_test.go): every member of ward A
+	// who works on it.
+	"shift_record.form":   wardAStaff,
+	"shift_record.create": wardAStaff,
 
 	// Weekly review, exclusions and import (review_test.go,
 	// observation_import_test.go): ward A's manager and the admin.
@@ -91,6 +100,21 @@ var routeExpectations = map[string][]string{
 	"observations.import.form": wardAMgrs,
 	"observations.import":      wardAMgrs,
 	"observations.template":    wardAMgrs,
+
+	// Planned staff, the board and own tokens (issue 10; staffing_test.go,
+	// board_test.go): planning is for ward staff; the board for everyone
+	// signed in (their own wards); its downloads and own tokens for
+	// readers; the staffing PUT only for a token that may write staffing.
+	"staffing.form":     wardAStaff,
+	"staffing.save":     wardAStaff,
+	"api.staffing.put":  {tWriteA},
+	"board":             signedIn,
+	"board.csv":         readersAny,
+	"board.json":        readersAny,
+	"api.board":         {tValid, tOtherW, tWriteA},
+	"tokens.own":        readersAny,
+	"tokens.own.create": readersAny,
+	"tokens.own.revoke": readersAny, // another's token: 404, not a refusal
 }
 
 // routeQuery is appended to the path of routes that read their subject
@@ -111,8 +135,9 @@ func TestEveryRouteByEveryPrincipal(t *testing.T) {
 		t.Fatal(err)
 	}
 	_, target := f.MustToken(t, "to-revoke", f.wardA.ID)
+	writeSecret, _ := f.MustWriteToken(t, "planner-write-a", f.wardA.ID)
 	forged, _ := NewTokenSecret()
-	tokens := map[string]string{tNone: "", tForged: forged, tRevoked: revokedSecret, tOtherW: otherSecret, tValid: validSecret}
+	tokens := map[string]string{tNone: "", tForged: forged, tRevoked: revokedSecret, tOtherW: otherSecret, tValid: validSecret, tWriteA: writeSecret}
 
 	seen := map[string]bool{}
 	for _, rt := range f.s.Routes() {
@@ -122,7 +147,7 @@ func TestEveryRouteByEveryPrincipal(t *testing.T) {
 			continue
 		}
 		seen[rt.Name] = true
-		path := strings.NewReplacer("{ward}", f.wardA.Code, "*", "wardload.css").Replace(rt.Pattern)
+		path := strings.NewReplacer("{ward}", f.wardA.Code, "*", "wardload.css", "{date}", "2026-03-02", "{shift}", "day").Replace(rt.Pattern)
 		path = strings.ReplaceAll(path, "{id}", fmt.Sprint(idFor(rt, f, target))) + routeQuery[rt.Name]
 		if strings.Contains(path, "{") {
 			t.Errorf("route %s: test cannot fill %s", rt.Name, path)
@@ -135,7 +160,7 @@ func TestEveryRouteByEveryPrincipal(t *testing.T) {
 			return httptest.NewRequest(rt.Method, path, nil)
 		}
 		if rt.Access.API {
-			for _, p := range []string{pSignedIn, tNone, tForged, tRevoked, tOtherW, tValid} {
+			for _, p := range []string{pSignedIn, tNone, tForged, tRevoked, tOtherW, tValid, tWriteA} {
 				t.Run(rt.Name+"/"+p, func(t *testing.T) {
 					req := newReq()
 					if p == pSignedIn {
@@ -149,9 +174,10 @@ func TestEveryRouteByEveryPrincipal(t *testing.T) {
 						if res.StatusCode == 401 || res.StatusCode == 403 {
 							t.Errorf("allowed: status %d %s", res.StatusCode, body)
 						}
-					case p == tOtherW:
+					case p == tOtherW || p == tValid || p == tWriteA:
+						// A good token without the ward or the permission.
 						if res.StatusCode != 403 {
-							t.Errorf("other ward's token: status %d, want 403", res.StatusCode)
+							t.Errorf("%s: status %d, want 403", p, res.StatusCode)
 						}
 					default:
 						if res.StatusCode != 401 || !strings.HasPrefix(res.Header.Get("WWW-Authenticate"), "Bearer") {

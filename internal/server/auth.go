@@ -27,7 +27,23 @@ const (
 )
 
 // allRoles is the Access.Roles of routes any signed-in user may use.
-var allRoles = []string{wardload.RoleChargeNurse, wardload.RoleManager, wardload.RoleAdmin}
+var allRoles = wardload.Roles
+
+// wardStaff are the roles that work on a ward and may change what
+// happens on it (census, end-of-shift records, planned staff): everyone
+// but the read-only staffing office.
+var wardStaff = []string{wardload.RoleChargeNurse, wardload.RoleManager, wardload.RoleAdmin}
+
+// readOnly reports whether the signed-in user only reads (the staffing
+// office), so pages leave out the links to entry forms.
+func readOnly(r *http.Request) bool {
+	u := principalFrom(r.Context()).User
+	return u != nil && u.Role == wardload.RoleStaffingOffice
+}
+
+// readers are the roles that may read and download a ward's projections
+// and the board: managers, the staffing office and admins.
+var readers = []string{wardload.RoleManager, wardload.RoleStaffingOffice, wardload.RoleAdmin}
 
 // principal is who is making the request: a signed-in user (pages) or an
 // API token (API routes), never both.
@@ -124,6 +140,9 @@ func checkAccess(rt Route) bool {
 		if !wardload.ValidRole(r) {
 			return false
 		}
+	}
+	if a.WriteStaffing && !a.API {
+		return false
 	}
 	if a.WardScoped && !strings.Contains(rt.Pattern, "{ward}") {
 		return false

@@ -35,7 +35,8 @@ func TokenHash(secret string) string {
 // requireToken is the guard of API routes: a bearer token only, never a
 // session cookie, so a browser cannot be tricked into calling the API.
 // Missing, malformed, unknown and revoked tokens are all 401 with
-// WWW-Authenticate; a token without the route's ward is 403.
+// WWW-Authenticate; a token without the route's ward, or without the
+// staffing write permission a WriteStaffing route needs, is 403.
 func (s *Server) requireToken(rt Route, next http.Handler) http.Handler {
 	return s.handle(func(w http.ResponseWriter, r *http.Request) error {
 		refuse := func() error {
@@ -68,6 +69,9 @@ func (s *Server) requireToken(rt Route, next http.Handler) http.Handler {
 			if !slices.Contains(t.WardIDs, p.Ward.ID) {
 				return wardload.Errorf(wardload.EFORBIDDEN, "This token may not read this ward.")
 			}
+		}
+		if rt.Access.WriteStaffing && !t.WriteStaffing {
+			return wardload.Errorf(wardload.EFORBIDDEN, "This token may only read; a token that may send planned staff is needed.")
 		}
 		if err := s.store.TouchToken(r.Context(), t.ID, s.now()); err != nil {
 			return err

@@ -70,6 +70,7 @@ const (
 	pManagerA = "manager of A"
 	pAdmin    = "admin"
 	pManagerB = "manager of B" // member of another ward
+	pStaffA   = "staffing office of A"
 )
 
 func newFixture(tb testing.TB) *fixture {
@@ -98,6 +99,7 @@ func newFixtureOn(tb testing.TB, st *sqlite.Store) *fixture {
 		{pManagerA, "m.manager", wardload.RoleManager, []int64{f.wardA.ID}},
 		{pAdmin, "a.admin", wardload.RoleAdmin, nil},
 		{pManagerB, "o.other", wardload.RoleManager, []int64{f.wardB.ID}},
+		{pStaffA, "s.office", wardload.RoleStaffingOffice, []int64{f.wardA.ID}},
 	} {
 		pw := "pw of " + u.name + " 7c1e"
 		f.MustUser(tb, u.p, u.name, u.role, pw, u.wards...)
@@ -141,6 +143,18 @@ func (f *fixture) MustToken(tb testing.TB, name string, wards ...int64) (string,
 	tb.Helper()
 	secret, hash := NewTokenSecret()
 	t := &wardload.APIToken{Name: name, Hash: hash, WardIDs: wards}
+	if err := f.st.CreateToken(wardload.WithActor(context.Background(), wardload.Actor{Name: "test"}), t); err != nil {
+		tb.Fatal(err)
+	}
+	return secret, t
+}
+
+// MustWriteToken creates a token for wards that may also send planned
+// staff, and returns its secret.
+func (f *fixture) MustWriteToken(tb testing.TB, name string, wards ...int64) (string, *wardload.APIToken) {
+	tb.Helper()
+	secret, hash := NewTokenSecret()
+	t := &wardload.APIToken{Name: name, Hash: hash, WardIDs: wards, WriteStaffing: true}
 	if err := f.st.CreateToken(wardload.WithActor(context.Background(), wardload.Actor{Name: "test"}), t); err != nil {
 		tb.Fatal(err)
 	}

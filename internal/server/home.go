@@ -29,9 +29,14 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 	for _, wd := range wards {
 		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone}
 		if u != nil {
-			row.CensusURL, row.ProjectionsURL = censusURL(wd), projectionsURL(wd)
+			row.ProjectionsURL = projectionsURL(wd)
 		}
-		if u != nil && u.Role != wardload.RoleChargeNurse {
+		// The staffing office reads only: no census entry, planning or
+		// ward pages of managers.
+		if u != nil && u.Role != wardload.RoleStaffingOffice {
+			row.CensusURL, row.StaffingURL = censusURL(wd), "/wards/"+wd.Code+"/staffing"
+		}
+		if u != nil && u.Role != wardload.RoleChargeNurse && u.Role != wardload.RoleStaffingOffice {
 			row.TokensURL = tokensURL(wd)
 			row.SettingsURL = settingsURL(wd)
 			row.ReviewURL = reviewURL(wd)

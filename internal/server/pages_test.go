@@ -230,9 +230,10 @@ func TestUserPages(t *testing.T) {
 func TestNavByRole(t *testing.T) {
 	f := newFixture(t)
 	for p, want := range map[string][]string{
-		pNurseA:   {"Wards"},
-		pManagerA: {"WardsAudit log"}, // link texts run together in the test's text extraction
-		pAdmin:    {"WardsAudit logUsers"},
+		pNurseA:   {"WardsBoard"},
+		pManagerA: {"WardsBoardAPI tokensAudit log"}, // link texts run together in the test's text extraction
+		pAdmin:    {"WardsBoardAPI tokensAudit logUsers"},
+		pStaffA:   {"WardsBoardAPI tokens"},
 	} {
 		_, body := f.do(t, f.as(t, p, httptest.NewRequest("GET", "/", nil)))
 		if got := byTestID(t, body, "nav"); !slices.Equal(got, want) {

@@ -46,7 +46,9 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	}
 	vm := pg.vm
 	body := pg.bodyHTML[0]
-	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
+	// Settings and review links for managers and admins only: charge
+	// nurses and the staffing office get the body without them.
+	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse && u.Role != wardload.RoleStaffingOffice {
 		vm.SettingsURL = settingsURL(ward)
 		body = pg.bodyHTML[1]
 	}
@@ -57,9 +59,13 @@ func (s *Server) handleProjection(w http.ResponseWriter, r *http.Request) error 
 	if err := s.dutyVM(r, ward, pg.p, staff, &vm); err != nil {
 		return err
 	}
-	if s.now().Before(pg.p.End) {
+	switch {
+	case readOnly(r):
+		// The staffing office enters no corrections or records.
+		vm.CensusURL = ""
+	case s.now().Before(pg.p.End):
 		vm.RecordEnds = formatLocal(pg.p.End, ward)
-	} else {
+	default:
 		vm.RecordURL = shiftRecordURL(ward, pg.p.Date, pg.p.ShiftID)
 	}
 	return s.render(w, r, http.StatusOK, web.ProjectionPageParts(s.layout(r, pg.title), vm, templ.Raw(pg.titleHTML), templ.Raw(body)))

@@ -102,7 +102,7 @@ func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error
 		if i < len(ps) && ps[i].Date == row.Date && ps[i].CensusRevision == row.CensusRevision && ps[i].ShiftName == row.Shift {
 			rv.URL = projectionURL(ward, ps[i].ID)
 			rv.RecordText = "after " + row.End.Format("15:04")
-			if !s.now().Before(row.End) {
+			if !s.now().Before(row.End) && !readOnly(r) {
 				rv.RecordURL, rv.RecordText = shiftRecordURL(ward, row.Date, ps[i].ShiftID), "Record"
 				if row.Actual != nil {
 					rv.RecordText = fmt.Sprintf("Recorded (rev. %d)", row.Actual.Revision)
@@ -110,6 +110,9 @@ func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error
 			}
 		}
 		vm.Rows = append(vm.Rows, rv)
+	}
+	if readOnly(r) {
+		vm.CensusURL = ""
 	}
 	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
 		qs := "?from=" + from.String() + "&to=" + to.String()

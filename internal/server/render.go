@@ -53,6 +53,8 @@ type navItem struct {
 // role may use (the route table still decides access).
 var nav = []navItem{
 	{web.NavItem{Label: "Wards", URL: "/"}, allRoles},
+	{web.NavItem{Label: "Board", URL: "/board"}, allRoles},
+	{web.NavItem{Label: "API tokens", URL: "/tokens"}, readers},
 	{web.NavItem{Label: "Audit log", URL: "/audit"}, []string{wardload.RoleManager, wardload.RoleAdmin}},
 	{web.NavItem{Label: "Users", URL: "/admin/users"}, []string{wardload.RoleAdmin}},
 }

@@ -34,6 +34,9 @@ type Access struct {
 	// user or token must be a member of that ward (admins are members of
 	// all). An unknown ward is 404.
 	WardScoped bool
+	// WriteStaffing marks an API route that changes planned staff: the
+	// token must have APIToken.WriteStaffing, else 403.
+	WriteStaffing bool
 }
 
 // Route is one entry of the route table.
@@ -58,6 +61,7 @@ func (s *Server) routeTable() []Route {
 	wardManagers := Access{Roles: managers.Roles, WardScoped: true}
 	admins := Access{Roles: []string{wardload.RoleAdmin}}
 	api := Access{API: true}
+	wardReaders := Access{Roles: readers, WardScoped: true}
 	return []Route{
 		// Public: signed out, it names the wards this installation serves
 		// (code and name, no figures) beside the sign-in link; signed in,
@@ -105,16 +109,16 @@ func (s *Server) routeTable() []Route {
 		// downloads (census.go, projection.go, projection_list.go). Any
 		// member of the ward enters census and reads projections; exports
 		// are the managers'.
-		{Method: http.MethodGet, Pattern: "/wards/{ward}/census", Name: "census.form", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleCensusForm},
-		{Method: http.MethodPost, Pattern: "/wards/{ward}/census", Name: "census.create", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleCensusCreate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/census", Name: "census.form", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleCensusForm},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/census", Name: "census.create", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleCensusCreate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections", Name: "projections", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjections},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections/{id}", Name: "projection", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleProjection},
 		// The end-of-shift record of a dated shift (shift_record.go): any
 		// member of the ward, once the shift has ended.
-		{Method: http.MethodGet, Pattern: "/wards/{ward}/shift-record", Name: "shift_record.form", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleShiftRecordForm},
-		{Method: http.MethodPost, Pattern: "/wards/{ward}/shift-record", Name: "shift_record.create", Access: Access{Roles: allRoles, WardScoped: true}, Handler: s.handleShiftRecordCreate, MaxBodyBytes: 16 << 10},
-		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.csv", Name: "projections.csv", Access: wardManagers, Handler: s.handleProjectionsCSV},
-		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.json", Name: "projections.json", Access: wardManagers, Handler: s.handleProjectionsJSON},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/shift-record", Name: "shift_record.form", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleShiftRecordForm},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/shift-record", Name: "shift_record.create", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleShiftRecordCreate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.csv", Name: "projections.csv", Access: wardReaders, Handler: s.handleProjectionsCSV},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/projections.json", Name: "projections.json", Access: wardReaders, Handler: s.handleProjectionsJSON},
 
 		// Weekly tier review, exclusions and observation import, managers
 		// only (review.go, review_page.go, review_exclusion.go,
@@ -126,6 +130,21 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/observations/import", Name: "observations.import.form", Access: wardManagers, Handler: s.handleImportForm},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/observations/import", Name: "observations.import", Access: wardManagers, Handler: s.handleImport, MaxBodyBytes: maxImportBytes + 64<<10},
 		{Method: http.MethodGet, Pattern: "/wards/{ward}/observations/template.csv", Name: "observations.template", Access: wardManagers, Handler: s.handleImportTemplate},
+
+		// Planned staff per dated shift and the hospital board (issue 10;
+		// staffing.go, board.go, token_multi.go): ward staff plan in the
+		// browser, a roster planner's token with WriteStaffing over the
+		// API; the board is every ward the user or token may see.
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/staffing", Name: "staffing.form", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleStaffingForm},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/staffing", Name: "staffing.save", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleStaffingSave, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPut, Pattern: "/api/v1/wards/{ward}/shifts/{date}/{shift}/staffing", Name: "api.staffing.put", Access: Access{API: true, WardScoped: true, WriteStaffing: true}, Handler: s.handleAPIStaffingPut, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodGet, Pattern: "/board", Name: "board", Access: signedIn, Handler: s.handleBoard},
+		{Method: http.MethodGet, Pattern: "/board.csv", Name: "board.csv", Access: Access{Roles: readers}, Handler: s.handleBoardCSV},
+		{Method: http.MethodGet, Pattern: "/board.json", Name: "board.json", Access: Access{Roles: readers}, Handler: s.handleBoardJSON},
+		{Method: http.MethodGet, Pattern: "/api/v1/board", Name: "api.board", Access: api, Handler: s.handleAPIBoard},
+		{Method: http.MethodGet, Pattern: "/tokens", Name: "tokens.own", Access: Access{Roles: readers}, Handler: s.handleOwnTokens},
+		{Method: http.MethodPost, Pattern: "/tokens", Name: "tokens.own.create", Access: Access{Roles: readers}, Handler: s.handleOwnTokenCreate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/tokens/{id}/revoke", Name: "tokens.own.revoke", Access: Access{Roles: readers}, Handler: s.handleOwnTokenRevoke, MaxBodyBytes: 8 << 10},
 	}
 }
 

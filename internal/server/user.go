@@ -125,7 +125,7 @@ func (s *Server) handleUserUpdate(w http.ResponseWriter, r *http.Request) error 
 		return rowError(err)
 	}
 	if !wardload.ValidRole(role) {
-		return rowError(wardload.FieldErrorf(wardload.EINVALID, "role", "Role must be charge_nurse, manager or admin."))
+		return rowError(wardload.FieldErrorf(wardload.EINVALID, "role", "Role must be charge_nurse, manager, staffing_office or admin."))
 	}
 	me := principalFrom(r.Context()).User
 	if target.ID == me.ID && (disabled || role != wardload.RoleAdmin) {

@@ -14,8 +14,8 @@ func (s *Store) CreateToken(ctx context.Context, t *wardload.APIToken) error {
 		return err
 	}
 	return s.write(ctx, func(tx *Tx) error {
-		res, err := tx.ExecContext(ctx, `INSERT INTO api_tokens (name, hash, created_by, created_at) VALUES (?, ?, ?, ?)`,
-			t.Name, t.Hash, t.CreatedBy, formatTime(tx.now))
+		res, err := tx.ExecContext(ctx, `INSERT INTO api_tokens (name, hash, created_by, created_at, write_staffing) VALUES (?, ?, ?, ?, ?)`,
+			t.Name, t.Hash, t.CreatedBy, formatTime(tx.now), boolInt(t.WriteStaffing))
 		if err != nil {
 			return err
 		}
@@ -100,7 +100,7 @@ func findToken(ctx context.Context, q querier, cond string, arg any) (*wardload.
 func findTokens(ctx context.Context, q querier, cond string, args ...any) ([]*wardload.APIToken, error) {
 	// Ward IDs come in the same query: FindTokenByHash runs on every API
 	// request, so one round trip instead of two.
-	rows, err := q.QueryContext(ctx, `SELECT id, name, hash, created_by, created_at, last_used_at, revoked_at,
+	rows, err := q.QueryContext(ctx, `SELECT id, name, hash, created_by, created_at, last_used_at, revoked_at, write_staffing,
 		(SELECT group_concat(ward_id, ',' ORDER BY ward_id) FROM token_wards WHERE token_id = api_tokens.id)
 		FROM api_tokens WHERE `+cond+` ORDER BY name`, args...)
 	if err != nil {
@@ -112,7 +112,7 @@ func findTokens(ctx context.Context, q querier, cond string, args ...any) ([]*wa
 		var t wardload.APIToken
 		var created string
 		var used, revoked, wards sql.NullString
-		if err := rows.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &created, &used, &revoked, &wards); err != nil {
+		if err := rows.Scan(&t.ID, &t.Name, &t.Hash, &t.CreatedBy, &created, &used, &revoked, &t.WriteStaffing, &wards); err != nil {
 			return nil, err
 		}
 		if t.WardIDs, err = parseIDs(wards.String); err != nil {

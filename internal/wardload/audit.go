@@ -41,6 +41,7 @@ const (
 	ActionProjectionCreate   = "projection.create"
 	ActionSettingsSave       = "settings.save"
 	ActionShiftRecordCreate  = "shift_record.create"
+	ActionStaffingPlan       = "staffing.plan"
 )
 
 // Audit actions of security events, which the server writes itself.

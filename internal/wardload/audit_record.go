@@ -155,8 +155,11 @@ type tokenAudit struct {
 	CreatedBy int64
 	CreatedAt time.Time
 	RevokedAt time.Time
+	// WriteStaffing is left out for read-only tokens, whose rows read as
+	// they did before tokens could write.
+	WriteStaffing bool `json:",omitempty"`
 }
 
 func (t *APIToken) auditRecord() auditRecord {
-	return auditRecord{"token", t.ID, t.WardIDs, tokenAudit{t.ID, t.Name, wardList(t.WardIDs), t.CreatedBy, t.CreatedAt, t.RevokedAt}}
+	return auditRecord{"token", t.ID, t.WardIDs, tokenAudit{t.ID, t.Name, wardList(t.WardIDs), t.CreatedBy, t.CreatedAt, t.RevokedAt, t.WriteStaffing}}
 }

@@ -25,6 +25,7 @@ type Store interface {
 	SignInService
 	ShiftRecordService
 	WardVersionService
+	PlannedStaffService
 
 	// Ping returns an error if the database cannot be reached.
 	Ping(ctx context.Context) error

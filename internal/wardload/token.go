@@ -8,14 +8,18 @@ import (
 // APIToken lets a roster planner read projections of some wards over the
 // API. Only a hash of the secret is stored; the secret is shown once.
 type APIToken struct {
-	ID         int64
-	Name       string // unique, e.g. "roster-planner"
-	Hash       string // hex SHA-256 of the secret
-	WardIDs    []int64
-	CreatedBy  int64 // user ID, 0 for the command line
-	CreatedAt  time.Time
-	LastUsedAt time.Time // zero if never used
-	RevokedAt  time.Time // zero if active
+	ID      int64
+	Name    string // unique, e.g. "roster-planner"
+	Hash    string // hex SHA-256 of the secret
+	WardIDs []int64
+	// WriteStaffing lets the token also send the planned staff of its
+	// wards' shifts (PlannedStaffService); nothing else it can change.
+	// Tokens are read-only without it, as every token made before it was.
+	WriteStaffing bool
+	CreatedBy     int64 // user ID, 0 for the command line
+	CreatedAt     time.Time
+	LastUsedAt    time.Time // zero if never used
+	RevokedAt     time.Time // zero if active
 }
 
 // Active reports whether the token may still be used.

@@ -9,16 +9,23 @@ import (
 
 // Roles. A charge nurse enters and corrects census and sees projections of
 // their wards; a manager does everything on their wards; an admin does
-// everything everywhere.
+// everything everywhere. The staffing office reads the shift lists,
+// projections, the board and exports of its wards (an admin gives it
+// every ward for a hospital-wide office) and manages its own API tokens;
+// it changes no census, settings or observations.
 const (
-	RoleChargeNurse = "charge_nurse"
-	RoleManager     = "manager"
-	RoleAdmin       = "admin"
+	RoleChargeNurse    = "charge_nurse"
+	RoleManager        = "manager"
+	RoleAdmin          = "admin"
+	RoleStaffingOffice = "staffing_office"
 )
+
+// Roles lists every role, in the order forms offer them.
+var Roles = []string{RoleChargeNurse, RoleManager, RoleStaffingOffice, RoleAdmin}
 
 // ValidRole reports whether r is a known role.
 func ValidRole(r string) bool {
-	return r == RoleChargeNurse || r == RoleManager || r == RoleAdmin
+	return slices.Contains(Roles, r)
 }
 
 var userNamePattern = regexp.MustCompile(`^[a-z0-9][a-z0-9._-]{1,39}$`)
@@ -50,7 +57,7 @@ func (u *User) Validate() error {
 		return FieldErrorf(EINVALID, "name", "User name must be 2–40 lowercase letters, digits, '.', '-' or '_'.")
 	}
 	if !ValidRole(u.Role) {
-		return FieldErrorf(EINVALID, "role", "Role must be charge_nurse, manager or admin.")
+		return FieldErrorf(EINVALID, "role", "Role must be charge_nurse, manager, staffing_office or admin.")
 	}
 	if u.PasswordHash == "" {
 		return FieldErrorf(EINVALID, "password", "A password is required.")
