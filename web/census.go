@@ -34,8 +34,12 @@ type CensusVM struct {
 	// keeps the sentence current while typing.
 	// Staff are the optional fields of the staff on duty, stored with the
 	// census revision.
-	Staff     []StaffFieldVM
-	Beds      int
+	Staff []StaffFieldVM
+	// Planned are the optional planned admissions and discharges of the
+	// shift, in a section that is open when one has a value or an error.
+	Planned     []StaffFieldVM
+	PlannedOpen bool
+	Beds        int
 	TotalText string
 	TotalOver bool
 	ScriptURL string

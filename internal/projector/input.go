@@ -41,6 +41,10 @@ type InputSettings struct {
 	Beds               int                   `json:"beds"`      // 0: not configured
 	Floors             []wardload.RatioFloor `json:"floors"`    // the ward's floors for this shift
 	TimeZone           string                `json:"time_zone"`
+	// MovementFrom and MovementTo are the window of the end-of-shift
+	// records whose admissions and discharges Model.Movement holds.
+	MovementFrom string `json:"movement_from,omitempty"`
+	MovementTo   string `json:"movement_to,omitempty"`
 }
 
 // Seed returns the bootstrap seed of a dated shift: the first 8 bytes
