@@ -40,9 +40,9 @@ type CensusVM struct {
 	Planned     []StaffFieldVM
 	PlannedOpen bool
 	Beds        int
-	TotalText string
-	TotalOver bool
-	ScriptURL string
+	TotalText   string
+	TotalOver   bool
+	ScriptURL   string
 
 	// Choices are the large shift choices at a change-over: the shift
 	// about to start first, the one running second (empty when there is
