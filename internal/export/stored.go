@@ -94,6 +94,9 @@ func newRow(ward *wardload.Ward, loc *time.Location, p *wardload.Projection, res
 	if f := res.FloorUsed(); f != nil {
 		r.FloorRule = f.Description
 	}
+	if res.V2 != nil && res.V2.Movement != nil {
+		r.Movement = newMovement(res.V2)
+	}
 	if res.V2 != nil && !res.V2.DataSufficient {
 		r.DataSufficient = false
 		r.Insufficient = res.V2.Insufficient

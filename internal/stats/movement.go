@@ -80,6 +80,10 @@ type Movement struct {
 	// Admissions and Discharges are null when the rates are not used.
 	Admissions *MovementRate `json:"admissions"`
 	Discharges *MovementRate `json:"discharges"`
+	// PlannedAdmissions and PlannedDischarges are today's planned counts
+	// as given (nil: none), lower bounds of the shift's counts.
+	PlannedAdmissions *int `json:"planned_admissions"`
+	PlannedDischarges *int `json:"planned_discharges"`
 	// ExpectedMinutes is the mean over the draws of the care minutes
 	// movement adds (negative: removes); included in the projection's
 	// expected minutes.
@@ -250,6 +254,7 @@ func fitMovement(in *MovementInput, date string, patients int) (*movementFit, *M
 		}
 		adm[i], dis[i], wd[i] = h.Admissions, h.Discharges, int(d.Weekday())
 	}
+	mv.PlannedAdmissions, mv.PlannedDischarges = in.PlannedAdmissions, in.PlannedDischarges
 	fit := &movementFit{beds: in.Beds, patients: patients}
 	if in.PlannedAdmissions != nil {
 		fit.planAdm = *in.PlannedAdmissions
