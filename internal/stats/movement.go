@@ -48,7 +48,8 @@ type MovementInput struct {
 	History []MovementRecord `json:"history"`
 	// PlannedAdmissions and PlannedDischarges are the charge nurse's
 	// counts for today (nil: none given). Each is a lower bound on the
-	// shift's count: the simulated count is raised to it when lower.
+	// shift's count: the simulated count is raised to it when lower
+	// (planned admissions also on a ward the census fills).
 	PlannedAdmissions *int `json:"planned_admissions,omitempty"`
 	PlannedDischarges *int `json:"planned_discharges,omitempty"`
 	Beds              int  `json:"beds"` // admissions are capped at the beds free during the shift; 0: no cap
@@ -287,18 +288,20 @@ func fitMovement(in *MovementInput, date string, patients int) (*movementFit, *M
 }
 
 // counts draws one shift's admissions and discharges: each drawn from its
-// rate (0 without rates), raised to its planned count, discharges capped
-// at the census and admissions at the beds free once the discharges have
-// left (beds − patients + discharges, when beds are configured).
+// rate (0 without rates); discharges raised to the planned count and
+// capped at the census; drawn admissions capped at the beds free once the
+// discharges have left (beds − patients + discharges, when beds are
+// configured), then raised to the planned count, which stands even on a
+// full ward (the charge nurse knows of beds the draws do not).
 func (m *movementFit) counts(r *rand.Rand) (adm, dis int) {
 	if m.adm != nil {
 		adm, dis = m.adm.draw(r), m.dis.draw(r)
 	}
-	adm, dis = max(adm, m.planAdm), min(max(dis, m.planDis), m.patients)
+	dis = min(max(dis, m.planDis), m.patients)
 	if m.beds > 0 {
 		adm = min(adm, max(0, m.beds-m.patients+dis))
 	}
-	return adm, dis
+	return max(adm, m.planAdm), dis
 }
 
 // drawTotalMoving draws one shift total with census movement (version 4):

@@ -271,15 +271,21 @@ func TestProjectMovementBadInput(t *testing.T) {
 	}
 }
 
-// Discharges never exceed the census and admissions never the free beds.
+// Discharges never exceed the census; drawn admissions never the free
+// beds; planned counts are lower bounds, planned admissions also on a
+// full ward.
 func TestMovementCounts(t *testing.T) {
 	rate := EstimateMovementRate([]int{9, 8, 10, 9, 9, 8, 10, 9}, make([]int, 8), 0)
 	m := &movementFit{adm: &rate, dis: &rate, patients: 3, beds: 5, planAdm: 1}
 	r := rand.New(rand.NewPCG(5, 6))
 	for range 1000 {
 		a, d := m.counts(r)
-		if d > 3 || a > 5-3+d || a < 0 || d < 0 {
+		if d > 3 || a > 5-3+d || a < 1 || d < 0 {
 			t.Fatalf("admissions %d discharges %d with 3 patients and 5 beds", a, d)
 		}
+	}
+	full := &movementFit{patients: 5, beds: 5, planAdm: 2, planDis: 9}
+	if a, d := full.counts(r); a != 2 || d != 5 {
+		t.Errorf("full ward, planned 2 admissions and 9 discharges: %d and %d, want 2 and 5", a, d)
 	}
 }
