@@ -131,6 +131,14 @@ const MovementAssumption = "Admissions and discharges during the shift are count
 // Nelder 1989, §9.2). Mean = (S/φ + 1/2)/(m/φ); Low, High are the 5% and
 // 95% gamma quantiles.
 //
+// Counting admissions as Poisson arrivals is the usual assumption of
+// bed-occupancy and ward-dimensioning models (for example de Bruin, A. M.,
+// Bekker, R., van Zanten, L. & Koole, G. M. (2010), "Dimensioning hospital
+// wards using the Erlang loss model", Annals of Operations Research 178,
+// 23–43; cited from memory); the quasi-Poisson dispersion is the check on
+// it, and where records vary more (scheduled lists, batches from theatre)
+// the wider spread is carried into the draws.
+//
 // Preconditions: len(weekdays) = len(counts), counts ≥ 0; it panics
 // otherwise. It returns a rate with Records 0 when counts is empty.
 func EstimateMovementRate(counts, weekdays []int, target int) MovementRate {
