@@ -328,12 +328,14 @@ func (m *movementFit) counts(r *rand.Rand) (adm, dis int) {
 // ShiftMinutes assumes. An admitted or discharged patient's care is drawn
 // from their tier's distribution in that draw (same parameter draw, same
 // shift effect). It returns the total and the net minutes movement made.
-func (f *careFit) drawTotalMoving(r *rand.Rand, m *movementFit) (total, moved float64) {
+//
+// leave and arrive are scratch space of len(f.tiers), overwritten.
+func (f *careFit) drawTotalMoving(r *rand.Rand, m *movementFit, leave, arrive []int) (total, moved float64) {
 	p := f.drawParams(r)
 	b := math.Sqrt(p.tau2) * r.NormFloat64()
 	adm, dis := m.counts(r)
-	leave := make([]int, len(f.tiers))
-	arrive := make([]int, len(f.tiers))
+	clear(leave)
+	clear(arrive)
 	remaining := m.patients
 	for range dis {
 		leave[patientTier(f, r.IntN(remaining), leave)]++
@@ -350,11 +352,10 @@ func (f *careFit) drawTotalMoving(r *rand.Rand, m *movementFit) (total, moved fl
 		mu, s2 := f.tierLocation(r, t, p)
 		mu += b
 		s := math.Sqrt(s2)
-		one := func() float64 { return max(0, math.Exp(mu+s*r.NormFloat64())-t.offset) }
 		stay := t.patients - leave[k]
 		if stay < f.fwFrom {
 			for range stay {
-				total += one()
+				total += max(0, math.Exp(mu+s*r.NormFloat64())-t.offset)
 			}
 		} else {
 			n := float64(stay)
@@ -363,12 +364,12 @@ func (f *careFit) drawTotalMoving(r *rand.Rand, m *movementFit) (total, moved fl
 			total += max(0, math.Exp(loc+math.Sqrt(v)*r.NormFloat64())-n*t.offset)
 		}
 		for range leave[k] {
-			c, u := one(), r.Float64()
+			c, u := max(0, math.Exp(mu+s*r.NormFloat64())-t.offset), r.Float64()
 			total += u * c
 			moved -= (1 - u) * c
 		}
 		for range arrive[k] {
-			c := (1 - r.Float64()) * one()
+			c := (1 - r.Float64()) * max(0, math.Exp(mu+s*r.NormFloat64())-t.offset)
 			total += c
 			moved += c
 		}
@@ -398,11 +399,12 @@ func patientTier(f *careFit, i int, taken []int) int {
 func simulateMoving(f *careFit, m *movementFit, draws int, seed uint64) (totals []float64, movedMean float64) {
 	moved := make([]float64, draws)
 	totals = inChunks(draws, func() func(out []float64, c int) {
+		leave, arrive := make([]int, len(f.tiers)), make([]int, len(f.tiers))
 		return func(out []float64, c int) {
 			r := rand.New(rand.NewPCG(seed, splitmix64(uint64(c)^streamKey^movementStream)))
 			base := c * bootstrapChunk
 			for d := range out {
-				out[d], moved[base+d] = f.drawTotalMoving(r, m)
+				out[d], moved[base+d] = f.drawTotalMoving(r, m, leave, arrive)
 			}
 		}
 	})

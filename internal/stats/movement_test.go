@@ -289,3 +289,25 @@ func TestMovementCounts(t *testing.T) {
 		t.Errorf("full ward, planned 2 admissions and 9 discharges: %d and %d, want 2 and 5", a, d)
 	}
 }
+
+// BenchmarkProjectMovement measures the cost of movement: version 4 with
+// 20 records draws the shift twice (with movement, and with the census
+// fixed for the band without it), against version 3.
+func BenchmarkProjectMovement(b *testing.B) {
+	w := movementTruth{meanlog: []float64{math.Log(60), math.Log(150)}, sdlog: []float64{0.5, 0.4},
+		census: []int{12, 8}, adm: 4, dis: 2}
+	in := w.input(rand.New(rand.NewPCG(1, 1)), 1)
+	in.Draws = 20_000
+	for _, c := range []struct {
+		name    string
+		project func(ProjectionInput) (*Projection, error)
+	}{{"v4-movement", Project}, {"v3-fixed", ProjectV3}} {
+		b.Run(c.name, func(b *testing.B) {
+			for b.Loop() {
+				if _, err := c.project(in); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
