@@ -106,3 +106,36 @@ func TestCensusPlannedMovement(t *testing.T) {
 		t.Errorf("correction starts from %q, want 2", v)
 	}
 }
+
+// TestProjectionMovementFromRecords: with eight end-of-shift records of
+// the shift, the page names the expected admissions and discharges and
+// what they do to the band, and the details give the rates.
+func TestProjectionMovementFromRecords(t *testing.T) {
+	f := newCensusFixture(t)
+	ctx := wardload.WithActor(context.Background(), wardload.Actor{Name: "test"})
+	for i := range 8 {
+		d, _ := wardload.ParseDate("2026-02-20")
+		if err := f.st.CreateShiftRecord(ctx, &wardload.ShiftRecord{WardID: f.wardA.ID, Date: d.AddDays(i), ShiftID: f.a.day.ID,
+			Worked: wardload.StaffOnDuty{Nurses: new(5)}, Admissions: 2 + i%2, Discharges: 1}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	res, body := f.do(t, f.as(t, pNurseA, post("/wards/w-a/census", f.censusForm(f.a.day, "4", "6", "3", "0"))))
+	m := projectionPath.FindStringSubmatch(res.Header.Get("Location"))
+	if res.StatusCode != 303 || m == nil {
+		t.Fatalf("status %d\n%s", res.StatusCode, body)
+	}
+	_, page := f.do(t, f.as(t, pNurseA, httptest.NewRequest("GET", "/wards/w-a/projections/"+m[1], nil)))
+	// Admissions 2,3,2,3,…: S = 20 over 8 records, posterior mean
+	// (20 + 1/2)/8 = 2.6 (by hand; underdispersed, so Poisson);
+	// discharges (8 + 1/2)/8 = 1.1.
+	sentence := strings.Join(byTestID(t, page, "movement"), "")
+	if !strings.HasPrefix(sentence, "Expected admissions and discharges (about 2.6 and 1.1 this shift) are included: they add +") ||
+		!strings.Contains(sentence, "band from") {
+		t.Errorf("movement sentence %q", sentence)
+	}
+	details := strings.Join(byTestID(t, page, "movement-detail"), "\n")
+	if !strings.Contains(details, "Admissions: 2.6 per shift (90% interval") || !strings.Contains(details, "from 8 end-of-shift records of this shift, counted as Poisson") {
+		t.Errorf("movement details %q", details)
+	}
+}
