@@ -34,11 +34,15 @@ type CensusVM struct {
 	// keeps the sentence current while typing.
 	// Staff are the optional fields of the staff on duty, stored with the
 	// census revision.
-	Staff     []StaffFieldVM
-	Beds      int
-	TotalText string
-	TotalOver bool
-	ScriptURL string
+	Staff []StaffFieldVM
+	// Planned are the optional planned admissions and discharges of the
+	// shift, in a section that is open when one has a value or an error.
+	Planned     []StaffFieldVM
+	PlannedOpen bool
+	Beds        int
+	TotalText   string
+	TotalOver   bool
+	ScriptURL   string
 
 	// Choices are the large shift choices at a change-over: the shift
 	// about to start first, the one running second (empty when there is

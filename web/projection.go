@@ -87,15 +87,20 @@ type ProjectionVM struct {
 	Warnings         []string
 
 	// Method details, folded away.
-	Method         string
-	ShiftEffect    string
-	Trend          string
-	TierTrends     []string
-	MethodVersion  string
-	Seed           string
-	Draws          string
-	QuantileMethod string
-	Quartiles      string
+	Method      string
+	ShiftEffect string
+	Trend       string
+	TierTrends  []string
+	// Movement is the one sentence the page gives census movement during
+	// the shift (empty for method 1); MovementDetails the rates, the band
+	// with and without it and the assumption, folded away.
+	Movement        string
+	MovementDetails []string
+	MethodVersion   string
+	Seed            string
+	Draws           string
+	QuantileMethod  string
+	Quartiles       string
 
 	Caution string
 

@@ -54,7 +54,7 @@ func seedExport(t *testing.T, dir string) *openedStore {
 		t1, t2 int
 	}{{10, 5, 3}, {10, 4, 4}, {11, 6, 2}} {
 		_, _, err := svc.Save(ctx, w.ID, wardload.Date{Year: 2026, Month: time.March, Day: c.day}, sp.ID,
-			[]wardload.TierCount{{TierID: tiers[0].ID, Patients: c.t1}, {TierID: tiers[1].ID, Patients: c.t2}}, wardload.StaffOnDuty{})
+			[]wardload.TierCount{{TierID: tiers[0].ID, Patients: c.t1}, {TierID: tiers[1].ID, Patients: c.t2}}, wardload.StaffOnDuty{}, wardload.PlannedMovement{})
 		must(err)
 	}
 	return st

@@ -89,7 +89,7 @@ func seedPoolWards(t *testing.T, so *storeOptions) {
 		}
 		_, _, err = svc.Save(ctx, w.ID, night, sp.ID,
 			[]wardload.TierCount{{TierID: tiers[0].ID, Patients: spec.t1}, {TierID: tiers[1].ID, Patients: spec.t2}},
-			wardload.StaffOnDuty{Nurses: spec.staff})
+			wardload.StaffOnDuty{Nurses: spec.staff}, wardload.PlannedMovement{})
 		must(err)
 	}
 }

@@ -160,8 +160,20 @@ func phoneJourney(t *testing.T, so *storeOptions, storeArgs ...string) {
 	// projection page says how many short, the chance of a shortfall with
 	// them and the demo ward's escalation text, on the first screen.
 	do("staff on duty", chromedp.SendKeys(chromedp.CSS("#staff-nurses"), "2"))
+	// Two planned admissions from theatre, in the section folded below
+	// Save; the page then says what they add to the band.
+	do("planned admissions",
+		chromedp.Click(chromedp.CSS(`[data-testid="planned-movement"] summary`)),
+		chromedp.WaitVisible(chromedp.CSS("#planned-admissions")),
+		chromedp.SendKeys(chromedp.CSS("#planned-admissions"), "2"),
+	)
 	do("save", chromedp.Click(chromedp.CSS(`[data-testid="census-save"]`)), chromedp.WaitVisible(chromedp.CSS("#recommended")))
 	keepFirstScreen(t, ctx, "projection")
+	movement, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="movement"]`)))
+	t.Logf("movement sentence: %s", movement)
+	if !strings.Contains(movement, "2 admissions") || !strings.Contains(movement, "they add +") || strings.Contains(movement, "they add +0.0 ") {
+		t.Errorf("movement sentence %q, want the 2 planned admissions and what they add", movement)
+	}
 	rec, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="recommended"]`)))
 	gap, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`[data-testid="duty-gap"]`)))
 	if n, err := strconv.Atoi(strings.TrimSpace(rec)); err != nil || !strings.HasPrefix(gap, "You have 2 nurses on duty; the estimate is "+strconv.Itoa(n)+" — "+strconv.Itoa(n-2)+" short") {

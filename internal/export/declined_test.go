@@ -63,7 +63,7 @@ func TestExportOfDeclinedProjection(t *testing.T) {
 	svc := &projector.Service{Store: f.st, Now: func() time.Time { return time.Date(2026, 3, 30, 6, 0, 0, 0, time.UTC) }, Draws: 2000}
 	for _, sp := range shifts {
 		_, p, err := svc.Save(ctx, f.ward.ID, day("2026-03-30"), sp.ID, []wardload.TierCount{
-			{TierID: f.tiers[0].ID, Patients: 6}, {TierID: f.tiers[1].ID, Patients: 6}, {TierID: thin.ID, Patients: 2}}, wardload.StaffOnDuty{})
+			{TierID: f.tiers[0].ID, Patients: 6}, {TierID: f.tiers[1].ID, Patients: 6}, {TierID: thin.ID, Patients: 2}}, wardload.StaffOnDuty{}, wardload.PlannedMovement{})
 		must(t, err)
 		if p.DecidedBy != stats.DecidedByInsufficient {
 			t.Fatalf("%s: decided by %q, want a declined projection", sp.Name, p.DecidedBy)

@@ -55,6 +55,9 @@ type Row struct {
 	Recommended        *int   // nil: no recommendation
 	DecidedBy          string
 	Shortfall          *Shortfall // at the recommended headcount
+	// Movement is census movement during the shift (method version 4;
+	// nil for earlier projections, which held the census fixed).
+	Movement *Movement
 	// Actual is the newest end-of-shift record of the dated shift (nil:
 	// none yet): what happened, beside what was projected.
 	Actual        *wardload.ShiftRecord

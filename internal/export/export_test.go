@@ -89,7 +89,7 @@ func seed(t *testing.T) *fixture {
 	save := func(d string, sp *wardload.ShiftPattern, t1, t2 int, at time.Time) {
 		t.Helper()
 		clock = at
-		_, _, err := svc.Save(ctx, f.ward.ID, day(d), sp.ID, []wardload.TierCount{{TierID: f.tiers[0].ID, Patients: t1}, {TierID: f.tiers[1].ID, Patients: t2}}, wardload.StaffOnDuty{})
+		_, _, err := svc.Save(ctx, f.ward.ID, day(d), sp.ID, []wardload.TierCount{{TierID: f.tiers[0].ID, Patients: t1}, {TierID: f.tiers[1].ID, Patients: t2}}, wardload.StaffOnDuty{}, wardload.PlannedMovement{})
 		must(t, err)
 	}
 	save("2026-03-28", dayP, 9, 6, time.Date(2026, 3, 28, 7, 40, 0, 0, time.UTC))

@@ -13,7 +13,7 @@ import (
 // exactly one of V2 and V1 is set. Projections made before version 2 are
 // kept as they were made (stats.ProjectionV1), so readers must handle both.
 type Result struct {
-	V2 *stats.Projection   // method versions stats.MethodVersion (3) and stats.MethodVersionV2: one shape
+	V2 *stats.Projection   // method versions stats.MethodVersion (4), V3 and V2: one shape
 	V1 *stats.ProjectionV1 // method version stats.MethodVersionV1
 }
 
@@ -24,7 +24,7 @@ func DecodeResult(p *wardload.Projection) (*Result, error) {
 	var res Result
 	var err error
 	switch p.MethodVersion {
-	case stats.MethodVersion, stats.MethodVersionV2:
+	case stats.MethodVersion, stats.MethodVersionV3, stats.MethodVersionV2:
 		res.V2 = new(stats.Projection)
 		err = json.Unmarshal([]byte(p.Result), res.V2)
 	case stats.MethodVersionV1:
@@ -93,6 +93,9 @@ func newRow(ward *wardload.Ward, loc *time.Location, p *wardload.Projection, res
 	}
 	if f := res.FloorUsed(); f != nil {
 		r.FloorRule = f.Description
+	}
+	if res.V2 != nil && res.V2.Movement != nil {
+		r.Movement = newMovement(res.V2)
 	}
 	if res.V2 != nil && !res.V2.DataSufficient {
 		r.DataSufficient = false

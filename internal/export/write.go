@@ -93,7 +93,7 @@ func (r *Row) cells() []cell {
 	if r.Actual != nil {
 		category = r.Actual.CareCategory
 	}
-	return []cell{
+	cells := []cell{
 		number("cover_level", FormatLevel(r.CoverLevel)),
 		number("data_sufficient", strconv.FormatBool(r.DataSufficient)),
 		optText("insufficient", strings.Join(r.Insufficient, " ")),
@@ -113,6 +113,9 @@ func (r *Row) cells() []cell {
 		number("shortfall_wilson95_low", prob(sf.WilsonLow)),
 		number("shortfall_wilson95_high", prob(sf.WilsonHigh)),
 		optText("shortfall_text", sf.Text),
+	}
+	cells = append(cells, r.movementCells()...)
+	return append(cells, []cell{
 		number("actual_record_revision", act[0]),
 		number("actual_nurses", act[1]),
 		number("actual_support_staff", act[2]),
@@ -123,7 +126,7 @@ func (r *Row) cells() []cell {
 		text("method_version", r.MethodVersion),
 		{"generated_at", FormatTime(r.GeneratedAt), FormatTime(r.GeneratedAt)},
 		text("caution", r.Caution),
-	}
+	}...)
 }
 
 // fields returns the row's values as the CSV writes them, in Columns

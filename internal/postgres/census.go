@@ -41,12 +41,13 @@ func createCensus(ctx context.Context, tx pgx.Tx, now time.Time, c *wardload.Cen
 	if err != nil {
 		return out, err
 	}
-	out = wardload.Census{WardID: c.WardID, Date: c.Date, ShiftID: c.ShiftID, Counts: counts, Staff: c.Staff, EnteredBy: c.EnteredBy, EnteredAt: now}
+	out = wardload.Census{WardID: c.WardID, Date: c.Date, ShiftID: c.ShiftID, Counts: counts, Staff: c.Staff, Planned: c.Planned, EnteredBy: c.EnteredBy, EnteredAt: now}
 	if err := tx.QueryRow(ctx, `
-		INSERT INTO census (ward_id, date, shift_id, revision, nurses_on_duty, support_on_duty, entered_by, entered_at)
-		VALUES ($1, $2, $3, (SELECT coalesce(max(revision), 0) + 1 FROM census WHERE ward_id = $1 AND date = $2 AND shift_id = $3), $4, $5, $6, $7)
+		INSERT INTO census (ward_id, date, shift_id, revision, nurses_on_duty, support_on_duty,
+			planned_admissions, planned_discharges, entered_by, entered_at)
+		VALUES ($1, $2, $3, (SELECT coalesce(max(revision), 0) + 1 FROM census WHERE ward_id = $1 AND date = $2 AND shift_id = $3), $4, $5, $6, $7, $8, $9)
 		RETURNING id, revision`,
-		c.WardID, dateArg(c.Date), c.ShiftID, c.Staff.Nurses, c.Staff.Support, c.EnteredBy, now).Scan(&out.ID, &out.Revision); err != nil {
+		c.WardID, dateArg(c.Date), c.ShiftID, c.Staff.Nurses, c.Staff.Support, c.Planned.Admissions, c.Planned.Discharges, c.EnteredBy, now).Scan(&out.ID, &out.Revision); err != nil {
 		return out, err
 	}
 	for _, tc := range counts {
@@ -97,7 +98,8 @@ func (s *Store) FindCensus(ctx context.Context, f wardload.CensusFilter) ([]*war
 
 func (s *Store) findCensus(ctx context.Context, where, page string, args ...any) ([]*wardload.Census, error) {
 	rows, err := s.pool.Query(ctx, `
-		SELECT c.id, c.ward_id, c.date, c.shift_id, c.revision, c.nurses_on_duty, c.support_on_duty, c.entered_by, c.entered_at
+		SELECT c.id, c.ward_id, c.date, c.shift_id, c.revision, c.nurses_on_duty, c.support_on_duty,
+			c.planned_admissions, c.planned_discharges, c.entered_by, c.entered_at
 		FROM census c JOIN shift_patterns p ON p.id = c.shift_id`+where+`
 		ORDER BY c.date DESC, p.start_minute, c.shift_id, c.revision DESC, c.id`+page, args...)
 	if err != nil {
@@ -106,7 +108,8 @@ func (s *Store) findCensus(ctx context.Context, where, page string, args ...any)
 	cs, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.Census, error) {
 		var c wardload.Census
 		var d time.Time
-		err := r.Scan(&c.ID, &c.WardID, &d, &c.ShiftID, &c.Revision, &c.Staff.Nurses, &c.Staff.Support, &c.EnteredBy, &c.EnteredAt)
+		err := r.Scan(&c.ID, &c.WardID, &d, &c.ShiftID, &c.Revision, &c.Staff.Nurses, &c.Staff.Support,
+			&c.Planned.Admissions, &c.Planned.Discharges, &c.EnteredBy, &c.EnteredAt)
 		c.Date, c.EnteredAt = dateOf(d), c.EnteredAt.UTC()
 		return &c, err
 	})

@@ -41,6 +41,10 @@ type InputSettings struct {
 	Beds               int                   `json:"beds"`      // 0: not configured
 	Floors             []wardload.RatioFloor `json:"floors"`    // the ward's floors for this shift
 	TimeZone           string                `json:"time_zone"`
+	// MovementFrom and MovementTo are the window of the end-of-shift
+	// records whose admissions and discharges Model.Movement holds.
+	MovementFrom string `json:"movement_from,omitempty"`
+	MovementTo   string `json:"movement_to,omitempty"`
 }
 
 // Seed returns the bootstrap seed of a dated shift: the first 8 bytes
@@ -59,7 +63,7 @@ func Seed(wardID int64, date wardload.Date, shiftID int64) uint64 {
 
 // Recompute re-runs the workload model of p's method version on the stored
 // input of p and returns its result (a *stats.Projection for versions 2
-// and 3, a *stats.ProjectionV1 for version 1), whose JSON equals p.Result
+// to 4, a *stats.ProjectionV1 for version 1), whose JSON equals p.Result
 // byte for byte. It returns EINVALID for a projection made by a method
 // version this build does not have, or with an unreadable input.
 func Recompute(p *wardload.Projection) (any, error) {
@@ -80,6 +84,7 @@ func Recompute(p *wardload.Projection) (any, error) {
 // reproduce.
 var byVersion = map[string]func(stats.ProjectionInput) (any, error){
 	stats.MethodVersion:   func(in stats.ProjectionInput) (any, error) { return stats.Project(in) },
+	stats.MethodVersionV3: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV3(in) },
 	stats.MethodVersionV2: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV2(in) },
 	stats.MethodVersionV1: func(in stats.ProjectionInput) (any, error) { return stats.ProjectV1(in) },
 }

@@ -61,6 +61,10 @@ type Service struct {
 //     charge counts towards the floor only if every floor of the shift
 //     says so;
 //   - the seed Seed(ward, date, shift) and Service.Draws draws;
+//   - census movement during the shift (movement): the newest revision of
+//     each end-of-shift record of the same shift pattern from
+//     MovementLookbackDays days before the date to the day before it, and
+//     the planned admissions and discharges (none from Prepare);
 //   - the ward's calibration (Calibrate: its backtest over the
 //     CalibrationWeeks weeks before the date), reported with the
 //     projection and warned about when more than 5 points short.
@@ -71,13 +75,15 @@ type Service struct {
 // count, a count above the beds, or patients in a tier with fewer than two
 // observations in the lookback), "patients" (the total above the beds).
 func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount) (*wardload.Census, *wardload.Projection, error) {
-	return s.prepare(ctx, wardID, date, shiftID, counts, wardload.StaffOnDuty{})
+	return s.prepare(ctx, wardID, date, shiftID, counts, wardload.StaffOnDuty{}, wardload.PlannedMovement{})
 }
 
 // prepare is Prepare with the staff on duty kept with the census, checked
 // against the ward's beds (StaffOnDuty.Check: EINVALID "nurses_on_duty" or
-// "support_on_duty").
-func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount, staff wardload.StaffOnDuty) (*wardload.Census, *wardload.Projection, error) {
+// "support_on_duty"), and the planned movement, kept with the census and
+// given to the model (PlannedMovement.Check against the beds and the
+// census: EINVALID "planned_admissions" or "planned_discharges").
+func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount, staff wardload.StaffOnDuty, planned wardload.PlannedMovement) (*wardload.Census, *wardload.Projection, error) {
 	ward, err := s.Store.FindWardByID(ctx, wardID)
 	if err != nil {
 		return nil, nil, err
@@ -107,6 +113,14 @@ func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date,
 	if err != nil {
 		return nil, nil, err
 	}
+	if err := planned.Check(settings.Beds, census.Total()); err != nil {
+		return nil, nil, err
+	}
+	census.Planned = planned
+	movement, err := s.movement(ctx, wardID, date, shiftID, planned, settings.Beds)
+	if err != nil {
+		return nil, nil, err
+	}
 
 	from, to := date.AddDays(-7*settings.LookbackWeeks), date.AddDays(-1)
 	obs, _, err := s.Store.FindObservations(ctx, wardload.ObservationFilter{
@@ -132,6 +146,8 @@ func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date,
 	model.Levels, model.Cover = []float64{settings.CoverLevel}, settings.CoverLevel
 	model.Draws, model.Seed = s.draws(), Seed(wardID, date, shiftID)
 	model.Date = date.String()
+	model.Movement = movement
+	in.Settings.MovementFrom, in.Settings.MovementTo = date.AddDays(-MovementLookbackDays).String(), to.String()
 	patients := map[int64]int{}
 	for _, tc := range census.Counts {
 		patients[tc.TierID] = tc.Patients
@@ -195,8 +211,8 @@ func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date,
 // Save prepares the projection and stores it with its census as the next
 // revision, in one transaction (wardload.ProjectionService). Nothing is
 // stored on any error.
-func (s *Service) Save(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount, staff wardload.StaffOnDuty) (*wardload.Census, *wardload.Projection, error) {
-	c, p, err := s.prepare(ctx, wardID, date, shiftID, counts, staff)
+func (s *Service) Save(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount, staff wardload.StaffOnDuty, planned wardload.PlannedMovement) (*wardload.Census, *wardload.Projection, error) {
+	c, p, err := s.prepare(ctx, wardID, date, shiftID, counts, staff, planned)
 	if err != nil {
 		return nil, nil, err
 	}

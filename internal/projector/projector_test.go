@@ -205,13 +205,14 @@ func TestSaveAndRecompute(t *testing.T) {
 	h := seedHand(t)
 	h.addObservations(t, 12)
 	s := h.service()
-	c1, p1, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 3, 0), wardload.StaffOnDuty{Nurses: new(3)})
+	c1, p1, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 3, 0), wardload.StaffOnDuty{Nurses: new(3)}, wardload.PlannedMovement{Admissions: new(2)})
 	must(t, err)
 	if c1.Revision != 1 || p1.CensusRevision != 1 || p1.ID == 0 {
 		t.Fatalf("first save: census rev %d, projection %d rev %d", c1.Revision, p1.ID, p1.CensusRevision)
 	}
-	if sc, err := h.st.FindCensusByID(ctx, c1.ID); err != nil || sc.Staff.Nurses == nil || *sc.Staff.Nurses != 3 || sc.Staff.Support != nil {
-		t.Fatalf("staff on duty stored with the census: %+v, %v", sc, err)
+	if sc, err := h.st.FindCensusByID(ctx, c1.ID); err != nil || sc.Staff.Nurses == nil || *sc.Staff.Nurses != 3 || sc.Staff.Support != nil ||
+		sc.Planned.Admissions == nil || *sc.Planned.Admissions != 2 || sc.Planned.Discharges != nil {
+		t.Fatalf("staff on duty and planned movement stored with the census: %+v, %v", sc, err)
 	}
 	stored, err := h.st.FindProjectionByID(ctx, p1.ID)
 	must(t, err)
@@ -225,7 +226,7 @@ func TestSaveAndRecompute(t *testing.T) {
 		}
 	}
 	// A correction is a new revision with its own projection; the first is kept.
-	_, p2, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 4, 0), wardload.StaffOnDuty{})
+	_, p2, err := s.Save(ctx, h.ward.ID, h.shiftDate, h.early.ID, h.counts(2, 4, 0), wardload.StaffOnDuty{}, wardload.PlannedMovement{})
 	must(t, err)
 	if p2.CensusRevision != 2 || p2.ExpectedNurseHours <= p1.ExpectedNurseHours || p2.Seed != p1.Seed {
 		t.Errorf("correction: rev %d, nurse-hours %g after %g, seed %d vs %d", p2.CensusRevision, p2.ExpectedNurseHours, p1.ExpectedNurseHours, p2.Seed, p1.Seed)
@@ -285,28 +286,34 @@ func TestPrepareErrors(t *testing.T) {
 		field  string
 		msg    string // part of the message
 		staff  wardload.StaffOnDuty
+		plan   wardload.PlannedMovement
 	}{
-		{"unknown ward", 9999, "2026-03-20", h.early.ID, nil, wardload.ENOTFOUND, "", "", wardload.StaffOnDuty{}},
-		{"unknown shift", h.ward.ID, "2026-03-20", 9999, nil, wardload.EINVALID, "shift", "no such shift", wardload.StaffOnDuty{}},
-		{"shift of other ward", h.ward.ID, "2026-03-20", otherShift.ID, nil, wardload.EINVALID, "shift", "no such shift", wardload.StaffOnDuty{}},
-		{"three days ahead", h.ward.ID, "2026-03-23", h.early.ID, nil, wardload.EINVALID, "date", "too far from today", wardload.StaffOnDuty{}},
-		{"fifteen days back", h.ward.ID, "2026-03-05", h.early.ID, nil, wardload.EINVALID, "date", "14 days back", wardload.StaffOnDuty{}},
-		{"tier above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(7, 0, 0), wardload.EINVALID, "tier_a", "6 beds", wardload.StaffOnDuty{}},
-		{"total above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(4, 3, 0), wardload.EINVALID, "patients", "7 patients, more than the ward's 6 beds", wardload.StaffOnDuty{}},
-		{"negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(-1, 0, 0), wardload.EINVALID, "tier_a", "Tier A", wardload.StaffOnDuty{}},
-		{"tier of other ward", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: otherTier.ID, Patients: 1}}, wardload.EINVALID, "tier", "", wardload.StaffOnDuty{}},
-		{"tier twice", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: h.a.ID, Patients: 1}, {TierID: h.a.ID, Patients: 1}}, wardload.EINVALID, "tier", "twice", wardload.StaffOnDuty{}},
+		{"unknown ward", 9999, "2026-03-20", h.early.ID, nil, wardload.ENOTFOUND, "", "", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"unknown shift", h.ward.ID, "2026-03-20", 9999, nil, wardload.EINVALID, "shift", "no such shift", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"shift of other ward", h.ward.ID, "2026-03-20", otherShift.ID, nil, wardload.EINVALID, "shift", "no such shift", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"three days ahead", h.ward.ID, "2026-03-23", h.early.ID, nil, wardload.EINVALID, "date", "too far from today", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"fifteen days back", h.ward.ID, "2026-03-05", h.early.ID, nil, wardload.EINVALID, "date", "14 days back", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"tier above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(7, 0, 0), wardload.EINVALID, "tier_a", "6 beds", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"total above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(4, 3, 0), wardload.EINVALID, "patients", "7 patients, more than the ward's 6 beds", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(-1, 0, 0), wardload.EINVALID, "tier_a", "Tier A", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"tier of other ward", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: otherTier.ID, Patients: 1}}, wardload.EINVALID, "tier", "", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
+		{"tier twice", h.ward.ID, "2026-03-20", h.early.ID, []wardload.TierCount{{TierID: h.a.ID, Patients: 1}, {TierID: h.a.ID, Patients: 1}}, wardload.EINVALID, "tier", "twice", wardload.StaffOnDuty{}, wardload.PlannedMovement{}},
 		// Staff on duty: at most twice the 6 beds (wardload.MaxStaff).
-		{"nurses negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "nurses_on_duty", "cannot be negative", wardload.StaffOnDuty{Nurses: new(-1)}},
-		{"nurses above twice the beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "nurses_on_duty", "twice the ward's 6 beds", wardload.StaffOnDuty{Nurses: new(13)}},
-		{"support above twice the beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "support_on_duty", "twice", wardload.StaffOnDuty{Nurses: new(12), Support: new(13)}},
+		{"nurses negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "nurses_on_duty", "cannot be negative", wardload.StaffOnDuty{Nurses: new(-1)}, wardload.PlannedMovement{}},
+		{"nurses above twice the beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "nurses_on_duty", "twice the ward's 6 beds", wardload.StaffOnDuty{Nurses: new(13)}, wardload.PlannedMovement{}},
+		{"support above twice the beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "support_on_duty", "twice", wardload.StaffOnDuty{Nurses: new(12), Support: new(13)}, wardload.PlannedMovement{}},
+		// Planned movement: admissions at most the 6 beds, discharges at
+		// most the census.
+		{"planned admissions above beds", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "planned_admissions", "6 beds", wardload.StaffOnDuty{}, wardload.PlannedMovement{Admissions: new(7)}},
+		{"planned admissions negative", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "planned_admissions", "cannot be negative", wardload.StaffOnDuty{}, wardload.PlannedMovement{Admissions: new(-1)}},
+		{"planned discharges above census", h.ward.ID, "2026-03-20", h.early.ID, h.counts(1, 0, 0), wardload.EINVALID, "planned_discharges", "1 patients", wardload.StaffOnDuty{}, wardload.PlannedMovement{Discharges: new(2)}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			var date wardload.Date
 			if tc.date != "" {
 				date = day(tc.date)
 			}
-			c, p, err := h.service().Save(ctx, tc.ward, date, tc.shift, tc.counts, tc.staff)
+			c, p, err := h.service().Save(ctx, tc.ward, date, tc.shift, tc.counts, tc.staff, tc.plan)
 			if c != nil || p != nil || wardload.ErrorCode(err) != tc.code || wardload.ErrorField(err) != tc.field {
 				t.Fatalf("got %v, want %s field %q", err, tc.code, tc.field)
 			}

@@ -111,6 +111,15 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	maps.Copy(errs, countErrs)
 	staff, staffErrs := parseStaffForm(form, d.settings)
 	maps.Copy(errs, staffErrs)
+	patients := -1 // the planned discharges are checked against the census once it was read
+	if len(countErrs) == 0 {
+		patients = 0
+		for _, tc := range counts {
+			patients += tc.Patients
+		}
+	}
+	planned, plannedErrs := parsePlannedForm(form, d.settings, patients)
+	maps.Copy(errs, plannedErrs)
 	if len(errs) > 0 {
 		return rerender(http.StatusBadRequest, errs)
 	}
@@ -119,7 +128,7 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 	if form.Get(confirmEndedField) != "1" && shiftEnded(d, day, shiftID, s.now()) {
 		return rerender(http.StatusConflict, map[string]string{})
 	}
-	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts, staff)
+	_, p, err := s.projector.Save(r.Context(), d.ward.ID, day, shiftID, counts, staff, planned)
 	if wardload.ErrorCode(err) == wardload.EINVALID {
 		return rerender(http.StatusBadRequest, map[string]string{censusErrorField(d, wardload.ErrorField(err)): wardload.ErrorMessage(err)})
 	} else if err != nil {
@@ -136,7 +145,7 @@ func (s *Server) handleCensusCreate(w http.ResponseWriter, r *http.Request) erro
 // with the counts.
 func censusErrorField(d *censusData, field string) string {
 	switch field {
-	case "date", "shift", "patients", "tier", nursesOnDutyField, supportOnDutyField:
+	case "date", "shift", "patients", "tier", nursesOnDutyField, supportOnDutyField, plannedAdmissionsField, plannedDischargesField:
 		return field
 	}
 	for _, t := range d.tiers {
@@ -267,6 +276,7 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		latestCensus = latest.census
 	}
 	staffFieldsVM(&vm, d.settings, form, latestCensus, errs)
+	plannedFieldsVM(&vm, form, latestCensus, errs)
 	vm.Beds = d.settings.Beds
 	_, vm.TotalText, vm.TotalOver = censusTotal(vm.Tiers, d.settings.Beds)
 	vm.ScriptURL = s.assets.URL("census.js")

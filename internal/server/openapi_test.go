@@ -171,6 +171,8 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"ratio_floor_nurses":null,"ratio_floor_rule":"none","recommended_nurses":1,"decided_by":"cover",
 		"care_giving_nurses":1,"shortfall_method":"simulated_predictive","shortfall_simulated_share":0,
 		"shortfall_wilson95_low":0,"shortfall_wilson95_high":0.001917,"shortfall_text":"< 0.19%",
+		"movement_modelled":true,"expected_admissions":1.25,"expected_discharges":0.50,"planned_admissions":2,"planned_discharges":null,
+		"movement_nurse_hours":1.10,"band_low_without_movement_nurse_hours":0.40,"band_high_without_movement_nurse_hours":1.20,
 		"actual_record_revision":2,"actual_nurses":5,"actual_support_staff":null,"actual_admissions":1,"actual_discharges":0,
 		"care_left_undone":true,"care_left_undone_category":"hygiene",
 		"method_version":"m1","generated_at":"2026-03-01T19:00:00+01:00","caution":"c"}`
@@ -194,6 +196,10 @@ func TestOpenAPIValidatorRejects(t *testing.T) {
 		"free-text category": strings.Replace(good, `"care_left_undone_category":"hygiene"`, `"care_left_undone_category":"bed 4 fell"`, 1),
 		"negative actual":    strings.Replace(good, `"actual_nurses":5`, `"actual_nurses":-1`, 1),
 		"undone as string":   strings.Replace(good, `"care_left_undone":true`, `"care_left_undone":"yes"`, 1),
+		// Movement: planned counts are whole and not negative.
+		"negative planned":   strings.Replace(good, `"planned_admissions":2`, `"planned_admissions":-2`, 1),
+		"fraction planned":   strings.Replace(good, `"planned_admissions":2`, `"planned_admissions":1.5`, 1),
+		"modelled as string": strings.Replace(good, `"movement_modelled":true`, `"movement_modelled":"yes"`, 1),
 	} {
 		if err := row.Value.VisitJSON(decodeJSON(t, []byte(bad))); err == nil {
 			t.Errorf("%s: accepted", name)

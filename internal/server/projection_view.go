@@ -82,6 +82,7 @@ func method2VM(vm *web.ProjectionVM, row *export.Row, p *wardload.Projection, re
 		vm.Trend += " The projection does not follow it (not clear enough) and uses the lookback's level."
 	}
 
+	movementVM(vm, res, nh)
 	if vm.Declined {
 		return
 	}

@@ -30,9 +30,11 @@ func createCensus(ctx context.Context, tx *Tx, c *wardload.Census) error {
 		c.WardID, c.Date.String(), c.ShiftID).Scan(&rev); err != nil {
 		return err
 	}
-	res, err := tx.ExecContext(ctx, `INSERT INTO census (ward_id, date, shift_id, revision, nurses_on_duty, support_on_duty, entered_by, entered_at)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
-		c.WardID, c.Date.String(), c.ShiftID, rev, nullInt(c.Staff.Nurses), nullInt(c.Staff.Support), c.EnteredBy, formatTime(tx.now))
+	res, err := tx.ExecContext(ctx, `INSERT INTO census (ward_id, date, shift_id, revision, nurses_on_duty, support_on_duty,
+		planned_admissions, planned_discharges, entered_by, entered_at)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+		c.WardID, c.Date.String(), c.ShiftID, rev, nullInt(c.Staff.Nurses), nullInt(c.Staff.Support),
+		nullInt(c.Planned.Admissions), nullInt(c.Planned.Discharges), c.EnteredBy, formatTime(tx.now))
 	if err != nil {
 		return err
 	}
@@ -106,7 +108,8 @@ func findCensus(ctx context.Context, q querier, f wardload.CensusFilter, id int6
 			return nil, 0, err
 		}
 	}
-	rows, err := q.QueryContext(ctx, page(`SELECT c.id, c.ward_id, c.date, c.shift_id, c.revision, c.nurses_on_duty, c.support_on_duty, c.entered_by, c.entered_at
+	rows, err := q.QueryContext(ctx, page(`SELECT c.id, c.ward_id, c.date, c.shift_id, c.revision, c.nurses_on_duty, c.support_on_duty,
+		c.planned_admissions, c.planned_discharges, c.entered_by, c.entered_at
 		FROM census c JOIN shift_patterns p ON p.id = c.shift_id
 		WHERE `+cond+` ORDER BY c.date DESC, p.start_minute, c.revision DESC, c.id`, f.Offset, f.Limit), args...)
 	if err != nil {
@@ -117,7 +120,8 @@ func findCensus(ctx context.Context, q querier, f wardload.CensusFilter, id int6
 	for rows.Next() {
 		var c wardload.Census
 		var d, entered string
-		if err := rows.Scan(&c.ID, &c.WardID, &d, &c.ShiftID, &c.Revision, &c.Staff.Nurses, &c.Staff.Support, &c.EnteredBy, &entered); err != nil {
+		if err := rows.Scan(&c.ID, &c.WardID, &d, &c.ShiftID, &c.Revision, &c.Staff.Nurses, &c.Staff.Support,
+			&c.Planned.Admissions, &c.Planned.Discharges, &c.EnteredBy, &entered); err != nil {
 			return nil, 0, err
 		}
 		if c.Date, err = parseDate(d); err != nil {

@@ -91,6 +91,9 @@ type modelSpec struct {
 	// meanPreserving: the simulated tier levels keep the expected total
 	// at the plug-in estimate (tierLocation).
 	meanPreserving bool
+	// movement: census movement during the shift (ProjectionInput.Movement)
+	// is drawn (drawTotalMoving).
+	movement bool
 }
 
 // specV2 is method version 2, frozen.
@@ -121,10 +124,20 @@ var specV2 = modelSpec{
 //     +0.72 → +0.57; drift shortfall 0.079 → 0.096, shift-effect 0.088 →
 //     0.098 (limit 0.12).
 var specV3 = modelSpec{
+	version:     MethodVersionV3,
+	description: MethodDescriptionV3,
+	jackknife:   true, trendQuantile: 0.98, effectZ: 2.3263478740408408,
+	meanPreserving: true,
+}
+
+// specV4 is method version 4 (MethodVersion): version 3 with census
+// movement during the shift (Project, drawTotalMoving). Without movement
+// its numbers are version 3's.
+var specV4 = modelSpec{
 	version:     MethodVersion,
 	description: MethodDescription,
 	jackknife:   true, trendQuantile: 0.98, effectZ: 2.3263478740408408,
-	meanPreserving: true,
+	meanPreserving: true, movement: true,
 }
 
 // careTier is one tier's part of a fitted model.

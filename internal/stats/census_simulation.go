@@ -178,16 +178,33 @@ func (m *tierModel) drawCount(r *rand.Rand, mu, phi float64) float64 {
 	if mu <= 0 {
 		return 0
 	}
+	if m.family == FamilyNegBin2 {
+		return poissonDraw(r, gammaDraw(r, m.fit.Theta)*mu/m.fit.Theta)
+	}
+	return quasiPoissonDraw(r, mu, phi)
+}
+
+// quasiPoissonDraw draws a count of mean mu and variance phi·mu: Poisson
+// for phi = 1; for phi > 1 Poisson with a gamma-distributed mean of shape
+// mu/(phi − 1) and scale phi − 1 (a negative binomial); for phi < 1 a
+// binomial with n = ⌈mu/(1 − phi)⌉ and p = mu/n.
+func quasiPoissonDraw(r *rand.Rand, mu, phi float64) float64 {
+	if mu <= 0 {
+		return 0
+	}
 	lambda := mu
 	switch {
-	case m.family == FamilyNegBin2:
-		lambda = gammaDraw(r, m.fit.Theta) * mu / m.fit.Theta
 	case phi > 1:
 		lambda = gammaDraw(r, mu/(phi-1)) * (phi - 1)
 	case phi < 1:
 		n := math.Ceil(mu / (1 - phi))
 		return distuv.Binomial{N: n, P: mu / n, Src: r}.Rand()
 	}
+	return poissonDraw(r, lambda)
+}
+
+// poissonDraw draws Poisson(lambda), 0 for lambda ≤ 0.
+func poissonDraw(r *rand.Rand, lambda float64) float64 {
 	if lambda <= 0 {
 		return 0
 	}

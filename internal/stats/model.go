@@ -11,7 +11,11 @@ import (
 // streams. It is stored with every projection so that a stored result can
 // be reproduced later; change it whenever a change to this package could
 // change any number Project returns for the same input.
-const MethodVersion = "wardload-model/3"
+const MethodVersion = "wardload-model/4"
+
+// MethodVersionV3 is the previous version of the model (ProjectV3):
+// version 4 without census movement during the shift.
+const MethodVersionV3 = "wardload-model/3"
 
 // MethodVersionV2 is the previous version of the model (ProjectV2): the
 // same model as version 3 with a sandwich standard error for the trend,
@@ -82,6 +86,10 @@ type ProjectionInput struct {
 	// Calibration is the ward's backtest summary, reported with the
 	// projection and warned about when poor (version 2 only; nil: none).
 	Calibration *Calibration `json:"calibration,omitempty"`
+	// Movement is the census movement during the shift: the shift
+	// pattern's end-of-shift history and today's planned counts (version
+	// 4 only; nil: the census is held fixed for the whole shift).
+	Movement *MovementInput `json:"movement,omitempty"`
 }
 
 // Bounds of version 2 on the cover level and the draws: below 0.5 the

@@ -113,10 +113,20 @@ type Projection struct {
 	Shortfall          []Shortfall  `json:"shortfall"`
 	Warnings           []string     `json:"warnings"`
 	Caution            string       `json:"caution"`
+	// Movement is the census movement during the shift (version 4; absent
+	// when the input gave none): whether it is in the band, the rates
+	// and the band without it.
+	Movement *Movement `json:"movement,omitempty"`
 }
 
-// MethodDescription says in one sentence how version 3 projects.
+// MethodDescription says in one sentence how version 4 projects.
 const MethodDescription = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
+	"(used when the data show it at the 99% level) and a common trend (at the 96% level); admissions and discharges during " +
+	"the shift as Poisson counts from the ward's end-of-shift records (gamma-distributed rates, extra spread where the records show it); simulated " +
+	"from the predictive distribution with parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
+
+// MethodDescriptionV3 says in one sentence how version 3 projected.
+const MethodDescriptionV3 = "Per tier, a lognormal matched to the mean and variance of its care minutes; a shift-level effect " +
 	"(used when the data show it at the 99% level) and a common trend (at the 96% level); simulated " +
 	"from the predictive distribution with parameter uncertainty (uncertain tier means, scaled inverse-χ² spreads)."
 
@@ -148,7 +158,20 @@ const MethodDescriptionV2 = "Per tier, a lognormal matched to the mean and varia
 // References: newsvendor critical fractile, Porteus, E. L. (2002).
 // Foundations of Stochastic Inventory Theory, ch. 1; Hyndman & Fan (1996)
 // for the quantiles; Wilson, E. B. (1927) JASA 22, 209–212.
-func Project(in ProjectionInput) (*Projection, error) { return project(in, specV3) }
+//
+// Version 4 adds census movement during the shift when in.Movement is
+// given (fitMovement, drawTotalMoving): the totals T_d above are then
+// drawn with admissions and discharges, ExpectedMinutes adds the mean of
+// the minutes they make, and Movement reports the band and cover quantile
+// of the same model with the census held fixed (simulateTotals, the
+// version 3 draws), so a reader sees how much of the band movement makes.
+// Without movement (none given, too few records and no planned counts, or
+// no patients) every number equals version 3's.
+func Project(in ProjectionInput) (*Projection, error) { return project(in, specV4) }
+
+// ProjectV3 is Project as method version 3 (MethodVersionV3) made it:
+// the census held fixed for the whole shift, in.Movement ignored.
+func ProjectV3(in ProjectionInput) (*Projection, error) { return project(in, specV3) }
 
 // ProjectV2 is Project as method version 2 (MethodVersionV2) made it, kept
 // so that projections stored under version 2 recompute exactly; new
@@ -165,6 +188,17 @@ func project(in ProjectionInput, spec modelSpec) (*Projection, error) {
 		Caution: Caution, Warnings: []string{}, Insufficient: []string{}, Bands: []Band{},
 		Shortfall: []Shortfall{}, HeldOut: []HeldOut{}, Calibration: in.Calibration,
 		Simulation: Simulation{Seed: in.Seed, QuantileMethod: QuantileMethodSimulated},
+	}
+	var moving *movementFit
+	if spec.movement && in.Movement != nil {
+		patients := 0
+		for _, t := range in.Tiers {
+			patients += t.Patients
+		}
+		var err error
+		if moving, p.Movement, err = fitMovement(in.Movement, in.Date, patients); err != nil {
+			return nil, err
+		}
 	}
 	fits := make([]fitInput, len(in.Tiers))
 	scaled, observations := 0, 0
@@ -267,12 +301,23 @@ func project(in ProjectionInput, spec modelSpec) (*Projection, error) {
 		return p, nil
 	}
 
-	totals := simulateTotals(f, in.Draws, in.Seed)
-	p.ExpectedMinutes = Defined(f.plugInMean())
 	ps := make([]float64, 0, 2*len(in.Levels))
 	for _, l := range in.Levels {
 		ps = append(ps, (1-l)/2, (1+l)/2)
 	}
+	totals := simulateTotals(f, in.Draws, in.Seed)
+	movedMean := 0.0
+	if moving != nil {
+		without, extra := summariseTotalsWith(totals, in.Seed, in.Cover, ps)
+		mv := p.Movement
+		mv.CoverMinutesWithout = Defined(without.Cover)
+		for i, l := range in.Levels {
+			mv.BandsWithout = append(mv.BandsWithout, Band{Level: l, Low: extra[2*i], High: extra[2*i+1]})
+		}
+		totals, movedMean = simulateMoving(f, moving, in.Draws, in.Seed)
+		mv.ExpectedMinutes = Defined(movedMean)
+	}
+	p.ExpectedMinutes = Defined(f.plugInMean() + movedMean)
 	var extra []float64
 	p.Simulation, extra = summariseTotalsWith(totals, in.Seed, in.Cover, ps)
 	sim := &p.Simulation

@@ -28,6 +28,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		versionCases(),
 		importCases(),
 		censusCases(),
+		censusPlannedCases(),
 		projectionCases(),
 		settingsCases(),
 		userCases(),

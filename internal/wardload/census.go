@@ -28,7 +28,10 @@ type Census struct {
 	Counts   []TierCount
 	// Staff is the staff on duty the charge nurse entered with this
 	// revision; optional, nil counts when not entered.
-	Staff     StaffOnDuty
+	Staff StaffOnDuty
+	// Planned is the movement the charge nurse expects during the shift;
+	// optional, nil counts when not entered.
+	Planned   PlannedMovement
 	EnteredBy int64
 	EnteredAt time.Time
 }
@@ -69,7 +72,10 @@ func (c *Census) Validate() error {
 			return FieldErrorf(EINVALID, "patients", "A patient count of %d is not plausible for one ward.", tc.Patients)
 		}
 	}
-	return c.Staff.Check(0)
+	if err := c.Staff.Check(0); err != nil {
+		return err
+	}
+	return c.Planned.Check(0, c.Total())
 }
 
 // CensusFilter selects census entries. Zero fields do not filter.
