@@ -36,6 +36,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		auditCases(),
 		signInCases(),
 		shiftRecordCases(),
+		retireCases(),
 	}
 	for _, g := range groups {
 		for _, tc := range g {

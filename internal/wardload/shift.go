@@ -13,9 +13,9 @@ import (
 type ShiftPattern struct {
 	ID           int64
 	WardID       int64
-	Name         string  // unique within the ward, e.g. "Day", "Night"
-	StartMinute  int     // local start, minutes after midnight (0..1439)
-	NominalHours float64 // wall-clock length, > 0 and ≤ 24
+	Name         string    // unique within the ward, e.g. "Day", "Night"
+	StartMinute  int       // local start, minutes after midnight (0..1439)
+	NominalHours float64   // wall-clock length, > 0 and ≤ 24
 	RetiredAt    time.Time `json:",omitzero"` // zero while in use; see retire.go
 }
 

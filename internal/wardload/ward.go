@@ -93,7 +93,7 @@ type WardFilter struct {
 	// ActiveOnly leaves out retired wards.
 	ActiveOnly bool
 	Offset     int
-	Limit  int
+	Limit      int
 }
 
 // WardUpdate holds the fields of a ward that may change. The code never
