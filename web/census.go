@@ -66,6 +66,11 @@ type CensusVM struct {
 
 	NoShifts bool // the ward has no shift patterns yet
 	NoTiers  bool // the ward has no acuity tiers yet
+	// SetupURL links a manager or admin from a ward not yet set up to
+	// its set-up checklist ("" for charge nurses).
+	SetupURL string
+	// Closed, when set, says why the ward takes no census (retired).
+	Closed string
 }
 
 // ShiftOptionVM is one shift pattern in the chooser.

@@ -1,6 +1,10 @@
 package wardload
 
-import "time"
+import (
+	"strconv"
+	"strings"
+	"time"
+)
 
 // Wards, shift patterns and tiers are retired rather than deleted: the
 // observations, censuses and projections that name them are history and
@@ -22,6 +26,21 @@ func CheckWardBeds(beds int) error {
 		return FieldErrorf(EINVALID, "beds", "Beds must be a whole number from 1 to %d.", MaxWardBeds)
 	}
 	return nil
+}
+
+// ParseWardBeds reads the beds typed for a ward (form field or flag):
+// empty is 0, "not set"; anything else must pass CheckWardBeds. It
+// returns EINVALID naming "beds".
+func ParseWardBeds(s string) (int, error) {
+	s = strings.TrimSpace(s)
+	if s == "" {
+		return 0, nil
+	}
+	n, err := strconv.Atoi(s)
+	if err != nil || len(s) > 9 {
+		return 0, FieldErrorf(EINVALID, "beds", "Beds must be a whole number from 1 to %d.", MaxWardBeds)
+	}
+	return n, CheckWardBeds(n)
 }
 
 // retireAt returns when something retired at cur is retired after an
