@@ -22,6 +22,10 @@ const (
 // The command line prints it after creating a ward.
 func WardSettingsPath(code string) string { return settingsURL(&wardload.Ward{Code: code}) }
 
+// WardSetupPath is the path of the set-up checklist of the ward with
+// code; the command line prints it after creating a ward.
+func WardSetupPath(code string) string { return setupURL(&wardload.Ward{Code: code}) }
+
 // wardFormFields are the inputs of the new-ward form in page order: the
 // form field (as the domain's errors name it) and the input's id.
 var wardFormFields = []struct{ name, id string }{
