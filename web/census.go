@@ -19,7 +19,10 @@ type CensusVM struct {
 
 	// Chosen is set when Date and the selected shift are valid: the tier
 	// form is shown only then.
-	Chosen       bool
+	Chosen bool
+	// Rechoose: the posted shift was retired meanwhile; the counts form
+	// asks for one of Shifts itself, so that what was typed is not lost.
+	Rechoose     bool
 	ShiftLabel   string // e.g. "Night, 19:30, 12 hours"
 	ShiftID      string
 	Tiers        []TierFieldVM

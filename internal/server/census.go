@@ -225,6 +225,15 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		}
 		vm.Shifts = append(vm.Shifts, web.ShiftOptionVM{ID: id, Label: shiftLabel(p), Selected: sel})
 	}
+	if chosen == nil && form != nil {
+		// A shift retired between showing the form and posting it: keep
+		// the counts and ask for a current shift in the same form.
+		for _, p := range d.retired {
+			if strconv.FormatInt(p.ID, 10) == shift {
+				chosen, vm.Rechoose = p, true
+			}
+		}
+	}
 	vm.DateError, vm.ShiftError = errs["date"], errs["shift"]
 	if vm.DateError != "" {
 		vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#census-date", Message: vm.DateError})
