@@ -213,7 +213,9 @@ func TestShiftAndTierRetire(t *testing.T) {
 	if res, _ := f.do(t, f.as(t, pNurseA, post("/wards/w-a/census", form))); res.StatusCode != http.StatusSeeOther {
 		t.Errorf("census re-posted for Day = %d, want 303", res.StatusCode)
 	}
-	census++
+	if c, _ := f.counts(t); c != census+1 {
+		t.Errorf("census rows %d -> %d after the re-post, want one more", census, c)
+	}
 
 	// Day is now the last active pattern.
 	audits := f.totalAudit(t)
