@@ -14,14 +14,27 @@ import (
 // creates a ward in the browser's form, follows its set-up checklist
 // (shift patterns, tiers, a ratio floor, beds), a charge nurse of the ward
 // signs in, saves the first census and sees its projection with the
-// ratio floor and the caution.
+// ratio floor and the caution. It runs on SQLite and, when
+// WARDLOAD_TEST_DATABASE_URL is set, on a new PostgreSQL database.
 func TestNewWardFromNothing(t *testing.T) {
 	t.Parallel()
-	dir := t.TempDir()
-	if code, _, errs := runCLI(t, dir, "first admin passphrase\n", "user", "add", "--role", "admin", "ada.admin"); code != exitOK {
+	t.Run("sqlite", func(t *testing.T) {
+		t.Parallel()
+		newWardFromNothing(t, t.TempDir())
+	})
+	t.Run("postgres", func(t *testing.T) {
+		t.Parallel()
+		newWardFromNothing(t, t.TempDir(), "--db", mustCreateDatabase(t))
+	})
+}
+
+// newWardFromNothing is the journey on the data directory dir, or on the
+// database storeArgs name.
+func newWardFromNothing(t *testing.T, dir string, storeArgs ...string) {
+	if code, _, errs := runCLI(t, dir, "first admin passphrase\n", append([]string{"user", "add", "--role", "admin", "ada.admin"}, storeArgs...)...); code != exitOK {
 		t.Fatalf("user add: %d %s", code, errs)
 	}
-	s := MustServe(t, "--addr", "127.0.0.1:0", "--data-dir", dir)
+	s := MustServe(t, append([]string{"--addr", "127.0.0.1:0", "--data-dir", dir}, storeArgs...)...)
 	admin := signIn(t, s.URL, "ada.admin", "first admin passphrase")
 
 	// post sends a form and follows the 303; it returns where it ended.
@@ -102,7 +115,7 @@ func TestNewWardFromNothing(t *testing.T) {
 	}
 
 	// A charge nurse of the ward (made on the command line while serving).
-	if code, _, errs := runCLI(t, dir, "charge nurse passphrase\n", "user", "add", "--role", "charge_nurse", "--ward", "w5-east", "cara.charge"); code != exitOK {
+	if code, _, errs := runCLI(t, dir, "charge nurse passphrase\n", append([]string{"user", "add", "--role", "charge_nurse", "--ward", "w5-east", "cara.charge"}, storeArgs...)...); code != exitOK {
 		t.Fatalf("user add nurse: %d %s", code, errs)
 	}
 	nurse := signIn(t, s.URL, "cara.charge", "charge nurse passphrase")
