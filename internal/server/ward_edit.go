@@ -62,12 +62,16 @@ func (s *Server) handleWardUpdate(w http.ResponseWriter, r *http.Request) error 
 	if err != nil {
 		return fmt.Errorf("ward update: settings: %w", err)
 	}
-	if _, err := s.store.UpdateWard(r.Context(), cur.ID, wardload.WardUpdate{Name: &next.Name, TimeZone: &next.TimeZone}); err != nil {
-		if wardload.ErrorCode(err) == wardload.EINVALID {
-			form.Errors[fieldOr(err, "name")] = wardload.ErrorMessage(err)
-			return s.renderWardNew(w, r, http.StatusBadRequest, form)
+	// Only what changed is written, so the audit log holds no empty
+	// changes.
+	if next.Name != cur.Name || next.TimeZone != cur.TimeZone {
+		if _, err := s.store.UpdateWard(r.Context(), cur.ID, wardload.WardUpdate{Name: &next.Name, TimeZone: &next.TimeZone}); err != nil {
+			if wardload.ErrorCode(err) == wardload.EINVALID {
+				form.Errors[fieldOr(err, "name")] = wardload.ErrorMessage(err)
+				return s.renderWardNew(w, r, http.StatusBadRequest, form)
+			}
+			return fmt.Errorf("ward update: %w", err)
 		}
-		return fmt.Errorf("ward update: %w", err)
 	}
 	flash := "Saved: ward " + cur.Code + "."
 	if beds != st.Beds {

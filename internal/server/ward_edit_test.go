@@ -58,6 +58,14 @@ func TestWardEditByAdmin(t *testing.T) {
 	if v, _ := attrByID(t, body, "ward-beds", "value"); v != "26" {
 		t.Errorf("beds shown = %q", v)
 	}
+	// Saving the form unchanged writes nothing.
+	audits := f.totalAudit(t)
+	if res, _ := f.do(t, f.as(t, pAdmin, post("/admin/wards/w-a", form))); res.StatusCode != http.StatusSeeOther {
+		t.Errorf("unchanged save = %d", res.StatusCode)
+	}
+	if n := f.totalAudit(t); n != audits {
+		t.Errorf("audit rows %d -> %d after saving nothing new", audits, n)
+	}
 }
 
 // Each bad field is named in the summary, the input is kept and nothing
