@@ -19,7 +19,10 @@ type CensusVM struct {
 
 	// Chosen is set when Date and the selected shift are valid: the tier
 	// form is shown only then.
-	Chosen       bool
+	Chosen bool
+	// Rechoose: the posted shift was retired meanwhile; the counts form
+	// asks for one of Shifts itself, so that what was typed is not lost.
+	Rechoose     bool
 	ShiftLabel   string // e.g. "Night, 19:30, 12 hours"
 	ShiftID      string
 	Tiers        []TierFieldVM
@@ -70,6 +73,11 @@ type CensusVM struct {
 
 	NoShifts bool // the ward has no shift patterns yet
 	NoTiers  bool // the ward has no acuity tiers yet
+	// SetupURL links a manager or admin from a ward not yet set up to
+	// its set-up checklist ("" for charge nurses).
+	SetupURL string
+	// Closed, when set, says why the ward takes no census (retired).
+	Closed string
 }
 
 // ShiftOptionVM is one shift pattern in the chooser.

@@ -15,7 +15,7 @@ type RelationVM struct {
 	WindowText       string
 	TierText         string
 	Unit             string
-	NoFactors        bool // the ward records no numeric factor
+	NoFactors        bool   // the ward records no numeric factor
 	Missing          string // e.g. "312 observations without this factor are left out"
 	N                string
 	PearsonR         string

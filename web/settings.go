@@ -77,6 +77,8 @@ type ShiftFormVM struct {
 	Start  string // HH:MM
 	Hours  string
 	Errors map[string]string
+	// Retire retires or reinstates a stored pattern (nil on the add form).
+	Retire *RetireVM
 }
 
 // TierFormVM is a tier form (edit or add). Code can only be set when
@@ -91,4 +93,6 @@ type TierFormVM struct {
 	Description string
 	Order       string
 	Errors      map[string]string
+	// Retire retires or reinstates a stored tier (nil on the add form).
+	Retire *RetireVM
 }

@@ -56,6 +56,10 @@ type WardRowVM struct {
 	// ReviewURL links to the ward's weekly tier review; "" for charge
 	// nurses.
 	ReviewURL string
+	// Retired marks a retired ward (only admins see those listed); its
+	// census link is then "". EditURL links to the admin's ward form.
+	Retired bool
+	EditURL string
 }
 
 // ErrorVM is the error page. Message is already safe to show (it comes from

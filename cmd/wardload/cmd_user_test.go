@@ -173,7 +173,7 @@ func TestWardList(t *testing.T) {
 	st.Close()
 
 	code, out, errs := runCLI(t, dir, "", "ward", "list")
-	want := "a-ward\tFirst by code\nb-ward\tSecond by code\n" + demo.WardCode + "\t" + dw.Name + "\n"
+	want := "a-ward\tFirst by code\tactive\nb-ward\tSecond by code\tactive\n" + demo.WardCode + "\t" + dw.Name + "\tactive\n"
 	if code != exitOK || out != want || errs != "" {
 		t.Fatalf("ward list = %d, %q, %q; want 0, %q", code, out, errs, want)
 	}

@@ -11,10 +11,12 @@ func init() {
 	register(command{name: "ward list", summary: "list ward codes and names", run: runWardList})
 }
 
-// runWardList prints "CODE<TAB>NAME" per ward, ordered by code, so that it
-// can be piped into cut or awk.
+// runWardList prints "CODE<TAB>NAME<TAB>STATE" per ward, ordered by code,
+// so that it can be piped into cut or awk; STATE is "active" or "retired"
+// with the UTC date it was retired.
 func runWardList(ctx context.Context, e *env, args []string) int {
-	fs := newFlagSet(e, "ward list", "", "List the wards: code and name, tab-separated, one per line.")
+	fs := newFlagSet(e, "ward list", "", "List the wards: code, name and state (active, or retired YYYY-MM-DD), tab-separated,\none per line.")
+	active := fs.Bool("active", false, "list only the wards in use (not retired)")
 	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
@@ -32,12 +34,16 @@ func runWardList(ctx context.Context, e *env, args []string) int {
 
 	const page = 500
 	for offset := 0; ; offset += page {
-		wards, total, err := st.FindWards(ctx, wardload.WardFilter{Offset: offset, Limit: page})
+		wards, total, err := st.FindWards(ctx, wardload.WardFilter{ActiveOnly: *active, Offset: offset, Limit: page})
 		if err != nil {
 			return reportError(e, "ward list", err)
 		}
 		for _, w := range wards {
-			fmt.Fprintf(e.stdout, "%s\t%s\n", w.Code, w.Name)
+			state := "active"
+			if w.Retired() {
+				state = "retired " + w.RetiredAt.UTC().Format("2006-01-02")
+			}
+			fmt.Fprintf(e.stdout, "%s\t%s\t%s\n", w.Code, w.Name, state)
 		}
 		if len(wards) == 0 || offset+len(wards) >= total {
 			return exitOK

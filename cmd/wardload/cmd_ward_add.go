@@ -31,7 +31,7 @@ func runWardAdd(ctx context.Context, e *env, args []string) int {
 	code := fs.String("code", "", "ward code: 1–32 lowercase letters, digits, '-' or '_', e.g. w4-north (required)")
 	name := fs.String("name", "", "display name, e.g. \"Ward 4 North (Medicine)\" (required)")
 	zone := fs.String("time-zone", "", "IANA time zone of the ward, e.g. Europe/Dublin (required)")
-	beds := fs.Int("beds", 0, "number of beds; 0 leaves it unset (a census above it is refused)")
+	beds := fs.Int("beds", 0, "number of beds, 1 to 1000; leave it out to set it later (a census above it is refused)")
 	so := addStoreFlags(fs)
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
@@ -47,10 +47,10 @@ func runWardAdd(ctx context.Context, e *env, args []string) int {
 	if err := w.Validate(); err != nil {
 		return reportError(e, "ward add", flagError(err))
 	}
-	settings := wardload.DefaultSettings(1) // any non-zero ID: the ward has none yet
-	settings.Beds = *beds
-	if err := settings.Validate(); err != nil {
-		return reportError(e, "ward add", flagError(err))
+	if flagsSet(fs)["beds"] {
+		if err := wardload.CheckWardBeds(*beds); err != nil {
+			return reportError(e, "ward add", flagError(err))
+		}
 	}
 
 	st, err := openStore(ctx, so, true)
@@ -65,7 +65,8 @@ func runWardAdd(ctx context.Context, e *env, args []string) int {
 		return reportError(e, "ward add", flagError(err))
 	}
 	if *beds > 0 {
-		settings.WardID = w.ID
+		settings := wardload.DefaultSettings(w.ID)
+		settings.Beds = *beds
 		if err := st.SaveSettings(ctx, settings); err != nil {
 			fmt.Fprintf(e.stderr, "wardload ward add: ward %s was created, but its beds were not saved; set them on %s\n",
 				w.Code, server.WardSettingsPath(w.Code))
@@ -77,6 +78,7 @@ func runWardAdd(ctx context.Context, e *env, args []string) int {
 		fmt.Fprintf(e.stdout, ", %d beds", *beds)
 	}
 	fmt.Fprintf(e.stdout, ")\nsettings page: %s (add shift patterns, acuity tiers and ratio floors there)\n", server.WardSettingsPath(w.Code))
+	fmt.Fprintf(e.stdout, "set-up checklist: %s\n", server.WardSetupPath(w.Code))
 	return exitOK
 }
 

@@ -16,7 +16,8 @@ func TestWardAdd(t *testing.T) {
 	code, out, errs := runCLI(t, dir, "", "ward", "add", "--code", "w4-north", "--name", "Ward 4 North (Medicine)",
 		"--time-zone", "Europe/Dublin", "--beds", "28")
 	want := "created ward w4-north: Ward 4 North (Medicine) (Europe/Dublin, 28 beds)\n" +
-		"settings page: /wards/w4-north/settings (add shift patterns, acuity tiers and ratio floors there)\n"
+		"settings page: /wards/w4-north/settings (add shift patterns, acuity tiers and ratio floors there)\n" +
+		"set-up checklist: /wards/w4-north/setup\n"
 	if code != exitOK || out != want || errs != "" {
 		t.Fatalf("ward add = %d, %q, %q; want 0, %q", code, out, errs, want)
 	}
@@ -104,7 +105,8 @@ func TestWardAddRejects(t *testing.T) {
 		{"blank name", []string{"--code", "w9", "--name", "  ", "--time-zone", "UTC"}, []string{"--name:", "required"}},
 		{"long name", []string{"--code", "w9", "--name", strings.Repeat("n", 121), "--time-zone", "UTC"}, []string{"--name:", "at most 120"}},
 		{"name with newline", []string{"--code", "w9", "--name", "Ward\n9", "--time-zone", "UTC"}, []string{"--name:", "one line"}},
-		{"negative beds", append([]string{"--code", "w9", "--beds", "-1"}, ok...), []string{"--beds:", "between 0"}},
+		{"negative beds", append([]string{"--code", "w9", "--beds", "-1"}, ok...), []string{"--beds:", "from 1 to 1000"}},
+		{"zero beds", append([]string{"--code", "w9", "--beds", "0"}, ok...), []string{"--beds:", "from 1 to 1000"}},
 		{"too many beds", append([]string{"--code", "w9", "--beds", "1001"}, ok...), []string{"--beds:", "1000"}},
 		{"beds not a number", append([]string{"--code", "w9", "--beds", "ten"}, ok...), []string{"-beds", "invalid value"}},
 		{"positional argument", append([]string{"--code", "w9", "extra"}, ok...), []string{"takes no arguments"}},

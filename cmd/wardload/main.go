@@ -6,6 +6,9 @@ import (
 	"os"
 	"os/signal"
 	"syscall"
+	// The ward forms offer every IANA zone; embedding Go's zone database
+	// lets each load on a host (or container) without /usr/share/zoneinfo.
+	_ "time/tzdata"
 )
 
 func main() {

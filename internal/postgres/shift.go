@@ -27,11 +27,13 @@ func (s *Store) CreateShiftPattern(ctx context.Context, p *wardload.ShiftPattern
 	})
 }
 
-const shiftColumns = `id, ward_id, name, start_minute, nominal_hours`
+const shiftColumns = `id, ward_id, name, start_minute, nominal_hours, retired_at`
 
 func scanShift(r pgx.CollectableRow) (*wardload.ShiftPattern, error) {
 	var p wardload.ShiftPattern
-	err := r.Scan(&p.ID, &p.WardID, &p.Name, &p.StartMinute, &p.NominalHours)
+	var retired *time.Time
+	err := r.Scan(&p.ID, &p.WardID, &p.Name, &p.StartMinute, &p.NominalHours, &retired)
+	p.RetiredAt = timeOf(retired)
 	return &p, err
 }
 
@@ -51,7 +53,11 @@ func findShift(ctx context.Context, q querier, id int64, lock string) (*wardload
 
 // FindShiftPatterns returns the ward's patterns ordered by StartMinute.
 func (s *Store) FindShiftPatterns(ctx context.Context, wardID int64) ([]*wardload.ShiftPattern, error) {
-	rows, err := s.pool.Query(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = $1 ORDER BY start_minute, name`, wardID)
+	return findShifts(ctx, s.pool, wardID)
+}
+
+func findShifts(ctx context.Context, q querier, wardID int64) ([]*wardload.ShiftPattern, error) {
+	rows, err := q.Query(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = $1 ORDER BY start_minute, name`, wardID)
 	if err != nil {
 		return nil, formatError(err)
 	}
@@ -67,16 +73,28 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 		if err != nil {
 			return err
 		}
-		p, err := upd.Apply(before)
+		p, err := upd.Apply(before, now)
 		if err != nil {
 			return err
 		}
-		if _, err := tx.Exec(ctx, `UPDATE shift_patterns SET name = $1, start_minute = $2, nominal_hours = $3 WHERE id = $4`,
-			p.Name, p.StartMinute, p.NominalHours, id); err != nil {
+		if p.Retired() && !before.Retired() {
+			if err := lockWard(ctx, tx, p.WardID); err != nil {
+				return err
+			}
+			all, err := findShifts(ctx, tx, p.WardID)
+			if err != nil {
+				return err
+			}
+			if err := wardload.CheckShiftRetire(all, id); err != nil {
+				return err
+			}
+		}
+		if _, err := tx.Exec(ctx, `UPDATE shift_patterns SET name = $1, start_minute = $2, nominal_hours = $3, retired_at = $4 WHERE id = $5`,
+			p.Name, p.StartMinute, p.NominalHours, timeArg(p.RetiredAt), id); err != nil {
 			return err
 		}
 		out = p
-		return audit(ctx, tx, now, wardload.ActionShiftUpdate, before, p)
+		return audit(ctx, tx, now, wardload.RetireAction("shift", before.RetiredAt, p.RetiredAt), before, p)
 	})
 	if err != nil {
 		return nil, err

@@ -38,12 +38,26 @@ func wardExists(ctx context.Context, q querier, id int64) error {
 	return err
 }
 
-const tierColumns = `id, ward_id, code, label, description, display_order`
+const tierColumns = `id, ward_id, code, label, description, display_order, retired_at`
 
 func scanTier(r pgx.CollectableRow) (*wardload.Tier, error) {
 	var t wardload.Tier
-	err := r.Scan(&t.ID, &t.WardID, &t.Code, &t.Label, &t.Description, &t.DisplayOrder)
+	var retired *time.Time
+	err := r.Scan(&t.ID, &t.WardID, &t.Code, &t.Label, &t.Description, &t.DisplayOrder, &retired)
+	t.RetiredAt = timeOf(retired)
 	return &t, err
+}
+
+// lockWard locks the row of ward id until the transaction ends, so that
+// two changes that each check the ward's other rows (retiring its last
+// active tier or shift pattern) run one after the other.
+func lockWard(ctx context.Context, tx pgx.Tx, id int64) error {
+	var one int
+	err := tx.QueryRow(ctx, `SELECT 1 FROM wards WHERE id = $1 FOR UPDATE`, id).Scan(&one)
+	if err == pgx.ErrNoRows {
+		return wardload.WardNotFound()
+	}
+	return err
 }
 
 // FindTierByID returns ENOTFOUND if there is no such tier.
@@ -62,7 +76,11 @@ func findTier(ctx context.Context, q querier, id int64, lock string) (*wardload.
 
 // FindTiers returns the ward's tiers by DisplayOrder then Code.
 func (s *Store) FindTiers(ctx context.Context, wardID int64) ([]*wardload.Tier, error) {
-	rows, err := s.pool.Query(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = $1 ORDER BY display_order, code`, wardID)
+	return findTiers(ctx, s.pool, wardID)
+}
+
+func findTiers(ctx context.Context, q querier, wardID int64) ([]*wardload.Tier, error) {
+	rows, err := q.Query(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = $1 ORDER BY display_order, code`, wardID)
 	if err != nil {
 		return nil, formatError(err)
 	}
@@ -78,16 +96,28 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 		if err != nil {
 			return err
 		}
-		t, err := upd.Apply(before)
+		t, err := upd.Apply(before, now)
 		if err != nil {
 			return err
 		}
-		if _, err := tx.Exec(ctx, `UPDATE tiers SET label = $1, description = $2, display_order = $3 WHERE id = $4`,
-			t.Label, t.Description, t.DisplayOrder, id); err != nil {
+		if t.Retired() && !before.Retired() {
+			if err := lockWard(ctx, tx, t.WardID); err != nil {
+				return err
+			}
+			all, err := findTiers(ctx, tx, t.WardID)
+			if err != nil {
+				return err
+			}
+			if err := wardload.CheckTierRetire(all, id); err != nil {
+				return err
+			}
+		}
+		if _, err := tx.Exec(ctx, `UPDATE tiers SET label = $1, description = $2, display_order = $3, retired_at = $4 WHERE id = $5`,
+			t.Label, t.Description, t.DisplayOrder, timeArg(t.RetiredAt), id); err != nil {
 			return err
 		}
 		out = t
-		return audit(ctx, tx, now, wardload.ActionTierUpdate, before, t)
+		return audit(ctx, tx, now, wardload.RetireAction("tier", before.RetiredAt, t.RetiredAt), before, t)
 	})
 	if err != nil {
 		return nil, err

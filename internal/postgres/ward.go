@@ -76,6 +76,9 @@ func wardWhere(f wardload.WardFilter) *where {
 	if f.UserID != nil {
 		w.add("id IN (SELECT ward_id FROM user_wards WHERE user_id = ?)", *f.UserID)
 	}
+	if f.ActiveOnly {
+		w.add("(retired_at IS NULL) = ?", true)
+	}
 	return &w
 }
 
@@ -85,7 +88,7 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter, suffix str
 	w := wardWhere(f)
 	// The factor names come in the same query: every ward page looks its
 	// ward up, so one round trip instead of two.
-	rows, err := q.Query(ctx, `SELECT id, code, name, time_zone, created_at,
+	rows, err := q.Query(ctx, `SELECT id, code, name, time_zone, created_at, retired_at,
 		ARRAY(SELECT name FROM ward_factors WHERE ward_id = wards.id ORDER BY position)
 		FROM wards`+w.String()+` ORDER BY code`+suffix, w.args...)
 	if err != nil {
@@ -93,8 +96,9 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter, suffix str
 	}
 	ws, err := pgx.CollectRows(rows, func(r pgx.CollectableRow) (*wardload.Ward, error) {
 		var w wardload.Ward
-		err := r.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &w.CreatedAt, &w.FactorNames)
-		w.CreatedAt = w.CreatedAt.UTC()
+		var retired *time.Time
+		err := r.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &w.CreatedAt, &retired, &w.FactorNames)
+		w.CreatedAt, w.RetiredAt = w.CreatedAt.UTC(), timeOf(retired)
 		if len(w.FactorNames) == 0 {
 			w.FactorNames = nil // no factors is nil, as it always was here
 		}
@@ -112,11 +116,12 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 		if err != nil {
 			return err
 		}
-		w, err := upd.Apply(before)
+		w, err := upd.Apply(before, now)
 		if err != nil {
 			return err
 		}
-		if _, err := tx.Exec(ctx, `UPDATE wards SET name = $1, time_zone = $2 WHERE id = $3`, w.Name, w.TimeZone, id); err != nil {
+		if _, err := tx.Exec(ctx, `UPDATE wards SET name = $1, time_zone = $2, retired_at = $3 WHERE id = $4`,
+			w.Name, w.TimeZone, timeArg(w.RetiredAt), id); err != nil {
 			return err
 		}
 		if upd.FactorNames != nil {
@@ -125,7 +130,7 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 			}
 		}
 		out = w
-		return audit(ctx, tx, now, wardload.ActionWardUpdate, before, w)
+		return audit(ctx, tx, now, wardload.RetireAction("ward", before.RetiredAt, w.RetiredAt), before, w)
 	})
 	if err != nil {
 		return nil, err
@@ -141,8 +146,11 @@ func loadWardRefs(ctx context.Context, q querier, id int64, lock string) (*wardl
 	err := q.QueryRow(ctx, `SELECT
 		ARRAY(SELECT id FROM tiers WHERE ward_id = w.id ORDER BY display_order, code),
 		ARRAY(SELECT id FROM shift_patterns WHERE ward_id = w.id ORDER BY start_minute, name),
-		ARRAY(SELECT name FROM ward_factors WHERE ward_id = w.id ORDER BY position)
-		FROM wards w WHERE w.id = $1`+lock, id).Scan(&r.Tiers, &r.Shifts, &r.Factors)
+		ARRAY(SELECT name FROM ward_factors WHERE ward_id = w.id ORDER BY position),
+		w.retired_at IS NOT NULL,
+		ARRAY(SELECT id FROM tiers WHERE ward_id = w.id AND retired_at IS NOT NULL ORDER BY id),
+		ARRAY(SELECT id FROM shift_patterns WHERE ward_id = w.id AND retired_at IS NOT NULL ORDER BY id)
+		FROM wards w WHERE w.id = $1`+lock, id).Scan(&r.Tiers, &r.Shifts, &r.Factors, &r.Retired, &r.RetiredTiers, &r.RetiredShifts)
 	if err == pgx.ErrNoRows {
 		return nil, wardload.WardNotFound()
 	}

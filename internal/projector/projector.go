@@ -69,9 +69,10 @@ type Service struct {
 //     CalibrationWeeks weeks before the date), reported with the
 //     projection and warned about when more than 5 points short.
 //
-// Errors name the field: ENOTFOUND "ward"; EINVALID "date" (missing, or
-// outside the window above), "shift" (not a shift of this ward), "tier" (a
-// tier not of this ward, or counted twice), "tier_<code>" (a negative
+// Errors name the field: ENOTFOUND "ward"; EINVALID "ward" (retired),
+// "date" (missing, or outside the window above), "shift" (not a shift of
+// this ward, or retired), "tier" (a tier not of this ward or retired, or
+// counted twice), "tier_<code>" (a negative
 // count, a count above the beds, or patients in a tier with fewer than two
 // observations in the lookback), "patients" (the total above the beds).
 func (s *Service) Prepare(ctx context.Context, wardID int64, date wardload.Date, shiftID int64, counts []wardload.TierCount) (*wardload.Census, *wardload.Projection, error) {
@@ -101,10 +102,19 @@ func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date,
 	} else if err != nil {
 		return nil, nil, err
 	}
-	tiers, err := s.Store.FindTiers(ctx, wardID)
+	if err := ward.TakesCensus(); err != nil {
+		return nil, nil, err
+	}
+	if err := shift.TakesCensus(); err != nil {
+		return nil, nil, err
+	}
+	all, err := s.Store.FindTiers(ctx, wardID)
 	if err != nil {
 		return nil, nil, err
 	}
+	// A new census counts patients in the tiers in use; a retired tier
+	// keeps its history but takes no new patients.
+	tiers := wardload.ActiveTiers(all)
 	settings, err := s.Store.FindSettings(ctx, wardID)
 	if err != nil {
 		return nil, nil, err

@@ -62,20 +62,30 @@ var routeExpectations = map[string][]string{
 	"user.update":           admins,
 	"ward.new":              admins, // ward_test.go
 	"ward.create":           admins,
+	// Ward lifecycle (ward_edit_test.go): admins only; set-up: ward A's managers.
+	"ward.edit":      admins,
+	"ward.update":    admins,
+	"ward.retire":    admins,
+	"ward.reinstate": admins,
+	"ward.setup":     wardAMgrs,
 	// API routes: token principals. A token of ward B may list its own
 	// wards; ward-scoped API routes would refuse it for ward A.
 	"api.wards": {tValid, tOtherW, tWriteA},
 
 	// Ward settings and the projections API (settings_test.go, api_test.go).
-	"settings":              wardAMgrs,
-	"settings.save":         wardAMgrs,
-	"settings.floors":       wardAMgrs,
-	"settings.shift.create": wardAMgrs,
-	"settings.shift.update": wardAMgrs,
-	"settings.tier.create":  wardAMgrs,
-	"settings.tier.update":  wardAMgrs,
-	"api.projections":       {tValid, tWriteA}, // ward=w-a in routeQuery: ward B's token is refused
-	"api.openapi":           everyone,
+	"settings":                 wardAMgrs,
+	"settings.save":            wardAMgrs,
+	"settings.floors":          wardAMgrs,
+	"settings.shift.create":    wardAMgrs,
+	"settings.shift.update":    wardAMgrs,
+	"settings.tier.create":     wardAMgrs,
+	"settings.tier.update":     wardAMgrs,
+	"settings.shift.retire":    wardAMgrs,
+	"settings.shift.reinstate": wardAMgrs,
+	"settings.tier.retire":     wardAMgrs,
+	"settings.tier.reinstate":  wardAMgrs,
+	"api.projections":          {tValid, tWriteA}, // ward=w-a in routeQuery: ward B's token is refused
+	"api.openapi":              everyone,
 
 	// Census and projections (census_test.go, projection_test.go): every
 	// member of ward A; the downloads only its manager and the admin.

@@ -17,8 +17,9 @@ import (
 // censusData is what the census page needs from the store.
 type censusData struct {
 	ward     *wardload.Ward
-	shifts   []*wardload.ShiftPattern
-	tiers    []*wardload.Tier
+	shifts   []*wardload.ShiftPattern // in use; new census names only these
+	tiers    []*wardload.Tier         // in use
+	retired  []*wardload.ShiftPattern // kept for history, refused with their reason
 	today    wardload.Date
 	settings *wardload.Settings // beds, change-over window, support staff
 }
@@ -30,8 +31,15 @@ func (s *Server) loadCensusData(r *http.Request) (*censusData, error) {
 		return nil, err
 	}
 	d := &censusData{ward: ward, today: projector.Today(s.now(), loc)}
-	if d.shifts, d.tiers, err = s.shiftsAndTiers(r.Context(), ward, "census"); err != nil {
+	shifts, tiers, err := s.shiftsAndTiers(r.Context(), ward, "census")
+	if err != nil {
 		return nil, err
+	}
+	d.shifts, d.tiers = wardload.ActiveShifts(shifts), wardload.ActiveTiers(tiers)
+	for _, p := range shifts {
+		if p.Retired() {
+			d.retired = append(d.retired, p)
+		}
 	}
 	if d.settings, err = s.store.FindSettings(r.Context(), ward.ID); err != nil {
 		return nil, fmt.Errorf("census: settings: %w", err)
@@ -174,6 +182,11 @@ func parseShiftChoice(d *censusData, date, shift string) (wardload.Date, int64, 
 	}
 	if !found {
 		errs["shift"] = "Choose one of this ward's shifts."
+		for _, p := range d.retired {
+			if err == nil && p.ID == id {
+				errs["shift"] = wardload.ErrorMessage(p.TakesCensus())
+			}
+		}
 	}
 	return day, id, errs
 }
@@ -191,7 +204,16 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 		MaxDate:  d.today.AddDays(projector.MaxDaysAhead).String(),
 		NoShifts: len(d.shifts) == 0, NoTiers: len(d.tiers) == 0,
 	}
+	if err := d.ward.TakesCensus(); err != nil {
+		vm.Closed = wardload.ErrorMessage(err)
+		return vm, nil
+	}
 	if vm.NoShifts || vm.NoTiers {
+		// Managers and admins are sent to the set-up; a charge nurse
+		// cannot do it and is told who can.
+		if role := principalFrom(r.Context()).User.Role; role == wardload.RoleManager || role == wardload.RoleAdmin {
+			vm.SetupURL = setupURL(d.ward)
+		}
 		return vm, nil
 	}
 	if errs == nil {
@@ -211,6 +233,15 @@ func (s *Server) censusVM(r *http.Request, d *censusData, date, shift string, fo
 			chosen = p
 		}
 		vm.Shifts = append(vm.Shifts, web.ShiftOptionVM{ID: id, Label: shiftLabel(p), Selected: sel})
+	}
+	if chosen == nil && form != nil {
+		// A shift retired between showing the form and posting it: keep
+		// the counts and ask for a current shift in the same form.
+		for _, p := range d.retired {
+			if strconv.FormatInt(p.ID, 10) == shift {
+				chosen, vm.Rechoose = p, true
+			}
+		}
 	}
 	vm.DateError, vm.ShiftError = errs["date"], errs["shift"]
 	if vm.DateError != "" {

@@ -14,7 +14,9 @@ import (
 // but an admin sees only the wards they belong to, with links by role.
 func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 	u := principalFrom(r.Context()).User
-	var f wardload.WardFilter
+	// Retired wards are listed to admins only (marked), who can
+	// reinstate them; their history stays reachable by address.
+	f := wardload.WardFilter{ActiveOnly: u == nil || u.Role != wardload.RoleAdmin}
 	if u != nil && u.Role != wardload.RoleAdmin {
 		f.UserID = &u.ID
 	}
@@ -27,7 +29,7 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 		vm.NewWardURL = newWardURL
 	}
 	for _, wd := range wards {
-		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone}
+		row := web.WardRowVM{Code: wd.Code, Name: wd.Name, TimeZone: wd.TimeZone, Retired: wd.Retired()}
 		if u != nil {
 			row.ProjectionsURL = projectionsURL(wd)
 		}
@@ -35,6 +37,12 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 		// ward pages of managers.
 		if u != nil && u.Role != wardload.RoleStaffingOffice {
 			row.CensusURL, row.StaffingURL = censusURL(wd), "/wards/"+wd.Code+"/staffing"
+		}
+		if row.Retired {
+			row.CensusURL, row.StaffingURL = "", ""
+		}
+		if u != nil && u.Role == wardload.RoleAdmin {
+			row.EditURL = wardEditURL(wd)
 		}
 		if u != nil && u.Role != wardload.RoleChargeNurse && u.Role != wardload.RoleStaffingOffice {
 			row.TokensURL = tokensURL(wd)

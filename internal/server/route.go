@@ -90,6 +90,12 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/admin/users/{id}", Name: "user.update", Access: admins, Handler: s.handleUserUpdate, MaxBodyBytes: 64 << 10},
 		{Method: http.MethodGet, Pattern: "/admin/wards/new", Name: "ward.new", Access: admins, Handler: s.handleWardNew},
 		{Method: http.MethodPost, Pattern: "/admin/wards", Name: "ward.create", Access: admins, Handler: s.handleWardCreate, MaxBodyBytes: 16 << 10},
+		// Edit, retire and reinstate a ward (ward_edit.go); its set-up checklist (ward_setup.go).
+		{Method: http.MethodGet, Pattern: "/admin/wards/{ward}/edit", Name: "ward.edit", Access: Access{Roles: admins.Roles, WardScoped: true}, Handler: s.handleWardEdit},
+		{Method: http.MethodPost, Pattern: "/admin/wards/{ward}", Name: "ward.update", Access: Access{Roles: admins.Roles, WardScoped: true}, Handler: s.handleWardUpdate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/admin/wards/{ward}/retire", Name: "ward.retire", Access: Access{Roles: admins.Roles, WardScoped: true}, Handler: s.handleWardRetire, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/admin/wards/{ward}/reinstate", Name: "ward.reinstate", Access: Access{Roles: admins.Roles, WardScoped: true}, Handler: s.handleWardReinstate, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/setup", Name: "ward.setup", Access: wardManagers, Handler: s.handleWardSetup},
 
 		{Method: http.MethodGet, Pattern: "/api/v1/wards", Name: "api.wards", Access: api, Handler: s.handleAPIWards},
 
@@ -102,6 +108,10 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/shifts/{id}", Name: "settings.shift.update", Access: wardManagers, Handler: s.handleShiftUpdate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers", Name: "settings.tier.create", Access: wardManagers, Handler: s.handleTierCreate, MaxBodyBytes: 16 << 10},
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers/{id}", Name: "settings.tier.update", Access: wardManagers, Handler: s.handleTierUpdate, MaxBodyBytes: 16 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/shifts/{id}/retire", Name: "settings.shift.retire", Access: wardManagers, Handler: s.handleShiftRetire, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/shifts/{id}/reinstate", Name: "settings.shift.reinstate", Access: wardManagers, Handler: s.handleShiftReinstate, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers/{id}/retire", Name: "settings.tier.retire", Access: wardManagers, Handler: s.handleTierRetire, MaxBodyBytes: 8 << 10},
+		{Method: http.MethodPost, Pattern: "/wards/{ward}/settings/tiers/{id}/reinstate", Name: "settings.tier.reinstate", Access: wardManagers, Handler: s.handleTierReinstate, MaxBodyBytes: 8 << 10},
 		{Method: http.MethodGet, Pattern: "/api/v1/projections", Name: "api.projections", Access: api, Handler: s.handleAPIProjections},
 		{Method: http.MethodGet, Pattern: "/api/v1/openapi.json", Name: "api.openapi", Access: sessionless, Handler: s.handleOpenAPI},
 

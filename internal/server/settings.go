@@ -103,18 +103,31 @@ func (s *Server) settingsVM(r *http.Request, d *settingsData) (web.SettingsVM, e
 	for _, p := range d.shifts {
 		id := strconv.FormatInt(p.ID, 10)
 		vm.Shifts = append(vm.Shifts, web.ShiftFormVM{ID: id, URL: base + "/shifts/" + id,
-			Name: p.Name, Start: p.StartClock(), Hours: formatDecimal(p.NominalHours)})
+			Name: p.Name, Start: p.StartClock(), Hours: formatDecimal(p.NominalHours),
+			Retire: retireVM("sh-"+id, base+"/shifts/"+id, "shift pattern "+p.Name, p.RetiredAt, d.ward)})
 	}
 	for _, t := range d.tiers {
 		id := strconv.FormatInt(t.ID, 10)
 		vm.Tiers = append(vm.Tiers, web.TierFormVM{ID: id, URL: base + "/tiers/" + id,
-			Code: t.Code, Label: t.Label, Description: t.Description, Order: strconv.Itoa(t.DisplayOrder)})
+			Code: t.Code, Label: t.Label, Description: t.Description, Order: strconv.Itoa(t.DisplayOrder),
+			Retire: retireVM("t-"+id, base+"/tiers/"+id, "tier "+t.Code, t.RetiredAt, d.ward)})
 	}
 	return vm, nil
 }
 
 func (s *Server) renderSettings(w http.ResponseWriter, r *http.Request, status int, vm web.SettingsVM) error {
-	setup := wardSetupVM(principalFrom(r.Context()).Ward, len(vm.Shifts) > 0, len(vm.Tiers) > 0)
+	shifts, tiers := 0, 0
+	for _, f := range vm.Shifts {
+		if f.Retire == nil || !f.Retire.Retired {
+			shifts++
+		}
+	}
+	for _, f := range vm.Tiers {
+		if f.Retire == nil || !f.Retire.Retired {
+			tiers++
+		}
+	}
+	setup := wardSetupVM(principalFrom(r.Context()).Ward, shifts > 0, tiers > 0)
 	return s.render(w, r, status, web.SettingsPage(s.layout(r, "Settings · "+vm.WardName), vm, setup))
 }
 

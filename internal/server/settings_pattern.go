@@ -40,7 +40,7 @@ func (s *Server) renderShiftError(w http.ResponseWriter, r *http.Request, d *set
 	}
 	for i := range vm.Shifts {
 		if vm.Shifts[i].ID == id {
-			form.ID, form.URL = vm.Shifts[i].ID, vm.Shifts[i].URL
+			form.ID, form.URL, form.Retire = vm.Shifts[i].ID, vm.Shifts[i].URL, vm.Shifts[i].Retire
 			vm.Shifts[i] = form
 		}
 	}

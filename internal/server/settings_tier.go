@@ -43,7 +43,7 @@ func (s *Server) renderTierError(w http.ResponseWriter, r *http.Request, d *sett
 	}
 	for i := range vm.Tiers {
 		if vm.Tiers[i].ID == id {
-			form.ID, form.URL, form.Code = vm.Tiers[i].ID, vm.Tiers[i].URL, vm.Tiers[i].Code
+			form.ID, form.URL, form.Code, form.Retire = vm.Tiers[i].ID, vm.Tiers[i].URL, vm.Tiers[i].Code, vm.Tiers[i].Retire
 			vm.Tiers[i] = form
 		}
 	}

@@ -40,3 +40,13 @@ func settingsURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/
 
 // tokensURL is the address of a ward's token page.
 func tokensURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/tokens" }
+
+// setupURL is the address of the ward's set-up checklist.
+func setupURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/setup" }
+
+// wardEditURL is the address of the admin's form for the ward; it posts
+// to wardAdminURL and retires below it.
+func wardEditURL(ward *wardload.Ward) string { return wardAdminURL(ward) + "/edit" }
+
+// wardAdminURL is where the admin's ward form posts.
+func wardAdminURL(ward *wardload.Ward) string { return "/admin/wards/" + ward.Code }

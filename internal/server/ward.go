@@ -3,6 +3,7 @@ package server
 import (
 	"fmt"
 	"net/http"
+	"slices"
 	"strings"
 
 	"wardload/internal/wardload"
@@ -21,6 +22,10 @@ const (
 // The command line prints it after creating a ward.
 func WardSettingsPath(code string) string { return settingsURL(&wardload.Ward{Code: code}) }
 
+// WardSetupPath is the path of the set-up checklist of the ward with
+// code; the command line prints it after creating a ward.
+func WardSetupPath(code string) string { return setupURL(&wardload.Ward{Code: code}) }
+
 // wardFormFields are the inputs of the new-ward form in page order: the
 // form field (as the domain's errors name it) and the input's id.
 var wardFormFields = []struct{ name, id string }{
@@ -35,34 +40,54 @@ func (s *Server) handleWardNew(w http.ResponseWriter, r *http.Request) error {
 	return s.renderWardNew(w, r, http.StatusOK, web.WardNewVM{})
 }
 
-// renderWardNew renders the form with the zone suggestions and, when vm
-// has errors, the summary linking to each field.
+// renderWardNew renders the new-ward or (vm.Edit) edit-ward form with the
+// zones and, when vm has errors, the summary linking to each field.
 func (s *Server) renderWardNew(w http.ResponseWriter, r *http.Request, status int, vm web.WardNewVM) error {
-	vm.ActionURL, vm.Zones = wardsURL, wardZones
+	vm.Zones = wardZones
+	if vm.TimeZone != "" && !slices.Contains(wardZones, vm.TimeZone) {
+		// A stored or typed name outside the list is offered first, so
+		// that it is shown and saving leaves it as it is.
+		vm.Zones = append([]string{vm.TimeZone}, wardZones...)
+	}
+	title := "New ward"
+	if vm.Edit {
+		title = "Edit ward"
+	} else {
+		vm.ActionURL = wardsURL
+	}
 	for _, f := range wardFormFields {
 		if msg := vm.Errors[f.name]; msg != "" {
 			vm.Summary = append(vm.Summary, web.FormErrorVM{Href: "#" + f.id, Message: msg})
 		}
 	}
-	return s.render(w, r, status, web.WardNewPage(s.layout(r, "New ward"), vm))
+	return s.render(w, r, status, web.WardNewPage(s.layout(r, title), vm))
+}
+
+// wardForm reads the ward form into ward (code only when creating) and
+// returns the form as typed, clipped for showing back, with every message
+// the domain has about it by field.
+func wardForm(r *http.Request, ward wardload.Ward, create bool) (wardload.Ward, web.WardNewVM, int) {
+	f := r.PostForm
+	if create {
+		ward.Code = strings.TrimSpace(f.Get("code"))
+	}
+	ward.Name, ward.TimeZone = strings.TrimSpace(f.Get("name")), strings.TrimSpace(f.Get("time_zone"))
+	// Checked unclipped; shown back clipped a little past each limit.
+	form := web.WardNewVM{Code: clip(ward.Code, 40), Name: clip(ward.Name, 160), TimeZone: clip(ward.TimeZone, 80),
+		Beds: clip(f.Get("beds"), 20), Errors: wardFieldErrors(ward)}
+	beds, err := wardload.ParseWardBeds(f.Get("beds"))
+	addInvalid(form.Errors, err, "beds")
+	return ward, form, beds
 }
 
 // handleWardCreate creates a ward (audited as the signed-in admin by the
 // store) and, when beds were given, saves them in its settings; it then
-// opens the ward's settings page, where set-up continues.
+// opens the ward's set-up checklist.
 func (s *Server) handleWardCreate(w http.ResponseWriter, r *http.Request) error {
 	if err := r.ParseForm(); err != nil {
 		return formError(err)
 	}
-	f := r.PostForm
-	ward := wardload.Ward{Code: strings.TrimSpace(f.Get("code")), Name: strings.TrimSpace(f.Get("name")),
-		TimeZone: strings.TrimSpace(f.Get("time_zone"))}
-	// Checked unclipped; shown back clipped a little past each limit.
-	form := web.WardNewVM{Code: clip(ward.Code, 40), Name: clip(ward.Name, 160), TimeZone: clip(ward.TimeZone, 80),
-		Beds: clip(f.Get("beds"), 20), Errors: wardFieldErrors(ward)}
-	settings := wardload.DefaultSettings(1) // any non-zero ID: the ward has none yet
-	settings.Beds = formParser{errs: form.Errors}.whole("beds", form.Beds, true)
-	addInvalid(form.Errors, settings.Validate(), "beds")
+	ward, form, beds := wardForm(r, wardload.Ward{}, true)
 	if len(form.Errors) > 0 {
 		return s.renderWardNew(w, r, http.StatusBadRequest, form)
 	}
@@ -75,18 +100,19 @@ func (s *Server) handleWardCreate(w http.ResponseWriter, r *http.Request) error 
 		}
 		return fmt.Errorf("ward create: %w", err)
 	}
-	flash := "Ward " + ward.Code + " was created. Next: add its shift patterns and acuity tiers below."
-	if settings.Beds > 0 {
-		settings.WardID, settings.UpdatedBy = ward.ID, principalFrom(r.Context()).User.ID
+	flash := "Ward " + ward.Code + " was created. Next: its shift patterns and acuity tiers."
+	if beds > 0 {
+		settings := wardload.DefaultSettings(ward.ID)
+		settings.Beds, settings.UpdatedBy = beds, principalFrom(r.Context()).User.ID
 		if err := s.store.SaveSettings(r.Context(), settings); err != nil {
 			// The ward exists; say so rather than answer with an error
 			// page that invites creating it again.
 			s.log.Error("ward create: beds not saved", "request_id", RequestID(r.Context()), "ward", ward.Code, "err", err)
-			flash = "Ward " + ward.Code + " was created, but its beds could not be saved: enter them under Staffing below."
+			flash = "Ward " + ward.Code + " was created, but its beds could not be saved: enter them on its settings page."
 		}
 	}
 	s.sessions.Put(r.Context(), sessFlash, flash)
-	return seeOther(w, r, settingsURL(&ward))
+	return seeOther(w, r, setupURL(&ward))
 }
 
 // wardFieldErrors returns every message the domain's Validate has about
@@ -126,5 +152,5 @@ func wardSetupVM(ward *wardload.Ward, hasShifts, hasTiers bool) *web.WardSetupVM
 	if hasShifts && hasTiers {
 		return nil
 	}
-	return &web.WardSetupVM{HasShifts: hasShifts, HasTiers: hasTiers, CensusURL: censusURL(ward)}
+	return &web.WardSetupVM{HasShifts: hasShifts, HasTiers: hasTiers, CensusURL: censusURL(ward), SetupURL: setupURL(ward)}
 }

@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"github.com/alexedwards/scs/sqlite3store"
+	"golang.org/x/net/html"
 
 	"wardload/internal/wardload"
 )
@@ -32,12 +33,15 @@ func TestWardNewForm(t *testing.T) {
 	if res.StatusCode != 200 || len(byTestID(t, body, "ward-form")) != 1 {
 		t.Fatalf("form = %d, want 200 with the ward form\n%s", res.StatusCode, body)
 	}
-	if got, _ := attrByID(t, body, "ward-time-zone", "list"); got != "ward-zones" {
-		t.Errorf("time zone input list = %q, want ward-zones", got)
+	// A <select> of every zone in the list (no JavaScript needed), none
+	// chosen until the admin picks one.
+	zones := optionValues(t, body, "ward-time-zone")
+	if len(zones) != len(wardZones)+1 || zones[0].value != "" || !zones[0].selected {
+		t.Errorf("zone options = %d, first %+v; want a blank chosen first, then %d zones", len(zones), zones[0], len(wardZones))
 	}
-	for _, z := range []string{"Europe/Dublin", "America/New_York", "UTC"} {
+	for _, z := range []string{"Europe/Dublin", "America/New_York", "Asia/Kolkata", "Pacific/Chatham", "UTC"} {
 		if !strings.Contains(body, `<option value="`+z+`">`) {
-			t.Errorf("zone %s not suggested", z)
+			t.Errorf("zone %s not offered", z)
 		}
 	}
 	if n := len(byTestID(t, body, "error-summary")); n != 0 {
@@ -63,8 +67,8 @@ func TestWardCreateByAdmin(t *testing.T) {
 	f := newFixture(t)
 	form := url.Values{"code": {"w4-north"}, "name": {" Ward 4 North (Medicine) "}, "time_zone": {"Australia/Perth"}, "beds": {"24"}}
 	res, body := f.do(t, f.as(t, pAdmin, post("/admin/wards", form)))
-	if res.StatusCode != http.StatusSeeOther || res.Header.Get("Location") != "/wards/w4-north/settings" {
-		t.Fatalf("create = %d Location %q, want 303 to the settings page\n%s", res.StatusCode, res.Header.Get("Location"), body)
+	if res.StatusCode != http.StatusSeeOther || res.Header.Get("Location") != "/wards/w4-north/setup" {
+		t.Fatalf("create = %d Location %q, want 303 to the set-up checklist\n%s", res.StatusCode, res.Header.Get("Location"), body)
 	}
 
 	ctx := context.Background()
@@ -151,7 +155,7 @@ func TestWardCreateBadInput(t *testing.T) {
 				"Ward code must be 1–32 lowercase letters, digits, '-' or '_'.",
 				"Ward name is required (at most 120 characters).",
 				`Unknown time zone "Europe/Atlantis".`,
-				"Enter a whole number such as 8.",
+				"Beds must be a whole number from 1 to 1000.",
 			},
 			kept: map[string]string{"ward-code": "Ward 9", "ward-time-zone": "Europe/Atlantis", "ward-beds": "-3"},
 		},
@@ -176,8 +180,26 @@ func TestWardCreateBadInput(t *testing.T) {
 		{
 			name:    "too many beds",
 			form:    url.Values{"code": {"w9"}, "name": {"Ward 9"}, "time_zone": {"UTC"}, "beds": {"1001"}},
-			summary: []string{"Beds must be between 0 (not set) and 1000."},
+			summary: []string{"Beds must be a whole number from 1 to 1000."},
 			kept:    map[string]string{"ward-beds": "1001"},
+		},
+		{
+			name:    "no beds",
+			form:    url.Values{"code": {"w9"}, "name": {"Ward 9"}, "time_zone": {"UTC"}, "beds": {"0"}},
+			summary: []string{"Beds must be a whole number from 1 to 1000."},
+			kept:    map[string]string{"ward-beds": "0", "ward-time-zone": "UTC"},
+		},
+		{
+			name:    "upper case code",
+			form:    url.Values{"code": {"W4-North"}, "name": {"Ward 4"}, "time_zone": {"UTC"}},
+			summary: []string{"Ward code must be 1–32 lowercase letters, digits, '-' or '_'."},
+			kept:    map[string]string{"ward-code": "W4-North"},
+		},
+		{
+			name:    "code with a space",
+			form:    url.Values{"code": {"w4 north"}, "name": {"Ward 4"}, "time_zone": {"UTC"}},
+			summary: []string{"Ward code must be 1–32 lowercase letters, digits, '-' or '_'."},
+			kept:    map[string]string{"ward-code": "w4 north"},
 		},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -194,7 +216,11 @@ func TestWardCreateBadInput(t *testing.T) {
 				t.Errorf("summary = %q\nwant      %q", got, tc.summary)
 			}
 			for id, want := range tc.kept {
-				if got, _ := attrByID(t, body, id, "value"); got != want {
+				got, _ := attrByID(t, body, id, "value")
+				if id == "ward-time-zone" {
+					got = selectedOption(t, body, id)
+				}
+				if got != want {
 					t.Errorf("%s = %q, want %q kept", id, got, want)
 				}
 			}
@@ -261,12 +287,13 @@ func TestNewWardJourney(t *testing.T) {
 	}
 	get("/admin/wards/new")
 	postOK("/admin/wards", url.Values{"code": {"w2-surg"}, "name": {"Ward 2 Surgery"}, "time_zone": {"Europe/Dublin"}, "beds": {""}},
-		"/wards/w2-surg/settings")
+		"/wards/w2-surg/setup")
 
-	page := get("/wards/w2-surg/settings")
-	if got := byTestID(t, page, "notice"); len(got) != 1 || !strings.HasPrefix(got[0], "Ward w2-surg was created.") {
+	setup := get("/wards/w2-surg/setup")
+	if got := byTestID(t, setup, "notice"); len(got) != 1 || !strings.HasPrefix(got[0], "Ward w2-surg was created.") {
 		t.Errorf("notice = %q", got)
 	}
+	page := get("/wards/w2-surg/settings")
 	if len(byTestID(t, page, "ward-setup")) != 1 {
 		t.Error("a new ward's settings page has no set-up checklist")
 	}
@@ -292,4 +319,55 @@ func TestNewWardJourney(t *testing.T) {
 	if len(byTestID(t, census, "census-form")) != 1 || len(byTestID(t, census, "tier-field")) != 1 {
 		t.Errorf("census page has %d forms and %d tier fields, want 1 and 1", len(byTestID(t, census, "census-form")), len(byTestID(t, census, "tier-field")))
 	}
+}
+
+type option struct {
+	value    string
+	selected bool
+}
+
+// optionValues returns the options of the <select> with id, in order.
+func optionValues(tb testing.TB, page, id string) []option {
+	tb.Helper()
+	doc, err := html.Parse(strings.NewReader(page))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var out []option
+	var walk func(n *html.Node, in bool)
+	walk = func(n *html.Node, in bool) {
+		if n.Type == html.ElementNode {
+			for _, a := range n.Attr {
+				in = in || (n.Data == "select" && a.Key == "id" && a.Val == id)
+			}
+			if in && n.Data == "option" {
+				var o option
+				for _, a := range n.Attr {
+					switch a.Key {
+					case "value":
+						o.value = a.Val
+					case "selected":
+						o.selected = true
+					}
+				}
+				out = append(out, o)
+			}
+		}
+		for c := n.FirstChild; c != nil; c = c.NextSibling {
+			walk(c, in)
+		}
+	}
+	walk(doc, false)
+	return out
+}
+
+// selectedOption is the value of the chosen option of the <select> id.
+func selectedOption(tb testing.TB, page, id string) string {
+	tb.Helper()
+	for _, o := range optionValues(tb, page, id) {
+		if o.selected {
+			return o.value
+		}
+	}
+	return ""
 }

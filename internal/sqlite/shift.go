@@ -37,7 +37,11 @@ func (s *Store) FindShiftPatternByID(ctx context.Context, id int64) (*wardload.S
 // FindShiftPatterns returns the ward's patterns by start time (then name,
 // so that two shifts starting together have a stable order).
 func (s *Store) FindShiftPatterns(ctx context.Context, wardID int64) ([]*wardload.ShiftPattern, error) {
-	rows, err := s.reader(ctx).QueryContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = ? ORDER BY start_minute, name`, wardID)
+	return findShifts(ctx, s.reader(ctx), wardID)
+}
+
+func findShifts(ctx context.Context, q querier, wardID int64) ([]*wardload.ShiftPattern, error) {
+	rows, err := q.QueryContext(ctx, `SELECT `+shiftColumns+` FROM shift_patterns WHERE ward_id = ? ORDER BY start_minute, name`, wardID)
 	if err != nil {
 		return nil, err
 	}
@@ -61,16 +65,26 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 		if err != nil {
 			return err
 		}
-		p, err := upd.Apply(before)
+		p, err := upd.Apply(before, tx.now)
 		if err != nil {
 			return err
 		}
-		if _, err := tx.ExecContext(ctx, `UPDATE shift_patterns SET name = ?, start_minute = ?, nominal_hours = ? WHERE id = ?`,
-			p.Name, p.StartMinute, p.NominalHours, id); err != nil {
+		if p.Retired() && !before.Retired() {
+			// Writes are serialised, so the check holds until commit.
+			all, err := findShifts(ctx, tx, p.WardID)
+			if err != nil {
+				return err
+			}
+			if err := wardload.CheckShiftRetire(all, id); err != nil {
+				return err
+			}
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE shift_patterns SET name = ?, start_minute = ?, nominal_hours = ?, retired_at = ? WHERE id = ?`,
+			p.Name, p.StartMinute, p.NominalHours, nullTime(p.RetiredAt), id); err != nil {
 			return err
 		}
 		out = p
-		return tx.audit(wardload.ActionShiftUpdate, before, p)
+		return tx.audit(wardload.RetireAction("shift", before.RetiredAt, p.RetiredAt), before, p)
 	})
 	if err != nil {
 		return nil, err
@@ -78,14 +92,17 @@ func (s *Store) UpdateShiftPattern(ctx context.Context, id int64, upd wardload.S
 	return out, nil
 }
 
-const shiftColumns = `id, ward_id, name, start_minute, nominal_hours`
+const shiftColumns = `id, ward_id, name, start_minute, nominal_hours, retired_at`
 
 func scanShift(r scanner) (*wardload.ShiftPattern, error) {
 	var p wardload.ShiftPattern
-	if err := r.Scan(&p.ID, &p.WardID, &p.Name, &p.StartMinute, &p.NominalHours); err != nil {
+	var retired sql.NullString
+	if err := r.Scan(&p.ID, &p.WardID, &p.Name, &p.StartMinute, &p.NominalHours, &retired); err != nil {
 		return nil, err
 	}
-	return &p, nil
+	var err error
+	p.RetiredAt, err = parseNullTime(retired)
+	return &p, err
 }
 
 func findShift(ctx context.Context, q querier, id int64) (*wardload.ShiftPattern, error) {

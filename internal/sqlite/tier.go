@@ -36,7 +36,11 @@ func (s *Store) FindTierByID(ctx context.Context, id int64) (*wardload.Tier, err
 
 // FindTiers returns the ward's tiers by display order, then code.
 func (s *Store) FindTiers(ctx context.Context, wardID int64) ([]*wardload.Tier, error) {
-	rows, err := s.reader(ctx).QueryContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = ? ORDER BY display_order, code`, wardID)
+	return findTiers(ctx, s.reader(ctx), wardID)
+}
+
+func findTiers(ctx context.Context, q querier, wardID int64) ([]*wardload.Tier, error) {
+	rows, err := q.QueryContext(ctx, `SELECT `+tierColumns+` FROM tiers WHERE ward_id = ? ORDER BY display_order, code`, wardID)
 	if err != nil {
 		return nil, err
 	}
@@ -60,16 +64,25 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 		if err != nil {
 			return err
 		}
-		t, err := upd.Apply(before)
+		t, err := upd.Apply(before, tx.now)
 		if err != nil {
 			return err
 		}
-		if _, err := tx.ExecContext(ctx, `UPDATE tiers SET label = ?, description = ?, display_order = ? WHERE id = ?`,
-			t.Label, t.Description, t.DisplayOrder, id); err != nil {
+		if t.Retired() && !before.Retired() {
+			all, err := findTiers(ctx, tx, t.WardID)
+			if err != nil {
+				return err
+			}
+			if err := wardload.CheckTierRetire(all, id); err != nil {
+				return err
+			}
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE tiers SET label = ?, description = ?, display_order = ?, retired_at = ? WHERE id = ?`,
+			t.Label, t.Description, t.DisplayOrder, nullTime(t.RetiredAt), id); err != nil {
 			return err
 		}
 		out = t
-		return tx.audit(wardload.ActionTierUpdate, before, t)
+		return tx.audit(wardload.RetireAction("tier", before.RetiredAt, t.RetiredAt), before, t)
 	})
 	if err != nil {
 		return nil, err
@@ -77,16 +90,19 @@ func (s *Store) UpdateTier(ctx context.Context, id int64, upd wardload.TierUpdat
 	return out, nil
 }
 
-const tierColumns = `id, ward_id, code, label, description, display_order`
+const tierColumns = `id, ward_id, code, label, description, display_order, retired_at`
 
 type scanner interface{ Scan(dest ...any) error }
 
 func scanTier(r scanner) (*wardload.Tier, error) {
 	var t wardload.Tier
-	if err := r.Scan(&t.ID, &t.WardID, &t.Code, &t.Label, &t.Description, &t.DisplayOrder); err != nil {
+	var retired sql.NullString
+	if err := r.Scan(&t.ID, &t.WardID, &t.Code, &t.Label, &t.Description, &t.DisplayOrder, &retired); err != nil {
 		return nil, err
 	}
-	return &t, nil
+	var err error
+	t.RetiredAt, err = parseNullTime(retired)
+	return &t, err
 }
 
 func findTier(ctx context.Context, q querier, id int64) (*wardload.Tier, error) {

@@ -74,11 +74,12 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 		if err != nil {
 			return err
 		}
-		w, err := upd.Apply(before)
+		w, err := upd.Apply(before, tx.now)
 		if err != nil {
 			return err
 		}
-		if _, err := tx.ExecContext(ctx, `UPDATE wards SET name = ?, time_zone = ? WHERE id = ?`, w.Name, w.TimeZone, id); err != nil {
+		if _, err := tx.ExecContext(ctx, `UPDATE wards SET name = ?, time_zone = ?, retired_at = ? WHERE id = ?`,
+			w.Name, w.TimeZone, nullTime(w.RetiredAt), id); err != nil {
 			return err
 		}
 		if upd.FactorNames != nil {
@@ -87,7 +88,7 @@ func (s *Store) UpdateWard(ctx context.Context, id int64, upd wardload.WardUpdat
 			}
 		}
 		out = w
-		return tx.audit(wardload.ActionWardUpdate, before, w)
+		return tx.audit(wardload.RetireAction("ward", before.RetiredAt, w.RetiredAt), before, w)
 	})
 	if err != nil {
 		return nil, err
@@ -117,6 +118,9 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 	if f.UserID != nil {
 		where, args = append(where, "id IN (SELECT ward_id FROM user_wards WHERE user_id = ?)"), append(args, *f.UserID)
 	}
+	if f.ActiveOnly {
+		where = append(where, "retired_at IS NULL")
+	}
 	cond := strings.Join(where, " AND ")
 	// Without a page the total is the number of rows: spare the count
 	// query (single lookups run on every request).
@@ -129,7 +133,7 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 	// The factor names come in the same query (one round trip per ward
 	// lookup, which every ward page makes): codes joined by U+001F, which
 	// a code cannot contain.
-	rows, err := q.QueryContext(ctx, page(`SELECT id, code, name, time_zone, created_at,
+	rows, err := q.QueryContext(ctx, page(`SELECT id, code, name, time_zone, created_at, retired_at,
 		(SELECT group_concat(name, char(31) ORDER BY position) FROM ward_factors WHERE ward_id = wards.id)
 		FROM wards WHERE `+cond+` ORDER BY code`, f.Offset, f.Limit), args...)
 	if err != nil {
@@ -140,8 +144,11 @@ func findWards(ctx context.Context, q querier, f wardload.WardFilter) ([]*wardlo
 	for rows.Next() {
 		var w wardload.Ward
 		var created string
-		var factors sql.NullString
-		if err := rows.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &created, &factors); err != nil {
+		var factors, retired sql.NullString
+		if err := rows.Scan(&w.ID, &w.Code, &w.Name, &w.TimeZone, &created, &retired, &factors); err != nil {
+			return nil, 0, err
+		}
+		if w.RetiredAt, err = parseNullTime(retired); err != nil {
 			return nil, 0, err
 		}
 		if factors.Valid && factors.String != "" {
@@ -176,18 +183,27 @@ func wardExists(ctx context.Context, q querier, id int64) error {
 // query, or wardload.WardNotFound. IDs and names are joined with ',' and
 // U+001F, which neither can contain.
 func loadWardRefs(ctx context.Context, q querier, id int64) (*wardload.WardRefs, error) {
-	var tiers, shifts, factors sql.NullString
+	var tiers, shifts, factors, oldTiers, oldShifts sql.NullString
+	r := &wardload.WardRefs{WardID: id}
 	err := q.QueryRowContext(ctx, `SELECT
 		(SELECT group_concat(id, ',' ORDER BY display_order, code) FROM tiers WHERE ward_id = wards.id),
 		(SELECT group_concat(id, ',' ORDER BY start_minute, name) FROM shift_patterns WHERE ward_id = wards.id),
-		(SELECT group_concat(name, char(31) ORDER BY position) FROM ward_factors WHERE ward_id = wards.id)
-		FROM wards WHERE id = ?`, id).Scan(&tiers, &shifts, &factors)
+		(SELECT group_concat(name, char(31) ORDER BY position) FROM ward_factors WHERE ward_id = wards.id),
+		retired_at IS NOT NULL,
+		(SELECT group_concat(id, ',') FROM tiers WHERE ward_id = wards.id AND retired_at IS NOT NULL),
+		(SELECT group_concat(id, ',') FROM shift_patterns WHERE ward_id = wards.id AND retired_at IS NOT NULL)
+		FROM wards WHERE id = ?`, id).Scan(&tiers, &shifts, &factors, &r.Retired, &oldTiers, &oldShifts)
 	if errors.Is(err, sql.ErrNoRows) {
 		return nil, wardload.WardNotFound()
 	} else if err != nil {
 		return nil, err
 	}
-	r := &wardload.WardRefs{WardID: id}
+	if r.RetiredTiers, err = parseIDs(oldTiers.String); err != nil {
+		return nil, err
+	}
+	if r.RetiredShifts, err = parseIDs(oldShifts.String); err != nil {
+		return nil, err
+	}
 	if r.Tiers, err = parseIDs(tiers.String); err != nil {
 		return nil, err
 	}

@@ -38,6 +38,7 @@ func Run(t *testing.T, newStore func(t *testing.T, now wardload.Clock) wardload.
 		signInCases(),
 		shiftRecordCases(),
 		staffingCases(),
+		retireCases(),
 	}
 	for _, g := range groups {
 		for _, tc := range g {

@@ -26,6 +26,12 @@ type AuditEntry struct {
 const (
 	ActionWardCreate         = "ward.create"
 	ActionWardUpdate         = "ward.update"
+	ActionWardRetire         = "ward.retire"
+	ActionWardReinstate      = "ward.reinstate"
+	ActionTierRetire         = "tier.retire"
+	ActionTierReinstate      = "tier.reinstate"
+	ActionShiftRetire        = "shift.retire"
+	ActionShiftReinstate     = "shift.reinstate"
 	ActionTierCreate         = "tier.create"
 	ActionTierUpdate         = "tier.update"
 	ActionShiftCreate        = "shift.create"

@@ -133,8 +133,8 @@ func (s *Settings) Validate() error {
 	if !ValidQuartiles(s.Quartiles) {
 		return FieldErrorf(EINVALID, "quartiles", "Unknown quartile convention %q.", s.Quartiles)
 	}
-	if s.Beds < 0 || s.Beds > 1000 {
-		return FieldErrorf(EINVALID, "beds", "Beds must be between 0 (not set) and 1000.")
+	if s.Beds < 0 || s.Beds > MaxWardBeds {
+		return FieldErrorf(EINVALID, "beds", "Beds must be between 0 (not set) and %d.", MaxWardBeds)
 	}
 	if s.ChangeoverMinutes < 0 || s.ChangeoverMinutes > MaxChangeoverMinutes {
 		return FieldErrorf(EINVALID, "changeover_minutes", "The change-over window must be 0 to %d minutes.", MaxChangeoverMinutes)

@@ -13,9 +13,10 @@ import (
 type ShiftPattern struct {
 	ID           int64
 	WardID       int64
-	Name         string  // unique within the ward, e.g. "Day", "Night"
-	StartMinute  int     // local start, minutes after midnight (0..1439)
-	NominalHours float64 // wall-clock length, > 0 and ≤ 24
+	Name         string    // unique within the ward, e.g. "Day", "Night"
+	StartMinute  int       // local start, minutes after midnight (0..1439)
+	NominalHours float64   // wall-clock length, > 0 and ≤ 24
+	RetiredAt    time.Time `json:",omitzero"` // zero while in use; see retire.go
 }
 
 // Validate checks the pattern's own fields.
@@ -77,12 +78,14 @@ type ShiftPatternUpdate struct {
 	Name         *string
 	StartMinute  *int
 	NominalHours *float64
+	Retired      *bool // true retires the pattern, false reinstates it
 }
 
-// Apply returns a copy of p with upd applied, or EINVALID naming the field
-// if the result is not a valid pattern. p is not changed.
-func (upd ShiftPatternUpdate) Apply(p *ShiftPattern) (*ShiftPattern, error) {
+// Apply returns a copy of p with upd applied at now, or EINVALID naming
+// the field if the result is not a valid pattern. p is not changed.
+func (upd ShiftPatternUpdate) Apply(p *ShiftPattern, now time.Time) (*ShiftPattern, error) {
 	out := *p
+	out.RetiredAt = retireAt(out.RetiredAt, upd.Retired, now)
 	setIf(&out.Name, upd.Name)
 	setIf(&out.StartMinute, upd.StartMinute)
 	setIf(&out.NominalHours, upd.NominalHours)
@@ -95,8 +98,11 @@ type ShiftService interface {
 	CreateShiftPattern(ctx context.Context, p *ShiftPattern) error
 	// FindShiftPatternByID returns ENOTFOUND if there is no such pattern.
 	FindShiftPatternByID(ctx context.Context, id int64) (*ShiftPattern, error)
-	// FindShiftPatterns returns the ward's patterns ordered by StartMinute.
+	// FindShiftPatterns returns the ward's patterns, retired ones
+	// included, ordered by StartMinute.
 	FindShiftPatterns(ctx context.Context, wardID int64) ([]*ShiftPattern, error)
-	// UpdateShiftPattern returns ENOTFOUND, EINVALID or ECONFLICT.
+	// UpdateShiftPattern returns ENOTFOUND, EINVALID or ECONFLICT;
+	// retiring the ward's last active pattern is EINVALID naming
+	// "retired" (CheckShiftRetire).
 	UpdateShiftPattern(ctx context.Context, id int64, upd ShiftPatternUpdate) (*ShiftPattern, error)
 }

@@ -27,6 +27,9 @@ type Ward struct {
 	// an observation (e.g. "dependency_score"). Codes, never free text.
 	FactorNames []string
 	CreatedAt   time.Time
+	// RetiredAt is when an admin retired the ward; zero while it is in
+	// use. A retired ward keeps all its history (see retire.go).
+	RetiredAt time.Time `json:",omitzero"`
 }
 
 // Validate checks the ward's fields. It returns EINVALID naming the field.
@@ -87,23 +90,30 @@ type WardFilter struct {
 	ID     *int64
 	Code   *string
 	UserID *int64 // only wards this user is a member of
-	Offset int
-	Limit  int
+	// ActiveOnly leaves out retired wards.
+	ActiveOnly bool
+	Offset     int
+	Limit      int
 }
 
-// WardUpdate holds the fields of a ward that may change.
+// WardUpdate holds the fields of a ward that may change. The code never
+// changes: it is in addresses, API tokens' scopes and exported files.
 type WardUpdate struct {
 	Name        *string
 	TimeZone    *string
 	FactorNames []string // nil leaves them unchanged
+	// Retired true retires the ward (from now, unless it already is);
+	// false reinstates it.
+	Retired *bool
 }
 
-// Apply returns a copy of w with upd applied, or EINVALID naming the field
-// if the result is not a valid ward. w is not changed.
-func (upd WardUpdate) Apply(w *Ward) (*Ward, error) {
+// Apply returns a copy of w with upd applied at now, or EINVALID naming
+// the field if the result is not a valid ward. w is not changed.
+func (upd WardUpdate) Apply(w *Ward, now time.Time) (*Ward, error) {
 	out := *w
 	setIf(&out.Name, upd.Name)
 	setIf(&out.TimeZone, upd.TimeZone)
+	out.RetiredAt = retireAt(out.RetiredAt, upd.Retired, now)
 	if upd.FactorNames != nil {
 		out.FactorNames = append([]string(nil), upd.FactorNames...)
 	}
@@ -122,7 +132,8 @@ type WardService interface {
 	// FindWards returns matching wards ordered by code, and the total count
 	// ignoring Offset and Limit.
 	FindWards(ctx context.Context, f WardFilter) ([]*Ward, int, error)
-	// UpdateWard applies upd and returns the new ward.
+	// UpdateWard applies upd and returns the new ward. It is audited as
+	// RetireAction("ward", before.RetiredAt, after.RetiredAt).
 	// Returns ENOTFOUND or EINVALID.
 	UpdateWard(ctx context.Context, id int64, upd WardUpdate) (*Ward, error)
 }
@@ -136,6 +147,7 @@ type Tier struct {
 	Label        string // short label shown on forms
 	Description  string // what a patient in this tier typically needs
 	DisplayOrder int
+	RetiredAt    time.Time `json:",omitzero"` // zero while in use; see retire.go
 }
 
 // Validate checks the tier's own fields (not that the ward exists).
@@ -169,12 +181,14 @@ type TierUpdate struct {
 	Label        *string
 	Description  *string
 	DisplayOrder *int
+	Retired      *bool // true retires the tier, false reinstates it
 }
 
-// Apply returns a copy of t with upd applied, or EINVALID naming the field
-// if the result is not a valid tier. t is not changed.
-func (upd TierUpdate) Apply(t *Tier) (*Tier, error) {
+// Apply returns a copy of t with upd applied at now, or EINVALID naming
+// the field if the result is not a valid tier. t is not changed.
+func (upd TierUpdate) Apply(t *Tier, now time.Time) (*Tier, error) {
 	out := *t
+	out.RetiredAt = retireAt(out.RetiredAt, upd.Retired, now)
 	setIf(&out.Label, upd.Label)
 	setIf(&out.Description, upd.Description)
 	setIf(&out.DisplayOrder, upd.DisplayOrder)
@@ -187,8 +201,10 @@ type TierService interface {
 	CreateTier(ctx context.Context, t *Tier) error
 	// FindTierByID returns ENOTFOUND if there is no such tier.
 	FindTierByID(ctx context.Context, id int64) (*Tier, error)
-	// FindTiers returns the ward's tiers by DisplayOrder then Code. Unknown ward: empty list.
+	// FindTiers returns the ward's tiers, retired ones included, by
+	// DisplayOrder then Code. Unknown ward: empty list.
 	FindTiers(ctx context.Context, wardID int64) ([]*Tier, error)
-	// UpdateTier returns ENOTFOUND or EINVALID.
+	// UpdateTier returns ENOTFOUND or EINVALID; retiring the ward's last
+	// active tier is EINVALID naming "retired" (CheckTierRetire).
 	UpdateTier(ctx context.Context, id int64, upd TierUpdate) (*Tier, error)
 }
