@@ -15,7 +15,7 @@ type SettingsVM struct {
 	// SavedAt is the anchor of the form the last post saved: Notice is
 	// shown next to it. "" shows Notice at the top.
 	SavedAt string
-	Updated  string // when and by whom the settings were last saved; "" if never
+	Updated string // when and by whom the settings were last saved; "" if never
 
 	GeneralURL string
 	General    GeneralFormVM
