@@ -10,6 +10,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -172,6 +173,9 @@ func (w auditWords) changes(before, after string) []web.AuditChangeVM {
 		if auditHidden[k] {
 			continue
 		}
+		if _, named := a["ShiftName"]; k == "ShiftID" && named {
+			continue // a projection names its shift as it was then
+		}
 		bv, inB := b[k]
 		av, inA := a[k]
 		bs, as := "", ""
@@ -295,7 +299,7 @@ func (w auditWords) plain(v any) string {
 		}
 		return "no"
 	case json.Number:
-		return x.String()
+		return numberWords(x)
 	case string:
 		if x == "" {
 			return "(empty)"
@@ -334,6 +338,20 @@ func (w auditWords) plain(v any) string {
 		return listOr(parts, "none")
 	}
 	return "?"
+}
+
+// numberWords writes a recorded number: whole numbers (seeds, counts) as
+// stored, others to at most three decimals, which is finer than anything
+// the pages show.
+func numberWords(n json.Number) string {
+	if !strings.ContainsAny(n.String(), ".eE") {
+		return n.String()
+	}
+	f, err := n.Float64()
+	if err != nil {
+		return n.String()
+	}
+	return strconv.FormatFloat(math.Round(f*1000)/1000, 'f', -1, 64)
 }
 
 func number(v any) (float64, bool) {
