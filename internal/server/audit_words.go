@@ -465,15 +465,20 @@ func auditLink(e *wardload.AuditEntry, ward *wardload.Ward, admin bool) (string,
 	return "", ""
 }
 
+// namesShiftsOrTiers are the entities whose records refer to a shift
+// pattern or tier by ID (a tier or shift record names itself).
+var namesShiftsOrTiers = map[string]bool{"settings": true, "census": true, "projection": true,
+	"observation": true, "shift_record": true}
+
 // loadAuditNames reads the shift pattern names and tier codes of the
-// wards whose entries are on the page: two small reads per ward, at most
-// a page's worth of wards.
+// wards whose entries on the page refer to them: two small reads per
+// ward, at most a page's worth of wards.
 func (s *Server) loadAuditNames(ctx context.Context, wards map[int64]*wardload.Ward, es []*wardload.AuditEntry) (auditNames, error) {
 	n := auditNames{wards: wards, shifts: map[int64]string{}, tiers: map[int64]string{}}
 	seen := map[int64]bool{}
 	for _, e := range es {
 		w, ok := wards[e.WardID]
-		if !ok || seen[e.WardID] {
+		if !ok || seen[e.WardID] || !namesShiftsOrTiers[e.Entity] {
 			continue
 		}
 		seen[e.WardID] = true
