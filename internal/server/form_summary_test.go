@@ -227,3 +227,19 @@ func TestImportListsEveryProblem(t *testing.T) {
 		t.Errorf("observations %d → %d", before, after)
 	}
 }
+
+// TestFloorsFormSummary: two bad floors are both listed, each linking to
+// its input, with no extra message about the form as a whole.
+func TestFloorsFormSummary(t *testing.T) {
+	f := newSettingsFixture(t)
+	night := strconv.FormatInt(f.night.ID, 10)
+	t2 := strconv.FormatInt(f.t2.ID, 10)
+	res, body, _ := f.postSettings(t, "/wards/w-a/settings/floors", url.Values{"floor_" + night: {"abc"}, "floor_" + night + "_" + t2: {"99"}})
+	if res.StatusCode != http.StatusBadRequest {
+		t.Fatalf("status %d, want 400", res.StatusCode)
+	}
+	sums := formSummaries(t, body)
+	if len(sums) != 1 || len(sums[0]) != 2 || sums[0][0].href != "#f-floor_"+night || sums[0][1].href != "#f-floor_"+night+"_"+t2 {
+		t.Errorf("summaries = %v", sums)
+	}
+}
