@@ -36,6 +36,7 @@ type TokenRowVM struct {
 type AuditVM struct {
 	Ward, Action, Entity, User, From, To string // the filters as typed
 	WardCodes                            []string
+	Actions                              []AuditActionVM // the action filter's choices
 	Error                                string
 	Rows                                 []AuditRowVM
 	Total                                int
@@ -43,9 +44,32 @@ type AuditVM struct {
 	PrevURL, NextURL                     string
 }
 
-// AuditRowVM is one audit entry. Before and After are the stored JSON.
+// AuditActionVM is one choice of the action filter: a plain name for an
+// action code.
+type AuditActionVM struct {
+	Value, Name string
+	Selected    bool
+}
+
+// AuditRowVM is one audit entry in words. There is deliberately no field
+// for the stored record: the page shows Changes, never JSON.
 type AuditRowVM struct {
-	At, Actor, Action, Entity, EntityID, Ward, Before, After string
+	At         string // in Zone, to the second
+	Zone       string // the IANA name of the ward's zone, or "UTC"
+	Actor      string
+	What       string // e.g. "Changed ward settings"
+	ActionCode string // e.g. "settings.save", for the filter
+	Subject    string // the thing's code or name, or its date and shift; may be ""
+	Ward       string // ward code, "" for none
+	Changes    []AuditChangeVM
+	LinkURL    string // the page of the thing changed; "" for none
+	LinkText   string
+}
+
+// AuditChangeVM is one field of a change. Before is "" for a new thing
+// and After "" for one removed.
+type AuditChangeVM struct {
+	Field, Before, After string
 }
 
 // UsersVM is the user administration page.

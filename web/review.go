@@ -120,6 +120,10 @@ type ImportVM struct {
 	Tiers       []string // "code (label)"
 	Shifts      []string // shift pattern names
 	Error       string   // why the last upload was refused; nothing was stored
+	// Problems lists every bad cell of a refused file (up to
+	// csvfile.MaxProblems), each naming line and column; Error then
+	// says how many there were.
+	Problems []FormErrorVM
 }
 
 // SeparationVM is the statistical check that the tiers differ in care

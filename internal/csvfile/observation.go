@@ -24,6 +24,10 @@ func ObservationHeader(ward *wardload.Ward) []string {
 	return append(slices.Clone(observationColumns), ward.FactorNames...)
 }
 
+// MaxProblems is how many problems an import lists: enough to fix a
+// file in one pass, few enough to read.
+const MaxProblems = 100
+
 // ReadObservations reads an observation import file for ward. Shifts
 // are named by pattern name, tiers by code. A factor cell may be blank
 // (not recorded). Every problem is EINVALID with a message naming the file
@@ -35,6 +39,20 @@ func ObservationHeader(ward *wardload.Ward) []string {
 // wardload keeps no patient identifiers, so such a file must be cut down
 // before import rather than silently trimmed.
 func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
+	return ReadObservationsChecked(r, ward, tiers, shifts, nil)
+}
+
+// ReadObservationsChecked is ReadObservations with a further check of
+// each observation that reads well (check may be nil); its EINVALID error
+// is reported with the observation's line and the column of its Field.
+//
+// A problem in the header stops the reading. Problems in data rows do
+// not: every bad cell of every row is reported at once, up to the first
+// MaxProblems, as one EINVALID error whose wardload.ErrorFields are the
+// problems in file order (each naming line and column) and whose message
+// lists them, for the command line.
+func ReadObservationsChecked(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern,
+	check func(*wardload.Observation) error) (obs []*wardload.Observation, lines []int, err error) {
 	t, err := Read(r)
 	if err != nil {
 		return nil, nil, err
@@ -61,40 +79,37 @@ func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, 
 	for _, sp := range shifts {
 		shiftByName[strings.ToLower(sp.Name)] = sp
 	}
-
-	// Numbers first, column by column: Floats names line and column.
-	window, err := t.Floats("window_hours")
-	if err != nil {
-		return nil, nil, err
-	}
-	care, err := t.Floats("care_minutes")
-	if err != nil {
-		return nil, nil, err
-	}
 	dates, _ := t.Strings("date")
 	shiftNames, _ := t.Strings("shift")
 	tierCodes, _ := t.Strings("tier")
 
+	var problems problemList
 	obs = make([]*wardload.Observation, len(t.Records))
 	for i := range t.Records {
 		line := t.Lines[i]
-		cellErr := func(col, format string, args ...any) error {
-			return wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...))
+		before := problems.n
+		cellErr := func(col, format string, args ...any) {
+			problems.add(wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...)))
 		}
-		d, err := wardload.ParseDate(dates[i])
-		if err != nil {
-			return nil, nil, cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(dates[i], 40))
+		// Every cell of the row is read, so that one pass over the
+		// messages fixes the file.
+		d, derr := wardload.ParseDate(dates[i])
+		if derr != nil {
+			cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(dates[i], 40))
 		}
 		sp, ok := shiftByName[strings.ToLower(shiftNames[i])]
 		if !ok {
-			return nil, nil, cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shiftNames[i], 40), shiftList(shifts))
+			cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shiftNames[i], 40), shiftList(shifts))
 		}
 		tr, ok := tierByCode[tierCodes[i]]
 		if !ok {
-			return nil, nil, cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tierCodes[i], 40), tierList(tiers))
+			cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tierCodes[i], 40), tierList(tiers))
 		}
-		o := &wardload.Observation{WardID: ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
-			WindowHours: window.Values[i], CareMinutes: care.Values[i]}
+		window, werr := t.Float(i, "window_hours")
+		problems.add(werr)
+		care, cerr := t.Float(i, "care_minutes")
+		problems.add(cerr)
+		var factors map[string]float64
 		for _, f := range ward.FactorNames {
 			c := t.Index(f)
 			if c < 0 || strings.TrimSpace(t.Records[i][c]) == "" {
@@ -104,31 +119,102 @@ func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, 
 			// the other numeric columns do.
 			v, err := t.Float(i, f)
 			if err != nil {
-				return nil, nil, err
+				problems.add(err)
+				continue
 			}
-			if o.Factors == nil {
-				o.Factors = map[string]float64{}
+			if factors == nil {
+				factors = map[string]float64{}
 			}
-			o.Factors[f] = v
+			factors[f] = v
 		}
+		if problems.n > before {
+			continue // the row's values are not all known
+		}
+		o := &wardload.Observation{WardID: ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
+			WindowHours: window, CareMinutes: care, Factors: factors}
 		if err := o.Validate(); err != nil {
-			field := wardload.ErrorField(err)
-			if field == "" {
-				field = "file"
+			for _, e := range wardload.ErrorFields(err) {
+				cellErr(fieldOr(e, "file"), "%s", wardload.ErrorMessage(e))
 			}
-			return nil, nil, cellErr(field, "%s", wardload.ErrorMessage(err))
+			continue
 		}
 		// The model refuses an observation that scales past
 		// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
 		// values near the float64 limit overflow the review's sums; such a
 		// cell is an entry error, refused here rather than stored.
 		if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
-			return nil, nil, cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
+			cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
 				o.CareMinutes, o.WindowHours, stats.MaxShiftMinutes/maxRealShiftHours)
+			continue
+		}
+		if check != nil {
+			if err := check(o); err != nil {
+				if wardload.ErrorCode(err) != wardload.EINVALID {
+					return nil, nil, err
+				}
+				for _, e := range wardload.ErrorFields(err) {
+					cellErr(fieldOr(e, "file"), "%s", wardload.ErrorMessage(e))
+				}
+				continue
+			}
 		}
 		obs[i] = o
 	}
+	if err := problems.err(); err != nil {
+		return nil, nil, err
+	}
 	return obs, t.Lines, nil
+}
+
+// problemList gathers the problems of an import: the first MaxProblems
+// and how many there were.
+type problemList struct {
+	kept []error
+	n    int
+}
+
+func (p *problemList) add(err error) {
+	if err == nil {
+		return
+	}
+	p.n++
+	if len(p.kept) < MaxProblems {
+		p.kept = append(p.kept, err)
+	}
+}
+
+// err is nil without problems, the one problem's error, or one EINVALID
+// error listing them all (wardload.Invalid) whose message says how many
+// there were and gives each on its own line.
+func (p *problemList) err() error {
+	err := wardload.Invalid(p.kept...)
+	if p.n <= 1 {
+		return err
+	}
+	e, ok := err.(*wardload.Error)
+	if !ok {
+		return err
+	}
+	var b strings.Builder
+	if p.n > len(p.kept) {
+		fmt.Fprintf(&b, "The file has %d problems, so nothing was imported. The first %d are:", p.n, len(p.kept))
+	} else {
+		fmt.Fprintf(&b, "The file has %d problems, so nothing was imported:", p.n)
+	}
+	for _, f := range e.Fields {
+		b.WriteString("\n")
+		b.WriteString(f.Message)
+	}
+	e.Message = b.String()
+	return e
+}
+
+// fieldOr returns the field e names, or def.
+func fieldOr(e *wardload.Error, def string) string {
+	if e.Field != "" {
+		return e.Field
+	}
+	return def
 }
 
 func shiftList(shifts []*wardload.ShiftPattern) string {

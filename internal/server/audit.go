@@ -26,9 +26,14 @@ func (s *Server) handleAudit(w http.ResponseWriter, r *http.Request) error {
 		Ward: clip(q.Get("ward"), 32), Action: clip(q.Get("action"), 64), Entity: clip(q.Get("entity"), 64),
 		User: clip(q.Get("user"), 40), From: clip(q.Get("from"), 10), To: clip(q.Get("to"), 10),
 	}
-	codes, err := s.wardCodes(r)
+	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
 	if err != nil {
-		return err
+		return fmt.Errorf("audit: find wards: %w", err)
+	}
+	wards := make(map[int64]*wardload.Ward, len(ws))
+	codes := make(map[int64]string, len(ws))
+	for _, w := range ws {
+		wards[w.ID], codes[w.ID] = w, w.Code
 	}
 	visible := codes
 	if u.Role != wardload.RoleAdmin {
@@ -41,6 +46,7 @@ func (s *Server) handleAudit(w http.ResponseWriter, r *http.Request) error {
 		vm.WardCodes = append(vm.WardCodes, c)
 	}
 	sort.Strings(vm.WardCodes)
+	vm.Actions = actionOptions(vm.Action)
 
 	f, msg, err := s.auditFilter(r, vm, u, visible)
 	if err != nil {
@@ -58,13 +64,12 @@ func (s *Server) handleAudit(w http.ResponseWriter, r *http.Request) error {
 			return fmt.Errorf("audit: %w", err)
 		}
 		vm.Total = total
+		names, err := s.loadAuditNames(r.Context(), wards, es)
+		if err != nil {
+			return err
+		}
 		for _, e := range es {
-			row := web.AuditRowVM{At: e.At.UTC().Format("2006-01-02 15:04:05"), Actor: e.Actor, Action: e.Action,
-				Entity: e.Entity, Ward: codes[e.WardID], Before: e.Before, After: e.After}
-			if e.EntityID != 0 {
-				row.EntityID = "#" + strconv.FormatInt(e.EntityID, 10)
-			}
-			vm.Rows = append(vm.Rows, row)
+			vm.Rows = append(vm.Rows, auditRow(e, wards[e.WardID], names, u.Role == wardload.RoleAdmin))
 		}
 		if len(es) > 0 {
 			vm.PageText = fmt.Sprintf("Entries %d–%d of %d", f.Offset+1, f.Offset+len(es), total)
@@ -152,4 +157,33 @@ func (s *Server) auditFilter(r *http.Request, vm web.AuditVM, u *wardload.User, 
 		*d.dst = &t
 	}
 	return f, "", nil
+}
+
+// auditRow is one entry in words: when in its ward's time zone (named),
+// who, what, the thing, the change field by field and a link to it.
+func auditRow(e *wardload.AuditEntry, ward *wardload.Ward, names auditNames, admin bool) web.AuditRowVM {
+	loc, zone := zoneOf(ward)
+	w := auditWords{names: names, loc: loc}
+	row := web.AuditRowVM{At: e.At.In(loc).Format("2006-01-02 15:04:05"), Zone: zone, Actor: e.Actor,
+		What: actionName(e.Action), ActionCode: e.Action, Subject: w.subject(e), Changes: w.changes(e.Before, e.After)}
+	if ward != nil {
+		row.Ward = ward.Code
+	}
+	row.LinkURL, row.LinkText = auditLink(e, ward, admin)
+	return row
+}
+
+// actionOptions is the action filter's list of plain names, with an
+// action typed into an old address kept so that the filter shows it.
+func actionOptions(current string) []web.AuditActionVM {
+	out := make([]web.AuditActionVM, 0, len(auditActions)+1)
+	known := false
+	for _, a := range auditActions {
+		out = append(out, web.AuditActionVM{Value: a.code, Name: a.name, Selected: a.code == current})
+		known = known || a.code == current
+	}
+	if current != "" && !known {
+		out = append(out, web.AuditActionVM{Value: current, Name: actionName(current), Selected: true})
+	}
+	return out
 }

@@ -10,6 +10,7 @@ import (
 	"net/http"
 	"regexp"
 	"strconv"
+	"strings"
 	"time"
 
 	"wardload/internal/csvfile"
@@ -86,7 +87,17 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 	ward, u := principalFrom(r.Context()).Ward, principalFrom(r.Context()).User
 	obs, lines, err := ParseObservationImport(file, ward, tiers, shifts, s.now())
 	if wardload.ErrorCode(err) == wardload.EINVALID {
-		return refuse(wardload.ErrorMessage(err))
+		probs := wardload.ErrorFields(err)
+		if len(probs) <= 1 {
+			return refuse(wardload.ErrorMessage(err))
+		}
+		// Every problem at once, each leading back to the file input;
+		// the message's first line says how many there are.
+		for _, e := range probs {
+			vm.Problems = append(vm.Problems, web.FormErrorVM{Href: "#import-file", Message: e.Message})
+		}
+		head, _, _ := strings.Cut(wardload.ErrorMessage(err), "\n")
+		return refuse(head)
 	} else if err != nil {
 		return fmt.Errorf("import: read: %w", err)
 	}
@@ -109,14 +120,11 @@ func (s *Server) handleImport(w http.ResponseWriter, r *http.Request) error {
 // time zone. Every problem is EINVALID naming the file line; lines[i] is
 // the file line of obs[i], for RowToLine.
 func ParseObservationImport(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern, now time.Time) (obs []*wardload.Observation, lines []int, err error) {
-	obs, lines, err = csvfile.ReadObservations(r, ward, tiers, shifts)
+	check, err := observationDates(ward, now)
 	if err != nil {
 		return nil, nil, err
 	}
-	if err := checkObservationDates(obs, lines, ward, now); err != nil {
-		return nil, nil, err
-	}
-	return obs, lines, nil
+	return csvfile.ReadObservationsChecked(r, ward, tiers, shifts, check)
 }
 
 // rowPrefix is how CreateObservations names the row it refused.
@@ -160,22 +168,22 @@ func (s *Server) handleImportTemplate(w http.ResponseWriter, r *http.Request) er
 // that far (lookback is at most wardload.MaxLookbackWeeks).
 var earliestObservation = wardload.Date{Year: 2000, Month: time.January, Day: 1}
 
-// checkObservationDates refuses observations dated after today in the
-// ward's time zone (care not yet given: a mistyped year) or before
-// earliestObservation, naming the file line.
-func checkObservationDates(obs []*wardload.Observation, lines []int, ward *wardload.Ward, now time.Time) error {
+// observationDates returns the check that refuses an observation dated
+// after today in the ward's time zone (care not yet given: a mistyped
+// year) or before earliestObservation; the reader adds line and column.
+func observationDates(ward *wardload.Ward, now time.Time) (func(*wardload.Observation) error, error) {
 	loc, err := ward.Location()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	today := projector.Today(now, loc)
-	for i, o := range obs {
+	return func(o *wardload.Observation) error {
 		if o.Date.After(today) {
-			return wardload.FieldErrorf(wardload.EINVALID, "date", "line %d, column \"date\": %s is after today (%s); care not yet given cannot be observed.", lines[i], o.Date, today)
+			return wardload.FieldErrorf(wardload.EINVALID, "date", "%s is after today (%s); care not yet given cannot be observed.", o.Date, today)
 		}
 		if o.Date.Before(earliestObservation) {
-			return wardload.FieldErrorf(wardload.EINVALID, "date", "line %d, column \"date\": %s is before %s; check the year.", lines[i], o.Date, earliestObservation)
+			return wardload.FieldErrorf(wardload.EINVALID, "date", "%s is before %s; check the year.", o.Date, earliestObservation)
 		}
-	}
-	return nil
+		return nil
+	}, nil
 }

@@ -56,7 +56,7 @@ func TestTokenPages(t *testing.T) {
 	}
 	// The ward's manager finds the token's changes in their audit log.
 	_, body = f.do(t, withCookie(httptest.NewRequest("GET", "/audit?entity=token", nil), f, c.Value))
-	if acts := byTestID(t, body, "audit-action"); !slices.Contains(acts, "token.revoke") || !slices.Contains(acts, "token.create") {
+	if acts := byTestID(t, body, "audit-what"); !slices.Contains(acts, "Revoked an API token") || !slices.Contains(acts, "Created an API token") {
 		t.Errorf("manager of A sees token actions %q, want create and revoke of planner-a", acts)
 	}
 }
@@ -100,7 +100,7 @@ func TestAuditPage(t *testing.T) {
 	}
 	// Admin: everything, newest first; filters narrow it.
 	_, _, body := rows(pAdmin, "")
-	if acts := byTestID(t, body, "audit-action"); len(acts) < 6 || acts[0] != "signin.fail" {
+	if acts := byTestID(t, body, "audit-what"); len(acts) < 6 || acts[0] != "Failed sign-ins" {
 		t.Errorf("admin sees %q, want the sign-in failure first and all changes", acts)
 	}
 	_, _, body = rows(pAdmin, "?action=signin.fail")

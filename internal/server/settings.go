@@ -142,13 +142,44 @@ func (s *Server) handleSettings(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	vm.Notice = s.sessions.PopString(r.Context(), sessFlash)
+	if vm.Notice != "" {
+		markSaved(&vm, s.sessions.PopString(r.Context(), sessSavedAt))
+	}
 	return s.renderSettings(w, r, http.StatusOK, vm)
 }
 
+// sessSavedAt is the session key of the anchor of the settings form the
+// last post saved, for its "Saved" line.
+const sessSavedAt = "saved_at"
+
+// markSaved puts vm's notice next to the form with anchor: the staffing
+// or floors form, or a shift pattern or tier form. An anchor that names
+// no form on the page (a form removed meanwhile) leaves the notice at the
+// top.
+func markSaved(vm *web.SettingsVM, anchor string) {
+	switch anchor {
+	case web.StaffingAnchor, web.FloorsAnchor:
+		vm.SavedAt = anchor
+		return
+	}
+	for i := range vm.Shifts {
+		if web.ShiftAnchor(vm.Shifts[i].ID) == anchor {
+			vm.Shifts[i].Saved, vm.SavedAt = vm.Notice, anchor
+		}
+	}
+	for i := range vm.Tiers {
+		if web.TierAnchor(vm.Tiers[i].ID) == anchor {
+			vm.Tiers[i].Saved, vm.SavedAt = vm.Notice, anchor
+		}
+	}
+}
+
 // settingsSaved ends a successful settings post: flash and 303 back to
-// the part of the page that was saved.
+// the form that was saved (anchor, one of web's settings anchors), where
+// the page then says "Saved".
 func (s *Server) settingsSaved(w http.ResponseWriter, r *http.Request, what, anchor string) error {
 	s.sessions.Put(r.Context(), sessFlash, "Saved: "+what+".")
+	s.sessions.Put(r.Context(), sessSavedAt, anchor)
 	return seeOther(w, r, settingsURL(principalFrom(r.Context()).Ward)+"#"+anchor)
 }
 
@@ -198,21 +229,21 @@ func (s *Server) handleSettingsSave(w http.ResponseWriter, r *http.Request) erro
 		vm.General = form
 		return s.renderSettings(w, r, http.StatusBadRequest, vm)
 	}
+	// The domain's checks run even when a field could not be read, so
+	// that every mistake is listed at once; a field keeps the message of
+	// its reading.
+	addInvalid(form.Errors, next.Validate(), "direct_care_fraction")
 	if len(form.Errors) > 0 {
-		return invalid()
-	}
-	if err := next.Validate(); err != nil {
-		form.Errors[fieldOr(err, "direct_care_fraction")] = wardload.ErrorMessage(err)
 		return invalid()
 	}
 	if err := s.store.SaveSettings(r.Context(), &next); err != nil {
 		if wardload.ErrorCode(err) == wardload.EINVALID {
-			form.Errors[fieldOr(err, "direct_care_fraction")] = wardload.ErrorMessage(err)
+			addInvalid(form.Errors, err, "direct_care_fraction")
 			return invalid()
 		}
 		return fmt.Errorf("settings save: %w", err)
 	}
-	return s.settingsSaved(w, r, "staffing settings", "staffing")
+	return s.settingsSaved(w, r, "staffing settings", web.StaffingAnchor)
 }
 
 // fieldOr returns the field err names, or def when it names none.

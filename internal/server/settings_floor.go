@@ -109,7 +109,7 @@ func (s *Server) handleFloorsSave(w http.ResponseWriter, r *http.Request) error 
 		return s.renderSettings(w, r, http.StatusBadRequest, vm)
 	}
 	if len(errs) > 0 {
-		return invalid("Please correct the floors marked below; nothing was saved.")
+		return invalid("") // the summary lists each field's message
 	}
 	if err := next.Validate(); err != nil {
 		return invalid(wardload.ErrorMessage(err))
@@ -122,5 +122,5 @@ func (s *Server) handleFloorsSave(w http.ResponseWriter, r *http.Request) error 
 		}
 		return fmt.Errorf("floors save: %w", err)
 	}
-	return s.settingsSaved(w, r, "ratio floors", "floors")
+	return s.settingsSaved(w, r, "ratio floors", web.FloorsAnchor)
 }

@@ -82,7 +82,7 @@ func (s *Server) handleShiftCreate(w http.ResponseWriter, r *http.Request) error
 		}
 		return s.renderShiftError(w, r, d, form, "")
 	}
-	return s.settingsSaved(w, r, "shift pattern "+p.Name, "shifts")
+	return s.settingsSaved(w, r, "shift pattern "+p.Name, web.ShiftAnchor(strconv.FormatInt(p.ID, 10)))
 }
 
 // handleShiftUpdate changes a shift pattern of the ward. Stored
@@ -123,17 +123,17 @@ func (s *Server) handleShiftUpdate(w http.ResponseWriter, r *http.Request) error
 		}
 		return s.renderShiftError(w, r, d, form, idText)
 	}
-	return s.settingsSaved(w, r, "shift pattern "+name, "shifts")
+	return s.settingsSaved(w, r, "shift pattern "+name, web.ShiftAnchor(idText))
 }
 
-// addInvalid adds a Validate error to errs under its field (def when it
-// names none), unless that field already has a message from parsing.
+// addInvalid adds each problem of a Validate error to errs under its
+// field (def when it names none), unless that field already has a message
+// from parsing.
 func addInvalid(errs map[string]string, err error, def string) {
-	if err == nil {
-		return
-	}
-	f := fieldOr(err, def)
-	if _, ok := errs[f]; !ok {
-		errs[f] = wardload.ErrorMessage(err)
+	for _, e := range wardload.ErrorFields(err) {
+		f := fieldOr(e, def)
+		if _, ok := errs[f]; !ok {
+			errs[f] = wardload.ErrorMessage(e)
+		}
 	}
 }

@@ -83,7 +83,7 @@ func (s *Server) handleTierCreate(w http.ResponseWriter, r *http.Request) error 
 		}
 		return s.renderTierError(w, r, d, form, "")
 	}
-	return s.settingsSaved(w, r, "tier "+t.Code, "tiers")
+	return s.settingsSaved(w, r, "tier "+t.Code, web.TierAnchor(strconv.FormatInt(t.ID, 10)))
 }
 
 // handleTierUpdate changes a tier's label, description and order; its
@@ -127,5 +127,5 @@ func (s *Server) handleTierUpdate(w http.ResponseWriter, r *http.Request) error 
 		}
 		return s.renderTierError(w, r, d, form, idText)
 	}
-	return s.settingsSaved(w, r, "tier "+cur.Code, "tiers")
+	return s.settingsSaved(w, r, "tier "+cur.Code, web.TierAnchor(idText))
 }

@@ -303,13 +303,13 @@ func TestNewWardJourney(t *testing.T) {
 	}
 
 	postOK("/wards/w2-surg/settings/shifts", url.Values{"name": {"Day"}, "start": {"07:30"}, "hours": {"12.5"}},
-		"/wards/w2-surg/settings#shifts")
+		"/wards/w2-surg/settings#shift-1")
 	page = get("/wards/w2-surg/settings")
 	if steps := byTestID(t, page, "ward-setup-step"); len(steps) != 4 || steps[0] != "Add shift patterns (done)" || steps[1] != "Add acuity tiers" {
 		t.Errorf("set-up steps after a shift pattern = %q", steps)
 	}
 	postOK("/wards/w2-surg/settings/tiers", url.Values{"code": {"t1"}, "label": {"Light care"}, "description": {"Mostly independent."}, "order": {""}},
-		"/wards/w2-surg/settings#tiers")
+		"/wards/w2-surg/settings#tier-1")
 	page = get("/wards/w2-surg/settings")
 	if n := len(byTestID(t, page, "ward-setup")); n != 0 {
 		t.Errorf("set-up checklist still shown once shifts and tiers exist")

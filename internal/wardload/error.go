@@ -45,10 +45,17 @@ func Unavailable(code string, cause error) error {
 // Error is the application error. Message is written for the person using
 // wardload and may be shown to them; Field, when set, names the input that
 // was wrong (a form field, a CSV column, a flag) so it can be highlighted.
+//
+// An error about several inputs at once (a form with three bad fields, a
+// file with many bad rows) is still one *Error: Fields holds one *Error
+// per problem, each naming its field, and Code, Field and Message are
+// those of the whole (see Invalid). Callers that show one message keep
+// working; callers that list every problem read ErrorFields.
 type Error struct {
 	Code    string
 	Field   string
 	Message string
+	Fields  []*Error
 }
 
 func (e *Error) Error() string {
@@ -66,6 +73,51 @@ func Errorf(code string, format string, args ...any) *Error {
 // FieldErrorf returns an *Error that names the offending field.
 func FieldErrorf(code, field string, format string, args ...any) *Error {
 	return &Error{Code: code, Field: field, Message: fmt.Sprintf(format, args...)}
+}
+
+// Invalid returns nil when errs holds no error, the one error when it holds
+// one, and otherwise an EINVALID *Error whose Fields are every *Error of
+// errs in order (an error about several fields is flattened into its
+// Fields) and whose Field and Message are the first's, so that a caller
+// reading only ErrorMessage still sees a real problem. A non-domain error
+// among errs is returned alone: it is not the user's input.
+func Invalid(errs ...error) error {
+	var out []*Error
+	for _, err := range errs {
+		if err == nil {
+			continue
+		}
+		var e *Error
+		if !errors.As(err, &e) {
+			return err
+		}
+		if len(e.Fields) > 0 {
+			out = append(out, e.Fields...)
+		} else {
+			out = append(out, e)
+		}
+	}
+	switch len(out) {
+	case 0:
+		return nil
+	case 1:
+		return out[0]
+	}
+	return &Error{Code: EINVALID, Field: out[0].Field, Message: out[0].Message, Fields: out}
+}
+
+// ErrorFields returns every problem of the first *Error in err's chain:
+// its Fields, or the error itself when it has none. It returns nil for nil
+// and for an error that is not a *Error.
+func ErrorFields(err error) []*Error {
+	var e *Error
+	if !errors.As(err, &e) {
+		return nil
+	}
+	if len(e.Fields) > 0 {
+		return e.Fields
+	}
+	return []*Error{e}
 }
 
 // ErrorCode returns the code of the first *Error in err's chain, EINTERNAL

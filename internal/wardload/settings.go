@@ -117,50 +117,58 @@ func (s *Settings) Validate() error {
 	if s.WardID == 0 {
 		return FieldErrorf(EINVALID, "ward", "Ward is required.")
 	}
+	// Every field is checked, so that a form shows all its mistakes at
+	// once (Invalid gathers them).
+	var errs []error
+	bad := func(field, format string, args ...any) {
+		errs = append(errs, FieldErrorf(EINVALID, field, format, args...))
+	}
 	// The lower bounds below keep typing errors (0.0075 for 0.75) from
 	// turning into absurd headcounts; a nurse with under a tenth of the
 	// shift for direct care, or more than two nurses per patient as a
 	// floor, is outside ward practice (common practice, no source).
 	if math.IsNaN(s.DirectCareFraction) || !(s.DirectCareFraction >= MinDirectCareFraction && s.DirectCareFraction <= 1) {
-		return FieldErrorf(EINVALID, "direct_care_fraction", "Direct-care fraction must be between 0.1 and 1.")
+		bad("direct_care_fraction", "Direct-care fraction must be between 0.1 and 1.")
 	}
 	if math.IsNaN(s.CoverLevel) || !(s.CoverLevel > 0 && s.CoverLevel < 1) {
-		return FieldErrorf(EINVALID, "cover_level", "Cover level must be between 0 and 1 (for example 0.9).")
+		bad("cover_level", "Cover level must be between 0 and 1 (for example 0.9).")
 	}
 	if s.LookbackWeeks < 1 || s.LookbackWeeks > MaxLookbackWeeks {
-		return FieldErrorf(EINVALID, "lookback_weeks", "Lookback must be 1 to %d weeks.", MaxLookbackWeeks)
+		bad("lookback_weeks", "Lookback must be 1 to %d weeks.", MaxLookbackWeeks)
 	}
 	if !ValidQuartiles(s.Quartiles) {
-		return FieldErrorf(EINVALID, "quartiles", "Unknown quartile convention %q.", s.Quartiles)
+		bad("quartiles", "Unknown quartile convention %q.", s.Quartiles)
 	}
 	if s.Beds < 0 || s.Beds > MaxWardBeds {
-		return FieldErrorf(EINVALID, "beds", "Beds must be between 0 (not set) and %d.", MaxWardBeds)
+		bad("beds", "Beds must be between 0 (not set) and %d.", MaxWardBeds)
 	}
 	if s.ChangeoverMinutes < 0 || s.ChangeoverMinutes > MaxChangeoverMinutes {
-		return FieldErrorf(EINVALID, "changeover_minutes", "The change-over window must be 0 to %d minutes.", MaxChangeoverMinutes)
+		bad("changeover_minutes", "The change-over window must be 0 to %d minutes.", MaxChangeoverMinutes)
 	}
 	if utf8.RuneCountInString(s.Escalation) > MaxEscalationText {
-		return FieldErrorf(EINVALID, "escalation", "The escalation text is at most %d characters.", MaxEscalationText)
-	}
-	if !plainText(s.Escalation, "\n\r") {
-		return FieldErrorf(EINVALID, "escalation", "The escalation text must be plain text without control characters.")
+		bad("escalation", "The escalation text is at most %d characters.", MaxEscalationText)
+	} else if !plainText(s.Escalation, "\n\r") {
+		bad("escalation", "The escalation text must be plain text without control characters.")
 	}
 	type key struct{ shift, tier int64 }
 	seen := map[key]bool{}
 	for _, f := range s.Floors {
 		if f.ShiftID == 0 {
-			return FieldErrorf(EINVALID, "floors", "Each ratio floor needs a shift.")
+			bad("floors", "Each ratio floor needs a shift.")
+			break
 		}
 		if math.IsNaN(f.PatientsPerNurse) || !(f.PatientsPerNurse >= MinPatientsPerNurse && f.PatientsPerNurse <= MaxPatientsPerNurse) {
-			return FieldErrorf(EINVALID, "floors", "Patients per nurse must be between %g (two nurses per patient) and %d.", MinPatientsPerNurse, MaxPatientsPerNurse)
+			bad("floors", "Patients per nurse must be between %g (two nurses per patient) and %d.", MinPatientsPerNurse, MaxPatientsPerNurse)
+			break
 		}
 		k := key{f.ShiftID, f.TierID}
 		if seen[k] {
-			return FieldErrorf(EINVALID, "floors", "A shift has two ratio floors for the same tier.")
+			bad("floors", "A shift has two ratio floors for the same tier.")
+			break
 		}
 		seen[k] = true
 	}
-	return nil
+	return Invalid(errs...)
 }
 
 // SettingsService stores ward staffing settings.
