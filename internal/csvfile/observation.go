@@ -34,101 +34,175 @@ func ObservationHeader(ward *wardload.Ward) []string {
 // another system may carry a name, record number or birth date, and
 // wardload keeps no patient identifiers, so such a file must be cut down
 // before import rather than silently trimmed.
+//
+// The file is read one row at a time and only the observations are kept,
+// not the cells (issue 12: keeping every cell took about 30 times the
+// file's size). Of several problems the one reported is the one a whole
+// read would meet first: a row that cannot be read as CSV, then the
+// header, then the first bad window_hours cell, then the first bad
+// care_minutes cell, then the first row with any other problem.
 func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
-	t, err := Read(r)
+	s, err := NewStream(r)
 	if err != nil {
 		return nil, nil, err
 	}
+	rd := newObservationReader(s.Header, ward, tiers, shifts)
+	for {
+		rec, line, err := s.Next()
+		if err == io.EOF {
+			break
+		} else if err != nil {
+			return nil, nil, err
+		}
+		rd.add(rec, line)
+	}
+	for _, err := range []error{rd.headerErr, rd.windowErr, rd.careErr, rd.rowErr} {
+		if err != nil {
+			return nil, nil, err
+		}
+	}
+	return rd.obs, rd.lines, nil
+}
+
+// observationReader turns rows into observations, remembering the first
+// problem of each kind that ReadObservations ranks.
+type observationReader struct {
+	ward               *wardload.Ward
+	tiers              []*wardload.Tier
+	shifts             []*wardload.ShiftPattern
+	tierByCode         map[string]*wardload.Tier
+	shiftByName        map[string]*wardload.ShiftPattern
+	date, shift, tier  int
+	window, care       int
+	factors            []int // column of each of ward.FactorNames, or -1
+	headerErr          error
+	windowErr, careErr error
+	rowErr             error
+	obs                []*wardload.Observation
+	lines              []int
+	slab               []wardload.Observation // observations are cut from here, a block at a time
+}
+
+func newObservationReader(header []string, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) *observationReader {
+	rd := &observationReader{ward: ward, tiers: tiers, shifts: shifts,
+		tierByCode: map[string]*wardload.Tier{}, shiftByName: map[string]*wardload.ShiftPattern{}}
 	allowed := ObservationHeader(ward)
-	for i, h := range t.Header {
+	for i, h := range header {
 		if !slices.Contains(allowed, h) {
-			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
+			rd.headerErr = wardload.FieldErrorf(wardload.EINVALID, "file",
 				"line 1, column %d: column %q is not accepted. wardload stores no patient identifiers or free text, so a file may only have the columns %s. Remove the other columns and import again.",
 				i+1, clip(h, 40), strings.Join(allowed, ", "))
+			return rd
 		}
 	}
 	for _, c := range observationColumns {
-		if t.Index(c) < 0 {
-			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
+		if !slices.Contains(header, c) {
+			rd.headerErr = wardload.FieldErrorf(wardload.EINVALID, "file",
 				"line 1: the column %q is missing. The header must have %s.", c, strings.Join(allowed, ", "))
+			return rd
 		}
 	}
-	tierByCode := map[string]*wardload.Tier{}
 	for _, tr := range tiers {
-		tierByCode[tr.Code] = tr
+		rd.tierByCode[tr.Code] = tr
 	}
-	shiftByName := map[string]*wardload.ShiftPattern{}
 	for _, sp := range shifts {
-		shiftByName[strings.ToLower(sp.Name)] = sp
+		rd.shiftByName[strings.ToLower(sp.Name)] = sp
 	}
+	rd.date, rd.shift, rd.tier = slices.Index(header, "date"), slices.Index(header, "shift"), slices.Index(header, "tier")
+	rd.window, rd.care = slices.Index(header, "window_hours"), slices.Index(header, "care_minutes")
+	for _, f := range ward.FactorNames {
+		rd.factors = append(rd.factors, slices.Index(header, f))
+	}
+	return rd
+}
 
-	// Numbers first, column by column: Floats names line and column.
-	window, err := t.Floats("window_hours")
-	if err != nil {
-		return nil, nil, err
+// add reads one data row starting on file line line.
+func (rd *observationReader) add(rec []string, line int) {
+	if rd.headerErr != nil || rd.windowErr != nil {
+		return // nothing later can change the answer; the rest is only read for its CSV errors
 	}
-	care, err := t.Floats("care_minutes")
+	// Numbers first, as a whole read checks them column by column.
+	window, err := parseCell(line, "window_hours", rec[rd.window])
 	if err != nil {
-		return nil, nil, err
+		rd.windowErr = err
+		return
 	}
-	dates, _ := t.Strings("date")
-	shiftNames, _ := t.Strings("shift")
-	tierCodes, _ := t.Strings("tier")
+	if rd.careErr != nil {
+		return
+	}
+	care, err := parseCell(line, "care_minutes", rec[rd.care])
+	if err != nil {
+		rd.careErr = err
+		return
+	}
+	if rd.rowErr != nil {
+		return
+	}
+	o, err := rd.observation(rec, line, window, care)
+	if err != nil {
+		rd.rowErr, rd.obs, rd.lines, rd.slab = err, nil, nil, nil
+		return
+	}
+	rd.obs = append(rd.obs, o)
+	rd.lines = append(rd.lines, line)
+}
 
-	obs = make([]*wardload.Observation, len(t.Records))
-	for i := range t.Records {
-		line := t.Lines[i]
-		cellErr := func(col, format string, args ...any) error {
-			return wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...))
+// observation checks one row whose numbers have been read.
+func (rd *observationReader) observation(rec []string, line int, window, care float64) (*wardload.Observation, error) {
+	cellErr := func(col, format string, args ...any) error {
+		return wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...))
+	}
+	date, shift, tier := strings.TrimSpace(rec[rd.date]), strings.TrimSpace(rec[rd.shift]), strings.TrimSpace(rec[rd.tier])
+	d, err := wardload.ParseDate(date)
+	if err != nil {
+		return nil, cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(date, 40))
+	}
+	sp, ok := rd.shiftByName[strings.ToLower(shift)]
+	if !ok {
+		return nil, cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shift, 40), shiftList(rd.shifts))
+	}
+	tr, ok := rd.tierByCode[tier]
+	if !ok {
+		return nil, cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tier, 40), tierList(rd.tiers))
+	}
+	if len(rd.slab) == cap(rd.slab) {
+		rd.slab = make([]wardload.Observation, 0, 4096)
+	}
+	rd.slab = append(rd.slab, wardload.Observation{WardID: rd.ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
+		WindowHours: window, CareMinutes: care})
+	o := &rd.slab[len(rd.slab)-1]
+	for k, f := range rd.ward.FactorNames {
+		c := rd.factors[k]
+		if c < 0 || strings.TrimSpace(rec[c]) == "" {
+			continue
 		}
-		d, err := wardload.ParseDate(dates[i])
+		// The package's number rules, so a factor reads exactly as
+		// the other numeric columns do.
+		v, err := parseCell(line, f, rec[c])
 		if err != nil {
-			return nil, nil, cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(dates[i], 40))
+			return nil, err
 		}
-		sp, ok := shiftByName[strings.ToLower(shiftNames[i])]
-		if !ok {
-			return nil, nil, cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shiftNames[i], 40), shiftList(shifts))
+		if o.Factors == nil {
+			o.Factors = map[string]float64{}
 		}
-		tr, ok := tierByCode[tierCodes[i]]
-		if !ok {
-			return nil, nil, cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tierCodes[i], 40), tierList(tiers))
-		}
-		o := &wardload.Observation{WardID: ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
-			WindowHours: window.Values[i], CareMinutes: care.Values[i]}
-		for _, f := range ward.FactorNames {
-			c := t.Index(f)
-			if c < 0 || strings.TrimSpace(t.Records[i][c]) == "" {
-				continue
-			}
-			// The package's number rules, so a factor reads exactly as
-			// the other numeric columns do.
-			v, err := t.Float(i, f)
-			if err != nil {
-				return nil, nil, err
-			}
-			if o.Factors == nil {
-				o.Factors = map[string]float64{}
-			}
-			o.Factors[f] = v
-		}
-		if err := o.Validate(); err != nil {
-			field := wardload.ErrorField(err)
-			if field == "" {
-				field = "file"
-			}
-			return nil, nil, cellErr(field, "%s", wardload.ErrorMessage(err))
-		}
-		// The model refuses an observation that scales past
-		// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
-		// values near the float64 limit overflow the review's sums; such a
-		// cell is an entry error, refused here rather than stored.
-		if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
-			return nil, nil, cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
-				o.CareMinutes, o.WindowHours, stats.MaxShiftMinutes/maxRealShiftHours)
-		}
-		obs[i] = o
+		o.Factors[f] = v
 	}
-	return obs, t.Lines, nil
+	if err := o.Validate(); err != nil {
+		field := wardload.ErrorField(err)
+		if field == "" {
+			field = "file"
+		}
+		return nil, cellErr(field, "%s", wardload.ErrorMessage(err))
+	}
+	// The model refuses an observation that scales past
+	// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
+	// values near the float64 limit overflow the review's sums; such a
+	// cell is an entry error, refused here rather than stored.
+	if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
+		return nil, cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
+			o.CareMinutes, o.WindowHours, stats.MaxShiftMinutes/maxRealShiftHours)
+	}
+	return o, nil
 }
 
 func shiftList(shifts []*wardload.ShiftPattern) string {
