@@ -30,7 +30,7 @@ func FuzzObservationsStreamed(f *testing.F) {
 		h + "2026-03-01,Day,t1,4,30,2\n",
 		h + "2026-03-01,Day,t1,4,30,\n2026-03-02,night,t2,4,45,3\n",
 		h + "bad,Day,t1,4,30,2\n2026-03-01,Day,t1,x,30,2\n",        // date before window: window wins
-		h + "2026-03-01,Day,t1,4,y,2\n2026-03-01,Day,t1,x,30,2\n",   // care before window: window wins
+		h + "2026-03-01,Day,t1,4,y,2\n2026-03-01,Day,t1,x,30,2\n",  // care before window: window wins
 		h + "2026-03-01,Dusk,t1,4,30,2\n2026-03-01,Day,t1,4,y,2\n", // shift before care: care wins
 		h + "2026-03-01,Day,t9,4,30,2\n2026-03-01,Dusk,t1,4,30,2\n",
 		h + "2026-03-01,Day,t1,4,30,z\n2026-03-01,Day,t1,4,3000,2\n",

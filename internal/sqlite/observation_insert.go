@@ -3,6 +3,8 @@ package sqlite
 import (
 	"context"
 	"database/sql"
+	"slices"
+	"strconv"
 	"strings"
 
 	"wardload/internal/wardload"
@@ -17,22 +19,35 @@ const rowsPerInsert = 100
 
 // bulkInsert writes rows of one table in statements of up to rowsPerInsert
 // rows, preparing each statement text once per import: the full-sized one
-// and, at the end, one for the rest.
+// and, at the end, one for the rest. Values every row shares (the batch's
+// time and ID) are bound once per statement as ?1, ?2, …, since the driver
+// copies a text value each time it binds one.
 type bulkInsert struct {
-	ctx   context.Context
-	tx    *Tx
-	head  string // "INSERT INTO t (a, b) VALUES "
-	one   string // "(?, ?)"
-	width int    // values per row
-	args  []any
-	full  *sql.Stmt
+	ctx    context.Context
+	tx     *Tx
+	head   string // "INSERT INTO t (a, b, c) VALUES "
+	one    string // "(?1, ?, ?)"
+	shared int    // values every row shares, at the front of args
+	width  int    // values per row
+	args   []any
+	full   *sql.Stmt
 }
 
-func newBulkInsert(ctx context.Context, tx *Tx, table string, cols []string) *bulkInsert {
-	return &bulkInsert{ctx: ctx, tx: tx, width: len(cols),
-		head: "INSERT INTO " + table + " (" + strings.Join(cols, ", ") + ") VALUES ",
-		one:  "(" + strings.TrimSuffix(strings.Repeat("?, ", len(cols)), ", ") + ")",
-		args: make([]any, 0, rowsPerInsert*len(cols))}
+// newBulkInsert writes the columns shared, with sharedVals on every row,
+// and cols, whose values add takes.
+func newBulkInsert(ctx context.Context, tx *Tx, table string, shared []string, sharedVals []any, cols []string) *bulkInsert {
+	marks := make([]string, 0, len(shared)+len(cols))
+	for i := range shared {
+		marks = append(marks, "?"+strconv.Itoa(i+1))
+	}
+	for range cols {
+		marks = append(marks, "?")
+	}
+	args := make([]any, 0, len(shared)+rowsPerInsert*len(cols))
+	return &bulkInsert{ctx: ctx, tx: tx, shared: len(shared), width: len(cols),
+		head: "INSERT INTO " + table + " (" + strings.Join(append(slices.Clone(shared), cols...), ", ") + ") VALUES ",
+		one:  "(" + strings.Join(marks, ", ") + ")",
+		args: append(args, sharedVals...)}
 }
 
 func (b *bulkInsert) text(rows int) string {
@@ -42,7 +57,7 @@ func (b *bulkInsert) text(rows int) string {
 // add queues one row's values and writes the queue once it is full.
 func (b *bulkInsert) add(vals ...any) error {
 	b.args = append(b.args, vals...)
-	if len(b.args) < rowsPerInsert*b.width {
+	if len(b.args) < b.shared+rowsPerInsert*b.width {
 		return nil
 	}
 	if b.full == nil {
@@ -53,17 +68,17 @@ func (b *bulkInsert) add(vals ...any) error {
 		b.full = st
 	}
 	_, err := b.full.ExecContext(b.ctx, b.args...)
-	b.args = b.args[:0]
+	b.args = b.args[:b.shared]
 	return err
 }
 
 // flush writes the queued rows.
 func (b *bulkInsert) flush() error {
-	if len(b.args) == 0 {
+	if len(b.args) == b.shared {
 		return nil
 	}
-	_, err := b.tx.ExecContext(b.ctx, b.text(len(b.args)/b.width), b.args...)
-	b.args = b.args[:0]
+	_, err := b.tx.ExecContext(b.ctx, b.text((len(b.args)-b.shared)/b.width), b.args...)
+	b.args = b.args[:b.shared]
 	return err
 }
 
@@ -85,14 +100,14 @@ func insertObservations(ctx context.Context, tx *Tx, obs []*wardload.Observation
 	if err := tx.QueryRowContext(ctx, `SELECT COALESCE(MAX(id), 0) FROM observations`).Scan(&last); err != nil {
 		return err
 	}
-	entered := formatTime(tx.now)
-	rows := newBulkInsert(ctx, tx, "observations", []string{"id", "ward_id", "tier_id", "date", "shift_id", "window_hours", "care_minutes", "entered_by", "entered_at", "batch_id"})
-	factors := newBulkInsert(ctx, tx, "observation_factors", []string{"observation_id", "name", "value"})
+	rows := newBulkInsert(ctx, tx, "observations", []string{"entered_at", "batch_id"}, []any{formatTime(tx.now), batch},
+		[]string{"id", "ward_id", "tier_id", "date", "shift_id", "window_hours", "care_minutes", "entered_by"})
+	factors := newBulkInsert(ctx, tx, "observation_factors", nil, nil, []string{"observation_id", "name", "value"})
 	defer rows.close()
 	defer factors.close()
 	for i, o := range obs {
 		o.ID = last + int64(i) + 1
-		if err := rows.add(o.ID, o.WardID, o.TierID, o.Date.String(), o.ShiftID, o.WindowHours, o.CareMinutes, o.EnteredBy, entered, batch); err != nil {
+		if err := rows.add(o.ID, o.WardID, o.TierID, o.Date.String(), o.ShiftID, o.WindowHours, o.CareMinutes, o.EnteredBy); err != nil {
 			return err
 		}
 	}
