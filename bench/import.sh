@@ -62,7 +62,7 @@ report() {
 	}' "$tmp/times"
 }
 
-if command -v sqlite3 >/dev/null; then
+if [ -z "${SKIP_SQLITE:-}" ] && command -v sqlite3 >/dev/null; then
 	echo "== SQLite: $rows observations; sqlite3 $(sqlite3 --version | cut -d' ' -f1)"
 	mkdir "$tmp/seed"
 	"$tmp/importdata" -sqlite "$tmp/seed/wardload.db" -rows "$rows" -out "$csv"
