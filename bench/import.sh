@@ -19,7 +19,8 @@
 # Usage: bench/import.sh [rows] [runs]   (defaults 1000000 and 3)
 #   PostgreSQL is measured when WARDLOAD_BENCH_DATABASE_URL is set (a
 #   database the script may create and drop the schema wlbench_import in);
-#   SQLite when the sqlite3 shell is installed (apt-get install sqlite3).
+#   SQLite when the sqlite3 shell is installed (apt-get install sqlite3)
+#   and SKIP_SQLITE is unset.
 set -eu
 cd "$(dirname "$0")/.."
 export CGO_ENABLED=0
@@ -33,16 +34,18 @@ go build -o "$tmp/importdata" ./bench/importdata
 go version
 csv="$tmp/obs.csv"
 
-# timed LABEL CMD...: runs CMD, appends "LABEL seconds peak-KB" to $tmp/times.
+# timed LABEL CMD...: runs CMD, appends "LABEL seconds peak-KB cpu-seconds"
+# to $tmp/times. CPU is the command's own (user + system): on PostgreSQL
+# most of the work is the server's and is not in it.
 timed() {
 	label=$1
 	shift
-	if ! /usr/bin/time -f "$label %e %M" -o "$tmp/one" "$@" >"$tmp/out" 2>&1; then
+	if ! /usr/bin/time -f "$label %e %M %U %S" -o "$tmp/one" "$@" >"$tmp/out" 2>&1; then
 		cat "$tmp/out" "$tmp/one" >&2
 		exit 2
 	fi
 	cat "$tmp/one" >>"$tmp/times"
-	awk -v n="$rows" '{ printf "  %-10s %7.2f s  %9.0f rows/s  peak %6.0f MB\n", $1, $2, n / $2, $3 / 1024 }' "$tmp/one"
+	awk -v n="$rows" '{ printf "  %-10s %7.2f s  %9.0f rows/s  peak %6.0f MB  cpu %6.2f s\n", $1, $2, n / $2, $3 / 1024, $4 + $5 }' "$tmp/one"
 }
 
 # report A B TARGET: medians of both sides and of the per-run ratios A/B (rows/s).
@@ -52,13 +55,13 @@ report() {
 		for (i = 2; i <= k; i++) { x = v[i]; j = i - 1; while (j > 0 && v[j] > x) { v[j+1] = v[j]; j-- } v[j+1] = x }
 		return (k % 2) ? v[(k+1)/2] : (v[k/2] + v[k/2+1]) / 2
 	}
-	$1 == a { ta[++na] = $2; ma[na] = $3 }
-	$1 == b { tb[++nb] = $2 }
+	$1 == a { ta[++na] = $2; ma[na] = $3; ca[na] = $4 + $5 }
+	$1 == b { tb[++nb] = $2; cb[nb] = $4 + $5 }
 	END {
 		for (i = 1; i <= na; i++) r[i] = tb[i] / ta[i]
 		pa = median(ma, na) / 1024
-		printf "median %s: %.0f rows/s (peak %.0f MB)\nmedian %s: %.0f rows/s\nmedian ratio %s/%s rows/s over %d paired runs: %.2f (target >= %s)\n",
-			a, n / median(ta, na), pa, b, n / median(tb, nb), a, b, na, median(r, na), target
+		printf "median %s: %.0f rows/s (peak %.0f MB, cpu %.2f s)\nmedian %s: %.0f rows/s (cpu %.2f s)\nmedian ratio %s/%s rows/s over %d paired runs: %.2f (target >= %s)\n",
+			a, n / median(ta, na), pa, median(ca, na), b, n / median(tb, nb), median(cb, nb), a, b, na, median(r, na), target
 	}' "$tmp/times"
 }
 
