@@ -38,6 +38,13 @@ const MaxProblems = 100
 // another system may carry a name, record number or birth date, and
 // wardload keeps no patient identifiers, so such a file must be cut down
 // before import rather than silently trimmed.
+//
+// The file is read one row at a time and only the observations are kept,
+// not the cells (issue 12: keeping every cell took about 30 times the
+// file's size). Of several problems the one reported is the one a whole
+// read would meet first: a row that cannot be read as CSV, then the
+// header, then the first bad window_hours cell, then the first bad
+// care_minutes cell, then the first row with any other problem.
 func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
 	return ReadObservationsChecked(r, ward, tiers, shifts, nil)
 }
@@ -53,117 +60,169 @@ func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, 
 // lists them, for the command line.
 func ReadObservationsChecked(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern,
 	check func(*wardload.Observation) error) (obs []*wardload.Observation, lines []int, err error) {
-	t, err := Read(r)
+	s, err := NewStream(r)
 	if err != nil {
 		return nil, nil, err
 	}
-	allowed := ObservationHeader(ward)
-	for i, h := range t.Header {
-		if !slices.Contains(allowed, h) {
-			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
-				"line 1, column %d: column %q is not accepted. wardload stores no patient identifiers or free text, so a file may only have the columns %s. Remove the other columns and import again.",
-				i+1, clip(h, 40), strings.Join(allowed, ", "))
-		}
-	}
-	for _, c := range observationColumns {
-		if t.Index(c) < 0 {
-			return nil, nil, wardload.FieldErrorf(wardload.EINVALID, "file",
-				"line 1: the column %q is missing. The header must have %s.", c, strings.Join(allowed, ", "))
-		}
-	}
-	tierByCode := map[string]*wardload.Tier{}
-	for _, tr := range tiers {
-		tierByCode[tr.Code] = tr
-	}
-	shiftByName := map[string]*wardload.ShiftPattern{}
-	for _, sp := range shifts {
-		shiftByName[strings.ToLower(sp.Name)] = sp
-	}
-	dates, _ := t.Strings("date")
-	shiftNames, _ := t.Strings("shift")
-	tierCodes, _ := t.Strings("tier")
-
+	rd := newObservationReader(s.Header, ward, tiers, shifts)
 	var problems problemList
-	obs = make([]*wardload.Observation, len(t.Records))
-	for i := range t.Records {
-		line := t.Lines[i]
-		before := problems.n
-		cellErr := func(col, format string, args ...any) {
-			problems.add(wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...)))
+	for {
+		rec, line, err := s.Next()
+		if err == io.EOF {
+			break
+		} else if err != nil {
+			return nil, nil, err // a row that cannot be read as CSV
 		}
-		// Every cell of the row is read, so that one pass over the
-		// messages fixes the file.
-		d, derr := wardload.ParseDate(dates[i])
-		if derr != nil {
-			cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(dates[i], 40))
+		if rd.headerErr != nil {
+			continue // read on only for CSV errors, which come first
 		}
-		sp, ok := shiftByName[strings.ToLower(shiftNames[i])]
-		if !ok {
-			cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shiftNames[i], 40), shiftList(shifts))
+		if err := rd.add(rec, line, &problems, check); err != nil {
+			return nil, nil, err
 		}
-		tr, ok := tierByCode[tierCodes[i]]
-		if !ok {
-			cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tierCodes[i], 40), tierList(tiers))
-		}
-		window, werr := t.Float(i, "window_hours")
-		problems.add(werr)
-		care, cerr := t.Float(i, "care_minutes")
-		problems.add(cerr)
-		var factors map[string]float64
-		for _, f := range ward.FactorNames {
-			c := t.Index(f)
-			if c < 0 || strings.TrimSpace(t.Records[i][c]) == "" {
-				continue
-			}
-			// The package's number rules, so a factor reads exactly as
-			// the other numeric columns do.
-			v, err := t.Float(i, f)
-			if err != nil {
-				problems.add(err)
-				continue
-			}
-			if factors == nil {
-				factors = map[string]float64{}
-			}
-			factors[f] = v
-		}
-		if problems.n > before {
-			continue // the row's values are not all known
-		}
-		o := &wardload.Observation{WardID: ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
-			WindowHours: window, CareMinutes: care, Factors: factors}
-		if err := o.Validate(); err != nil {
-			for _, e := range wardload.ErrorFields(err) {
-				cellErr(fieldOr(e, "file"), "%s", wardload.ErrorMessage(e))
-			}
-			continue
-		}
-		// The model refuses an observation that scales past
-		// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
-		// values near the float64 limit overflow the review's sums; such a
-		// cell is an entry error, refused here rather than stored.
-		if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
-			cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
-				o.CareMinutes, o.WindowHours, stats.MaxShiftMinutes/maxRealShiftHours)
-			continue
-		}
-		if check != nil {
-			if err := check(o); err != nil {
-				if wardload.ErrorCode(err) != wardload.EINVALID {
-					return nil, nil, err
-				}
-				for _, e := range wardload.ErrorFields(err) {
-					cellErr(fieldOr(e, "file"), "%s", wardload.ErrorMessage(e))
-				}
-				continue
-			}
-		}
-		obs[i] = o
+	}
+	if rd.headerErr != nil {
+		return nil, nil, rd.headerErr
 	}
 	if err := problems.err(); err != nil {
 		return nil, nil, err
 	}
-	return obs, t.Lines, nil
+	return rd.obs, rd.lines, nil
+}
+
+// observationReader turns rows into observations; the problems go to the
+// caller's problemList.
+type observationReader struct {
+	ward              *wardload.Ward
+	tiers             []*wardload.Tier
+	shifts            []*wardload.ShiftPattern
+	tierByCode        map[string]*wardload.Tier
+	shiftByName       map[string]*wardload.ShiftPattern
+	date, shift, tier int
+	window, care      int
+	factors           []int // column of each of ward.FactorNames, or -1
+	headerErr         error
+	obs               []*wardload.Observation
+	lines             []int
+	slab              []wardload.Observation // observations are cut from here, a block at a time
+}
+
+func newObservationReader(header []string, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) *observationReader {
+	rd := &observationReader{ward: ward, tiers: tiers, shifts: shifts,
+		tierByCode: map[string]*wardload.Tier{}, shiftByName: map[string]*wardload.ShiftPattern{}}
+	allowed := ObservationHeader(ward)
+	for i, h := range header {
+		if !slices.Contains(allowed, h) {
+			rd.headerErr = wardload.FieldErrorf(wardload.EINVALID, "file",
+				"line 1, column %d: column %q is not accepted. wardload stores no patient identifiers or free text, so a file may only have the columns %s. Remove the other columns and import again.",
+				i+1, clip(h, 40), strings.Join(allowed, ", "))
+			return rd
+		}
+	}
+	for _, c := range observationColumns {
+		if !slices.Contains(header, c) {
+			rd.headerErr = wardload.FieldErrorf(wardload.EINVALID, "file",
+				"line 1: the column %q is missing. The header must have %s.", c, strings.Join(allowed, ", "))
+			return rd
+		}
+	}
+	for _, tr := range tiers {
+		rd.tierByCode[tr.Code] = tr
+	}
+	for _, sp := range shifts {
+		rd.shiftByName[strings.ToLower(sp.Name)] = sp
+	}
+	rd.date, rd.shift, rd.tier = slices.Index(header, "date"), slices.Index(header, "shift"), slices.Index(header, "tier")
+	rd.window, rd.care = slices.Index(header, "window_hours"), slices.Index(header, "care_minutes")
+	for _, f := range ward.FactorNames {
+		rd.factors = append(rd.factors, slices.Index(header, f))
+	}
+	return rd
+}
+
+// add reads one data row starting on file line line. Every cell is
+// read, so that one pass over the messages fixes the file; a row with a
+// problem adds it to problems and no observation. Only a non-EINVALID
+// error of check is returned.
+func (rd *observationReader) add(rec []string, line int, problems *problemList, check func(*wardload.Observation) error) error {
+	before := problems.n
+	cellErr := func(col, format string, args ...any) {
+		problems.add(wardload.FieldErrorf(wardload.EINVALID, col, "line %d, column %q: %s", line, col, fmt.Sprintf(format, args...)))
+	}
+	date, shift, tier := strings.TrimSpace(rec[rd.date]), strings.TrimSpace(rec[rd.shift]), strings.TrimSpace(rec[rd.tier])
+	d, derr := wardload.ParseDate(date)
+	if derr != nil {
+		cellErr("date", "%q is not a date; use YYYY-MM-DD, e.g. 2026-03-02.", clip(date, 40))
+	}
+	sp, ok := rd.shiftByName[strings.ToLower(shift)]
+	if !ok {
+		cellErr("shift", "%q is not a shift pattern of this ward (%s).", clip(shift, 40), shiftList(rd.shifts))
+	}
+	tr, ok := rd.tierByCode[tier]
+	if !ok {
+		cellErr("tier", "%q is not a tier code of this ward (%s).", clip(tier, 40), tierList(rd.tiers))
+	}
+	window, werr := parseCell(line, "window_hours", rec[rd.window])
+	problems.add(werr)
+	care, cerr := parseCell(line, "care_minutes", rec[rd.care])
+	problems.add(cerr)
+	var factors map[string]float64
+	for k, f := range rd.ward.FactorNames {
+		c := rd.factors[k]
+		if c < 0 || strings.TrimSpace(rec[c]) == "" {
+			continue
+		}
+		// The package's number rules, so a factor reads exactly as
+		// the other numeric columns do.
+		v, err := parseCell(line, f, rec[c])
+		if err != nil {
+			problems.add(err)
+			continue
+		}
+		if factors == nil {
+			factors = map[string]float64{}
+		}
+		factors[f] = v
+	}
+	if problems.n > before {
+		return nil // the row's values are not all known
+	}
+	if len(rd.slab) == cap(rd.slab) {
+		rd.slab = make([]wardload.Observation, 0, 4096)
+	}
+	rd.slab = append(rd.slab, wardload.Observation{WardID: rd.ward.ID, TierID: tr.ID, ShiftID: sp.ID, Date: d,
+		WindowHours: window, CareMinutes: care, Factors: factors})
+	o := &rd.slab[len(rd.slab)-1]
+	if err := o.Validate(); err != nil {
+		for _, e := range wardload.ErrorFields(err) {
+			cellErr(fieldOr(e, "file"), "%s", wardload.ErrorMessage(e))
+		}
+		return nil
+	}
+	// The model refuses an observation that scales past
+	// stats.MaxShiftMinutes for its shift (at most 25 real hours), and
+	// values near the float64 limit overflow the review's sums; such a
+	// cell is an entry error, refused here rather than stored.
+	if !(o.CareMinutes/o.WindowHours*maxRealShiftHours <= stats.MaxShiftMinutes) {
+		cellErr("care_minutes", "%g minutes in %g hours is more than wardload can use (at most %g minutes per hour of the window); check the minutes and the window.",
+			o.CareMinutes, o.WindowHours, stats.MaxShiftMinutes/maxRealShiftHours)
+		return nil
+	}
+	if check != nil {
+		if err := check(o); err != nil {
+			if wardload.ErrorCode(err) != wardload.EINVALID {
+				return err
+			}
+			for _, e := range wardload.ErrorFields(err) {
+				cellErr(fieldOr(e, "file"), "%s", wardload.ErrorMessage(e))
+			}
+			return nil
+		}
+	}
+	if problems.n == 0 {
+		rd.obs = append(rd.obs, o)
+		rd.lines = append(rd.lines, line)
+	}
+	return nil
 }
 
 // problemList gathers the problems of an import: the first MaxProblems

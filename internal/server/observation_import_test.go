@@ -186,4 +186,10 @@ func TestImportFormPage(t *testing.T) {
 	if !strings.Contains(body, `enctype="multipart/form-data"`) || !strings.Contains(body, "dependency_score") {
 		t.Error("form is not multipart or lacks the ward's factor column")
 	}
+	// The page states the web limit the route enforces and the way in
+	// for larger files.
+	if !strings.Contains(body, "(at most "+byteSize(maxImportBytes)+")") || len(byTestID(t, body, "import-limit")) != 1 ||
+		!strings.Contains(body, "wardload observations import --ward") {
+		t.Error("the page does not state the size limit and the command-line import for larger files")
+	}
 }

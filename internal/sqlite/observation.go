@@ -19,34 +19,12 @@ func (s *Store) CreateObservations(ctx context.Context, obs []*wardload.Observat
 		if err := im.CheckRefs(func(id int64) (*wardload.WardRefs, error) { return loadWardRefs(ctx, tx, id) }); err != nil {
 			return err
 		}
-		for _, o := range obs {
-			if err := insertObservation(ctx, tx, o, im.BatchID()); err != nil {
-				return err
-			}
+		if err := insertObservations(ctx, tx, obs, im.BatchID()); err != nil {
+			return err
 		}
 		im.Stored(tx.now)
 		return tx.audit(wardload.ActionObservationImport, nil, im)
 	}))
-}
-
-// insertObservation stores o and its factors and sets its ID.
-func insertObservation(ctx context.Context, tx *Tx, o *wardload.Observation, batch string) error {
-	res, err := tx.ExecContext(ctx, `INSERT INTO observations
-		(ward_id, tier_id, date, shift_id, window_hours, care_minutes, entered_by, entered_at, batch_id)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-		o.WardID, o.TierID, o.Date.String(), o.ShiftID, o.WindowHours, o.CareMinutes, o.EnteredBy, formatTime(tx.now), batch)
-	if err != nil {
-		return err
-	}
-	if o.ID, err = res.LastInsertId(); err != nil {
-		return err
-	}
-	for k, v := range o.Factors {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO observation_factors (observation_id, name, value) VALUES (?, ?, ?)`, o.ID, k, v); err != nil {
-			return err
-		}
-	}
-	return nil
 }
 
 // FindObservationByID returns ENOTFOUND if there is no such observation.

@@ -12,6 +12,7 @@ import (
 	"net/url"
 	"os"
 	"runtime"
+	"slices"
 	"time"
 
 	"github.com/pressly/goose/v3"
@@ -78,7 +79,12 @@ func Open(ctx context.Context, cfg Config) (*Store, error) {
 			return nil, fmt.Errorf("sqlite: create %s: %w", cfg.Path, err)
 		}
 		q.Add("_pragma", "journal_mode(WAL)")
-		wq := url.Values{"_pragma": q["_pragma"], "_txlock": {"immediate"}}
+		// The writer keeps its statement journals in memory: a statement
+		// that writes many rows (an import's bulk INSERT) journals the
+		// pages it changes so that it can be undone alone, and writing that
+		// journal to a temporary file took a third of an import's time.
+		// It holds one statement's pages, a few hundred kilobytes.
+		wq := url.Values{"_pragma": append(slices.Clone(q["_pragma"]), "temp_store(MEMORY)"), "_txlock": {"immediate"}}
 		w, err := sql.Open("sqlite", cfg.Path+"?"+wq.Encode())
 		if err != nil {
 			return nil, fmt.Errorf("sqlite: open %s: %w", cfg.Path, err)

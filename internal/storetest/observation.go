@@ -249,6 +249,59 @@ func importCases() []testCase {
 				}
 			}
 		}},
+		{"Observation/LargeImportKeepsRowOrderAndFactors", func(t *testing.T, f *fixture) {
+			// More rows than one bulk statement carries, two wards
+			// interleaved, factors on some rows: the stores write in bulk
+			// and must still give IDs in row order and keep every factor.
+			w1, w2 := f.seedWard("w1"), f.seedWard("w2")
+			first := w1.obs(date(2026, 3, 1), 5)
+			_, err := f.store.CreateObservations(f.ctx, []*wardload.Observation{first})
+			noErr(t, err)
+			const n = 1234
+			os := make([]*wardload.Observation, n)
+			for i := range os {
+				sw := w1
+				if i%5 == 0 {
+					sw = w2
+				}
+				os[i] = sw.obs(date(2026, 3, 1+i%28), float64(i))
+				if i%3 == 0 {
+					os[i].Factors = map[string]float64{"dependency": float64(i) / 4}
+				}
+			}
+			batch, err := f.store.CreateObservations(f.ctx, os)
+			noErr(t, err)
+			for i, o := range os {
+				if o.ID <= first.ID || i > 0 && o.ID <= os[i-1].ID || o.BatchID != batch {
+					t.Fatalf("row %d: ID %d after %d (first batch %d), batch %q", i+1, o.ID, os[max(i-1, 0)].ID, first.ID, o.BatchID)
+				}
+			}
+			got, total, err := f.store.FindObservations(f.ctx, wardload.ObservationFilter{BatchID: &batch})
+			noErr(t, err)
+			if total != n || len(got) != n {
+				t.Fatalf("batch holds %d rows (%d), want %d", total, len(got), n)
+			}
+			byID := map[int64]*wardload.Observation{}
+			for _, o := range got {
+				byID[o.ID] = o
+			}
+			for i, o := range os {
+				g := byID[o.ID]
+				if g == nil || g.WardID != o.WardID || g.CareMinutes != float64(i) || g.Date != o.Date || len(g.Factors) != len(o.Factors) ||
+					o.Factors != nil && g.Factors["dependency"] != o.Factors["dependency"] {
+					t.Fatalf("row %d stored as %+v, want %+v", i+1, g, o)
+				}
+			}
+			if n := f.auditCount("observation.import"); n != 3 {
+				t.Fatalf("%d import audit rows, want 1 for the first batch and 1 per ward for the second", n)
+			}
+			after := w2.obs(date(2026, 3, 1), 1)
+			_, err = f.store.CreateObservations(f.ctx, []*wardload.Observation{after})
+			noErr(t, err)
+			if after.ID <= os[n-1].ID {
+				t.Fatalf("next import got ID %d, not after %d", after.ID, os[n-1].ID)
+			}
+		}},
 		{"Observation/ImportOfTwoWardsAuditsEachWard", func(t *testing.T, f *fixture) {
 			w1, w2 := f.seedWard("w1"), f.seedWard("w2")
 			d := date(2026, 3, 2)

@@ -1,6 +1,7 @@
 package wardload
 
 import (
+	"cmp"
 	"fmt"
 	"time"
 )
@@ -30,8 +31,17 @@ func DateOf(t time.Time) Date {
 	return Date{y, m, d}
 }
 
-// String formats the date as YYYY-MM-DD.
-func (d Date) String() string { return fmt.Sprintf("%04d-%02d-%02d", d.Year, d.Month, d.Day) }
+// String formats the date as YYYY-MM-DD. Imports format a date per row,
+// so the usual case is written by hand rather than through fmt.
+func (d Date) String() string {
+	if d.Year < 0 || d.Year > 9999 || d.Month < 0 || d.Month > 99 || d.Day < 0 || d.Day > 99 {
+		return fmt.Sprintf("%04d-%02d-%02d", d.Year, d.Month, d.Day)
+	}
+	m, day := int(d.Month), d.Day
+	b := [10]byte{byte('0' + d.Year/1000), byte('0' + d.Year/100%10), byte('0' + d.Year/10%10), byte('0' + d.Year%10), '-',
+		byte('0' + m/10), byte('0' + m%10), '-', byte('0' + day/10), byte('0' + day%10)}
+	return string(b[:])
+}
 
 // IsZero reports whether d is the zero Date.
 func (d Date) IsZero() bool { return d == Date{} }
@@ -47,7 +57,20 @@ func (d Date) AddDays(n int) Date {
 }
 
 // Before reports whether d is before o.
-func (d Date) Before(o Date) bool { return d.String() < o.String() }
+func (d Date) Before(o Date) bool { return d.compare(o) < 0 }
 
 // After reports whether d is after o.
-func (d Date) After(o Date) bool { return d.String() > o.String() }
+func (d Date) After(o Date) bool { return d.compare(o) > 0 }
+
+// compare orders by year, month and day: for years 0–9999 the order of
+// the YYYY-MM-DD texts, without formatting them (imports compare a date
+// per row).
+func (d Date) compare(o Date) int {
+	switch {
+	case d.Year != o.Year:
+		return cmp.Compare(d.Year, o.Year)
+	case d.Month != o.Month:
+		return cmp.Compare(d.Month, o.Month)
+	}
+	return cmp.Compare(d.Day, o.Day)
+}
