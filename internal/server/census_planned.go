@@ -20,20 +20,11 @@ const (
 // is "not entered" (nil). The bounds against beds and census are the
 // domain's; here only the form is read.
 func parsePlannedCount(v string) (*int, string) {
-	v = strings.TrimSpace(v)
-	switch {
-	case v == "":
-		return nil, ""
-	case strings.HasPrefix(v, "-"):
-		return nil, "Counted from 0; the number cannot be negative."
-	case strings.Trim(v, "0123456789") != "":
-		return nil, "Enter a whole number, such as 2."
-	}
-	n, err := strconv.Atoi(v)
-	if err != nil || n > wardload.MaxShiftMovements {
-		return nil, "That number is not plausible for one shift; please check it."
-	}
-	return &n, ""
+	return parseOptionalCount(v, wardload.MaxShiftMovements, countText{
+		negative:    "Counted from 0; the number cannot be negative.",
+		example:     "Enter a whole number, such as 2.",
+		implausible: "That number is not plausible for one shift; please check it.",
+	})
 }
 
 // parsePlannedForm reads the optional planned admissions and discharges

@@ -21,18 +21,31 @@ const (
 // ShiftRecord.Validate); here only the form is read, with a message that
 // says what to type.
 func parseStaffCount(v string) (*int, string) {
+	return parseOptionalCount(v, wardload.MaxStaffOnDuty, countText{
+		negative:    "Staff are counted from 0; the number cannot be negative.",
+		example:     "Enter a whole number, such as 6.",
+		implausible: "That number is not plausible for one ward; please check it.",
+	})
+}
+
+// countText is what the messages of one optional count say.
+type countText struct{ negative, example, implausible string }
+
+// parseOptionalCount reads an optional whole number of at most limit:
+// empty is "not entered" (nil); otherwise the number or t's message.
+func parseOptionalCount(v string, limit int, t countText) (*int, string) {
 	v = strings.TrimSpace(v)
 	switch {
 	case v == "":
 		return nil, ""
 	case strings.HasPrefix(v, "-"):
-		return nil, "Staff are counted from 0; the number cannot be negative."
+		return nil, t.negative
 	case strings.Trim(v, "0123456789") != "":
-		return nil, "Enter a whole number, such as 6."
+		return nil, t.example
 	}
 	n, err := strconv.Atoi(v)
-	if err != nil || n > wardload.MaxStaffOnDuty {
-		return nil, "That number is not plausible for one ward; please check it."
+	if err != nil || n > limit {
+		return nil, t.implausible
 	}
 	return &n, ""
 }

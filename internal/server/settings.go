@@ -253,3 +253,23 @@ func fieldOr(err error, def string) string {
 	}
 	return def
 }
+
+// shift returns the ward's shift pattern id, ENOTFOUND if it has none.
+func (d *settingsData) shift(id int64) (*wardload.ShiftPattern, error) {
+	for _, p := range d.shifts {
+		if p.ID == id {
+			return p, nil
+		}
+	}
+	return nil, wardload.Errorf(wardload.ENOTFOUND, "This ward has no such shift pattern.")
+}
+
+// tier returns the ward's tier id, ENOTFOUND if it has none.
+func (d *settingsData) tier(id int64) (*wardload.Tier, error) {
+	for _, t := range d.tiers {
+		if t.ID == id {
+			return t, nil
+		}
+	}
+	return nil, wardload.Errorf(wardload.ENOTFOUND, "This ward has no such tier.")
+}

@@ -99,14 +99,9 @@ func (s *Server) handleShiftUpdate(w http.ResponseWriter, r *http.Request) error
 	if err != nil {
 		return err
 	}
-	var cur *wardload.ShiftPattern
-	for _, p := range d.shifts {
-		if p.ID == id {
-			cur = p
-		}
-	}
-	if cur == nil {
-		return wardload.Errorf(wardload.ENOTFOUND, "This ward has no such shift pattern.")
+	cur, err := d.shift(id)
+	if err != nil {
+		return err
 	}
 	idText := strconv.FormatInt(id, 10)
 	form, name, start, hours := shiftInput(r)

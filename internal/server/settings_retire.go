@@ -40,14 +40,9 @@ func (s *Server) shiftRetired(w http.ResponseWriter, r *http.Request, retired bo
 	if err != nil {
 		return err
 	}
-	var cur *wardload.ShiftPattern
-	for _, p := range d.shifts {
-		if p.ID == id {
-			cur = p
-		}
-	}
-	if cur == nil {
-		return wardload.Errorf(wardload.ENOTFOUND, "This ward has no such shift pattern.")
+	cur, err := d.shift(id)
+	if err != nil {
+		return err
 	}
 	_, err = s.store.UpdateShiftPattern(r.Context(), id, wardload.ShiftPatternUpdate{Retired: &retired})
 	if wardload.ErrorCode(err) == wardload.EINVALID {
@@ -84,14 +79,9 @@ func (s *Server) tierRetired(w http.ResponseWriter, r *http.Request, retired boo
 	if err != nil {
 		return err
 	}
-	var cur *wardload.Tier
-	for _, t := range d.tiers {
-		if t.ID == id {
-			cur = t
-		}
-	}
-	if cur == nil {
-		return wardload.Errorf(wardload.ENOTFOUND, "This ward has no such tier.")
+	cur, err := d.tier(id)
+	if err != nil {
+		return err
 	}
 	_, err = s.store.UpdateTier(r.Context(), id, wardload.TierUpdate{Retired: &retired})
 	if wardload.ErrorCode(err) == wardload.EINVALID {

@@ -100,14 +100,9 @@ func (s *Server) handleTierUpdate(w http.ResponseWriter, r *http.Request) error 
 	if err != nil {
 		return err
 	}
-	var cur *wardload.Tier
-	for _, t := range d.tiers {
-		if t.ID == id {
-			cur = t
-		}
-	}
-	if cur == nil {
-		return wardload.Errorf(wardload.ENOTFOUND, "This ward has no such tier.")
+	cur, err := d.tier(id)
+	if err != nil {
+		return err
 	}
 	idText := strconv.FormatInt(id, 10)
 	form, order := tierInput(r, d, false)

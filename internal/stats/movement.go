@@ -352,17 +352,7 @@ func (f *careFit) drawTotalMoving(r *rand.Rand, m *movementFit, leave, arrive []
 		mu, s2 := f.tierLocation(r, t, p)
 		mu += b
 		s := math.Sqrt(s2)
-		stay := t.patients - leave[k]
-		if stay < f.fwFrom {
-			for range stay {
-				total += max(0, math.Exp(mu+s*r.NormFloat64())-t.offset)
-			}
-		} else {
-			n := float64(stay)
-			v := math.Log1p(math.Expm1(s2) / n)
-			loc := math.Log(n) + mu + s2/2 - v/2
-			total += max(0, math.Exp(loc+math.Sqrt(v)*r.NormFloat64())-n*t.offset)
-		}
+		total = f.tierSum(r, total, t.patients-leave[k], mu, s2, t.offset)
 		for range leave[k] {
 			c, u := max(0, math.Exp(mu+s*r.NormFloat64())-t.offset), r.Float64()
 			total += u * c

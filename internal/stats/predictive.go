@@ -125,21 +125,30 @@ func (f *careFit) drawTotal(r *rand.Rand) float64 {
 		}
 		mu, s2 := f.tierLocation(r, t, p)
 		mu += b
-		s := math.Sqrt(s2)
-		if t.patients < f.fwFrom {
-			for range t.patients {
-				total += max(0, math.Exp(mu+s*r.NormFloat64())-t.offset)
-			}
-			continue
-		}
-		// Fenton–Wilkinson: Σ of n lognormal(mu, s²) ≈ lognormal with the
-		// same mean n·e^{mu+s²/2} and variance n·(e^{s²}−1)·e^{2mu+s²}.
-		n := float64(t.patients)
-		v := math.Log1p(math.Expm1(s2) / n)
-		loc := math.Log(n) + mu + s2/2 - v/2
-		total += max(0, math.Exp(loc+math.Sqrt(v)*r.NormFloat64())-n*t.offset)
+		total = f.tierSum(r, total, t.patients, mu, s2, t.offset)
 	}
 	return total
+}
+
+// tierSum adds to total the care minutes of n patients of one tier whose
+// log minutes (plus offset) are normal(mu, s2) in this draw, one patient
+// at a time onto the running total (so that every sum rounds as it
+// always has: stored projections recompute to the bit): patient by
+// patient below fwFrom, else by Fenton–Wilkinson: Σ of n lognormal(mu,
+// s²) ≈ lognormal with the same mean n·e^{mu+s²/2} and variance
+// n·(e^{s²}−1)·e^{2mu+s²}.
+func (f *careFit) tierSum(r *rand.Rand, total float64, n int, mu, s2, offset float64) float64 {
+	if n < f.fwFrom {
+		s := math.Sqrt(s2)
+		for range n {
+			total += max(0, math.Exp(mu+s*r.NormFloat64())-offset)
+		}
+		return total
+	}
+	nf := float64(n)
+	v := math.Log1p(math.Expm1(s2) / nf)
+	loc := math.Log(nf) + mu + s2/2 - v/2
+	return total + max(0, math.Exp(loc+math.Sqrt(v)*r.NormFloat64())-nf*offset)
 }
 
 // chiSquare draws χ²_ν = 2·Gamma(ν/2).

@@ -339,17 +339,7 @@ func project(in ProjectionInput, spec modelSpec) (*Projection, error) {
 	care := ceilNurses(covU)
 	head := care + inCharge
 	n.CareGiving, n.Cover = &care, &head
-	rec := head
-	n.Recommended, n.DecidedBy = &rec, DecidedByCover
-	if n.Floor != nil {
-		switch {
-		case *n.Floor > head:
-			rec = *n.Floor
-			n.DecidedBy = DecidedByFloor
-		case *n.Floor == head:
-			n.DecidedBy = DecidedByBoth
-		}
-	}
+	rec := recommend(n, head)
 
 	from, to := in.NursesFrom, in.NursesTo
 	if from == 0 && to == 0 {

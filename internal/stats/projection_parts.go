@@ -154,3 +154,22 @@ func floorNurses(f *FloorSpec, tiers []TierSample) int {
 	}
 	return n
 }
+
+// recommend sets the recommended headcount: the larger of the cover
+// headcount head and n.Floor (when set), with which of them decided it
+// (both when they are equal). It returns the recommendation.
+func recommend(n *Nurses, head int) int {
+	rec := head
+	n.DecidedBy = DecidedByCover
+	if n.Floor != nil {
+		switch {
+		case *n.Floor > head:
+			rec = *n.Floor
+			n.DecidedBy = DecidedByFloor
+		case *n.Floor == head:
+			n.DecidedBy = DecidedByBoth
+		}
+	}
+	n.Recommended = &rec
+	return rec
+}

@@ -261,18 +261,9 @@ func workloadShift(care ProjectionInput, codes []string, counts [][]int32, date 
 	}
 	careGiving := ceilNurses(coverMin / perNurse)
 	head := careGiving + inCharge
-	rec := head
 	n := &ws.Nurses
-	n.CareGiving, n.Cover, n.Recommended, n.DecidedBy = &careGiving, &head, &rec, DecidedByCover
-	if n.Floor != nil {
-		switch {
-		case *n.Floor > head:
-			rec = *n.Floor
-			n.DecidedBy = DecidedByFloor
-		case *n.Floor == head:
-			n.DecidedBy = DecidedByBoth
-		}
-	}
+	n.CareGiving, n.Cover = &careGiving, &head
+	rec := recommend(n, head)
 	above := countAbove(totals, []float64{float64(max(0, rec-inCharge)) * perNurse})
 	ws.ShortfallText = ProbabilityText(above[0], draws)
 	return ws, nil
