@@ -156,6 +156,7 @@ type ProjectionListVM struct {
 	CSVURL    string
 	JSONURL   string
 	CensusURL string
+	ReportURL string // planned and worked against needed; "" for charge nurses
 }
 
 // ProjectionRowVM is one dated shift in the shift list.

@@ -95,6 +95,7 @@ var routeExpectations = map[string][]string{
 	"projections":      {pNurseA, pManagerA, pAdmin, pStaffA},
 	"projection":       {pNurseA, pManagerA, pAdmin, pStaffA},
 	"projections.csv":  wardAReaders,
+	"staffing_report":  wardAReaders,
 	"projections.json": wardAReaders,
 	// End-of-shift record (shift_record_test.go): every member of ward A
 	// who works on it.

@@ -117,6 +117,7 @@ func (s *Server) handleProjections(w http.ResponseWriter, r *http.Request) error
 	if u := principalFrom(r.Context()).User; u != nil && u.Role != wardload.RoleChargeNurse {
 		qs := "?from=" + from.String() + "&to=" + to.String()
 		vm.CSVURL, vm.JSONURL = projectionsURL(ward)+".csv"+qs, projectionsURL(ward)+".json"+qs
+		vm.ReportURL = staffingReportURL(ward)
 	}
 	return s.render(w, r, http.StatusOK, web.ProjectionListPage(s.layout(r, "Shift projections"), vm))
 }

@@ -149,6 +149,7 @@ func (s *Server) routeTable() []Route {
 		{Method: http.MethodPost, Pattern: "/wards/{ward}/staffing", Name: "staffing.save", Access: Access{Roles: wardStaff, WardScoped: true}, Handler: s.handleStaffingSave, MaxBodyBytes: 8 << 10},
 		{Method: http.MethodPut, Pattern: "/api/v1/wards/{ward}/shifts/{date}/{shift}/staffing", Name: "api.staffing.put", Access: Access{API: true, WardScoped: true, WriteStaffing: true}, Handler: s.handleAPIStaffingPut, MaxBodyBytes: 8 << 10},
 		{Method: http.MethodGet, Pattern: "/board", Name: "board", Access: signedIn, Handler: s.handleBoard},
+		{Method: http.MethodGet, Pattern: "/wards/{ward}/staffing-report", Name: "staffing_report", Access: Access{Roles: readers, WardScoped: true}, Handler: s.handleStaffingReport},
 		{Method: http.MethodGet, Pattern: "/board.csv", Name: "board.csv", Access: Access{Roles: readers}, Handler: s.handleBoardCSV},
 		{Method: http.MethodGet, Pattern: "/board.json", Name: "board.json", Access: Access{Roles: readers}, Handler: s.handleBoardJSON},
 		{Method: http.MethodGet, Pattern: "/api/v1/board", Name: "api.board", Access: api, Handler: s.handleAPIBoard},
