@@ -18,7 +18,9 @@ type apiWard struct {
 // handleAPIWards lists the wards the request's token may read, by code.
 func (s *Server) handleAPIWards(w http.ResponseWriter, r *http.Request) error {
 	t := principalFrom(r.Context()).Token
-	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
+	// Retired wards are left out: nothing new is planned for them; their
+	// projections stay readable by code.
+	ws, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{ActiveOnly: true})
 	if err != nil {
 		return fmt.Errorf("api wards: %w", err)
 	}
