@@ -13,8 +13,10 @@ set -eu
 cd "$(dirname "$0")/.."
 export CGO_ENABLED=0
 count="${1:-5}"
-go test -c -o /tmp/wardload-review.test ./internal/server/ >/dev/null
-out=$(cd internal/server && /tmp/wardload-review.test -test.run '^$' -test.bench '^BenchmarkReviewPage$' \
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+go test -c -o "$tmp/review.test" ./internal/server/ >/dev/null
+out=$(cd internal/server && "$tmp/review.test" -test.run '^$' -test.bench '^BenchmarkReviewPage$' \
 	-test.benchtime 5x -test.count "$count" 2>&1 && echo cpu-times && times) || {
 	echo "$out"
 	exit 2

@@ -17,7 +17,6 @@ type BoardRowVM struct {
 	Date, Shift    string
 	Window         string // local start–end with the zone
 	Status         string // the census state in words ("no census yet")
-	NoCensus       bool
 	Patients       string
 	Recommended    string
 	Floor          string
@@ -46,7 +45,7 @@ type StaffingVM struct {
 // StaffingRowVM is one dated shift with its plan.
 type StaffingRowVM struct {
 	Date, ShiftID, Shift, Window string
-	Nurses, Support              string // "" when not planned
+	Nurses                       string // "" when not planned
 	UpdatedAt                    string
 	Recommended                  string // the newest projection's, or "–"
 	Invalid                      bool   // the failed save was this row

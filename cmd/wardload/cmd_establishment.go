@@ -4,7 +4,6 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -52,10 +51,7 @@ func runEstablishment(ctx context.Context, e *env, args []string) int {
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
-	usageErr := func(format string, args ...any) int {
-		fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, args...))
-		return exitUsage
-	}
+	usageErr := func(format string, args ...any) int { return usageError(e, name, format, args...) }
 	if fs.NArg() != 0 {
 		return usageErr("takes no arguments (see --help)")
 	}
@@ -63,8 +59,7 @@ func runEstablishment(ctx context.Context, e *env, args []string) int {
 	if err != nil {
 		return usageErr("%v", err)
 	}
-	set := map[string]bool{}
-	fs.Visit(func(f *flag.Flag) { set[f.Name] = true })
+	set := flagsSet(fs)
 	for _, f := range []string{"fte-hours", "headroom"} {
 		if !set[f] {
 			return usageErr("--%s is required: it is the hospital's own figure (see --help)", f)
@@ -102,9 +97,7 @@ func runEstablishment(ctx context.Context, e *env, args []string) int {
 	floors := map[string][]string{}
 	for _, code := range codes {
 		w, rules, err := establishmentWard(ctx, st, code, from, end, *weeks, *basis)
-		if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-			return usageErr("no ward with code %q (see wardload ward list)", code)
-		} else if err != nil {
+		if err != nil {
 			return reportError(e, name, err)
 		}
 		wards = append(wards, w)
@@ -133,7 +126,7 @@ func runEstablishment(ctx context.Context, e *env, args []string) int {
 // shift from `from` to `end` as hours of the basis, and the ratio floors
 // those projections used.
 func establishmentWard(ctx context.Context, st wardload.Store, code string, from, end wardload.Date, weeks int, basis string) (establishment.Ward, []string, error) {
-	ward, err := st.FindWardByCode(ctx, code)
+	ward, err := findWard(ctx, st, code)
 	if err != nil {
 		return establishment.Ward{}, nil, err
 	}

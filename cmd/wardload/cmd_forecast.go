@@ -5,7 +5,6 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"io"
 	"strconv"
@@ -87,8 +86,7 @@ func runForecast(ctx context.Context, e *env, args []string) int {
 		fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, a...))
 		return exitUsage
 	}
-	set := map[string]bool{}
-	fs.Visit(func(f *flag.Flag) { set[f.Name] = true })
+	set := flagsSet(fs)
 	if *wardCode != "" {
 		if len(files) != 0 {
 			return usage("give a CENSUS.csv or --ward, not both")
@@ -100,15 +98,15 @@ func runForecast(ctx context.Context, e *env, args []string) int {
 		}
 	}
 	switch {
+	case *asJSON && *asCSV:
+		return usage("give --json or --csv, not both")
+	case set["weeks"] && (*weeks < 1 || *weeks > stats.MaxForecastWeeks):
+		return usage("--weeks: the horizon must be from 1 to %d weeks.", stats.MaxForecastWeeks)
 	case *wardCode != "":
 	case len(files) != 1:
 		return usage("give exactly one CENSUS.csv, or --ward CODE (see wardload forecast --help)")
 	case !set["beds"]:
 		return usage("--beds is required: the tiers' total census cannot exceed the ward's beds")
-	case *asJSON && *asCSV:
-		return usage("give --json or --csv, not both")
-	case set["weeks"] && (*weeks < 1 || *weeks > stats.MaxForecastWeeks):
-		return usage("--weeks: the horizon must be from 1 to %d weeks.", stats.MaxForecastWeeks)
 	}
 	fam := stats.FamilyQuasiPoisson
 	switch *family {

@@ -22,36 +22,14 @@ func runWardForecast(ctx context.Context, e *env, so *storeOptions, code, from s
 		return exitFailure
 	}
 	defer st.Close()
-	ward, err := st.FindWardByCode(ctx, code)
-	if wardload.ErrorCode(err) == wardload.ENOTFOUND {
-		fmt.Fprintf(e.stderr, "wardload %s: no ward with code %q (see wardload ward list)\n", name, clip(code))
-		return exitUsage
-	} else if err != nil {
-		return reportError(e, name, err)
-	}
-	loc, err := ward.Location()
+	ward, err := findWard(ctx, st, code)
 	if err != nil {
 		return reportError(e, name, err)
 	}
-	svc := &projector.Service{Store: st}
-	start := wardload.DateOf(e.clock().In(loc)).AddDays(1)
+	svc := &projector.Service{Store: st, Now: e.clock}
+	var start wardload.Date // zero: the day after the newest census
 	if from != "" {
 		start, _ = wardload.ParseDate(from)
-	} else {
-		// The day after the newest census: read the history up to
-		// tomorrow and start after its last date.
-		probe, err := svc.ForecastInput(ctx, ward.ID, start, weeks, draws, seed)
-		if err != nil {
-			return reportError(e, name, err)
-		}
-		newest := ""
-		for _, c := range probe.Input.Census.History {
-			newest = max(newest, c.Date)
-		}
-		if newest != "" {
-			d, _ := wardload.ParseDate(newest)
-			start = d.AddDays(1)
-		}
 	}
 	wf, err := svc.ForecastInput(ctx, ward.ID, start, weeks, draws, seed)
 	if err != nil {
@@ -60,7 +38,7 @@ func runWardForecast(ctx context.Context, e *env, so *storeOptions, code, from s
 	wf.Input.Census.Family = fam
 	if len(wf.Input.Census.History) == 0 {
 		fmt.Fprintf(e.stderr, "wardload %s: ward %s has no census in the %d weeks before %s; a forecast needs at least %d dated days of census.\n",
-			name, ward.Code, projector.ForecastHistoryWeeks, start, stats.MinCensusHistoryDays)
+			name, ward.Code, projector.ForecastHistoryWeeks, wf.Input.Census.From, stats.MinCensusHistoryDays)
 		return exitUsage
 	}
 	res, err := stats.ForecastWorkload(wf.Input)
@@ -99,10 +77,4 @@ func writeWardWorkload(out io.Writer, res *stats.WorkloadForecast, wf *projector
 		floor = fmt.Sprintf("Ratio floors used (the ward's settings): %s; applied to the census at its %s point.", strings.Join(parts, "; "), levelText(res.Cover))
 	}
 	return writeWorkload(out, res, "the ward's census", "its observations", floor, false, wf.Settings.DirectCareFraction)
-}
-
-// usageError prints a usage error of command name and returns exitUsage.
-func usageError(e *env, name, format string, a ...any) int {
-	fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, a...))
-	return exitUsage
 }

@@ -47,7 +47,9 @@ func TestForecastWardCommand(t *testing.T) {
 	}
 	// The two demos are seeded at different moments; where their history
 	// ends on the same day they must agree exactly.
-	if pg.Census.HistoryTo == lite.Census.HistoryTo {
+	if pg.Census.HistoryTo != lite.Census.HistoryTo {
+		t.Logf("not compared: the demos' census ends on %s (SQLite) and %s (PostgreSQL), seeded either side of midnight", lite.Census.HistoryTo, pg.Census.HistoryTo)
+	} else {
 		for i := range lite.Shifts {
 			a, b := lite.Shifts[i], pg.Shifts[i]
 			if a.CoverMinutes != b.CoverMinutes || *a.Nurses.Recommended != *b.Nurses.Recommended {
@@ -67,7 +69,8 @@ func TestForecastWardCommandRefuses(t *testing.T) {
 		{[]string{"--ward", demo.WardCode, "--beds", "20"}, "--beds is for files"},
 		{[]string{"--ward", demo.WardCode, "--observations", "x.csv"}, "--observations is for files"},
 		{[]string{"--ward", demo.WardCode, "census.csv"}, "not both"},
-		{[]string{"--ward", demo.WardCode, "--weeks", "14"}, "--weeks"},
+		{[]string{"--ward", demo.WardCode, "--weeks", "14"}, "--weeks: the horizon must be from 1 to 13 weeks"},
+		{[]string{"--ward", demo.WardCode, "--json", "--csv"}, "give --json or --csv, not both"},
 		{[]string{"--ward", demo.WardCode, "--from", "2020-01-01"}, "no census in the 52 weeks before 2020-01-01"},
 	} {
 		code, out, errs := runStdin(t, "", append(append([]string{"forecast"}, tc.args...), "--data-dir", dir)...)

@@ -167,36 +167,30 @@ func writeWorkloadCSV(out io.Writer, wf *stats.WorkloadForecast, wflags workload
 		w.Write([]string{s.Date, s.Weekday, s.Shift, strconv.Itoa(s.Horizon), strconv.Itoa(s.Census.Median),
 			strconv.FormatBool(s.DataSufficient), num(s.MedianMinutes, 1), num(s.CoverMinutes, 1), num(s.NurseHoursCover, 1),
 			opt(s.Nurses.Floor), opt(s.Nurses.Recommended), s.Nurses.DecidedBy, num(s.CensusShare, 3),
-			strconv.FormatFloat(wf.Cover, 'f', -1, 64), strconv.FormatFloat(wflags.ppn, 'f', -1, 64), wf.MethodVersion, stats.Caution})
+			strconv.FormatFloat(wf.Cover, 'f', -1, 64), ppnText(wflags.ppn), wf.MethodVersion, stats.Caution})
 	}
 	w.Flush()
 	return w.Error()
 }
 
-// workloadError maps a ForecastWorkload error to the flag or file it is about.
+// workloadError maps a ForecastWorkload error about a shift's care input
+// to its flag (as project's) or to the observations file; "" otherwise.
 func workloadError(err error, obs string) string {
-	switch f := wardload.ErrorField(err); f {
-	case "shift_hours":
-		return "--shift-hours: " + wardload.ErrorMessage(err)
-	case "direct_care_fraction":
-		return "--direct-care: " + wardload.ErrorMessage(err)
-	case "cover_level":
-		return "--cover: " + wardload.ErrorMessage(err)
-	case "patients_per_nurse":
-		return "--patients-per-nurse: " + wardload.ErrorMessage(err)
-	case "shift":
+	f := wardload.ErrorField(err)
+	if f == "shift" {
 		return obs + ": " + wardload.ErrorMessage(err)
 	}
-	return ""
+	switch f {
+	case "shift_hours", "direct_care_fraction", "cover_level", "patients_per_nurse": // the care flags
+		return projectFlags[f] + ": " + wardload.ErrorMessage(err)
+	}
+	return "" // levels and draws are the census forecast's (forecastFlags)
 }
 
 // runWorkloadForecast is forecast --observations.
 func runWorkloadForecast(e *env, censusFile string, wf workloadFlags, set map[string]bool, cin stats.CensusForecastInput, asJSON, asCSV bool) int {
 	const name = "forecast"
-	usage := func(format string, a ...any) int {
-		fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, a...))
-		return exitUsage
-	}
+	usage := func(format string, a ...any) int { return usageError(e, name, format, a...) }
 	for _, f := range []string{"shift-hours", "direct-care"} {
 		if !set[f] {
 			return usage("--%s is required with --observations", f)
@@ -274,4 +268,13 @@ func fileFloorText(wf workloadFlags) string {
 		charge = "the nurse in charge counts towards the ratio"
 	}
 	return fmt.Sprintf("Ratio floor used: at most %g patients per nurse, %s, applied to the census at its %s point.", wf.ppn, charge, levelText(wf.cover))
+}
+
+// ppnText is the file form's --patients-per-nurse, blank when none was
+// given (a ward's floors, per shift, are in floor_nurses).
+func ppnText(ppn float64) string {
+	if ppn == 0 {
+		return ""
+	}
+	return strconv.FormatFloat(ppn, 'f', -1, 64)
 }

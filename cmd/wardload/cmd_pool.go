@@ -48,10 +48,7 @@ func runPool(ctx context.Context, e *env, args []string) int {
 	if code, ok := parseFlags(e, fs, args); !ok {
 		return code
 	}
-	usageErr := func(format string, args ...any) int {
-		fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, args...))
-		return exitUsage
-	}
+	usageErr := func(format string, args ...any) int { return usageError(e, name, format, args...) }
 	if fs.NArg() != 0 {
 		return usageErr("takes no arguments (see --help)")
 	}
@@ -95,8 +92,6 @@ func runPool(ctx context.Context, e *env, args []string) int {
 		case errors.As(err, &skip):
 			rep.Left = append(rep.Left, skip.reason)
 			continue
-		case wardload.ErrorCode(err) == wardload.ENOTFOUND:
-			return usageErr("no ward with code %q (see wardload ward list)", code)
 		case err != nil:
 			return reportError(e, name, err)
 		}
@@ -186,7 +181,7 @@ func (s *skipWard) Error() string { return s.reason }
 // projection and staff, and turns the projection's shortfall table into
 // its need.
 func poolWardOf(ctx context.Context, st wardload.Store, code string, at time.Time, staff map[string]int) (*poolWard, error) {
-	ward, err := st.FindWardByCode(ctx, code)
+	ward, err := findWard(ctx, st, code)
 	if err != nil {
 		return nil, err
 	}

@@ -218,3 +218,9 @@ func parseInterleaved(e *env, fs *flag.FlagSet, args []string) (positional []str
 		args = fs.Args()[1:]
 	}
 }
+
+// usageError prints a usage error of command name and returns exitUsage.
+func usageError(e *env, name, format string, a ...any) int {
+	fmt.Fprintf(e.stderr, "wardload %s: %s\n", name, fmt.Sprintf(format, a...))
+	return exitUsage
+}

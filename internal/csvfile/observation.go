@@ -41,10 +41,9 @@ const MaxProblems = 100
 //
 // The file is read one row at a time and only the observations are kept,
 // not the cells (issue 12: keeping every cell took about 30 times the
-// file's size). Of several problems the one reported is the one a whole
-// read would meet first: a row that cannot be read as CSV, then the
-// header, then the first bad window_hours cell, then the first bad
-// care_minutes cell, then the first row with any other problem.
+// file's size). A row that cannot be read as CSV stops the reading, then
+// a bad header; otherwise every problem is reported at once, as
+// ReadObservationsChecked says.
 func ReadObservations(r io.Reader, ward *wardload.Ward, tiers []*wardload.Tier, shifts []*wardload.ShiftPattern) (obs []*wardload.Observation, lines []int, err error) {
 	return ReadObservationsChecked(r, ward, tiers, shifts, nil)
 }

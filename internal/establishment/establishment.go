@@ -225,6 +225,7 @@ func Estimate(wards []Ward, weeks int, p Params) (*Result, error) {
 // bootstrap draw costs patterns × weeks, not shifts.
 type wardCells struct {
 	sum, n  [][]float64 // [pattern][week]
+	mean    []float64   // [pattern]: the unweighted mean, perDay's fallback
 	missing []string
 }
 
@@ -256,12 +257,22 @@ func newCells(w Ward, weeks int) (wardCells, error) {
 	}
 	kept := 0
 	for _, name := range w.Patterns {
-		k := index[name]
+		k, ok := index[name]
+		if !ok {
+			continue // a repeated name, already placed
+		}
+		delete(index, name)
 		if slices.Max(c.n[k]) == 0 {
 			c.missing = append(c.missing, name)
 			continue
 		}
 		c.sum[kept], c.n[kept] = c.sum[k], c.n[k]
+		fs, fn := 0.0, 0.0
+		for wk := range c.sum[kept] {
+			fs += c.sum[kept][wk]
+			fn += c.n[kept][wk]
+		}
+		c.mean = append(c.mean, fs/fn)
 		kept++
 	}
 	c.sum, c.n = c.sum[:kept], c.n[:kept]
@@ -274,7 +285,7 @@ func newCells(w Ward, weeks int) (wardCells, error) {
 func (c wardCells) perDay(count []int) float64 {
 	total := 0.0
 	for k := range c.sum {
-		s, n, fs, fn := 0.0, 0.0, 0.0, 0.0
+		s, n := 0.0, 0.0
 		for wk := range c.sum[k] {
 			w := 1.0
 			if count != nil {
@@ -282,11 +293,10 @@ func (c wardCells) perDay(count []int) float64 {
 			}
 			s += w * c.sum[k][wk]
 			n += w * c.n[k][wk]
-			fs += c.sum[k][wk]
-			fn += c.n[k][wk]
 		}
 		if n == 0 {
-			s, n = fs, fn
+			total += c.mean[k]
+			continue
 		}
 		total += s / n
 	}

@@ -119,14 +119,10 @@ func (s *Service) LoadBacktest(ctx context.Context, wardID int64, from, to wardl
 // cached by a hash of everything they depend on (only which shifts were
 // fully timed, of the censuses).
 func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Date) (*stats.BacktestResult, error) {
-	settings, err := s.Store.FindSettings(ctx, wardID)
-	if err != nil {
-		return nil, err
-	}
-	// The ward's data version, read before the data (see
-	// wardload.WardVersion for why that order makes the key sound): the
-	// same version and date give the same backtest, so a cached one is
-	// returned without loading a quarter's observations again.
+	// The ward's data version, read before the data, settings included
+	// (see wardload.WardVersion for why that order makes the key sound):
+	// the same version and date give the same backtest, so a cached one
+	// is returned without loading a quarter's observations again.
 	version, err := s.Store.WardVersion(ctx, wardID)
 	if err != nil {
 		return nil, err
@@ -134,6 +130,10 @@ func (s *Service) Calibrate(ctx context.Context, wardID int64, date wardload.Dat
 	vkey := versionKey(wardID, date, version)
 	if r, ok := s.cache().get(vkey); ok {
 		return r, nil
+	}
+	settings, err := s.Store.FindSettings(ctx, wardID)
+	if err != nil {
+		return nil, err
 	}
 	from := date.AddDays(-7 * (CalibrationWeeks + settings.LookbackWeeks))
 	to := date.AddDays(-1)

@@ -36,8 +36,10 @@ type WardForecast struct {
 // the ward's direct-care fraction, cover level and the pattern's ratio
 // floor. Dated shifts whose real length differs from the nominal one (a
 // daylight-saving change) are forecast at the nominal length. from is the
-// first forecast date; weeks 1 to stats.MaxForecastWeeks; draws and seed
-// as stats.CensusForecastInput. ENOTFOUND for an unknown ward.
+// first forecast date, or zero for the day after the ward's newest census
+// up to tomorrow (Service.Now, the ward's calendar; tomorrow when it has
+// none); weeks 1 to stats.MaxForecastWeeks; draws and seed as
+// stats.CensusForecastInput. ENOTFOUND for an unknown ward.
 func (s *Service) ForecastInput(ctx context.Context, wardID int64, from wardload.Date, weeks, draws int, seed uint64) (*WardForecast, error) {
 	ward, err := s.Store.FindWardByID(ctx, wardID)
 	if err != nil {
@@ -55,6 +57,30 @@ func (s *Service) ForecastInput(ctx context.Context, wardID int64, from wardload
 	if err != nil {
 		return nil, err
 	}
+	auto := from.IsZero()
+	if auto {
+		loc, err := ward.Location()
+		if err != nil {
+			return nil, err
+		}
+		from = Today(s.now(), loc).AddDays(1)
+	}
+	histFrom, histTo := from.AddDays(-7*ForecastHistoryWeeks), from.AddDays(-1)
+	census, _, err := s.Store.FindCensus(ctx, wardload.CensusFilter{WardID: &wardID, From: &histFrom, To: &histTo, LatestOnly: true})
+	if err != nil {
+		return nil, fmt.Errorf("forecast: census: %w", err)
+	}
+	if auto {
+		var newest wardload.Date
+		for _, c := range census {
+			if c.Date.After(newest) {
+				newest = c.Date
+			}
+		}
+		if !newest.IsZero() {
+			from = newest.AddDays(1)
+		}
+	}
 	wf := &WardForecast{Ward: ward, Settings: settings,
 		HistoryFrom: from.AddDays(-7 * ForecastHistoryWeeks), HistoryTo: from.AddDays(-1),
 		ObsFrom: from.AddDays(-7 * settings.LookbackWeeks), ObsTo: from.AddDays(-1)}
@@ -66,14 +92,13 @@ func (s *Service) ForecastInput(ctx context.Context, wardID int64, from wardload
 	for _, t := range tiers {
 		tierCode[t.ID] = t.Code
 	}
-	census, _, err := s.Store.FindCensus(ctx, wardload.CensusFilter{WardID: &wardID, From: &wf.HistoryFrom, To: &wf.HistoryTo, LatestOnly: true})
-	if err != nil {
-		return nil, fmt.Errorf("forecast: census: %w", err)
-	}
 	in := &wf.Input
 	in.Census = stats.CensusForecastInput{From: from.String(), Weeks: weeks, Beds: settings.Beds, Draws: draws, Seed: seed,
 		Levels: []float64{settings.CoverLevel}}
 	for _, c := range census {
+		if c.Date.Before(wf.HistoryFrom) {
+			continue // read for the default start, older than this start's history
+		}
 		for _, tc := range c.Counts {
 			in.Census.History = append(in.Census.History, stats.CensusCount{Date: c.Date.String(), Shift: shiftName[c.ShiftID], Tier: tierCode[tc.TierID], Patients: tc.Patients})
 		}

@@ -163,13 +163,7 @@ func (s *Service) prepare(ctx context.Context, wardID int64, date wardload.Date,
 		patients[tc.TierID] = tc.Patients
 	}
 	for _, t := range tiers {
-		ts := stats.TierSample{Code: t.Code, Patients: patients[t.ID], CareMinutes: []float64{}, WindowHours: []float64{}}
-		for _, o := range byTier[t.ID] {
-			ts.CareMinutes = append(ts.CareMinutes, o.CareMinutes)
-			ts.WindowHours = append(ts.WindowHours, o.WindowHours)
-			ts.Dates = append(ts.Dates, o.Date.String())
-			ts.Shifts = append(ts.Shifts, shift.Name) // one pattern: the date names the occurrence
-		}
+		ts := tierSample(t.Code, patients[t.ID], byTier[t.ID], shift.Name)
 		model.Tiers = append(model.Tiers, ts)
 		in.Tiers = append(in.Tiers, InputTier{ID: t.ID, Code: t.Code, Label: t.Label, Observations: len(ts.CareMinutes)})
 	}
@@ -239,6 +233,14 @@ func (s *Service) draws() int {
 	return DefaultDraws
 }
 
+// now is Service.Now, or time.Now when it is nil.
+func (s *Service) now() time.Time {
+	if s.Now != nil {
+		return s.Now()
+	}
+	return time.Now()
+}
+
 // Today returns the ward's calendar date at now.
 func Today(now time.Time, loc *time.Location) wardload.Date { return wardload.DateOf(now.In(loc)) }
 
@@ -246,11 +248,7 @@ func (s *Service) checkDate(date wardload.Date, loc *time.Location) error {
 	if date.IsZero() {
 		return wardload.FieldErrorf(wardload.EINVALID, "date", "Date is required.")
 	}
-	now := time.Now
-	if s.Now != nil {
-		now = s.Now
-	}
-	today := Today(now(), loc)
+	today := Today(s.now(), loc)
 	if date.After(today.AddDays(MaxDaysAhead)) || date.Before(today.AddDays(-MaxDaysBack)) {
 		return wardload.FieldErrorf(wardload.EINVALID, "date",
 			"Date %s is too far from today (%s on this ward): a census can be entered from %d days back to %d days ahead.",

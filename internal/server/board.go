@@ -103,8 +103,8 @@ func boardRowVM(br *export.BoardRow, canPlan bool) web.BoardRowVM {
 		return strconv.Itoa(*p)
 	}
 	v := web.BoardRowVM{Ward: br.Ward, WardName: br.WardName, Shift: br.Shift, Date: br.Date.String(),
-		Window: br.Start.Format("Mon 2 Jan 15:04") + "–" + br.End.Format("15:04 MST"),
-		Status: boardStatusText(br.Status), NoCensus: br.Status == export.StatusNoCensus,
+		Window:   br.Start.Format("Mon 2 Jan 15:04") + "–" + br.End.Format("15:04 MST"),
+		Status:   boardStatusText(br.Status),
 		Patients: num(br.TotalPatients), Recommended: num(br.Recommended), Floor: num(br.Floor),
 		FloorRule: br.FloorRule, Planned: num(br.Planned), Difference: "–", Chance: "–", BelowFloor: br.BelowFloor}
 	if br.Floor == nil && br.Status != export.StatusNoCensus {
@@ -123,10 +123,10 @@ func boardRowVM(br *export.BoardRow, canPlan bool) web.BoardRowVM {
 		v.Chance = "no staff planned"
 	}
 	if br.ProjectionID != 0 {
-		v.ProjectionURL = fmt.Sprintf("/wards/%s/projections/%d", br.Ward, br.ProjectionID)
+		v.ProjectionURL = projectionURL(&wardload.Ward{Code: br.Ward}, br.ProjectionID)
 	}
 	if canPlan {
-		v.PlanURL = fmt.Sprintf("/wards/%s/staffing?date=%s", br.Ward, br.Date)
+		v.PlanURL = staffingURL(&wardload.Ward{Code: br.Ward}, br.Date.String())
 	}
 	return v
 }

@@ -2,8 +2,6 @@ package server
 
 import (
 	"net/url"
-	"strconv"
-	"strings"
 
 	"wardload/internal/wardload"
 	"wardload/web"
@@ -59,24 +57,16 @@ func plannedFieldsVM(vm *web.CensusVM, form url.Values, latest *wardload.Census,
 		{Name: plannedDischargesField, InputID: "planned-discharges", Label: "Planned discharges",
 			Hint: "Discharges and transfers out you already know of for this shift."},
 	}
-	for i := range fields {
-		f := &fields[i]
-		switch {
-		case form != nil:
-			f.Value = clip(strings.TrimSpace(form.Get(f.Name)), 12)
-		case latest != nil:
-			n := latest.Planned.Admissions
-			if f.Name == plannedDischargesField {
-				n = latest.Planned.Discharges
-			}
-			if n != nil {
-				f.Value = strconv.Itoa(*n)
-			}
+	fillCountFields(vm, fields, form, errs, func(name string) *int {
+		if latest == nil {
+			return nil
 		}
-		f.Error = errs[f.Name]
-		if f.Error != "" {
-			vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#" + f.InputID, Message: f.Label + ": " + f.Error})
+		if name == plannedDischargesField {
+			return latest.Planned.Discharges
 		}
+		return latest.Planned.Admissions
+	})
+	for _, f := range fields {
 		vm.PlannedOpen = vm.PlannedOpen || f.Value != "" || f.Error != ""
 	}
 	vm.Planned = fields

@@ -84,24 +84,32 @@ func staffFieldsVM(vm *web.CensusVM, st *wardload.Settings, form url.Values, lat
 		fields = append(fields, web.StaffFieldVM{Name: supportOnDutyField, InputID: "staff-support", Label: "Support staff on duty",
 			Hint: "Care staff who are not nurses."})
 	}
+	fillCountFields(vm, fields, form, errs, func(name string) *int {
+		if latest == nil {
+			return nil
+		}
+		if name == supportOnDutyField {
+			return latest.Staff.Support
+		}
+		return latest.Staff.Nurses
+	})
+	vm.Staff = fields
+}
+
+// fillCountFields sets each count field's value as posted (form not nil)
+// or else as stored(name) gives it (nil: empty), and its error from errs,
+// adding each error to the form's summary.
+func fillCountFields(vm *web.CensusVM, fields []web.StaffFieldVM, form url.Values, errs map[string]string, stored func(name string) *int) {
 	for i := range fields {
 		f := &fields[i]
-		switch {
-		case form != nil:
+		if form != nil {
 			f.Value = clip(strings.TrimSpace(form.Get(f.Name)), 12)
-		case latest != nil:
-			n := latest.Staff.Nurses
-			if f.Name == supportOnDutyField {
-				n = latest.Staff.Support
-			}
-			if n != nil {
-				f.Value = strconv.Itoa(*n)
-			}
+		} else if n := stored(f.Name); n != nil {
+			f.Value = strconv.Itoa(*n)
 		}
 		f.Error = errs[f.Name]
 		if f.Error != "" {
 			vm.Errors = append(vm.Errors, web.FormErrorVM{Href: "#" + f.InputID, Message: f.Label + ": " + f.Error})
 		}
 	}
-	vm.Staff = fields
 }

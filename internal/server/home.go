@@ -36,7 +36,7 @@ func (s *Server) handleHome(w http.ResponseWriter, r *http.Request) error {
 		// The staffing office reads only: no census entry, planning or
 		// ward pages of managers.
 		if u != nil && u.Role != wardload.RoleStaffingOffice {
-			row.CensusURL, row.StaffingURL = censusURL(wd), "/wards/"+wd.Code+"/staffing"
+			row.CensusURL, row.StaffingURL = censusURL(wd), staffingURL(wd, "")
 		}
 		if row.Retired {
 			row.CensusURL, row.StaffingURL = "", ""

@@ -14,7 +14,7 @@ import (
 	"github.com/go-chi/chi/v5"
 
 	"wardload/internal/export"
-	"wardload/internal/stats"
+	"wardload/internal/projector"
 	"wardload/internal/wardload"
 	"wardload/web"
 )
@@ -41,7 +41,7 @@ func (s *Server) planStaff(r *http.Request, ward *wardload.Ward, d wardload.Date
 	if err != nil {
 		return nil, false, err
 	}
-	today := wardload.DateOf(s.now().In(loc))
+	today := projector.Today(s.now(), loc)
 	if d.Before(today.AddDays(-maxPlanAheadDays)) || today.AddDays(maxPlanAheadDays).Before(d) {
 		return nil, false, wardload.FieldErrorf(wardload.EINVALID, "date", "The date %s is more than %d days from today; please check it.", d, maxPlanAheadDays)
 	}
@@ -95,7 +95,7 @@ func (s *Server) staffingFrom(_ *http.Request, ward *wardload.Ward, v string) (w
 		return wardload.Date{}, err
 	}
 	if strings.TrimSpace(v) == "" {
-		return wardload.DateOf(s.now().In(loc)), nil
+		return projector.Today(s.now(), loc), nil
 	}
 	d, err := wardload.ParseDate(strings.TrimSpace(v))
 	if err != nil {
@@ -132,11 +132,10 @@ func (s *Server) renderStaffing(w http.ResponseWriter, r *http.Request, status i
 	}
 	rec := map[key]string{}
 	for _, p := range projs {
-		switch {
-		case p.DecidedBy == stats.DecidedByInsufficient && p.Floor == nil:
+		if n := p.RecommendedNurses(); n != nil {
+			rec[key{p.Date, p.ShiftID}] = strconv.Itoa(*n)
+		} else {
 			rec[key{p.Date, p.ShiftID}] = "none (too few observations)"
-		default:
-			rec[key{p.Date, p.ShiftID}] = strconv.Itoa(p.Recommended)
 		}
 	}
 	st, err := s.store.FindSettings(r.Context(), ward.ID)
@@ -212,7 +211,7 @@ func (s *Server) handleStaffingSave(w http.ResponseWriter, r *http.Request) erro
 		msg = fmt.Sprintf("%s %s: %d nurses were already planned; nothing changed.", plan.Date, sp.Name, plan.Nurses)
 	}
 	s.sessions.Put(r.Context(), sessFlash, msg)
-	return seeOther(w, r, "/wards/"+ward.Code+"/staffing?date="+d.String())
+	return seeOther(w, r, staffingURL(ward, d.String()))
 }
 
 // staffingRequest is the body of the staffing PUT.
@@ -285,13 +284,5 @@ func (s *Server) handleAPIStaffingPut(w http.ResponseWriter, r *http.Request) er
 	start, end, _ := sp.Window(d, loc)
 	res := staffingResponse{Ward: ward.Code, Date: d.String(), Shift: sp.Name, Start: export.FormatTime(start), End: export.FormatTime(end),
 		Nurses: plan.Nurses, SupportStaff: plan.Support, Changed: changed, UpdatedAt: export.FormatTime(plan.UpdatedAt.In(loc))}
-	b, err := json.Marshal(res)
-	if err != nil {
-		return fmt.Errorf("staffing put: %w", err)
-	}
-	w.Header().Set("Content-Type", "application/json")
-	w.Header().Set("Cache-Control", "no-store")
-	w.WriteHeader(http.StatusOK)
-	_, err = w.Write(append(b, '\n'))
-	return err
+	return writeJSON(w, http.StatusOK, res)
 }

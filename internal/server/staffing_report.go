@@ -16,9 +16,6 @@ import (
 // wardload.MaxLookbackWeeks.
 const staffingReportWeeks = 8
 
-// staffingReportURL is the address of a ward's planned-against-needed report.
-func staffingReportURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/staffing-report" }
-
 // handleStaffingReport shows, week by week, how the staff planned and the
 // staff who worked (end-of-shift records) compare with the projections'
 // recommendations and ratio floors (wardload.StaffingWeeks), and lists
@@ -72,11 +69,7 @@ func (s *Server) handleStaffingReport(w http.ResponseWriter, r *http.Request) er
 	floors := map[string]bool{}
 	for _, p := range projections {
 		k := key{p.Date, p.ShiftID}
-		sh := wardload.StaffedShift{Date: p.Date, Shift: p.ShiftName, Hours: p.ShiftHours, Floor: p.Floor, CareUndone: undone[k]}
-		if !(p.DecidedBy == "insufficient_data" && p.Floor == nil) {
-			rec := p.Recommended
-			sh.Recommended = &rec
-		}
+		sh := wardload.StaffedShift{Date: p.Date, Hours: p.ShiftHours, Recommended: p.RecommendedNurses(), Floor: p.Floor, CareUndone: undone[k]}
 		if n, ok := planned[k]; ok {
 			sh.Planned = &n
 		}

@@ -1,6 +1,7 @@
 package server
 
 import (
+	"context"
 	"fmt"
 	"net/http"
 	"strings"
@@ -18,14 +19,7 @@ func (s *Server) handleTokens(w http.ResponseWriter, r *http.Request) error {
 	vm := web.TokensVM{}
 	ctx := r.Context()
 	vm.Notice = s.sessions.PopString(ctx, sessFlash)
-	if sealed := s.sessions.PopString(ctx, sessSecret); sealed != "" {
-		name, secretSealed, _ := strings.Cut(sealed, ":")
-		if secret, err := s.sealer.Unseal(secretSealed); err == nil {
-			vm.NewName, vm.NewSecret = name, secret
-		} else {
-			vm.SecretLost = true
-		}
-	}
+	vm.NewName, vm.NewSecret, vm.SecretLost = s.popTokenSecret(ctx)
 	return s.renderTokens(w, r, http.StatusOK, vm)
 }
 
@@ -85,7 +79,7 @@ func (s *Server) handleTokenCreate(w http.ResponseWriter, r *http.Request) error
 		}
 		return fmt.Errorf("token create: %w", err)
 	}
-	s.sessions.Put(r.Context(), sessSecret, t.Name+":"+s.sealer.Seal(secret))
+	s.putTokenSecret(r.Context(), t.Name, secret)
 	return seeOther(w, r, tokensURL(p.Ward))
 }
 
@@ -127,4 +121,25 @@ func (s *Server) wardCodes(r *http.Request) (map[int64]string, error) {
 		m[w.ID] = w.Code
 	}
 	return m, nil
+}
+
+// putTokenSecret keeps a new token's secret, sealed, in the session for
+// the one page that shows it after the create's redirect.
+func (s *Server) putTokenSecret(ctx context.Context, name, secret string) {
+	s.sessions.Put(ctx, sessSecret, name+":"+s.sealer.Seal(secret))
+}
+
+// popTokenSecret takes the secret putTokenSecret kept, once; lost is true
+// when it was kept but cannot be unsealed.
+func (s *Server) popTokenSecret(ctx context.Context) (name, secret string, lost bool) {
+	sealed := s.sessions.PopString(ctx, sessSecret)
+	if sealed == "" {
+		return "", "", false
+	}
+	name, secretSealed, _ := strings.Cut(sealed, ":")
+	secret, err := s.sealer.Unseal(secretSealed)
+	if err != nil {
+		return "", "", true
+	}
+	return name, secret, false
 }

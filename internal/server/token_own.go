@@ -24,14 +24,7 @@ func (s *Server) handleOwnTokens(w http.ResponseWriter, r *http.Request) error {
 	vm := web.OwnTokensVM{}
 	ctx := r.Context()
 	vm.Notice = s.sessions.PopString(ctx, sessFlash)
-	if sealed := s.sessions.PopString(ctx, sessSecret); sealed != "" {
-		name, secretSealed, _ := strings.Cut(sealed, ":")
-		if secret, err := s.sealer.Unseal(secretSealed); err == nil {
-			vm.NewName, vm.NewSecret = name, secret
-		} else {
-			vm.SecretLost = true
-		}
-	}
+	vm.NewName, vm.NewSecret, vm.SecretLost = s.popTokenSecret(ctx)
 	return s.renderOwnTokens(w, r, http.StatusOK, vm, nil)
 }
 
@@ -112,7 +105,7 @@ func (s *Server) handleOwnTokenCreate(w http.ResponseWriter, r *http.Request) er
 		}
 		return fmt.Errorf("own token create: %w", err)
 	}
-	s.sessions.Put(r.Context(), sessSecret, t.Name+":"+s.sealer.Seal(secret))
+	s.putTokenSecret(r.Context(), t.Name, secret)
 	return seeOther(w, r, "/tokens")
 }
 

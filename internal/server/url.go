@@ -31,6 +31,18 @@ func templateURL(ward *wardload.Ward) string {
 // reviewURL is the address of the weekly review.
 func reviewURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/review" }
 
+// staffingURL is the address of the ward's planned-staff form for date
+// ("" for its default day).
+func staffingURL(ward *wardload.Ward, date string) string {
+	if date == "" {
+		return "/wards/" + ward.Code + "/staffing"
+	}
+	return "/wards/" + ward.Code + "/staffing?date=" + date
+}
+
+// staffingReportURL is the address of a ward's planned-and-worked report.
+func staffingReportURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/staffing-report" }
+
 // relationURL is the address of the ward's relationship check.
 func relationURL(ward *wardload.Ward) string { return "/wards/" + ward.Code + "/relationship" }
 

@@ -183,6 +183,13 @@ func ForecastCensus(in CensusForecastInput) (*CensusForecast, error) {
 	if err != nil {
 		return nil, err
 	}
+	fc, _, _ := h.forecast(in)
+	return fc, nil
+}
+
+// forecast simulates the prepared model h for in and summarises it; it
+// also returns the targets and their draws, for ForecastWorkload.
+func (h *censusPrep) forecast(in CensusForecastInput) (*CensusForecast, []censusTarget, *censusSims) {
 	targets := h.targets(h.from, h.from+7*h.weeks-1)
 	sims := h.simulate(targets, in.Beds, h.draws, in.Seed)
 	out := &CensusForecast{
@@ -205,7 +212,7 @@ func ForecastCensus(in CensusForecastInput) (*CensusForecast, error) {
 		out.Shifts = append(out.Shifts, fs)
 	}
 	out.Notes = h.notes
-	return out, nil
+	return out, targets, sims
 }
 
 // summary reports the tier model.

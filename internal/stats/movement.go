@@ -239,9 +239,12 @@ type movementFit struct {
 // It returns nil and the reason when no movement can be modelled.
 func fitMovement(in *MovementInput, date string, patients int) (*movementFit, *Movement, error) {
 	mv := &Movement{MinRecords: MinMovementRecords, Records: len(in.History), Assumption: MovementAssumption, BandsWithout: []Band{}}
-	for field, p := range map[string]*int{"planned_admissions": in.PlannedAdmissions, "planned_discharges": in.PlannedDischarges} {
-		if p != nil && (*p < 0 || *p > MaxMovementPlanned) {
-			return nil, nil, errField(field, "Planned counts must be from 0 to %d.", MaxMovementPlanned)
+	for _, c := range []struct {
+		field string
+		n     *int
+	}{{"planned_admissions", in.PlannedAdmissions}, {"planned_discharges", in.PlannedDischarges}} {
+		if c.n != nil && (*c.n < 0 || *c.n > MaxMovementPlanned) {
+			return nil, nil, errField(c.field, "Planned counts must be from 0 to %d.", MaxMovementPlanned)
 		}
 	}
 	if in.Beds < 0 || in.Beds > MaxPatients {

@@ -195,8 +195,13 @@ func (f *careFit) plugInMean() float64 {
 		if t.patients == 0 {
 			continue
 		}
-		level := t.level - f.slopeUsed()*t.tbar
-		total += float64(t.patients) * max(0, math.Exp(level)-t.offset)
+		total += float64(t.patients) * f.perPatientMean(&t)
 	}
 	return total
+}
+
+// perPatientMean is tier t's mean care minutes per patient at the
+// estimates, e^{L̂_k} − c_k (at least 0), as plugInMean sums them.
+func (f *careFit) perPatientMean(t *careTier) float64 {
+	return max(0, math.Exp(t.level-f.slopeUsed()*t.tbar)-t.offset)
 }

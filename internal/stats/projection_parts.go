@@ -5,6 +5,8 @@ import (
 	"math"
 	"sort"
 	"strings"
+
+	"wardload/internal/wardload"
 )
 
 // Decided-by values of Nurses.DecidedBy.
@@ -14,7 +16,7 @@ const (
 	DecidedByBoth  = "both"        // they are equal
 	// DecidedByInsufficient: too few observations to estimate care time;
 	// the recommendation is the ratio floor, or none without a floor.
-	DecidedByInsufficient = "insufficient_data"
+	DecidedByInsufficient = wardload.DeclinedDecision
 )
 
 // ceilTolerance is the relative slack of ceilNurses: a need of

@@ -129,14 +129,13 @@ func MedianShiftTest(lower, upper []float64, level float64, reps int, seed uint6
 	}
 	m := MedianShift{Lower: medianOf(lower), Upper: medianOf(upper), Level: level, Reps: reps}
 	m.Difference = m.Upper - m.Lower
-	src := rand.NewPCG(seed, 1)
-	r := rand.New(src)
+	r := rand.New(rand.NewPCG(seed, 1))
 	lo, up := slices.Sorted(slices.Values(lower)), slices.Sorted(slices.Values(upper))
 	diffs := make([]float64, reps)
 	for i := range diffs {
 		// Resample the lower tier first, then the upper one.
-		a := resampledMedian(r, src, lo)
-		diffs[i] = resampledMedian(r, src, up) - a
+		a := resampledMedian(r, lo)
+		diffs[i] = resampledMedian(r, up) - a
 	}
 	slices.Sort(diffs)
 	m.Low = HFQuantile(7, (1-level)/2, diffs)
@@ -155,7 +154,7 @@ func MedianShiftTest(lower, upper []float64, level float64, reps int, seed uint6
 // Statistics, 3rd ed., §2.2 and §2.5). The median so drawn has exactly
 // the distribution of the resample's median; TestResampledMedianExact
 // checks that against all nⁿ resamples of small samples with ties.
-func resampledMedian(r *rand.Rand, src rand.Source, sorted []float64) float64 {
+func resampledMedian(r *rand.Rand, sorted []float64) float64 {
 	n := len(sorted)
 	h := float64(n-1) * 0.5
 	k := int(h) // 0-based order statistics k and k+1
@@ -163,7 +162,7 @@ func resampledMedian(r *rand.Rand, src rand.Source, sorted []float64) float64 {
 	if n == 1 {
 		return sorted[0]
 	}
-	v := distuv.Beta{Alpha: float64(k + 1), Beta: float64(n - k), Src: src}.Rand()
+	v := distuv.Beta{Alpha: float64(k + 1), Beta: float64(n - k), Src: r}.Rand()
 	xk := at(v)
 	if h == float64(k) {
 		return xk

@@ -191,11 +191,10 @@ func TestResampledMedianExact(t *testing.T) {
 				idx[i] = 0
 			}
 		}
-		src := rand.NewPCG(uint64(n), 9)
-		r := rand.New(src)
+		r := rand.New(rand.NewPCG(uint64(n), 9))
 		got := map[float64]float64{}
 		for range draws {
-			got[resampledMedian(r, src, sorted)] += 1.0 / draws
+			got[resampledMedian(r, sorted)] += 1.0 / draws
 		}
 		for v := range got {
 			if exact[v] == 0 {

@@ -2,7 +2,6 @@ package stats
 
 import (
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"slices"
 	"time"
@@ -127,12 +126,7 @@ func ForecastWorkload(in WorkloadForecastInput) (*WorkloadForecast, error) {
 		}
 		cover = c.Cover
 	}
-	fc, err := ForecastCensus(in.Census)
-	if err != nil {
-		return nil, err
-	}
-	targets := h.targets(h.from, h.from+7*h.weeks-1)
-	sims := h.simulate(targets, in.Census.Beds, h.draws, in.Census.Seed)
+	fc, targets, sims := h.forecast(in.Census)
 	out := &WorkloadForecast{MethodVersion: WorkloadMethodVersion, Census: fc, Cover: cover, Caution: Caution}
 	for i, t := range targets {
 		date := dateOfDay(t.day).Format(time.DateOnly)
@@ -225,8 +219,7 @@ func workloadShift(care ProjectionInput, codes []string, counts [][]int32, date 
 	perPatient := make([]float64, len(codes))
 	for k := range codes {
 		if j := idx[k]; j >= 0 && present[k] {
-			t := f.tiers[j]
-			perPatient[k] = max(0, math.Exp(t.level-f.slopeUsed()*t.tbar)-t.offset)
+			perPatient[k] = f.perPatientMean(&f.tiers[j])
 		}
 	}
 	g := *f

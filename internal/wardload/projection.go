@@ -59,6 +59,21 @@ type Projection struct {
 	CreatedAt time.Time
 }
 
+// DeclinedDecision is the DecidedBy of a projection that declined for
+// want of observations (stats.DecidedByInsufficient).
+const DeclinedDecision = "insufficient_data"
+
+// RecommendedNurses is the stored recommendation: nil when the projection
+// declined and the shift has no ratio floor, else Recommended (the floor
+// alone when it declined).
+func (p *Projection) RecommendedNurses() *int {
+	if p.DecidedBy == DeclinedDecision && p.Floor == nil {
+		return nil
+	}
+	n := p.Recommended
+	return &n
+}
+
 // Validate checks the projection's own fields, before the store sets IDs,
 // revision, counts and time.
 func (p *Projection) Validate() error {

@@ -10,7 +10,6 @@ import (
 // what the projection recommended, what was planned and who worked.
 type StaffedShift struct {
 	Date        Date
-	Shift       string
 	Hours       float64 // the shift's length, for staff-hours
 	Recommended *int    // nil: no projection, or it declined without a floor
 	Floor       *int    // the ratio floor the projection used; nil: none

@@ -17,11 +17,11 @@ import "testing"
 func TestStaffingWeeks(t *testing.T) {
 	n := func(v int) *int { return &v }
 	weeks := StaffingWeeks([]StaffedShift{
-		{Date: Date{2026, 3, 2}, Shift: "Day", Hours: 12, Recommended: n(8), Floor: n(6), Planned: n(7), Worked: n(5), CareUndone: true},
-		{Date: Date{2026, 3, 3}, Shift: "Night", Hours: 12, Recommended: n(6), Floor: n(5), Planned: n(6), Worked: n(7)},
-		{Date: Date{2026, 3, 8}, Shift: "Day", Hours: 12, Recommended: n(8)},
-		{Date: Date{2026, 3, 9}, Shift: "Day", Hours: 8, Recommended: n(4), Worked: n(4)},
-		{Date: Date{2026, 3, 5}, Shift: "Day", Hours: 12, Worked: n(1)},
+		{Date: Date{2026, 3, 2}, Hours: 12, Recommended: n(8), Floor: n(6), Planned: n(7), Worked: n(5), CareUndone: true},
+		{Date: Date{2026, 3, 3}, Hours: 12, Recommended: n(6), Floor: n(5), Planned: n(6), Worked: n(7)},
+		{Date: Date{2026, 3, 8}, Hours: 12, Recommended: n(8)},
+		{Date: Date{2026, 3, 9}, Hours: 8, Recommended: n(4), Worked: n(4)},
+		{Date: Date{2026, 3, 5}, Hours: 12, Worked: n(1)},
 	})
 	if len(weeks) != 2 || weeks[0].Week != "2026-W11" || weeks[1].Week != "2026-W10" {
 		t.Fatalf("weeks %+v", weeks)

@@ -24,3 +24,5 @@ print(qnbinom(c(0.5,0.9,0.99), size=S+0.5, prob=m/(m+1)))
 print(c((S+0.5)*(1/(m+1))/(m/(m+1)), (S+0.5)*(1/(m+1))/(m/(m+1))^2), digits=17)
 # weekday case: φ̂ = 0.46 < 1 is taken as Poisson, so shape S + 1/2, rate m
 print(qgamma(c(0.05,0.95), shape=33.5, rate=6), digits=17); print(33.5/6, digits=17)
+# the same records for a Wednesday shift: its own 10 records, total 9, Poisson
+print(qgamma(c(0.05,0.95), shape=9.5, rate=10), digits=17); print(9.5/10, digits=17)
