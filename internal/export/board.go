@@ -116,7 +116,7 @@ func LoadBoard(ctx context.Context, st wardload.Store, wards []*wardload.Ward, f
 		if err != nil {
 			return nil, fmt.Errorf("board: shifts of %s: %w", w.Code, err)
 		}
-		d.Patterns[w.ID] = ps
+		d.Patterns[w.ID] = wardload.ActiveShifts(ps) // a retired shift is no gap to fill
 	}
 	// A dated shift's date is its local start date: a day either side of
 	// the UTC window covers every time zone and a night that began the

@@ -39,6 +39,13 @@ var auditActions = []auditAction{
 	{wardload.ActionObservationRestore, "Restored an observation"},
 	{wardload.ActionWardCreate, "Created a ward"},
 	{wardload.ActionWardUpdate, "Changed a ward"},
+	{wardload.ActionWardRetire, "Retired a ward"},
+	{wardload.ActionWardReinstate, "Reinstated a ward"},
+	{wardload.ActionShiftRetire, "Retired a shift pattern"},
+	{wardload.ActionShiftReinstate, "Reinstated a shift pattern"},
+	{wardload.ActionTierRetire, "Retired an acuity tier"},
+	{wardload.ActionTierReinstate, "Reinstated an acuity tier"},
+	{wardload.ActionStaffingPlan, "Planned staff for a shift"},
 	{wardload.ActionUserCreate, "Created a user"},
 	{wardload.ActionUserUpdate, "Changed a user"},
 	{wardload.ActionTokenCreate, "Created an API token"},
@@ -446,6 +453,8 @@ func auditLink(e *wardload.AuditEntry, ward *wardload.Ward, admin bool) (string,
 		return reviewURL(ward), "Weekly review"
 	case "token":
 		return tokensURL(ward), "API tokens"
+	case "planned_staff":
+		return staffingURL(ward, ""), "Planned staff"
 	case "shift_record":
 		if m, ok := decodeRecord(e.After); ok {
 			var d wardload.Date
@@ -466,7 +475,7 @@ func auditLink(e *wardload.AuditEntry, ward *wardload.Ward, admin bool) (string,
 
 // namesShiftsOrTiers are the entities whose records refer to a shift
 // pattern or tier by ID (a tier or shift record names itself).
-var namesShiftsOrTiers = map[string]bool{"settings": true, "census": true, "projection": true,
+var namesShiftsOrTiers = map[string]bool{"settings": true, "census": true, "projection": true, "planned_staff": true,
 	"observation": true, "shift_record": true}
 
 // loadAuditNames reads the shift pattern names and tier codes of the

@@ -153,7 +153,7 @@ func TestAuditRowInWords(t *testing.T) {
 // is never echoed.
 func TestAuditUnknownInWords(t *testing.T) {
 	w := auditWords{names: auditNames{}, loc: time.UTC}
-	if got := actionName("ward.retire"); got != "Ward retire" {
+	if got := actionName("ward.merge"); got != "Ward merge" {
 		t.Errorf("actionName = %q", got)
 	}
 	got := w.changes(`{"RetiredAt":"0001-01-01T00:00:00Z"}`, `{"RetiredAt":"2026-03-02T09:00:00Z"}`)

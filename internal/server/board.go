@@ -41,7 +41,8 @@ func (s *Server) boardWindow(r *http.Request) (view string, from, to time.Time, 
 // boardWards returns the wards the request's principal may see: every
 // ward for an admin, else the user's or the token's wards, by code.
 func (s *Server) boardWards(r *http.Request) ([]*wardload.Ward, error) {
-	all, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{})
+	// Retired wards have no shifts to staff: they are left off the board.
+	all, _, err := s.store.FindWards(r.Context(), wardload.WardFilter{ActiveOnly: true})
 	if err != nil {
 		return nil, fmt.Errorf("board wards: %w", err)
 	}

@@ -53,6 +53,9 @@ func (s *Server) planStaff(r *http.Request, ward *wardload.Ward, d wardload.Date
 	if err := p.Validate(st.Beds); err != nil {
 		return nil, false, err
 	}
+	if err := p.CheckRetired(ward, sp); err != nil {
+		return nil, false, err
+	}
 	changed, err := s.store.SetPlannedStaff(r.Context(), p)
 	if err != nil {
 		return nil, false, err
@@ -110,10 +113,11 @@ func (s *Server) renderStaffing(w http.ResponseWriter, r *http.Request, status i
 		return err
 	}
 	to := from.AddDays(staffingDays - 1)
-	ps, err := s.store.FindShiftPatterns(r.Context(), ward.ID)
+	all, err := s.store.FindShiftPatterns(r.Context(), ward.ID)
 	if err != nil {
 		return fmt.Errorf("staffing: %w", err)
 	}
+	ps := wardload.ActiveShifts(all) // a retired shift takes no new plans
 	plans, err := s.store.FindPlannedStaff(r.Context(), wardload.PlannedStaffFilter{WardIDs: []int64{ward.ID}, From: &from, To: &to})
 	if err != nil {
 		return fmt.Errorf("staffing: %w", err)

@@ -24,6 +24,18 @@ type PlannedStaff struct {
 	UpdatedAt time.Time // set by the store
 }
 
+// CheckRetired refuses a plan for a retired ward or shift pattern:
+// nothing new is planned for what no longer runs (its past plans stay).
+func (p *PlannedStaff) CheckRetired(w *Ward, sp *ShiftPattern) error {
+	if w.Retired() {
+		return FieldErrorf(EINVALID, "ward", "Ward %s is retired, so no staff can be planned for it.", w.Code)
+	}
+	if sp.Retired() {
+		return FieldErrorf(EINVALID, "shift", "The %s shift is retired, so no staff can be planned for it.", sp.Name)
+	}
+	return nil
+}
+
 // Validate checks the plan's own fields: a ward, shift and date, and
 // counts from 0 to MaxStaff(beds) (beds 0 when not at hand), as EINVALID
 // naming "nurses" or "support".
