@@ -40,6 +40,21 @@ func reviewWeeks(s string) (int, bool) {
 	return n, err == nil && n >= 1 && n <= wardload.MaxLookbackWeeks
 }
 
+// weeksParam reads the weeks of a window from a query value, def when it
+// is empty; EINVALID naming "weeks" when it is not a whole number of
+// weeks a lookback could be.
+func weeksParam(v string, def int) (int, error) {
+	v = strings.TrimSpace(v)
+	if v == "" {
+		return def, nil
+	}
+	n, ok := reviewWeeks(v)
+	if !ok {
+		return 0, wardload.FieldErrorf(wardload.EINVALID, "weeks", "Weeks must be a whole number from 1 to %d.", wardload.MaxLookbackWeeks)
+	}
+	return n, nil
+}
+
 // reviewQuery is the review's address with a shift and weeks, as the
 // exclude and restore forms send them back.
 func reviewQuery(ward *wardload.Ward, shift, weeks string) string {
@@ -74,13 +89,9 @@ func (s *Server) loadReview(r *http.Request, shift, weeks string) (*reviewData, 
 	for _, p := range d.order {
 		d.shifts[p.ID] = p
 	}
-	p := reviewParams{weeks: d.settings.LookbackWeeks}
-	if w := strings.TrimSpace(weeks); w != "" {
-		n, ok := reviewWeeks(w)
-		if !ok {
-			return nil, wardload.FieldErrorf(wardload.EINVALID, "weeks", "Weeks must be a whole number from 1 to %d.", wardload.MaxLookbackWeeks)
-		}
-		p.weeks = n
+	p := reviewParams{}
+	if p.weeks, err = weeksParam(weeks, d.settings.LookbackWeeks); err != nil {
+		return nil, err
 	}
 	if sh := strings.TrimSpace(shift); sh != "" {
 		id, err := strconv.ParseInt(sh, 10, 64)

@@ -56,13 +56,9 @@ func (s *Server) handleRelation(w http.ResponseWriter, r *http.Request) error {
 	if err != nil {
 		return err
 	}
-	weeks := settings.LookbackWeeks
-	if v := strings.TrimSpace(q.Get("weeks")); v != "" {
-		n, ok := reviewWeeks(v)
-		if !ok {
-			return wardload.FieldErrorf(wardload.EINVALID, "weeks", "Weeks must be a whole number from 1 to %d.", wardload.MaxLookbackWeeks)
-		}
-		weeks = n
+	weeks, err := weeksParam(q.Get("weeks"), settings.LookbackWeeks)
+	if err != nil {
+		return err
 	}
 	vm.Weeks = strconv.Itoa(weeks)
 	vm.TierText = "all tiers"

@@ -5,7 +5,6 @@ import (
 	"net/http"
 	"slices"
 	"strconv"
-	"strings"
 
 	"wardload/internal/projector"
 	"wardload/internal/wardload"
@@ -23,13 +22,9 @@ const staffingReportWeeks = 8
 func (s *Server) handleStaffingReport(w http.ResponseWriter, r *http.Request) error {
 	ctx := r.Context()
 	ward := principalFrom(ctx).Ward
-	weeks := staffingReportWeeks
-	if v := strings.TrimSpace(r.URL.Query().Get("weeks")); v != "" {
-		n, ok := reviewWeeks(v)
-		if !ok {
-			return wardload.FieldErrorf(wardload.EINVALID, "weeks", "Weeks must be a whole number from 1 to %d.", wardload.MaxLookbackWeeks)
-		}
-		weeks = n
+	weeks, err := weeksParam(r.URL.Query().Get("weeks"), staffingReportWeeks)
+	if err != nil {
+		return err
 	}
 	loc, err := ward.Location()
 	if err != nil {

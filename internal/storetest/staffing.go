@@ -98,7 +98,7 @@ func staffingCases() []testCase {
 				{"no date", wardload.PlannedStaff{WardID: w1.ward.ID, ShiftID: w1.day.ID, Nurses: 3}, wardload.EINVALID, "date"},
 				{"unknown shift", wardload.PlannedStaff{WardID: w1.ward.ID, Date: d, ShiftID: 99999, Nurses: 3}, wardload.ENOTFOUND, "shift"},
 				{"other ward's shift", wardload.PlannedStaff{WardID: w1.ward.ID, Date: d, ShiftID: w2.day.ID, Nurses: 3}, wardload.ENOTFOUND, "shift"},
-				{"unknown ward", wardload.PlannedStaff{WardID: 99999, Date: d, ShiftID: w1.day.ID, Nurses: 3}, wardload.ENOTFOUND, ""},
+				{"unknown ward", wardload.PlannedStaff{WardID: 99999, Date: d, ShiftID: w1.day.ID, Nurses: 3}, wardload.ENOTFOUND, "ward"},
 			} {
 				p := tc.p
 				_, err := f.store.SetPlannedStaff(f.ctx, &p)

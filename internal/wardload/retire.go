@@ -119,13 +119,18 @@ func CheckTierRetire(ts []*Tier, id int64) error {
 // kind ("ward", "tier" or "shift") from retired-at before to after: its
 // retire or reinstate action when that changed, else its update action.
 func RetireAction(kind string, before, after time.Time) string {
+	actions := map[string][3]string{ // update, retire, reinstate
+		"ward":  {ActionWardUpdate, ActionWardRetire, ActionWardReinstate},
+		"tier":  {ActionTierUpdate, ActionTierRetire, ActionTierReinstate},
+		"shift": {ActionShiftUpdate, ActionShiftRetire, ActionShiftReinstate},
+	}[kind]
 	switch {
 	case before.IsZero() && !after.IsZero():
-		return kind + ".retire"
+		return actions[1]
 	case !before.IsZero() && after.IsZero():
-		return kind + ".reinstate"
+		return actions[2]
 	}
-	return kind + ".update"
+	return actions[0]
 }
 
 // The refusals of a new census that names something retired; the store
